@@ -1,0 +1,1 @@
+//! The objective review: pure functions over `model` types.

@@ -1,0 +1,1 @@
+//! Headless commands: human tables or `--json`, no terminal UI.

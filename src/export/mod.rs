@@ -1,0 +1,1 @@
+//! Feedback text, tables, clipboard.

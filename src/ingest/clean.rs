@@ -1,0 +1,8 @@
+//! Bad-data flags. Samples are never deleted; each flag has a range, a channel and a reason.
+
+use crate::model::{AthleteProfile, Flag, Session};
+
+/// Flag the bad stretches of a session.
+pub fn flag(_session: &Session, _profile: Option<&AthleteProfile>) -> Vec<Flag> {
+    Vec::new()
+}

@@ -1,0 +1,1 @@
+//! Helpers shared by the TCX and GPX readers (local names, timestamps).

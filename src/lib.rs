@@ -1,0 +1,13 @@
+//! splitdesk: a terminal workstation for a running coach's daily review.
+//!
+//! Data flows one way: files → `ingest` → `analysis` → `journal` → views.
+//! `model`, `plan` and `analysis` do no I/O and know nothing of terminals.
+
+pub mod analysis;
+pub mod cli;
+pub mod demo;
+pub mod export;
+pub mod ingest;
+pub mod model;
+pub mod plan;
+pub mod roster;

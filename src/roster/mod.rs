@@ -1,0 +1,1 @@
+//! The roster folder: athletes, profiles, plans, activities, notes.

@@ -5,6 +5,7 @@
 
 pub mod analysis;
 pub mod cli;
+pub mod config;
 pub mod demo;
 pub mod export;
 pub mod ingest;

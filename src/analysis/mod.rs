@@ -1,1 +1,3 @@
-//! The objective review: pure functions over `model` types.
+//! The objective review: pure functions over `model` types. No I/O, no terminal.
+
+pub mod summary;

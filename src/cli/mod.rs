@@ -1,1 +1,81 @@
 //! Headless commands: human tables or `--json`, no terminal UI.
+//!
+//! Every command prints errors as one line `error: PATH: reason` on stderr and returns
+//! a non-zero exit code; nothing here panics on bad input.
+
+mod check;
+mod inspect;
+mod summary;
+
+use std::path::PathBuf;
+
+use clap::{Parser, Subcommand};
+
+/// splitdesk: the running coach's daily review, in the terminal.
+#[derive(Debug, Parser)]
+#[command(name = "splitdesk", version, about, long_about = None)]
+pub struct Cli {
+    /// Roster folder (default: the config file's `roster`, else the bundled demo roster).
+    #[arg(long, global = true, value_name = "DIR")]
+    pub roster: Option<PathBuf>,
+    /// Journal database (default: one per roster in the platform data directory).
+    #[arg(long, global = true, value_name = "PATH")]
+    pub journal: Option<PathBuf>,
+    #[command(subcommand)]
+    pub command: Option<Command>,
+}
+
+#[derive(Debug, Subcommand)]
+pub enum Command {
+    /// Read recorded session files and print what they hold.
+    Inspect {
+        /// FIT, TCX or GPX files.
+        #[arg(required = true, value_name = "FILE")]
+        files: Vec<PathBuf>,
+        /// Print JSON instead of text.
+        #[arg(long)]
+        json: bool,
+    },
+    /// Read every file of a roster and list each problem (exit 1 if a file is unreadable).
+    Check {
+        /// Roster folder (default: --roster, the config file, else the demo roster).
+        #[arg(value_name = "ROSTER")]
+        dir: Option<PathBuf>,
+        /// Print JSON instead of text.
+        #[arg(long)]
+        json: bool,
+    },
+}
+
+/// Run a parsed command line; returns the process exit code.
+pub fn run(cli: Cli) -> anyhow::Result<i32> {
+    let config = crate::config::load()?;
+    match cli.command {
+        None => summary::run(&crate::config::resolve_roster(
+            cli.roster.as_deref(),
+            &config,
+        )),
+        Some(Command::Inspect { files, json }) => inspect::run(&files, json),
+        Some(Command::Check { dir, json }) => {
+            let root = dir.unwrap_or_else(|| {
+                crate::config::resolve_roster(cli.roster.as_deref(), &config)
+            });
+            check::run(&root, json)
+        }
+    }
+}
+
+/// A progress bar on stderr; invisible when stderr is not a terminal.
+pub(crate) fn progress_bar(len: u64, what: &str) -> indicatif::ProgressBar {
+    let bar = indicatif::ProgressBar::with_draw_target(
+        Some(len),
+        indicatif::ProgressDrawTarget::stderr(),
+    );
+    if let Ok(style) =
+        indicatif::ProgressStyle::with_template("{msg} [{bar:30}] {pos}/{len} {elapsed}")
+    {
+        bar.set_style(style.progress_chars("=> "));
+    }
+    bar.set_message(what.to_string());
+    bar
+}

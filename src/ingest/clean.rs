@@ -6,3 +6,8 @@ use crate::model::{AthleteProfile, Flag, Session};
 pub fn flag(_session: &Session, _profile: Option<&AthleteProfile>) -> Vec<Flag> {
     Vec::new()
 }
+
+/// Fraction of the session's duration covered by the union of the flags (0..1).
+pub fn flagged_fraction(_session: &Session, _flags: &[Flag]) -> f64 {
+    0.0
+}

@@ -1,1 +1,293 @@
-//! The roster folder: athletes, profiles, plans, activities, notes.
+//! The roster folder: athletes, profiles, plans, activities and notes.
+//!
+//! ```text
+//! <roster>/roster.toml                 optional: name, units
+//! <roster>/<athlete-id>/athlete.toml   profile
+//! <roster>/<athlete-id>/plans/*.toml   planned workouts
+//! <roster>/<athlete-id>/activities/*   recorded sessions (.fit, .tcx, .gpx)
+//! <roster>/<athlete-id>/notes/<stem>.txt   the athlete's own comments
+//! ```
+//!
+//! Discovery only lists files; it never decodes activities. Anything unreadable becomes a
+//! `Problem` in the listing, never a failure of the whole roster.
+
+mod profile;
+
+pub(crate) use profile::toml_error_line;
+
+use std::path::{Path, PathBuf};
+
+use serde::Deserialize;
+
+use crate::model::{AthleteProfile, FileFormat, Units};
+
+pub use profile::{parse_profile, ProfileError};
+
+/// The roster root itself could not be read.
+#[derive(Debug, thiserror::Error)]
+pub enum RosterError {
+    #[error("{path}: {source}")]
+    Io {
+        path: PathBuf,
+        #[source]
+        source: std::io::Error,
+    },
+    #[error("{path}: not a folder")]
+    NotADir { path: PathBuf },
+}
+
+/// Something in the roster that could not be used; the rest of the roster still works.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct Problem {
+    pub path: PathBuf,
+    pub message: String,
+}
+
+impl std::fmt::Display for Problem {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        write!(f, "{}: {}", self.path.display(), self.message)
+    }
+}
+
+/// One recorded-session file of an athlete.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct Activity {
+    pub path: PathBuf,
+    /// File name without extension; with the athlete id it forms the session id.
+    pub stem: String,
+    pub format: FileFormat,
+    /// `notes/<stem>.txt` when it exists.
+    pub note_file: Option<PathBuf>,
+}
+
+/// One athlete folder.
+#[derive(Debug, Clone)]
+pub struct Athlete {
+    pub id: String,
+    pub dir: PathBuf,
+    pub profile: AthleteProfile,
+    /// Sorted by file name.
+    pub activities: Vec<Activity>,
+    /// Plan files (`plans/*.toml`), sorted by file name.
+    pub plan_files: Vec<PathBuf>,
+}
+
+impl Athlete {
+    /// The stable session id of an activity: `<athlete-id>/<file-stem>`.
+    pub fn session_id(&self, activity: &Activity) -> String {
+        format!("{}/{}", self.id, activity.stem)
+    }
+}
+
+/// A discovered roster.
+#[derive(Debug, Clone)]
+pub struct Roster {
+    pub root: PathBuf,
+    pub name: String,
+    pub units: Units,
+    /// Sorted by id.
+    pub athletes: Vec<Athlete>,
+    pub problems: Vec<Problem>,
+}
+
+#[derive(Debug, Deserialize, Default)]
+#[serde(deny_unknown_fields)]
+struct RosterFile {
+    name: Option<String>,
+    units: Option<String>,
+}
+
+impl Roster {
+    pub fn athlete(&self, id: &str) -> Option<&Athlete> {
+        self.athletes.iter().find(|a| a.id == id)
+    }
+
+    /// Find an activity by session id `<athlete-id>/<stem>`.
+    pub fn find_session(&self, session_id: &str) -> Option<(&Athlete, &Activity)> {
+        let (aid, stem) = session_id.split_once('/')?;
+        let athlete = self.athlete(aid)?;
+        let act = athlete.activities.iter().find(|a| a.stem == stem)?;
+        Some((athlete, act))
+    }
+
+    /// Every activity of every athlete.
+    pub fn activities(&self) -> impl Iterator<Item = (&Athlete, &Activity)> {
+        self.athletes
+            .iter()
+            .flat_map(|a| a.activities.iter().map(move |x| (a, x)))
+    }
+
+    /// Discover a roster folder.
+    pub fn open(root: &Path) -> Result<Roster, RosterError> {
+        let meta = std::fs::metadata(root).map_err(|source| RosterError::Io {
+            path: root.to_path_buf(),
+            source,
+        })?;
+        if !meta.is_dir() {
+            return Err(RosterError::NotADir {
+                path: root.to_path_buf(),
+            });
+        }
+        let mut problems = Vec::new();
+        let mut name = root
+            .file_name()
+            .map(|n| n.to_string_lossy().into_owned())
+            .unwrap_or_else(|| "roster".to_string());
+        let mut units = Units::Km;
+        let roster_toml = root.join("roster.toml");
+        if roster_toml.exists() {
+            match read_roster_file(&roster_toml) {
+                Ok(rf) => {
+                    if let Some(n) = rf.name {
+                        name = n;
+                    }
+                    match rf.units.as_deref().map(|u| (u, Units::parse(u))) {
+                        Some((_, Some(u))) => units = u,
+                        Some((raw, None)) => problems.push(Problem {
+                            path: roster_toml.clone(),
+                            message: format!("units: expected \"km\" or \"mi\", found {raw:?}"),
+                        }),
+                        None => {}
+                    }
+                }
+                Err(message) => problems.push(Problem {
+                    path: roster_toml.clone(),
+                    message,
+                }),
+            }
+        }
+
+        let mut athletes = Vec::new();
+        for dir in sorted_entries(root, &mut problems) {
+            if !dir.is_dir() {
+                continue;
+            }
+            let Some(id) = dir.file_name().and_then(|n| n.to_str()).map(str::to_string) else {
+                continue;
+            };
+            if id.starts_with('.') {
+                continue;
+            }
+            let profile_path = dir.join("athlete.toml");
+            if !profile_path.exists() {
+                // Not an athlete folder (e.g. a stray folder in a synced roster).
+                continue;
+            }
+            let profile = match std::fs::read_to_string(&profile_path) {
+                Ok(text) => match parse_profile(&text, &id, units) {
+                    Ok(p) => p,
+                    Err(e) => {
+                        problems.push(Problem {
+                            path: profile_path.clone(),
+                            message: e.to_string(),
+                        });
+                        let mut p = AthleteProfile::bare(&id);
+                        p.units = units;
+                        p
+                    }
+                },
+                Err(e) => {
+                    problems.push(Problem {
+                        path: profile_path.clone(),
+                        message: e.to_string(),
+                    });
+                    AthleteProfile::bare(&id)
+                }
+            };
+            let activities = discover_activities(&dir, &mut problems);
+            let plan_files = sorted_entries(&dir.join("plans"), &mut Vec::new())
+                .into_iter()
+                .filter(|p| p.extension().is_some_and(|e| e.eq_ignore_ascii_case("toml")))
+                .collect();
+            athletes.push(Athlete {
+                id,
+                dir,
+                profile,
+                activities,
+                plan_files,
+            });
+        }
+        Ok(Roster {
+            root: root.to_path_buf(),
+            name,
+            units,
+            athletes,
+            problems,
+        })
+    }
+}
+
+fn read_roster_file(path: &Path) -> Result<RosterFile, String> {
+    let text = std::fs::read_to_string(path).map_err(|e| e.to_string())?;
+    toml::from_str(&text).map_err(|e| profile::toml_error_line(&text, &e))
+}
+
+/// The entries of a folder sorted by name; a missing folder is empty, an unreadable one a problem.
+fn sorted_entries(dir: &Path, problems: &mut Vec<Problem>) -> Vec<PathBuf> {
+    let rd = match std::fs::read_dir(dir) {
+        Ok(rd) => rd,
+        Err(e) if e.kind() == std::io::ErrorKind::NotFound => return Vec::new(),
+        Err(e) => {
+            problems.push(Problem {
+                path: dir.to_path_buf(),
+                message: e.to_string(),
+            });
+            return Vec::new();
+        }
+    };
+    let mut out: Vec<PathBuf> = rd.filter_map(|e| e.ok().map(|e| e.path())).collect();
+    out.sort();
+    out
+}
+
+fn discover_activities(athlete_dir: &Path, problems: &mut Vec<Problem>) -> Vec<Activity> {
+    let notes_dir = athlete_dir.join("notes");
+    let mut out = Vec::new();
+    for path in sorted_entries(&athlete_dir.join("activities"), problems) {
+        if !path.is_file() {
+            continue;
+        }
+        let Some(name) = path.file_name().and_then(|n| n.to_str()) else {
+            continue;
+        };
+        if name.starts_with('.') {
+            continue;
+        }
+        let format = path
+            .extension()
+            .and_then(|e| e.to_str())
+            .and_then(FileFormat::from_extension);
+        let Some(format) = format else {
+            problems.push(Problem {
+                path: path.clone(),
+                message: "not a .fit, .tcx or .gpx file; skipped".into(),
+            });
+            continue;
+        };
+        let stem = path
+            .file_stem()
+            .map(|s| s.to_string_lossy().into_owned())
+            .unwrap_or_default();
+        let note = notes_dir.join(format!("{stem}.txt"));
+        out.push(Activity {
+            path,
+            note_file: note.is_file().then_some(note),
+            stem,
+            format,
+        });
+    }
+    // Two files with the same stem would share a session id: keep the first, report the rest.
+    let mut seen = std::collections::BTreeSet::new();
+    out.retain(|a| {
+        if seen.insert(a.stem.clone()) {
+            true
+        } else {
+            problems.push(Problem {
+                path: a.path.clone(),
+                message: format!("another file already has the name {:?}; skipped", a.stem),
+            });
+            false
+        }
+    });
+    out
+}

@@ -1,0 +1,110 @@
+//! The coach's configuration file and where things live.
+//!
+//! `config.toml` sits in the platform config directory (or at `$SPLITDESK_CONFIG`);
+//! `config.example.toml` at the repo root documents every key. Command-line flags
+//! override the file; with neither, the bundled demo roster opens.
+
+use std::path::{Path, PathBuf};
+
+use serde::Deserialize;
+
+/// Settings read from `config.toml`. Every key is optional.
+#[derive(Debug, Clone, Default, Deserialize, PartialEq)]
+#[serde(deny_unknown_fields)]
+pub struct Config {
+    /// The roster folder to open.
+    pub roster: Option<PathBuf>,
+    /// The journal database; by default one per roster in the platform data directory.
+    pub journal: Option<PathBuf>,
+    /// Key overrides for the workstation (action name = key).
+    #[serde(default)]
+    pub keys: toml::Table,
+}
+
+/// The configuration file could not be used.
+#[derive(Debug, thiserror::Error)]
+pub enum ConfigError {
+    #[error("{path}: {source}")]
+    Io {
+        path: PathBuf,
+        #[source]
+        source: std::io::Error,
+    },
+    #[error("{path}: {message}")]
+    Parse { path: PathBuf, message: String },
+}
+
+/// Where `config.toml` is looked for: `$SPLITDESK_CONFIG`, else the platform config dir.
+pub fn config_path() -> Option<PathBuf> {
+    if let Some(p) = std::env::var_os("SPLITDESK_CONFIG") {
+        return Some(PathBuf::from(p));
+    }
+    directories::ProjectDirs::from("", "", "splitdesk").map(|d| d.config_dir().join("config.toml"))
+}
+
+/// Load the configuration; a missing file is the empty configuration.
+pub fn load() -> Result<Config, ConfigError> {
+    match config_path() {
+        Some(p) => load_from(&p),
+        None => Ok(Config::default()),
+    }
+}
+
+/// Load a configuration file; a missing file is the empty configuration.
+pub fn load_from(path: &Path) -> Result<Config, ConfigError> {
+    let text = match std::fs::read_to_string(path) {
+        Ok(t) => t,
+        Err(e) if e.kind() == std::io::ErrorKind::NotFound => return Ok(Config::default()),
+        Err(source) => {
+            return Err(ConfigError::Io {
+                path: path.to_path_buf(),
+                source,
+            })
+        }
+    };
+    parse(&text).map_err(|message| ConfigError::Parse {
+        path: path.to_path_buf(),
+        message,
+    })
+}
+
+/// Parse configuration text; errors are one line with the position.
+pub fn parse(text: &str) -> Result<Config, String> {
+    toml::from_str(text).map_err(|e| crate::roster::toml_error_line(text, &e))
+}
+
+/// The bundled demo roster: next to the sources when run from a checkout, else
+/// `demo-athletes/` in the current folder.
+pub fn demo_roster() -> PathBuf {
+    let bundled = Path::new(env!("CARGO_MANIFEST_DIR")).join("demo-athletes");
+    if bundled.is_dir() {
+        bundled
+    } else {
+        PathBuf::from("demo-athletes")
+    }
+}
+
+/// The roster to open: the flag, else the config file, else the demo roster.
+pub fn resolve_roster(flag: Option<&Path>, config: &Config) -> PathBuf {
+    flag.map(Path::to_path_buf)
+        .or_else(|| config.roster.clone())
+        .unwrap_or_else(demo_roster)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn flag_beats_config_beats_demo() {
+        let cfg = parse("roster = \"/srv/club\"\n").unwrap();
+        assert_eq!(
+            resolve_roster(Some(Path::new("/tmp/x")), &cfg),
+            PathBuf::from("/tmp/x")
+        );
+        assert_eq!(resolve_roster(None, &cfg), PathBuf::from("/srv/club"));
+        assert_eq!(resolve_roster(None, &Config::default()), demo_roster());
+        let err = parse("rooster = 1").unwrap_err();
+        assert!(err.starts_with("line 1, column 1:"), "{err}");
+    }
+}

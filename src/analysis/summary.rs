@@ -51,15 +51,18 @@ mod tests {
         let start = Utc.with_ymd_and_hms(2026, 1, 1, 8, 0, 0).unwrap();
         let mut s = Session::empty(FileFormat::Fit, start);
         s.t = (0..=100).map(f64::from).collect();
-        s.time = s
-            .t
-            .iter()
-            .map(|&x| start + chrono::Duration::seconds(x as i64))
-            .collect();
+        s.time =
+            s.t.iter()
+                .map(|&x| start + chrono::Duration::seconds(x as i64))
+                .collect();
         // 0..=50 running, 51..=70 standing, 71..=100 running
-        s.speed = Some(Channel::from_values(
-            (0..=100).map(|i| if (51..=70).contains(&i) { 0.0 } else { 3.0 }),
-        ));
+        s.speed = Some(Channel::from_values((0..=100).map(|i| {
+            if (51..=70).contains(&i) {
+                0.0
+            } else {
+                3.0
+            }
+        })));
         s.pauses = vec![Pause {
             from_s: 80.0,
             to_s: 90.0,

@@ -57,9 +57,8 @@ pub fn run(cli: Cli) -> anyhow::Result<i32> {
         )),
         Some(Command::Inspect { files, json }) => inspect::run(&files, json),
         Some(Command::Check { dir, json }) => {
-            let root = dir.unwrap_or_else(|| {
-                crate::config::resolve_roster(cli.roster.as_deref(), &config)
-            });
+            let root = dir
+                .unwrap_or_else(|| crate::config::resolve_roster(cli.roster.as_deref(), &config));
             check::run(&root, json)
         }
     }

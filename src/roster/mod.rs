@@ -197,7 +197,10 @@ impl Roster {
             let activities = discover_activities(&dir, &mut problems);
             let plan_files = sorted_entries(&dir.join("plans"), &mut Vec::new())
                 .into_iter()
-                .filter(|p| p.extension().is_some_and(|e| e.eq_ignore_ascii_case("toml")))
+                .filter(|p| {
+                    p.extension()
+                        .is_some_and(|e| e.eq_ignore_ascii_case("toml"))
+                })
                 .collect();
             athletes.push(Athlete {
                 id,

@@ -135,8 +135,12 @@ pub fn parse_profile(
         }
     }
     let pace = |key: &str, s: &str| {
-        parse_pace(s, units)
-            .ok_or_else(|| bad(key, format!("expected a pace like \"4:10/km\", found {s:?}")))
+        parse_pace(s, units).ok_or_else(|| {
+            bad(
+                key,
+                format!("expected a pace like \"4:10/km\", found {s:?}"),
+            )
+        })
     };
     let threshold_speed_mps = match raw.threshold_pace.as_deref() {
         Some(s) => Some(pace("threshold_pace", s)?),
@@ -214,8 +218,8 @@ easy = "9:00/mi"
         assert_eq!(e.to_string(), "hr_max: 300 bpm is outside 25-250");
         let e = parse_profile("hr_max = 180\nhr_rest = 190", "x", Units::Km).unwrap_err();
         assert!(e.to_string().starts_with("hr_rest:"));
-        let e = parse_profile("name = \"a\"\nthreshold_pace = \"fast\"", "x", Units::Km)
-            .unwrap_err();
+        let e =
+            parse_profile("name = \"a\"\nthreshold_pace = \"fast\"", "x", Units::Km).unwrap_err();
         assert!(e.to_string().contains("threshold_pace"), "{e}");
         let e = parse_profile("name = \"a\"\nhr_maxx = 3", "x", Units::Km).unwrap_err();
         assert!(e.to_string().starts_with("line 2, column 1:"), "{e}");

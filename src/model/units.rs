@@ -95,7 +95,7 @@ pub fn format_clock(secs: f64) -> String {
 
 /// Format a speed as a pace in the given units, e.g. `4:10/km`.
 pub fn format_pace(speed_mps: f64, units: Units) -> String {
-    if !(speed_mps > 0.0) || !speed_mps.is_finite() {
+    if speed_mps.is_nan() || speed_mps <= 0.0 || !speed_mps.is_finite() {
         return format!("--:--/{}", units.label());
     }
     format!(

@@ -195,7 +195,7 @@ pub(crate) fn tokenize(src: &str) -> Result<Vec<Token<'_>>, SynErr> {
         }
         return Err(SynErr::invalid(
             start,
-            format!("unexpected character \"{c}\""),
+            format!("unexpected character {c:?}"),
         ));
     }
     Ok(out)

@@ -726,11 +726,14 @@ fn write_target(t: &Target) -> Option<String> {
         Target::NamedPace {
             name,
             tolerance_s_per_km,
-        } => Some(if *tolerance_s_per_km == DEFAULT_TOLERANCE_S_PER_KM {
-            format!("@ {name}")
-        } else {
-            format!("@ {name} ±{tolerance_s_per_km}")
-        }),
+        } => {
+            let at = if is_quality(t) { "@ " } else { "" };
+            Some(if *tolerance_s_per_km == DEFAULT_TOLERANCE_S_PER_KM {
+                format!("{at}{name}")
+            } else {
+                format!("{at}{name} ±{tolerance_s_per_km}")
+            })
+        }
         Target::HrRange { low_bpm, high_bpm } => Some(format!("hr {low_bpm}-{high_bpm}")),
     }
 }

@@ -14,7 +14,7 @@ use super::shorthand::{
     parse_pace_str, resolve_kinds, DraftStep,
 };
 use super::MAX_REPEATS;
-use crate::model::{Plan, Segment, SegmentKind, Step, Target};
+use crate::model::{Amount, Plan, Segment, SegmentKind, Step, Target};
 
 #[derive(Deserialize)]
 #[serde(deny_unknown_fields)]
@@ -276,7 +276,7 @@ fn step_from_table(ctx: &Ctx<'_>, table: Spanned<RawStep>) -> Result<DraftStep, 
         }
         let seg = raw.take_seg();
         let explicit = seg.kind.is_some();
-        let seg = segment_from(ctx, seg, SegmentKind::Steady, at)?;
+        let seg = segment_from(ctx, seg, SegmentKind::Steady, at, false)?;
         return Ok(DraftStep::Single { seg, explicit });
     };
     let n = *count.get_ref();
@@ -302,11 +302,11 @@ fn step_from_table(ctx: &Ctx<'_>, table: Spanned<RawStep>) -> Result<DraftStep, 
                 .into_iter()
                 .map(|t| {
                     let wat = t.span().start;
-                    segment_from(ctx, t.into_inner(), SegmentKind::Work, wat)
+                    segment_from(ctx, t.into_inner(), SegmentKind::Work, wat, false)
                 })
                 .collect::<Result<Vec<_>, _>>()?
         }
-        None => vec![segment_from(ctx, own, SegmentKind::Work, at)?],
+        None => vec![segment_from(ctx, own, SegmentKind::Work, at, true)?],
     };
     let recovery = match raw.recovery.take() {
         Some(r) => {
@@ -316,6 +316,7 @@ fn step_from_table(ctx: &Ctx<'_>, table: Spanned<RawStep>) -> Result<DraftStep, 
                 r.into_inner(),
                 SegmentKind::Recovery,
                 rat,
+                false,
             )?)
         }
         None => None,
@@ -332,6 +333,7 @@ fn segment_from(
     raw: RawSeg,
     default: SegmentKind,
     at: usize,
+    repeat_step: bool,
 ) -> Result<Segment, PlanError> {
     let kind = match &raw.kind {
         Some(k) => parse_kind_str(k.get_ref()).ok_or_else(|| {
@@ -371,28 +373,29 @@ fn segment_from(
             parse_amount_str(d.get_ref()).map_err(|e| ctx.in_string("distance", d, e))?
         }
         (None, None) => {
-            let at = raw.first_span().map_or(at, |s| s.start);
-            return Err(ctx.invalid(
-                at,
-                "missing duration = \"3:00\" or distance = \"400m\" in this step",
-            ));
+            let msg = if repeat_step {
+                "missing [[step.work]] tables, or duration = \"3:00\" or distance = \"400m\" \
+                 on this repeat"
+            } else {
+                "missing duration = \"3:00\" or distance = \"400m\" in this step"
+            };
+            return Err(ctx.invalid(at, msg));
         }
     };
-    if matches!(
-        (&amount, &raw.duration),
-        (crate::model::Amount::Distance(_), Some(_))
-    ) {
-        if let Some(d) = &raw.duration {
-            return Err(ctx.invalid(d.span().start, "duration is a distance: use distance = "));
+    match (&amount, &raw.duration, &raw.distance) {
+        (Amount::Distance(_), Some(d), _) => {
+            return Err(ctx.invalid(
+                d.span().start,
+                format!("\"{}\" is a distance: write distance = \"...\"", d.get_ref()),
+            ))
         }
-    }
-    if matches!(
-        (&amount, &raw.distance),
-        (crate::model::Amount::Duration(_), Some(_))
-    ) {
-        if let Some(d) = &raw.distance {
-            return Err(ctx.invalid(d.span().start, "distance is a duration: use duration = "));
+        (Amount::Duration(_), _, Some(d)) => {
+            return Err(ctx.invalid(
+                d.span().start,
+                format!("\"{}\" is a duration: write duration = \"...\"", d.get_ref()),
+            ))
         }
+        _ => {}
     }
     let tolerance = raw.tolerance.as_ref().map(|t| *t.get_ref());
     let target = match (&raw.pace, &raw.hr) {

@@ -332,10 +332,14 @@ impl<'a> Parser<'a> {
             let Some(t) = self.peek().copied() else { break };
             let target_follows = match t.tok {
                 Tok::At | Tok::Clock(_) => true,
-                Tok::Number(_) => {
-                    matches!(self.peek_at(1), Some(n) if n.tok == Tok::Word)
-                        && !Self::is_repeat_sign(self.peek_at(1))
-                }
+                // `10k` names a pace; `200m` after a target is a missing `/` or `;`.
+                Tok::Number(_) => match self.peek_at(1) {
+                    Some(n) if n.tok == Tok::Word => {
+                        let w = lower(n);
+                        w != "x" && (w == "k" || unit_word(&w).is_none())
+                    }
+                    _ => false,
+                },
                 Tok::Word => {
                     let w = lower(&t);
                     if let Some(mode) = mode_word(&w) {

@@ -173,6 +173,10 @@ fn toml_errors_name_line_and_column() {
         ),
     ];
     for (text, name, expected) in cases {
-        assert_eq!(toml_err(text, name).to_string(), expected, "input: {text:?}");
+        assert_eq!(
+            toml_err(text, name).to_string(),
+            expected,
+            "input: {text:?}"
+        );
     }
 }

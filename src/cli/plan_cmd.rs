@@ -64,7 +64,10 @@ pub fn run_check(file: Option<&Path>, line: Option<&str>, json: bool) -> anyhow:
                 steps,
             })
             .map_err(|e| (e.to_string(), e.snippet(text))),
-        _ => Err(("give a plan FILE or --line TEXT (one of them)".to_string(), None)),
+        _ => Err((
+            "give a plan FILE or --line TEXT (one of them)".to_string(),
+            None,
+        )),
     };
     let plan = match parsed {
         Ok(p) => p,

@@ -81,7 +81,8 @@ pub fn format_expanded(plan: &Plan, profile: Option<&AthleteProfile>) -> String 
                 amount_text(&e.amount, units),
                 target_text(&e.target, profile),
                 e.mode.map_or(String::new(), |m| m.as_str().to_string()),
-                e.repeat.map_or(String::new(), |(n, of)| format!("{n}/{of}")),
+                e.repeat
+                    .map_or(String::new(), |(n, of)| format!("{n}/{of}")),
             ]
         })
         .collect();

@@ -174,8 +174,8 @@ pub(crate) fn tokenize(src: &str) -> Result<Vec<Token<'_>>, SynErr> {
             it.next();
             let mut end = start + c.len_utf8();
             // `x400m` / `x(`: a lone `x` directly followed by a digit is the repeat sign.
-            let x_then_digit = (c == 'x' || c == 'X')
-                && it.peek().is_some_and(|&(_, n)| n.is_ascii_digit());
+            let x_then_digit =
+                (c == 'x' || c == 'X') && it.peek().is_some_and(|&(_, n)| n.is_ascii_digit());
             if !x_then_digit {
                 while let Some(&(i, d)) = it.peek() {
                     if is_word_char(d) {

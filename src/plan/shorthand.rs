@@ -22,11 +22,13 @@
 use super::error::PlanErrorKind;
 use super::lexer::{tokenize, SynErr, Tok, Token};
 use super::{DEFAULT_TOLERANCE_S_PER_KM, MAX_REPEATS};
-use crate::model::units::METRES_PER_MILE;
+use crate::model::units::{parse_clock, METRES_PER_MILE};
 use crate::model::{Amount, RecoveryMode, Segment, SegmentKind, Step, Target};
 
 /// Words that never name a pace.
-const RESERVED: &[&str] = &["x", "jog", "walk", "stand", "hill", "hr", "open", "km", "mi"];
+const RESERVED: &[&str] = &[
+    "x", "jog", "walk", "stand", "hill", "hr", "open", "km", "mi",
+];
 
 /// A step before single-segment kinds are inferred.
 #[derive(Debug, Clone, PartialEq)]
@@ -95,7 +97,10 @@ pub(crate) fn resolve_kinds(drafts: Vec<DraftStep>) -> Vec<Step> {
         .enumerate()
         .map(|(i, d)| match d {
             DraftStep::Repeat(step) => step,
-            DraftStep::Single { seg, explicit: true } => Step::Single(seg),
+            DraftStep::Single {
+                seg,
+                explicit: true,
+            } => Step::Single(seg),
             DraftStep::Single {
                 mut seg,
                 explicit: false,
@@ -301,9 +306,7 @@ impl<'a> Parser<'a> {
                 Some(self.segment(Some(SegmentKind::Recovery))?.0)
             }
             None | Some(Tok::Semi) => None,
-            Some(_) => {
-                return Err(self.expected("\"/\" before a recovery, or \";\" between steps"))
-            }
+            Some(_) => return Err(self.expected("\"/\" before a recovery, or \";\" between steps")),
         };
         Ok(Step::Repeat {
             count,
@@ -367,7 +370,10 @@ impl<'a> Parser<'a> {
                 break;
             }
             if have_target {
-                return Err(SynErr::invalid(t.start, "this segment already has a target"));
+                return Err(SynErr::invalid(
+                    t.start,
+                    "this segment already has a target",
+                ));
             }
             if t.tok == Tok::At {
                 self.bump();
@@ -695,14 +701,23 @@ fn write_amount(a: &Amount) -> String {
     }
 }
 
-/// Seconds per `metres` for a speed, written so that parsing gives back the same speed,
-/// or `None` when whole seconds do not round-trip.
+/// Seconds per `metres` for a speed as a clock (`4:05`, `4:05.5`), written so that parsing
+/// gives back exactly the same speed, or `None` when no short spelling does.
 fn exact_clock(speed: f64, metres: f64) -> Option<String> {
-    let secs = (metres / speed).round();
-    if !(1.0..1e6).contains(&secs) || metres / secs != speed {
+    let secs = metres / speed;
+    if !(1.0..3600.0).contains(&secs) {
         return None;
     }
-    Some(clock(secs as u64))
+    (0..=3usize).find_map(|decimals| {
+        let scale = 10f64.powi(decimals as i32);
+        let rounded = (secs * scale).round() / scale;
+        let whole_min = (rounded / 60.0).floor();
+        let rest = rounded - whole_min * 60.0;
+        let width = if decimals == 0 { 2 } else { 3 + decimals };
+        let text = format!("{whole_min}:{rest:0width$.decimals$}");
+        let back = parse_clock(&text)?;
+        (back > 0.0 && metres / back == speed).then_some(text)
+    })
 }
 
 fn write_pace_range(slow: f64, fast: f64) -> String {

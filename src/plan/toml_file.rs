@@ -10,8 +10,8 @@ use toml::Spanned;
 use super::error::{line_col, PlanError, PlanErrorKind};
 use super::lexer::SynErr;
 use super::shorthand::{
-    parse_amount_str, parse_drafts, parse_hr_str, parse_kind_str, parse_mode_str,
-    parse_pace_str, resolve_kinds, DraftStep,
+    parse_amount_str, parse_drafts, parse_hr_str, parse_kind_str, parse_mode_str, parse_pace_str,
+    resolve_kinds, DraftStep,
 };
 use super::MAX_REPEATS;
 use crate::model::{Amount, Plan, Segment, SegmentKind, Step, Target};
@@ -258,7 +258,10 @@ pub fn parse_toml(text: &str, file_name: Option<&str>) -> Result<Plan, PlanError
 
     Ok(Plan {
         title,
-        purpose: raw.purpose.map(|p| p.trim().to_string()).unwrap_or_default(),
+        purpose: raw
+            .purpose
+            .map(|p| p.trim().to_string())
+            .unwrap_or_default(),
         date,
         steps: resolve_kinds(drafts),
     })
@@ -361,10 +364,7 @@ fn segment_from(
     };
     let amount = match (&raw.duration, &raw.distance) {
         (Some(_), Some(d)) => {
-            return Err(ctx.invalid(
-                d.span().start,
-                "give either duration or distance, not both",
-            ))
+            return Err(ctx.invalid(d.span().start, "give either duration or distance, not both"))
         }
         (Some(d), None) => {
             parse_amount_str(d.get_ref()).map_err(|e| ctx.in_string("duration", d, e))?
@@ -386,13 +386,19 @@ fn segment_from(
         (Amount::Distance(_), Some(d), _) => {
             return Err(ctx.invalid(
                 d.span().start,
-                format!("\"{}\" is a distance: write distance = \"...\"", d.get_ref()),
+                format!(
+                    "\"{}\" is a distance: write distance = \"...\"",
+                    d.get_ref()
+                ),
             ))
         }
         (Amount::Duration(_), _, Some(d)) => {
             return Err(ctx.invalid(
                 d.span().start,
-                format!("\"{}\" is a duration: write duration = \"...\"", d.get_ref()),
+                format!(
+                    "\"{}\" is a duration: write duration = \"...\"",
+                    d.get_ref()
+                ),
             ))
         }
         _ => {}
@@ -435,7 +441,10 @@ mod tests {
         let (d, s) = file_name_date("plans/2026-10-14-hill-repeats.toml");
         assert_eq!(d, NaiveDate::from_ymd_opt(2026, 10, 14));
         assert_eq!(s.as_deref(), Some("hill-repeats"));
-        assert_eq!(title_from_slug("hill-repeats").as_deref(), Some("Hill repeats"));
+        assert_eq!(
+            title_from_slug("hill-repeats").as_deref(),
+            Some("Hill repeats")
+        );
         let (d, s) = file_name_date("tempo.toml");
         assert_eq!(d, None);
         assert_eq!(s.as_deref(), Some("tempo"));

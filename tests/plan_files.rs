@@ -140,13 +140,13 @@ fn date_and_title_come_from_the_file_name() {
 fn load_errors_carry_the_path() {
     let dir = tempfile::tempdir().expect("tempdir");
     let missing = dir.path().join("nope.toml");
-    let err = plan::load(&missing).err().expect("missing file");
+    let err = plan::load(&missing).expect_err("missing file");
     assert!(matches!(err, PlanFileError::Io { .. }));
     assert!(err.to_string().starts_with(&missing.display().to_string()));
 
     let bad = dir.path().join("2026-10-14-bad.toml");
     std::fs::write(&bad, "title = \"t\"\nsteps = \"3:00 @ 4:05\"\n").expect("write");
-    let err = plan::load(&bad).err().expect("bad file");
+    let err = plan::load(&bad).expect_err("bad file");
     assert_eq!(
         err.to_string(),
         format!(

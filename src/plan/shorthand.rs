@@ -331,8 +331,7 @@ impl<'a> Parser<'a> {
         };
         let mut have_target = false;
         let mut have_mode = false;
-        loop {
-            let Some(t) = self.peek().copied() else { break };
+        while let Some(t) = self.peek().copied() {
             let target_follows = match t.tok {
                 Tok::At | Tok::Clock(_) => true,
                 // `10k` names a pace; `200m` after a target is a missing `/` or `;`.
@@ -685,7 +684,7 @@ fn clock(total: u64) -> String {
 
 fn write_amount(a: &Amount) -> String {
     match *a {
-        Amount::Duration(s) if s.fract() == 0.0 && s >= 60.0 && s < 1e9 => clock(s as u64),
+        Amount::Duration(s) if s.fract() == 0.0 && (60.0..1e9).contains(&s) => clock(s as u64),
         Amount::Duration(s) => format!("{s}s"),
         Amount::Distance(d) => {
             let miles = d / METRES_PER_MILE;

@@ -5,6 +5,7 @@
 
 mod check;
 mod inspect;
+pub mod plan_cmd;
 mod summary;
 
 use std::path::PathBuf;
@@ -45,6 +46,25 @@ pub enum Command {
         #[arg(long)]
         json: bool,
     },
+    /// Planned workouts.
+    #[command(subcommand)]
+    Plan(PlanCommand),
+}
+
+#[derive(Debug, Subcommand)]
+pub enum PlanCommand {
+    /// Print the expanded interval sequence of a plan file or a shorthand line, or the error.
+    Check {
+        /// A plan file (`<athlete>/plans/<date>-<slug>.toml`).
+        #[arg(value_name = "FILE", required_unless_present = "line", conflicts_with = "line")]
+        file: Option<PathBuf>,
+        /// A one-line plan in shorthand, e.g. "12:00 easy; 5 x 3:00 @ half / 2:00 jog; 8:00 easy".
+        #[arg(long, value_name = "TEXT")]
+        line: Option<String>,
+        /// Print JSON instead of text.
+        #[arg(long)]
+        json: bool,
+    },
 }
 
 /// Run a parsed command line; returns the process exit code.
@@ -60,6 +80,9 @@ pub fn run(cli: Cli) -> anyhow::Result<i32> {
             let root = dir
                 .unwrap_or_else(|| crate::config::resolve_roster(cli.roster.as_deref(), &config));
             check::run(&root, json)
+        }
+        Some(Command::Plan(PlanCommand::Check { file, line, json })) => {
+            plan_cmd::run_check(file.as_deref(), line.as_deref(), json)
         }
     }
 }

@@ -14,9 +14,14 @@ struct CheckOutput<'a> {
     expanded: Vec<ExpectedInterval>,
 }
 
+/// One line `error: ...`; a person at a terminal also gets the line with a caret under it.
 fn report(message: &str, snippet: Option<String>) {
+    use std::io::IsTerminal;
     let mut err = std::io::stderr().lock();
     let _ = writeln!(err, "error: {message}");
+    if !std::io::stderr().is_terminal() {
+        return;
+    }
     if let Some(s) = snippet {
         for l in s.lines() {
             let _ = writeln!(err, "  | {l}");

@@ -179,7 +179,11 @@ pub fn ewma(loads: &[f64], n_days: usize, seed: f64) -> Vec<f64> {
 /// Seed used by [`acute_chronic_ewma`]: the mean of the first 7 days of data (of all days
 /// when there are fewer than 7). 0 for no data.
 pub fn acute_chronic_seed(daily: &[f64]) -> f64 {
-    let first: Vec<f64> = daily.iter().take(ACUTE_DAYS).map(|&l| clean_load(l)).collect();
+    let first: Vec<f64> = daily
+        .iter()
+        .take(ACUTE_DAYS)
+        .map(|&l| clean_load(l))
+        .collect();
     if first.is_empty() {
         0.0
     } else {
@@ -236,9 +240,7 @@ fn rolling_ratio(daily: &[f64], uncoupled: bool) -> Vec<Option<f64>> {
         acc += clean_load(l);
         prefix.push(acc);
     }
-    let sum = |from: usize, to: usize| -> Option<f64> {
-        Some(prefix.get(to)? - prefix.get(from)?)
-    };
+    let sum = |from: usize, to: usize| -> Option<f64> { Some(prefix.get(to)? - prefix.get(from)?) };
     (0..daily.len())
         .map(|day| {
             let end = day + 1;

@@ -2,8 +2,8 @@
 
 use chrono::{TimeZone, Utc};
 use splitdesk::analysis::gradient::{
-    cost_ratio, flat_equivalent_speed, gradients, hill_adjusted_speed, minetti_cr,
-    smooth_altitude, HillAdjustment,
+    cost_ratio, flat_equivalent_speed, gradients, hill_adjusted_speed, minetti_cr, smooth_altitude,
+    HillAdjustment,
 };
 use splitdesk::model::{Channel, FileFormat, Session};
 
@@ -27,7 +27,11 @@ fn session(t: Vec<f64>, dist: Option<Vec<f64>>, alt: Option<Vec<f64>>) -> Sessio
         let mut v = vec![0.0];
         for i in 1..t.len() {
             let dt = t[i] - t[i - 1];
-            v.push(if dt > 0.0 { (d[i] - d[i - 1]) / dt } else { 0.0 });
+            v.push(if dt > 0.0 {
+                (d[i] - d[i - 1]) / dt
+            } else {
+                0.0
+            });
         }
         if let Some(first) = v.get(1).copied() {
             v[0] = first;
@@ -239,5 +243,8 @@ fn hill_adjusted_speed_on_a_climb_and_without_altitude() {
 
     // No speed at all: nothing to adjust.
     let start = Utc.with_ymd_and_hms(2026, 3, 1, 7, 0, 0).unwrap();
-    assert_eq!(hill_adjusted_speed(&Session::empty(FileFormat::Gpx, start)), None);
+    assert_eq!(
+        hill_adjusted_speed(&Session::empty(FileFormat::Gpx, start)),
+        None
+    );
 }

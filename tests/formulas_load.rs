@@ -106,7 +106,8 @@ fn trimp_sample_by_sample_differs_from_average() {
         39.84,
         0.005,
     );
-    // Constant HR: the two methods agree. Source: methods.md §2 check 30 min at 130 → 31.80
+    // Constant HR: the two methods agree.
+    // Source: Banister EW 1991; Morton, Fitz-Clarke & Banister, J Appl Physiol 1990;69(3):1171–1177 (values computed from the formula, methods.md §2): 30 min at 130 → 31.80
     let (t, hr) = hr_blocks(&[(30.0, 130.0)]);
     close(
         trimp_from_samples(&t, &hr, None, 40.0, 200.0, Sex::Male).unwrap(),

@@ -157,7 +157,8 @@ pub fn hr_zones(profile: &AthleteProfile, age_years: Option<f64>) -> Option<HrZo
 }
 
 /// The five pace zones from a threshold speed, as speed bounds in m/s, slowest first
-/// (see [`PACE_RELATIVE_BOUNDS`]; the top zone ends at [`PACE_ZONE_TOP_MPS`]).
+/// (see [`PACE_RELATIVE_BOUNDS`]; the top zone ends at [`PACE_ZONE_TOP_MPS`], or at twice
+/// the threshold speed if that is higher, so the zone is never inverted).
 /// `None` for a non-positive or non-finite threshold speed.
 pub fn pace_zones(threshold_speed_mps: f64) -> Option<Vec<Zone>> {
     if !threshold_speed_mps.is_finite() || threshold_speed_mps <= 0.0 {

@@ -1,3 +1,11 @@
 //! The objective review: pure functions over `model` types. No I/O, no terminal.
 
+pub mod decoupling;
+pub mod elevation;
+pub mod gradient;
+pub mod load;
+pub mod race;
+pub mod sampling;
 pub mod summary;
+pub mod trend;
+pub mod zones;

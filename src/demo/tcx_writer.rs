@@ -65,7 +65,9 @@ pub(crate) fn byte(v: f64) -> String {
 
 pub(crate) fn text_elem<W: io::Write>(w: &mut Writer<W>, name: &str, text: &str) -> io::Result<()> {
     w.write_event(Event::Start(BytesStart::new(name)))?;
-    w.write_event(Event::Text(BytesText::new(text)))?;
+    // Escape only `&`, `<` and `>`: quotes need no escaping in text.
+    let escaped = quick_xml::escape::partial_escape(text);
+    w.write_event(Event::Text(BytesText::from_escaped(escaped)))?;
     w.write_event(Event::End(BytesEnd::new(name)))
 }
 

@@ -9,8 +9,8 @@
 //! - A trackpoint without a valid `Time` is skipped. Samples are sorted by time (stable).
 //! - Each `Lap` becomes a [`DeviceLap`]: start is the lap's `StartTime` (or, without one, its
 //!   first trackpoint) relative to the first sample, clamped at 0; end is the later of
-//!   `start + TotalTimeSeconds` and the lap's last trackpoint, clamped so laps never overlap
-//!   the next lap. `TriggerMethod` becomes the lowercase trigger. Laps with no extent are
+//!   `start + TotalTimeSeconds + pauses inside the lap` (`TotalTimeSeconds` is timer time)
+//!   and the lap's last trackpoint, clamped so laps never overlap the next lap. `TriggerMethod` becomes the lowercase trigger. Laps with no extent are
 //!   dropped.
 //! - Within one lap, consecutive `Track` elements mean the recording stopped and resumed:
 //!   the gap from the last point of one track to the first point of the next becomes a
@@ -81,6 +81,8 @@ struct RawLap {
     trigger: Option<String>,
     first: Option<DateTime<Utc>>,
     last: Option<DateTime<Utc>>,
+    /// Seconds of pauses (track breaks) inside this lap.
+    paused_s: f64,
 }
 
 #[derive(Debug, Default)]
@@ -236,6 +238,9 @@ impl TcxHandler {
         if let Some(from) = self.pending_gap.take() {
             if time > from {
                 self.pauses.push((from, time));
+                if let Some(lap) = self.laps.last_mut() {
+                    lap.paused_s += xml::secs_between(from, time);
+                }
             }
         }
         if let Some(lap) = self.laps.last_mut() {
@@ -315,7 +320,7 @@ fn build_laps(raw: &[RawLap], start: DateTime<Utc>) -> Vec<DeviceLap> {
         .filter_map(|l| {
             let begin = l.start.or(l.first)?;
             let start_s = rel(begin).max(0.0);
-            let by_total = l.total_s.map(|d| start_s + d);
+            let by_total = l.total_s.map(|d| start_s + d + l.paused_s);
             let by_points = l.last.map(rel);
             let end_s = match (by_total, by_points) {
                 (Some(a), Some(b)) => a.max(b),

@@ -19,7 +19,7 @@ pub fn simulated(pause: bool) -> Session {
     s.sport = Sport::Running;
     let secs: Vec<f64> = (0..1200)
         .map(|i| i as f64)
-        .filter(|&t| !pause || !(t >= 600.0 && t < 640.0))
+        .filter(|&t| !(pause && (600.0..640.0).contains(&t)))
         .collect();
     let n = secs.len();
     let mut dist = 0.0;

@@ -472,3 +472,15 @@ fn sniffing_finds_prefixed_roots() {
     let s = ingest::decode(GPX_MULTI.as_bytes(), FileFormat::Gpx).unwrap();
     assert_eq!(s.len(), 4);
 }
+
+#[test]
+fn byte_order_mark_crlf_and_cdata() {
+    let mut doc = vec![0xEF, 0xBB, 0xBF];
+    doc.extend_from_slice(
+        b"<?xml version=\"1.0\"?>\r\n<gpx version=\"1.1\" creator=\"x\">\r\n<trk><desc><![CDATA[5 x 1k <fast> & smooth]]></desc>\r\n<trkseg><trkpt lat=\"1\" lon=\"2\"><time>\r\n 2024-01-01T00:00:00Z\r\n</time></trkpt></trkseg></trk></gpx>\r\n",
+    );
+    let s = gpx::decode(&doc).unwrap();
+    assert_eq!(s.len(), 1);
+    assert_eq!(s.start, Utc.with_ymd_and_hms(2024, 1, 1, 0, 0, 0).unwrap());
+    assert_eq!(s.note.as_deref(), Some("5 x 1k <fast> & smooth"));
+}

@@ -63,6 +63,7 @@ pub(crate) fn byte(v: f64) -> String {
     format!("{}", v.round().clamp(0.0, 255.0) as u32)
 }
 
+/// `<name>text</name>`, with `&`, `<` and `>` escaped.
 pub(crate) fn text_elem<W: io::Write>(w: &mut Writer<W>, name: &str, text: &str) -> io::Result<()> {
     w.write_event(Event::Start(BytesStart::new(name)))?;
     // Escape only `&`, `<` and `>`: quotes need no escaping in text.

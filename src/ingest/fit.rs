@@ -78,21 +78,31 @@ pub fn decode(bytes: &[u8]) -> Result<Session, ParseError> {
     build_session(raw)
 }
 
-/// CRC-16 as the FIT protocol defines it (the nibble table of the FIT SDK's `fit_crc.c`,
-/// the same one fitparser uses), continuing from `crc` (start with 0).
-pub fn crc16(mut crc: u16, data: &[u8]) -> u16 {
-    const TABLE: [u16; 16] = [
+/// CRC-16 as the FIT protocol defines it (CRC-16/ARC, the algorithm of the FIT SDK's
+/// `fit_crc.c` that fitparser also uses), continuing from `crc` (start with 0).
+pub fn crc16(crc: u16, data: &[u8]) -> u16 {
+    data.iter().fold(crc, |crc, &b| {
+        (crc >> 8) ^ CRC_TABLE[usize::from((crc ^ u16::from(b)) & 0xFF)]
+    })
+}
+
+/// Byte-at-a-time table, built from the FIT SDK's 16-entry nibble table.
+const CRC_TABLE: [u16; 256] = {
+    const NIBBLE: [u16; 16] = [
         0x0000, 0xCC01, 0xD801, 0x1400, 0xF001, 0x3C00, 0x2800, 0xE401, 0xA001, 0x6C00, 0x7800,
         0xB401, 0x5000, 0x9C01, 0x8801, 0x4400,
     ];
-    for &byte in data {
-        for nibble in [byte & 0xF, byte >> 4] {
-            let tmp = TABLE[usize::from(crc & 0xF)];
-            crc = ((crc >> 4) & 0x0FFF) ^ tmp ^ TABLE[usize::from(nibble)];
-        }
+    let mut table = [0u16; 256];
+    let mut i = 0;
+    while i < 256 {
+        // The SDK's two nibble steps applied to a zero CRC and byte i.
+        let mut crc = NIBBLE[i & 0xF];
+        crc = ((crc >> 4) & 0x0FFF) ^ NIBBLE[(crc & 0xF) as usize] ^ NIBBLE[i >> 4];
+        table[i] = crc;
+        i += 1;
     }
-    crc
-}
+    table
+};
 
 fn u16_at(b: &[u8], i: usize) -> Option<u16> {
     Some(u16::from_le_bytes([*b.get(i)?, *b.get(i + 1)?]))

@@ -10,7 +10,7 @@ pub fn start() -> DateTime<Utc> {
 }
 
 /// A 1 Hz run of `secs` seconds with a 60-s pause at 600 s (no samples inside it), three
-/// laps, a few missing heart-rate samples, fractional cadence, and no altitude channel
+/// laps over thirds of it, a few missing heart-rate samples, fractional cadence, and no altitude channel
 /// unless `altitude` is set.
 pub fn session(secs: usize, altitude: bool) -> Session {
     let start = start();
@@ -53,19 +53,20 @@ pub fn session(secs: usize, altitude: bool) -> Session {
         to_s: pause.1,
     }];
     let end = s.duration_s();
+    let (a, b) = ((end / 3.0).round(), (2.0 * end / 3.0).round());
     s.laps = vec![
         DeviceLap {
             start_s: 0.0,
-            end_s: 600.0,
+            end_s: a,
             trigger: Some("distance".into()),
         },
         DeviceLap {
-            start_s: 600.0,
-            end_s: 1200.0,
+            start_s: a,
+            end_s: b,
             trigger: Some("manual".into()),
         },
         DeviceLap {
-            start_s: 1200.0,
+            start_s: b,
             end_s: end,
             trigger: Some("session_end".into()),
         },

@@ -18,8 +18,9 @@
 //! - **Implausible steps add nothing.** A step between two fixes that implies more than
 //!   the human speed limit and does not come back (for example a bad first fix) adds 0 m;
 //!   a runner covers at most a few metres in that time.
-//! - **Timer pauses add nothing.** A step whose two fixes straddle a timer pause is not
-//!   counted, as a device does not count distance while its timer is stopped.
+//! - **Timer pauses add nothing.** A step whose two fixes straddle a timer pause, or that
+//!   starts or ends on a fix logged inside one, is not counted: a device does not count
+//!   distance while its timer is stopped.
 //!
 //! # Derived speed (from distance)
 //!
@@ -148,10 +149,10 @@ fn distance_from_positions(session: &Session) -> Option<Channel> {
     let mut cursor = PauseCursor::new(session);
     let mut values: Vec<Option<f64>> = Vec::with_capacity(n);
     let mut total = 0.0;
-    // Last trusted fix: (lat, lon, pause segment).
-    let mut last: Option<(f64, f64, usize)> = None;
+    // Last trusted fix: (lat, lon, pause segment, inside a pause).
+    let mut last: Option<(f64, f64, usize, bool)> = None;
     for (i, &t) in session.t.iter().enumerate() {
-        let (segment, _) = cursor.at(t);
+        let (segment, inside) = cursor.at(t);
         let fix = match (lat.get(i), lon.get(i)) {
             (Some(a), Some(o)) if mark.get(i).copied() != Some(1) => (a, o),
             _ => {
@@ -159,12 +160,12 @@ fn distance_from_positions(session: &Session) -> Option<Channel> {
                 continue;
             }
         };
-        if let Some((la, lo, seg)) = last {
-            if seg == segment && mark.get(i).copied() != Some(2) {
+        if let Some((la, lo, seg, was_inside)) = last {
+            if seg == segment && !inside && !was_inside && mark.get(i).copied() != Some(2) {
                 total += haversine_m(la, lo, fix.0, fix.1);
             }
         }
-        last = Some((fix.0, fix.1, segment));
+        last = Some((fix.0, fix.1, segment, inside));
         values.push(Some(total));
     }
     Channel::new(values).into_option()

@@ -202,8 +202,8 @@ fn missing_positions_give_none_and_the_total_carries_on() {
     let t = one_hz(600);
     let (lat, lon, true_d) = track(&t, 45.0, 7.0, |_| 3.0, |_| 0.0);
     let mut lat: Vec<Option<f64>> = lat.into_iter().map(Some).collect();
-    for i in 200..210 {
-        lat[i] = None;
+    for v in &mut lat[200..210] {
+        *v = None;
     }
     let mut s = session_at(t);
     s.lat = Some(Channel::new(lat));

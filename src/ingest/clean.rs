@@ -174,11 +174,16 @@ pub fn position_jumps(t: &[f64], lat: &Channel, lon: &Channel) -> Vec<PositionJu
         let d = haversine_m(a.2, a.3, b.2, b.3);
         (d, d / (b.1 - a.1).max(1.0))
     };
+    let mut screen = Screen::default();
     let mut out = Vec::new();
     let m = fixes.len();
     let mut k = 1;
     while k < m {
         let anchor = fixes[k - 1];
+        if screen.surely_plausible(anchor, fixes[k]) {
+            k += 1;
+            continue;
+        }
         let (d_out, v_out) = step(anchor, fixes[k]);
         if v_out <= MAX_SPEED_MPS {
             k += 1;
@@ -226,6 +231,42 @@ pub fn position_jumps(t: &[f64], lat: &Channel, lon: &Channel) -> Vec<PositionJu
     out
 }
 
+/// Cheap pre-check for [`position_jumps`]: an equirectangular distance that never
+/// overestimates, so a step it finds under half the speed limit is surely plausible and
+/// needs no trigonometry. Everything else is measured exactly with [`haversine_m`].
+#[derive(Default)]
+struct Screen {
+    /// Reference latitude (degrees) and the cosine used for longitude differences there.
+    reference: Option<(f64, f64)>,
+}
+
+impl Screen {
+    fn surely_plausible(&mut self, a: (usize, f64, f64, f64), b: (usize, f64, f64, f64)) -> bool {
+        let lat = a.2;
+        // Close to the poles the bound below gets loose: always measure exactly there.
+        if lat.is_nan() || lat.abs() > 85.0 {
+            return false;
+        }
+        let cos = match self.reference {
+            Some((r, c)) if (lat - r).abs() <= 0.5 => c,
+            _ => {
+                // cos at 1° further from the equator than the reference: within ±0.5° of
+                // it, the true cosine is larger, so the distance below is underestimated.
+                let c = (lat.abs() + 1.0).min(90.0).to_radians().cos().max(0.0);
+                self.reference = Some((lat, c));
+                c
+            }
+        };
+        let d_phi = (b.2 - a.2).to_radians();
+        let d_lambda = (b.3 - a.3).to_radians() * cos;
+        let d2 = (d_phi * d_phi + d_lambda * d_lambda)
+            * crate::ingest::derive::EARTH_MEAN_RADIUS_M
+            * crate::ingest::derive::EARTH_MEAN_RADIUS_M;
+        let limit = 0.5 * MAX_SPEED_MPS * (b.1 - a.1).max(1.0);
+        d2 < limit * limit
+    }
+}
+
 /// Shared per-session facts for the rules.
 struct Ctx<'a> {
     t: &'a [f64],
@@ -249,16 +290,17 @@ pub fn flag(session: &Session, profile: Option<&AthleteProfile>) -> Vec<Flag> {
     let t = session.t.as_slice();
     let n = t.len();
     let moving = moving_mask(session);
+    let median_dt = median_interval(t);
     let ctx = Ctx {
         t,
-        median_dt: median_interval(t),
-        gap_thr: gap_threshold_s(t),
+        median_dt,
+        gap_thr: (GAP_MEDIAN_FACTOR * median_dt).max(GAP_MIN_S),
         moving,
     };
     let mut out = Vec::new();
     if let Some(speed) = &session.speed {
         speed_rules(&ctx, speed, &mut out);
-        flat_line(&ctx, speed, ChannelKind::Speed, "m/s", &mut out);
+        flat_line(&ctx, speed, ChannelKind::Speed, ("m/s", 2), &mut out);
     }
     if let (Some(lat), Some(lon)) = (&session.lat, &session.lon) {
         position_rule(&ctx, lat, lon, &mut out);
@@ -266,14 +308,14 @@ pub fn flag(session: &Session, profile: Option<&AthleteProfile>) -> Vec<Flag> {
     if let Some(hr) = &session.hr {
         let hr_max = profile.and_then(|p| p.hr_max);
         hr_rules(&ctx, hr, hr_max, &mut out);
-        flat_line(&ctx, hr, ChannelKind::Hr, "bpm", &mut out);
+        flat_line(&ctx, hr, ChannelKind::Hr, ("bpm", 0), &mut out);
         if let Some(cad) = &session.cadence {
             cadence_lock(&ctx, hr, cad, false, &mut out);
             cadence_lock(&ctx, hr, cad, true, &mut out);
         }
     }
     if let Some(cad) = &session.cadence {
-        flat_line(&ctx, cad, ChannelKind::Cadence, "spm", &mut out);
+        flat_line(&ctx, cad, ChannelKind::Cadence, ("spm", 0), &mut out);
     }
     if n >= 2 {
         gap_rule(&ctx, session, &mut out);
@@ -616,7 +658,13 @@ fn cadence_lock(ctx: &Ctx<'_>, hr: &Channel, cad: &Channel, half: bool, out: &mu
 }
 
 /// A sensor reporting exactly the same value for [`FLAT_LINE_MIN_S`] or more while moving.
-fn flat_line(ctx: &Ctx<'_>, ch: &Channel, kind: ChannelKind, unit: &str, out: &mut Vec<Flag>) {
+fn flat_line(
+    ctx: &Ctx<'_>,
+    ch: &Channel,
+    kind: ChannelKind,
+    (unit, decimals): (&str, usize),
+    out: &mut Vec<Flag>,
+) {
     let t = ctx.t;
     let n = t.len().min(ch.values.len());
     let moving = |i: usize| ctx.moving.get(i).copied().unwrap_or(false);
@@ -639,7 +687,9 @@ fn flat_line(ctx: &Ctx<'_>, ch: &Channel, kind: ChannelKind, unit: &str, out: &m
                 to_s: t[e],
                 channel: kind,
                 kind: FlagKind::FlatLine,
-                reason: format!("{kind} stuck at {v} {unit} for {dur:.0} s while moving"),
+                reason: format!(
+                    "{kind} stuck at {v:.decimals$} {unit} for {dur:.0} s while moving"
+                ),
             });
         }
         i = e + 1;

@@ -503,16 +503,9 @@ fn sample_mask_follows_the_channel_table() {
 }
 
 #[test]
-fn three_hour_session_cleans_fast() {
+fn three_hour_clean_session_gets_no_flags() {
+    // Speed is measured in benches/ingest.rs, not here.
     let s = clean_run_at(26, one_hz(10_800));
-    let mut best = std::time::Duration::MAX;
-    let mut flags = Vec::new();
-    for _ in 0..10 {
-        let t0 = std::time::Instant::now();
-        flags = flag(&s, None);
-        best = best.min(t0.elapsed());
-    }
-    // Generous for unoptimised test builds; release builds are far faster.
-    assert!(best.as_millis() < 50, "took {best:?}");
-    eprintln!("flag() on 10,800 samples: {best:?}; {} flags", flags.len());
+    let flags = flag(&s, None);
+    assert!(flags.is_empty(), "{flags:?}");
 }

@@ -1,8 +1,6 @@
 //! Hand-written TCX and GPX fixtures: namespaces, laps, tracks, segments, offsets, missing
 //! channels, notes, wrong roots, entity tricks and broken XML.
 
-use std::time::{Duration, Instant};
-
 use chrono::{TimeZone, Utc};
 use splitdesk::ingest::{self, gpx, tcx, ParseError};
 use splitdesk::model::{DeviceLap, FileFormat, Pause, Sport};
@@ -392,7 +390,6 @@ fn billion_laughs_is_refused_quickly() {
 <gpx version="1.1" creator="x"><trk><desc>&lol9;</desc><trkseg>
 <trkpt lat="1" lon="2"><time>2024-01-01T00:00:00Z</time></trkpt></trkseg></trk></gpx>"#
     );
-    let t0 = Instant::now();
     let e = tcx_err(tcx_doc.as_bytes());
     assert!(
         e.starts_with("undefined entity &lol9; (custom entities are never expanded)"),
@@ -401,8 +398,6 @@ fn billion_laughs_is_refused_quickly() {
     assert!(e.contains("line 16"), "{e}");
     let e = gpx_err(gpx_doc.as_bytes());
     assert!(e.starts_with("undefined entity &lol9;"), "{e}");
-    // A billion expansions would take far longer than this.
-    assert!(t0.elapsed() < Duration::from_secs(2));
 
     // Declared but unused entities do no harm: the DOCTYPE is skipped, never interpreted.
     let unused = format!(

@@ -873,8 +873,3 @@ pub fn sample_mask(session: &Session, flags: &[Flag], channel: ChannelKind) -> V
     }
     mask
 }
-
-/// Fraction of the session's duration covered by the union of the flags (0..1).
-pub fn flagged_fraction(_session: &Session, _flags: &[Flag]) -> f64 {
-    0.0
-}

@@ -391,7 +391,12 @@ fn flat_lines_while_moving_are_flagged() {
     let mut s = clean_run(23);
     // Common coaching practice (no published source): the same value for 60 s or more.
     set(&mut s.hr, 1200..1290, |_, _| 150.0);
+    // A stuck cadence shows when the pace changes and the cadence does not.
     set(&mut s.cadence, 400..480, |_, _| 176.0);
+    set(&mut s.speed, 400..440, |i, _| 3.0 + 0.01 * (i % 3) as f64);
+    set(&mut s.speed, 440..480, |i, _| 4.2 + 0.01 * (i % 3) as f64);
+    // At a steady pace an unchanged cadence is normal running (see CADENCE_FLAT_STEADY_MIN_S).
+    set(&mut s.cadence, 600..680, |_, _| 174.0);
     set(&mut s.speed, 1600..1700, |_, _| 3.6);
     set(&mut s.hr, 1700..1750, |_, _| 160.0); // only 50 s: not flagged
     let flags = flag(&s, None);

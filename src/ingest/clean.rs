@@ -96,6 +96,17 @@ pub const CADENCE_LOCK_GRACE_S: f64 = 3.0;
 // Common coaching practice (no published source), methods.md §12 spirit; brief: 60 s.
 pub const FLAT_LINE_MIN_S: f64 = 60.0;
 
+/// Cadence at a steady pace is naturally constant (and files often store it in whole
+/// strides), so an unchanged cadence counts as stuck after [`FLAT_LINE_MIN_S`] only when the
+/// pace changed meanwhile; at a steady pace it must stay unchanged this long, seconds.
+// Common coaching practice (no published source); our design choice after whole-stride
+// cadence in well-formed files sat on one value for 80 s at a steady pace.
+pub const CADENCE_FLAT_STEADY_MIN_S: f64 = 600.0;
+
+/// A change in mean speed between 15-s windows that counts as a change of pace, m/s.
+// Common coaching practice (no published source); well above GPS speed noise once averaged.
+pub const PACE_CHANGE_MPS: f64 = 0.6;
+
 /// Speed above which the athlete counts as moving, m/s.
 // Common coaching practice (no published source): about walking pace.
 pub const MOVING_SPEED_MPS: f64 = 1.0;
@@ -300,7 +311,10 @@ pub fn flag(session: &Session, profile: Option<&AthleteProfile>) -> Vec<Flag> {
     let mut out = Vec::new();
     if let Some(speed) = &session.speed {
         speed_rules(&ctx, speed, &mut out);
-        flat_line(&ctx, speed, ChannelKind::Speed, ("m/s", 2), &mut out);
+        // A treadmill belt (no positions) runs at exactly one speed by design.
+        if session.lat.is_some() {
+            flat_line(&ctx, speed, ChannelKind::Speed, ("m/s", 2), None, &mut out);
+        }
     }
     if let (Some(lat), Some(lon)) = (&session.lat, &session.lon) {
         position_rule(&ctx, lat, lon, &mut out);
@@ -308,14 +322,21 @@ pub fn flag(session: &Session, profile: Option<&AthleteProfile>) -> Vec<Flag> {
     if let Some(hr) = &session.hr {
         let hr_max = profile.and_then(|p| p.hr_max);
         hr_rules(&ctx, hr, hr_max, &mut out);
-        flat_line(&ctx, hr, ChannelKind::Hr, ("bpm", 0), &mut out);
+        flat_line(&ctx, hr, ChannelKind::Hr, ("bpm", 0), None, &mut out);
         if let Some(cad) = &session.cadence {
             cadence_lock(&ctx, hr, cad, false, &mut out);
             cadence_lock(&ctx, hr, cad, true, &mut out);
         }
     }
     if let Some(cad) = &session.cadence {
-        flat_line(&ctx, cad, ChannelKind::Cadence, ("spm", 0), &mut out);
+        flat_line(
+            &ctx,
+            cad,
+            ChannelKind::Cadence,
+            ("spm", 0),
+            session.speed.as_ref(),
+            &mut out,
+        );
     }
     if n >= 2 {
         gap_rule(&ctx, session, &mut out);
@@ -657,12 +678,36 @@ fn cadence_lock(ctx: &Ctx<'_>, hr: &Channel, cad: &Channel, half: bool, out: &mu
     }
 }
 
+/// True when the mean speed of 15-s windows inside `t[i]..=t[e]` spans at least
+/// [`PACE_CHANGE_MPS`].
+fn pace_changed(t: &[f64], speed: &Channel, i: usize, e: usize) -> bool {
+    let (mut lo, mut hi) = (f64::INFINITY, f64::NEG_INFINITY);
+    let (mut sum, mut n, mut w0) = (0.0, 0usize, t.get(i).copied().unwrap_or(0.0));
+    for (k, &tk) in t.iter().enumerate().take(e + 1).skip(i) {
+        if let Some(v) = speed.get(k) {
+            sum += v;
+            n += 1;
+        }
+        if tk - w0 >= 15.0 || k == e {
+            if n > 0 {
+                let m = sum / n as f64;
+                lo = lo.min(m);
+                hi = hi.max(m);
+            }
+            (sum, n, w0) = (0.0, 0, tk);
+        }
+    }
+    hi - lo >= PACE_CHANGE_MPS
+}
+
 /// A sensor reporting exactly the same value for [`FLAT_LINE_MIN_S`] or more while moving.
+/// With `steady_check`, a stretch at a steady pace must last [`CADENCE_FLAT_STEADY_MIN_S`].
 fn flat_line(
     ctx: &Ctx<'_>,
     ch: &Channel,
     kind: ChannelKind,
     (unit, decimals): (&str, usize),
+    steady_check: Option<&Channel>,
     out: &mut Vec<Flag>,
 ) {
     let t = ctx.t;
@@ -681,7 +726,14 @@ fn flat_line(
         }
         let dur = t[e] - t[i];
         // Common coaching practice (no published source): 60 s of the same value.
-        if dur >= FLAT_LINE_MIN_S {
+        let long_enough = match steady_check {
+            None => dur >= FLAT_LINE_MIN_S,
+            Some(speed) => {
+                dur >= CADENCE_FLAT_STEADY_MIN_S
+                    || (dur >= FLAT_LINE_MIN_S && pace_changed(t, speed, i, e))
+            }
+        };
+        if long_enough {
             out.push(Flag {
                 from_s: t[i],
                 to_s: t[e],

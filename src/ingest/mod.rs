@@ -127,6 +127,7 @@ pub fn ingest_file(path: &Path, profile: Option<&AthleteProfile>) -> Result<Sess
     if bytes.is_empty() {
         return Err(parse_err(ParseError::Empty));
     }
-    let format = detect_format(Some(path), &bytes).ok_or_else(|| parse_err(ParseError::UnknownFormat))?;
+    let format =
+        detect_format(Some(path), &bytes).ok_or_else(|| parse_err(ParseError::UnknownFormat))?;
     ingest_bytes(&bytes, format, profile).map_err(parse_err)
 }

@@ -8,8 +8,6 @@ pub mod units;
 
 pub use athlete::{AthleteProfile, Sex, Zone};
 pub use flags::{Flag, FlagKind};
-pub use plan::{
-    Amount, ExpectedInterval, Plan, RecoveryMode, Segment, SegmentKind, Step, Target,
-};
+pub use plan::{Amount, ExpectedInterval, Plan, RecoveryMode, Segment, SegmentKind, Step, Target};
 pub use session::{Channel, ChannelKind, DeviceLap, FileFormat, Pause, Session, Sport};
 pub use units::Units;

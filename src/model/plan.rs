@@ -47,7 +47,10 @@ pub enum Target {
     /// Absolute pace band as speeds, m/s (`slow_mps <= fast_mps`).
     PaceRange { slow_mps: f64, fast_mps: f64 },
     /// A named pace from the athlete profile, with a tolerance in seconds per km either side.
-    NamedPace { name: String, tolerance_s_per_km: f64 },
+    NamedPace {
+        name: String,
+        tolerance_s_per_km: f64,
+    },
     /// Heart-rate band, bpm.
     HrRange { low_bpm: f64, high_bpm: f64 },
 }
@@ -189,7 +192,9 @@ impl Target {
     pub fn centre_speed(&self, profile: &super::AthleteProfile) -> Option<f64> {
         match self {
             Target::NamedPace { name, .. } => profile.pace(name),
-            _ => self.speed_band(profile).map(|(s, f)| 2.0 / (1.0 / s + 1.0 / f)),
+            _ => self
+                .speed_band(profile)
+                .map(|(s, f)| 2.0 / (1.0 / s + 1.0 / f)),
         }
     }
 }
@@ -227,9 +232,7 @@ mod tests {
         use SegmentKind::*;
         assert_eq!(
             kinds,
-            vec![
-                Warmup, Work, Work, Recovery, Work, Work, Recovery, Work, Work, Cooldown
-            ]
+            vec![Warmup, Work, Work, Recovery, Work, Work, Recovery, Work, Work, Cooldown]
         );
         assert_eq!(plan.work_count(), 6);
         assert_eq!(plan.expand()[4].repeat, Some((2, 3)));

@@ -98,7 +98,11 @@ pub fn format_pace(speed_mps: f64, units: Units) -> String {
     if !(speed_mps > 0.0) || !speed_mps.is_finite() {
         return format!("--:--/{}", units.label());
     }
-    format!("{}/{}", format_clock(units.metres() / speed_mps), units.label())
+    format!(
+        "{}/{}",
+        format_clock(units.metres() / speed_mps),
+        units.label()
+    )
 }
 
 /// Format a distance in the given units with two decimals, e.g. `10.02 km`.

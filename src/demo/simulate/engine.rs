@@ -450,6 +450,10 @@ pub(crate) fn run(input: &SimInput, physio: &Physio) -> Track {
             let tau = if cmd > v { TAU_ACCEL_S } else { TAU_DECEL_S };
             let dv = ((cmd - v) * (1.0 - (-DT / tau).exp())).clamp(-A_MAX_DOWN * DT, A_MAX_UP * DT);
             let mut v_new = (v + dv).max(0.0);
+            if cmd == 0.0 && v_new < 0.1 {
+                // Coming to a halt: the exponential lag would never reach zero.
+                v_new = 0.0;
+            }
             if paused {
                 v_new = 0.0;
             } else if let StopPhase::Slowing { since } = stop {

@@ -222,7 +222,7 @@ enum StopPhase {
 /// The pacing-style multiplier on the intended speed.
 ///
 /// Our own choices (common coaching patterns, no published source):
-/// - Fading: +2 % at the start of each rep down to -3 % at its end, and -3 % more by the
+/// - Fading: +2.5 % at the start of each rep down to -3.5 % at its end, and -3 % more by the
 ///   last rep of the set; a steady run goes from +3 % to -5 %.
 /// - Progression: work reps spread evenly over a span of 2 % per rep (at most 8 %),
 ///   centred on target; a steady run goes from -4 % to +4 %.
@@ -249,7 +249,7 @@ fn style_multiplier(
         Pacing::Even => 1.0,
         Pacing::Fading => {
             if seg.work_ord.is_some() {
-                (1.02 - 0.05 * u) * (1.0 - 0.03 * set_pos)
+                (1.025 - 0.06 * u) * (1.0 - 0.03 * set_pos)
             } else {
                 1.03 - 0.08 * u
             }

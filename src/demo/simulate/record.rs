@@ -69,7 +69,7 @@ fn sample_indices(input: &SimInput, tr: &Track) -> Vec<usize> {
             let mut rng = Rng::with_stream(input.seed, stream::SAMPLING);
             let mut out = vec![0];
             let mut last = 0;
-            for k in 1..n {
+            for (k, &force) in forced.iter().enumerate().skip(1) {
                 let draw = rng.uniform();
                 if skip(k) {
                     continue;
@@ -78,7 +78,7 @@ fn sample_indices(input: &SimInput, tr: &Track) -> Vec<usize> {
                 let changed = (tr.speed[k] - tr.speed[last]).abs() > SMART_SPEED_STEP
                     || (tr.hr[k] - tr.hr[last]).abs() >= SMART_HR_STEP
                     || draw < SMART_RANDOM;
-                if forced[k] || gap >= max_s || (gap >= min_s && changed) {
+                if force || gap >= max_s || (gap >= min_s && changed) {
                     out.push(k);
                     last = k;
                 }
@@ -202,9 +202,9 @@ pub(crate) fn record(input: &SimInput, physio: &Physio, tr: &Track) -> SimOutput
                 let r = frng.range(100.0, 300.0);
                 let bearing = frng.range(0.0, std::f64::consts::TAU);
                 let (de, dn) = (r * bearing.sin(), r * bearing.cos());
-                for q in p..p + len {
-                    pos[q].0 += de;
-                    pos[q].1 += dn;
+                for fix in pos.iter_mut().skip(p).take(len) {
+                    fix.0 += de;
+                    fix.1 += dn;
                 }
                 // The device's speed follows its positions into and out of the jump.
                 for q in [p, p + len] {

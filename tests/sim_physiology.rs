@@ -200,7 +200,11 @@ fn hill_repeats_climb_and_cost_more() {
         );
         let climb = alt.get(qb).unwrap() - alt.get(qa).unwrap();
         // Source: Minetti et al. 2002, J Appl Physiol 93:1039 (runner slows uphill).
-        assert!(climb > 0.05 * h.distance_m, "climb {climb} over {}", h.distance_m);
+        assert!(
+            climb > 0.05 * h.distance_m,
+            "climb {climb} over {}",
+            h.distance_m
+        );
         assert!(h.avg_speed_mps < 0.9 * f.avg_speed_mps);
         assert!(h.avg_hr > f.avg_hr);
     }

@@ -299,3 +299,28 @@ fn three_hour_run_is_fast() {
     assert_eq!(out.session.len(), 10_801);
     assert!(el.as_millis() < 2000);
 }
+
+/// Positions follow the route: distance summed from the fixes is within 1 % of the recorded
+/// distance (GPS noise is smooth), and a flat run shows little false climb.
+#[test]
+fn positions_and_altitude_agree_with_distance() {
+    for seed in 0..3 {
+        let s = simulate(&input(long_run(100.0), seed)).session;
+        let r = 6_371_008.8;
+        let mut d = 0.0;
+        for q in 1..s.len() {
+            let (la0, lo0) = s.position(q - 1).unwrap();
+            let (la1, lo1) = s.position(q).unwrap();
+            let dn = (la1 - la0).to_radians() * r;
+            let de = (lo1 - lo0).to_radians() * r * la0.to_radians().cos();
+            d += (dn * dn + de * de).sqrt();
+        }
+        let rec = s.distance_m().unwrap();
+        assert!((d / rec - 1.0).abs() < 0.01, "seed {seed}: {d} vs {rec}");
+        let a = s.altitude.as_ref().unwrap();
+        let gain: f64 = (1..s.len())
+            .map(|q| (a.get(q).unwrap() - a.get(q - 1).unwrap()).max(0.0))
+            .sum();
+        assert!(gain < 40.0, "seed {seed}: false climb {gain}");
+    }
+}

@@ -48,7 +48,8 @@ pub enum Terrain {
         wavelength_m: f64,
     },
     /// Hill repeats: work intervals climb at `grade`, recoveries jog back down at the same
-    /// grade until the foot of the hill; other segments are flat.
+    /// grade until the foot of the hill; other segments are flat. (Only altitude and effort
+    /// follow the hill; positions keep following the route.)
     Hill {
         /// Gradient of the hill as a positive fraction (0.06 = 6 %).
         grade: f64,

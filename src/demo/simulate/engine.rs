@@ -421,6 +421,8 @@ pub(crate) fn run(input: &SimInput, physio: &Physio) -> Track {
                 1.0
             };
             let fat = 1.0 - FATIGUE_SPEED_LOSS * fatigue * (t / est_total).min(1.0);
+            // On a gradient the runner holds roughly constant effort: speed scales with
+            // (Cr(0)/Cr(i))^0.7. Source: Minetti et al. 2002, J Appl Physiol 93:1039
             let nominal = seg.base_speed * style * kick * fat * hill_speed_factor(grade) * hr_adj;
 
             // Pacing error (always drawn, so the stream does not depend on the plan).

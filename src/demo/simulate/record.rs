@@ -17,13 +17,19 @@ const SPEED_NOISE_FRAC: f64 = 0.012;
 /// HR noise: AR(1), standard deviation bpm and lag-1 correlation.
 const HR_NOISE_SD: f64 = 1.0;
 const HR_NOISE_PHI: f64 = 0.7;
-/// Barometric altitude noise: AR(1), metres and lag-1 correlation.
-const ALT_NOISE_SD: f64 = 0.4;
-const ALT_NOISE_PHI: f64 = 0.98;
-/// GPS position noise per axis: AR(1) of standard deviation 2.5 m and a correlation time of
-/// 20 s (From memory: consumer GPS errors of a few metres that wander slowly).
+/// Barometric altitude noise: standard deviation 0.5 m, a smooth slow wander (AR(1) of
+/// 120 s correlation time through a 20 s filter), so summed climb on flat ground stays small.
+const ALT_NOISE_SD: f64 = 0.5;
+const ALT_NOISE_CORR_S: f64 = 120.0;
+const ALT_NOISE_SMOOTH_S: f64 = 20.0;
+/// GPS position noise per axis: standard deviation 2.5 m, an AR(1) of 30 s correlation time
+/// smoothed by a 10 s first-order filter (From memory: consumer GPS errors of a few metres
+/// that wander slowly). The smoothing keeps the second-to-second steps of the error small,
+/// so distance summed from the positions is within about 1 % of the true distance; white
+/// or plain AR(1) error of the same size inflates it by several per cent.
 const GPS_NOISE_SD: f64 = 2.5;
-const GPS_NOISE_CORR_S: f64 = 20.0;
+const GPS_NOISE_CORR_S: f64 = 30.0;
+const GPS_NOISE_SMOOTH_S: f64 = 10.0;
 /// Cadence noise, steps/min.
 const CADENCE_NOISE_SD: f64 = 1.0;
 /// Smart recording: a sample when speed moved by this much (m/s) or HR by this much (bpm)
@@ -40,6 +46,26 @@ fn ar1(rng: &mut Rng, n: usize, sd: f64, phi: f64) -> Vec<f64> {
         .map(|_| {
             x = phi * x + innov * rng.normal();
             x
+        })
+        .collect()
+}
+
+/// A smooth noise series: a unit AR(1) with correlation time `corr_s` passed through a
+/// first-order filter of time constant `smooth_s`, scaled to standard deviation `sd`.
+fn smooth_noise(rng: &mut Rng, n: usize, sd: f64, corr_s: f64, smooth_s: f64) -> Vec<f64> {
+    let phi = (-1.0 / corr_s).exp();
+    let beta = (-1.0 / smooth_s).exp();
+    // Stationary variance of the filtered unit AR(1).
+    let var =
+        (1.0 - beta).powi(2) * (1.0 + phi * beta) / ((1.0 - phi * beta) * (1.0 - beta * beta));
+    let scale = sd / var.sqrt();
+    let x = ar1(rng, n, 1.0, phi);
+    // Start the filter at its stationary spread so the first samples are not special.
+    let mut y = rng.normal() * var.sqrt();
+    x.iter()
+        .map(|&xi| {
+            y = beta * y + (1.0 - beta) * xi;
+            y * scale
         })
         .collect()
 }
@@ -167,11 +193,12 @@ pub(crate) fn record(input: &SimInput, physio: &Physio, tr: &Track) -> SimOutput
     let mut altitude: Option<Vec<Option<f64>>> = None;
     let route = RoutePath::new(&c.route, c.origin);
     if !c.treadmill {
-        let alt_noise = ar1(
+        let alt_noise = smooth_noise(
             &mut Rng::with_stream(seed, stream::ALTITUDE_NOISE),
             n,
             ALT_NOISE_SD,
-            ALT_NOISE_PHI,
+            ALT_NOISE_CORR_S,
+            ALT_NOISE_SMOOTH_S,
         );
         altitude = Some(
             idx.iter()
@@ -179,9 +206,20 @@ pub(crate) fn record(input: &SimInput, physio: &Physio, tr: &Track) -> SimOutput
                 .collect(),
         );
         let mut r = Rng::with_stream(seed, stream::GPS_NOISE);
-        let phi = (-1.0 / GPS_NOISE_CORR_S).exp();
-        let ge = ar1(&mut r, n, GPS_NOISE_SD, phi);
-        let gn = ar1(&mut r, n, GPS_NOISE_SD, phi);
+        let ge = smooth_noise(
+            &mut r,
+            n,
+            GPS_NOISE_SD,
+            GPS_NOISE_CORR_S,
+            GPS_NOISE_SMOOTH_S,
+        );
+        let gn = smooth_noise(
+            &mut r,
+            n,
+            GPS_NOISE_SD,
+            GPS_NOISE_CORR_S,
+            GPS_NOISE_SMOOTH_S,
+        );
         local = Some(
             idx.iter()
                 .map(|&k| {
@@ -395,5 +433,23 @@ pub(crate) fn record(input: &SimInput, physio: &Physio, tr: &Track) -> SimOutput
             hr_bpm: true_hr,
             grade: true_grade,
         },
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn smooth_noise_has_requested_spread() {
+        let mut r = Rng::new(1);
+        let x = smooth_noise(&mut r, 200_000, 2.5, 30.0, 10.0);
+        let mean = x.iter().sum::<f64>() / x.len() as f64;
+        let sd = (x.iter().map(|v| (v - mean).powi(2)).sum::<f64>() / x.len() as f64).sqrt();
+        assert!((sd - 2.5).abs() < 0.15, "sd {sd}");
+        let step = (x.windows(2).map(|w| (w[1] - w[0]).powi(2)).sum::<f64>()
+            / (x.len() - 1) as f64)
+            .sqrt();
+        assert!(step < 0.2, "step {step}");
     }
 }

@@ -3,4 +3,6 @@
 
 pub mod fit_writer;
 pub mod gpx_writer;
+pub mod rng;
+pub mod simulate;
 pub mod tcx_writer;

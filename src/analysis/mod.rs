@@ -2,9 +2,11 @@
 
 pub mod decoupling;
 pub mod elevation;
+pub mod findings;
 pub mod gradient;
 pub mod load;
 pub mod race;
+pub mod review;
 pub mod sampling;
 pub mod summary;
 pub mod trend;

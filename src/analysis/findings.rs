@@ -1,0 +1,410 @@
+//! Findings: a short ordered list of plain-language observations, each tied to the numbers
+//! behind it. They seed the feedback draft.
+
+use serde::Serialize;
+
+use crate::model::units::format_pace;
+use crate::model::{AthleteProfile, IntervalSet, Session};
+
+use super::decoupling::DECOUPLING_COACHING_LINE_PCT;
+use super::review::{Review, Whole};
+
+/// How much a finding matters. `Caution` is reserved for possible health signals.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord, Serialize)]
+#[serde(rename_all = "lowercase")]
+pub enum Severity {
+    Info,
+    Note,
+    Warning,
+    Caution,
+}
+
+impl Severity {
+    pub fn as_str(self) -> &'static str {
+        match self {
+            Severity::Info => "info",
+            Severity::Note => "note",
+            Severity::Warning => "warning",
+            Severity::Caution => "caution",
+        }
+    }
+}
+
+/// One observation.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct Finding {
+    pub severity: Severity,
+    pub text: String,
+    /// The review keys behind it, e.g. `intervals[3].avg_pace_s_per_km`.
+    pub metrics: Vec<String>,
+}
+
+/// The wording every health caution carries.
+pub const MEDICAL_CAUTION: &str = "splitdesk is a coaching aid, not medical advice: if this \
+is not a sensor fault, the athlete should see a physician; defer to licensed medical practice.";
+
+/// Share of flagged data above which the review says the numbers are less reliable.
+// Common coaching practice (no published source).
+pub const FLAGGED_NOTE_FRACTION: f64 = 0.05;
+
+/// HR lag above this after a work interval is worth a note, seconds.
+// Common coaching practice (no published source).
+pub const LONG_HR_LAG_S: f64 = 20.0;
+
+/// Extra descent in the second half that explains a negative decoupling, metres.
+// Common coaching practice (no published source): our threshold for "clearly more downhill".
+pub const DOWNHILL_EXPLAINS_M: f64 = 15.0;
+
+/// A 60-s HR drop at or below this is shown as information (Cole et al. 1999 clinical
+/// threshold, NEJM 341:1351, measured in a treadmill test, not on a field run).
+pub const COLE_HRR_BPM: f64 = 12.0;
+
+fn f(severity: Severity, text: String, metrics: Vec<String>) -> Finding {
+    Finding {
+        severity,
+        text,
+        metrics,
+    }
+}
+
+pub(crate) fn findings(
+    r: &Review,
+    session: &Session,
+    set: &IntervalSet,
+    profile: &AthleteProfile,
+    whole: &Whole,
+) -> Vec<Finding> {
+    let u = profile.units;
+    let mut out = Vec::new();
+
+    // Health cautions first.
+    if let (Some((secs, top)), Some(max)) = (whole.above_max, profile.hr_max) {
+        out.push(f(
+            Severity::Caution,
+            format!(
+                "Heart rate reached {top:.0} bpm, above the profile maximum of {max:.0} bpm, for {secs:.0} s. \
+                 Check the sensor and the profile first. {MEDICAL_CAUTION}"
+            ),
+            vec!["intervals[].max_hr".into()],
+        ));
+    }
+    let hr_rate_flags = session
+        .flags
+        .iter()
+        .filter(|f| f.kind == crate::model::FlagKind::HrRate)
+        .count();
+    if hr_rate_flags >= 3 {
+        out.push(f(
+            Severity::Caution,
+            format!(
+                "Heart rate jumped faster than a heart can {hr_rate_flags} times. This is usually the sensor; \
+                 if the athlete felt palpitations or dizziness, take it seriously. {MEDICAL_CAUTION}"
+            ),
+            vec!["flags".into()],
+        ));
+    }
+
+    // Plan fit.
+    if !r.missing_planned.is_empty() {
+        let list: Vec<String> = r.missing_planned.iter().map(|m| m.to_string()).collect();
+        out.push(f(
+            Severity::Warning,
+            format!(
+                "{} planned interval{} not found in the recording (plan steps {}).",
+                list.len(),
+                if list.len() == 1 { " was" } else { "s were" },
+                list.join(", ")
+            ),
+            vec!["missing_planned".into()],
+        ));
+    }
+    if !set.extra.is_empty() {
+        out.push(f(
+            Severity::Note,
+            format!(
+                "{} work interval{} that the plan did not ask for.",
+                set.extra.len(),
+                if set.extra.len() == 1 { "" } else { "s" }
+            ),
+            vec!["intervals".into()],
+        ));
+    }
+
+    // Targets, rep by rep.
+    let work: Vec<_> = r.work().collect();
+    let judged: Vec<_> = work.iter().filter(|m| m.target_hit.is_some()).collect();
+    if !judged.is_empty() {
+        let hit = judged.iter().filter(|m| m.target_hit == Some(true)).count();
+        let missed: Vec<String> = judged
+            .iter()
+            .filter(|m| m.target_hit == Some(false))
+            .map(|m| {
+                let pace = m
+                    .avg_pace_s_per_km
+                    .map(|p| format_pace(1000.0 / p, u))
+                    .unwrap_or_else(|| "no pace".into());
+                let side = match (m.target_band_mps, m.avg_pace_s_per_km) {
+                    (Some((slow, _)), Some(p)) if 1000.0 / p < slow => "slow",
+                    (Some(_), Some(_)) => "fast",
+                    _ => "off",
+                };
+                format!("rep {} {side} ({pace})", m.work_number.unwrap_or(0))
+            })
+            .collect();
+        let severity = if missed.is_empty() {
+            Severity::Info
+        } else if hit * 2 >= judged.len() {
+            Severity::Note
+        } else {
+            Severity::Warning
+        };
+        let mut text = format!("{hit} of {} work intervals on target", judged.len());
+        if !missed.is_empty() {
+            text.push_str(&format!(": {}", missed.join(", ")));
+        }
+        text.push('.');
+        out.push(f(
+            severity,
+            text,
+            judged
+                .iter()
+                .map(|m| format!("intervals[{}].target_hit", m.index))
+                .collect(),
+        ));
+    }
+
+    // Progression or fade across the set, and within reps.
+    if let Some(t) = r
+        .trend("hill_adjusted_pace_s_per_km")
+        .filter(|_| r.hill_adjusted)
+        .or_else(|| r.trend("avg_pace_s_per_km"))
+    {
+        match t.direction {
+            "falling" => out.push(f(
+                Severity::Info,
+                format!("Progression: {}.", t.text),
+                vec![format!("trends.{}", t.metric)],
+            )),
+            "rising" => out.push(f(
+                Severity::Note,
+                format!("Fade across the set: {}.", t.text),
+                vec![format!("trends.{}", t.metric)],
+            )),
+            _ => {}
+        }
+    }
+    let fades = work
+        .iter()
+        .filter(
+            |m| match (m.first_half_pace_s_per_km, m.second_half_pace_s_per_km) {
+                (Some(a), Some(b)) => b > a * 1.03,
+                _ => false,
+            },
+        )
+        .count();
+    if work.len() >= 2 && fades * 2 > work.len() {
+        out.push(f(
+            Severity::Note,
+            format!(
+                "{fades} of {} work intervals slowed by more than 3 % in their second half: started too fast?",
+                work.len()
+            ),
+            vec!["intervals[].second_half_pace_s_per_km".into()],
+        ));
+    }
+
+    // Recoveries.
+    if let Some(t) = r
+        .trend("recovery_trough_bpm")
+        .filter(|t| t.direction == "rising")
+    {
+        out.push(f(
+            Severity::Note,
+            format!("Recoveries got less complete: {}.", t.text),
+            vec!["trends.recovery_trough_bpm".into()],
+        ));
+    }
+    let lags: Vec<f64> = r.recoveries.iter().filter_map(|x| x.hr_lag_s).collect();
+    if let Some(longest) = lags.iter().copied().reduce(f64::max) {
+        let lag_rising = r.trend("hr_lag_s").is_some_and(|t| t.direction == "rising");
+        if longest > LONG_HR_LAG_S || lag_rising {
+            let mut text = format!(
+                "Heart rate kept rising for up to {longest:.0} s after the work intervals ended"
+            );
+            if let Some(t) = r.trend("hr_lag_s").filter(|_| lag_rising) {
+                text.push_str(&format!("; {}", t.text));
+            }
+            text.push('.');
+            out.push(f(
+                Severity::Note,
+                text,
+                vec!["recoveries[].hr_lag_s".into()],
+            ));
+        }
+    }
+    let low_drops: Vec<usize> = r
+        .recoveries
+        .iter()
+        .filter(|x| x.hr_drop_60s_bpm.is_some_and(|d| d <= COLE_HRR_BPM))
+        .map(|x| x.work_number)
+        .collect();
+    if !low_drops.is_empty() && !r.recoveries.is_empty() && low_drops.len() == r.recoveries.len() {
+        out.push(f(
+            Severity::Info,
+            format!(
+                "HR fell by {COLE_HRR_BPM:.0} bpm or less in the minute after every work interval. Clinical tests \
+                 (Cole et al. 1999) use a similar number after a set treadmill protocol; on a field run with a \
+                 jog recovery it is information only."
+            ),
+            vec!["recoveries[].hr_drop_60s_bpm".into()],
+        ));
+    }
+
+    // Whole-session efficiency.
+    if let Some(d) = r.decoupling_pct {
+        let kind = if r.hill_adjusted {
+            "hill-adjusted "
+        } else {
+            ""
+        };
+        if d > DECOUPLING_COACHING_LINE_PCT {
+            out.push(f(
+                Severity::Warning,
+                format!(
+                    "Decoupling {d:.1} % ({kind}speed per heartbeat fell from the first half to the second), above \
+                     the usual 5 % line (common coaching practice): heat, fuelling, fatigue or a pace beyond \
+                     current aerobic fitness."
+                ),
+                vec!["decoupling_pct".into()],
+            ));
+        } else if d >= 0.0 {
+            out.push(f(
+                Severity::Info,
+                format!(
+                    "Decoupling {d:.1} %: heart-rate cost held steady (under the usual 5 % line)."
+                ),
+                vec!["decoupling_pct".into()],
+            ));
+        }
+    }
+    let negative = [r.decoupling_pct, r.decoupling_raw_pct]
+        .into_iter()
+        .flatten()
+        .any(|d| d < 0.0);
+    if negative {
+        let raw = r.decoupling_raw_pct.unwrap_or(0.0);
+        match whole.extra_descent_second_half_m {
+            Some(m) if m >= DOWNHILL_EXPLAINS_M => out.push(f(
+                Severity::Note,
+                format!(
+                    "Negative decoupling ({raw:.1} % on raw speed) comes from downhill running: the second half \
+                     dropped {m:.0} m more than the first, and running downhill costs less per metre{}.",
+                    match (r.hill_adjusted, r.decoupling_pct) {
+                        (true, Some(d)) => format!("; hill-adjusted, decoupling is {d:.1} %"),
+                        _ => String::new(),
+                    }
+                ),
+                vec![
+                    "decoupling_raw_pct".into(),
+                    "decoupling_pct".into(),
+                    "elevation_loss_m".into(),
+                ],
+            )),
+            _ => out.push(f(
+                Severity::Note,
+                format!(
+                    "Negative decoupling ({:.1} %): HR cost fell in the second half. The elevation profile does \
+                     not explain it; a slow warm-up, a cooler second half or an HR sensor settling in can.",
+                    r.decoupling_pct.unwrap_or(raw)
+                ),
+                vec!["decoupling_pct".into()],
+            )),
+        }
+    }
+    if let Some(d) = r.hr_drift_bpm_per_h.filter(|d| *d > 10.0) {
+        out.push(f(
+            Severity::Note,
+            format!("At steady pace, HR drifted up {d:.0} bpm per hour."),
+            vec!["hr_drift_bpm_per_h".into()],
+        ));
+    }
+
+    // Data quality and missing channels.
+    if r.flagged_fraction >= FLAGGED_NOTE_FRACTION {
+        let sev = if r.flagged_fraction >= 0.25 {
+            Severity::Warning
+        } else {
+            Severity::Note
+        };
+        out.push(f(
+            sev,
+            format!(
+                "{:.0} % of the session is flagged as bad data and left out of the numbers.",
+                r.flagged_fraction * 100.0
+            ),
+            vec!["flagged_fraction".into(), "flags".into()],
+        ));
+    }
+    if session
+        .flags
+        .iter()
+        .any(|f| f.kind == crate::model::FlagKind::CadenceLock)
+    {
+        out.push(f(
+            Severity::Note,
+            "The heart-rate sensor locked onto the step rate for a while; HR there is masked."
+                .into(),
+            vec!["flags".into()],
+        ));
+    }
+    if session.hr.is_none() {
+        out.push(f(
+            Severity::Note,
+            "No heart rate in this file: HR metrics, load and decoupling are not available.".into(),
+            vec!["avg_hr".into(), "trimp".into(), "decoupling_pct".into()],
+        ));
+    } else if profile.hr_max.is_none() || profile.hr_rest.is_none() {
+        out.push(f(
+            Severity::Info,
+            "The profile lacks resting or maximum HR: load (TRIMP) is not computed.".into(),
+            vec!["trimp".into()],
+        ));
+    }
+    if session.lat.is_none() {
+        out.push(f(
+            Severity::Info,
+            "No GPS positions (treadmill or indoor): pace comes from the device's own speed."
+                .into(),
+            vec!["session.channels".into()],
+        ));
+    }
+    if session.altitude.is_none() && session.lat.is_some() {
+        out.push(f(
+            Severity::Info,
+            "No altitude: paces are not hill-adjusted.".into(),
+            vec!["hill_adjusted".into()],
+        ));
+    }
+    if r.decoupling_pct.is_none()
+        && session.hr.is_some()
+        && whole.analysed_s < super::review::MIN_DECOUPLING_S
+    {
+        out.push(f(
+            Severity::Info,
+            format!(
+                "Decoupling needs 20 minutes of steady running after the warm-up; this session had {:.0}.",
+                whole.analysed_s / 60.0
+            ),
+            vec!["decoupling_pct".into()],
+        ));
+    }
+    if set.inferred {
+        out.push(f(
+            Severity::Info,
+            "No plan for this session: the intervals were inferred from the speed.".into(),
+            vec!["inferred".into()],
+        ));
+    }
+    out.sort_by_key(|f| std::cmp::Reverse(f.severity));
+    out
+}

@@ -1,0 +1,1105 @@
+//! The objective review of one session: per-interval metrics, recoveries, trends across the
+//! set, whole-session metrics and findings. Everything the coach sees before grading.
+//!
+//! Pure: a cleaned `Session`, its `IntervalSet`, the plan and the athlete's profile in; a
+//! `Review` out. Times are seconds from the first sample, paces seconds per km, speeds m/s.
+//! A metric that cannot be computed is `None` (JSON `null`), never invented.
+
+use serde::Serialize;
+
+use crate::ingest::clean::{flagged_fraction, sample_mask};
+use crate::model::units::{format_pace, pace_s_per_km};
+use crate::model::{
+    AthleteProfile, ChannelKind, Interval, IntervalSet, Plan, SegmentKind, Session, Target,
+};
+
+use super::decoupling::{decoupling_pct, hr_drift_bpm_per_h, DECOUPLING_COACHING_LINE_PCT};
+use super::elevation::{gain_loss, DEFAULT_HYSTERESIS_M};
+use super::findings::{self, Finding};
+use super::gradient::{hill_adjusted_speed, HillAdjustment};
+use super::load::trimp_from_samples;
+use super::sampling::sample_dt;
+use super::summary::{moving_time_s, MOVING_SPEED_MPS};
+use super::trend;
+use super::zones::{hr_zones, pace_zones, time_in_zones};
+
+/// Bumped whenever a number in the review may change; cached summaries of another version
+/// are recomputed.
+pub const ANALYSIS_VERSION: u32 = 1;
+
+/// The JSON schema name of [`Review`].
+pub const SCHEMA: &str = "splitdesk.analysis/1";
+
+/// In-interval decoupling is computed for work intervals at least this long, seconds.
+// Common coaching practice (no published source): shorter efforts have no steady state.
+pub const MIN_INTERVAL_DECOUPLING_S: f64 = 120.0;
+
+/// The whole-session decoupling needs at least this much analysed time, seconds.
+// Common coaching practice (no published source).
+pub const MIN_DECOUPLING_S: f64 = 20.0 * 60.0;
+
+/// Without a plan, the first part of a session left out of the decoupling, seconds.
+// Common coaching practice (no published source): the warm-up.
+pub const DEFAULT_WARMUP_S: f64 = 10.0 * 60.0;
+
+/// Trends across a set are "flat" when the fitted change over the set is under this, s/km.
+// Common coaching practice (no published source).
+pub const FLAT_PACE_S_PER_KM: f64 = 2.0;
+/// Trends across a set are "flat" when the fitted change over the set is under this, bpm.
+// Common coaching practice (no published source).
+pub const FLAT_HR_BPM: f64 = 2.0;
+/// Flat band for cadence trends, steps/min. Common coaching practice (no published source).
+pub const FLAT_CADENCE_SPM: f64 = 2.0;
+/// Flat band for HR-lag trends, seconds. Common coaching practice (no published source).
+pub const FLAT_LAG_S: f64 = 3.0;
+
+/// How far after the end of a work interval the HR peak is looked for, seconds.
+pub const HR_LAG_WINDOW_S: f64 = 60.0;
+
+/// Half-width of the centred window that smooths HR for the HR lag and trough, seconds.
+// Our design choice: wide enough to average out sensor jitter, short against a 10-30 s lag.
+pub const HR_SMOOTHING_HALF_S: f64 = 5.0;
+
+/// The HR peak after a work interval is the middle of the stretch within this of the top.
+// Our design choice: about the size of sensor noise once smoothed.
+pub const PEAK_PLATEAU_BPM: f64 = 0.5;
+
+/// Half-width of the centred window that smooths speed for time-in-target, seconds.
+// Our design choice: GPS speed jitters by several percent from second to second.
+pub const TARGET_SMOOTHING_HALF_S: f64 = 5.0;
+
+/// Steady pace for HR drift: hill-adjusted speed within this fraction of the median.
+// Common coaching practice (no published source).
+pub const STEADY_BAND: f64 = 0.10;
+
+#[derive(Debug, Clone, Serialize, PartialEq)]
+pub struct SessionInfo {
+    pub format: &'static str,
+    pub sport: String,
+    pub start: String,
+    pub duration_s: f64,
+    pub moving_s: f64,
+    pub distance_m: Option<f64>,
+    pub samples: usize,
+    pub channels: Vec<&'static str>,
+}
+
+#[derive(Debug, Clone, Serialize, PartialEq)]
+pub struct PlanInfo {
+    pub title: String,
+    pub purpose: String,
+}
+
+#[derive(Debug, Clone, Serialize, PartialEq)]
+pub struct FlagOut {
+    pub from_s: f64,
+    pub to_s: f64,
+    pub channel: &'static str,
+    pub kind: &'static str,
+    pub reason: String,
+}
+
+/// The metrics of one interval.
+#[derive(Debug, Clone, Serialize, PartialEq)]
+pub struct IntervalMetrics {
+    /// 1-based position in the session.
+    pub index: usize,
+    /// 1-based number among the work intervals (work intervals only).
+    pub work_number: Option<usize>,
+    pub kind: &'static str,
+    pub source: &'static str,
+    pub mode: Option<&'static str>,
+    pub start_s: f64,
+    pub end_s: f64,
+    pub duration_s: f64,
+    pub moving_s: f64,
+    pub distance_m: Option<f64>,
+    pub avg_pace_s_per_km: Option<f64>,
+    pub hill_adjusted_pace_s_per_km: Option<f64>,
+    pub avg_hr: Option<f64>,
+    pub max_hr: Option<f64>,
+    pub end_hr: Option<f64>,
+    pub avg_cadence_spm: Option<f64>,
+    pub relative_intensity: Option<f64>,
+    pub first_half_pace_s_per_km: Option<f64>,
+    pub second_half_pace_s_per_km: Option<f64>,
+    pub decoupling_pct: Option<f64>,
+    /// The plan's target in words, in the athlete's units.
+    pub target: Option<String>,
+    /// Target band as speeds (slow, fast), m/s, when it is a pace target.
+    #[serde(skip)]
+    pub target_band_mps: Option<(f64, f64)>,
+    #[serde(skip)]
+    pub target_hr: Option<(f64, f64)>,
+    pub in_target_pct: Option<f64>,
+    pub target_hit: Option<bool>,
+}
+
+/// What happened after one work interval.
+#[derive(Debug, Clone, Serialize, PartialEq)]
+pub struct RecoveryMetrics {
+    /// `index` of the work interval this follows.
+    pub after_work: usize,
+    /// Work-interval number (1-based) this follows.
+    pub work_number: usize,
+    pub recovery_trough_bpm: Option<f64>,
+    pub trough_at_s: Option<f64>,
+    pub hr_lag_s: Option<f64>,
+    pub hr_lag_bpm: Option<f64>,
+    pub hr_drop_60s_bpm: Option<f64>,
+}
+
+/// A least-squares trend of one per-interval metric against repeat number.
+#[derive(Debug, Clone, Serialize, PartialEq)]
+pub struct TrendOut {
+    pub metric: &'static str,
+    pub slope_per_rep: f64,
+    pub r2: f64,
+    pub n: usize,
+    pub change_over_set: f64,
+    pub direction: &'static str,
+    pub text: String,
+}
+
+#[derive(Debug, Clone, Serialize, PartialEq)]
+pub struct HrZoneOut {
+    pub name: String,
+    pub from_bpm: f64,
+    pub to_bpm: f64,
+    pub seconds: f64,
+}
+
+#[derive(Debug, Clone, Serialize, PartialEq)]
+pub struct PaceZoneOut {
+    pub name: String,
+    /// Slow edge of the zone, s/km (`None` for the open-ended slowest zone).
+    pub from_s_per_km: Option<f64>,
+    /// Fast edge of the zone, s/km.
+    pub to_s_per_km: Option<f64>,
+    pub seconds: f64,
+}
+
+#[derive(Debug, Clone, Serialize, PartialEq, Default)]
+pub struct Zones {
+    pub hr: Vec<HrZoneOut>,
+    pub pace: Vec<PaceZoneOut>,
+}
+
+/// The objective review of one session (the `splitdesk.analysis/1` JSON contract).
+#[derive(Debug, Clone, Serialize, PartialEq)]
+pub struct Review {
+    pub schema: &'static str,
+    pub analysis_version: u32,
+    pub file: String,
+    pub athlete: String,
+    pub units: &'static str,
+    pub session: SessionInfo,
+    pub plan: Option<PlanInfo>,
+    pub flags: Vec<FlagOut>,
+    pub flagged_fraction: f64,
+    /// True when there was no plan and the set was inferred from the speed.
+    pub inferred: bool,
+    /// How the intervals were found.
+    pub interval_notes: Vec<String>,
+    /// Planned intervals (1-based positions in the expanded plan) that were not found.
+    pub missing_planned: Vec<usize>,
+    pub intervals: Vec<IntervalMetrics>,
+    pub recoveries: Vec<RecoveryMetrics>,
+    pub trends: Vec<TrendOut>,
+    pub decoupling_pct: Option<f64>,
+    /// Decoupling on raw (not hill-adjusted) speed, for comparison.
+    pub decoupling_raw_pct: Option<f64>,
+    pub hill_adjusted: bool,
+    pub hr_drift_bpm_per_h: Option<f64>,
+    pub trimp: Option<f64>,
+    pub elevation_gain_m: Option<f64>,
+    pub elevation_loss_m: Option<f64>,
+    pub zones: Zones,
+    pub findings: Vec<Finding>,
+}
+
+impl Review {
+    /// The work intervals' metrics, in order.
+    pub fn work(&self) -> impl Iterator<Item = &IntervalMetrics> {
+        self.intervals.iter().filter(|i| i.kind == "work")
+    }
+
+    pub fn trend(&self, metric: &str) -> Option<&TrendOut> {
+        self.trends.iter().find(|t| t.metric == metric)
+    }
+}
+
+/// Per-sample series the metrics share, computed once per session.
+pub(crate) struct Series<'a> {
+    pub t: &'a [f64],
+    pub speed: Option<&'a [Option<f64>]>,
+    /// Hill-adjusted speed (raw speed where there is no altitude).
+    pub adj: Option<Vec<Option<f64>>>,
+    pub hill_adjusted: bool,
+    pub hr: Option<&'a [Option<f64>]>,
+    pub cadence: Option<&'a [Option<f64>]>,
+    pub distance: Option<&'a [Option<f64>]>,
+    /// Speed usable: present, unflagged, not paused.
+    pub speed_ok: Vec<bool>,
+    pub hr_ok: Vec<bool>,
+    pub cadence_ok: Vec<bool>,
+    /// Moving: speed usable and at least `MOVING_SPEED_MPS` (without speed: not paused).
+    pub moving: Vec<bool>,
+}
+
+impl<'a> Series<'a> {
+    pub fn new(session: &'a Session) -> Series<'a> {
+        let n = session.len();
+        let paused: Vec<bool> = (0..n)
+            .map(|i| {
+                let a = if i == 0 { 0.0 } else { session.t[i - 1] };
+                session.is_paused_at(0.5 * (a + session.t[i]))
+            })
+            .collect();
+        let ok = |kind: ChannelKind, ch: Option<&crate::model::Channel>| -> Vec<bool> {
+            let mask = sample_mask(session, &session.flags, kind);
+            (0..n)
+                .map(|i| {
+                    ch.and_then(|c| c.get(i)).is_some()
+                        && !mask.get(i).copied().unwrap_or(false)
+                        && !paused[i]
+                })
+                .collect()
+        };
+        let speed_ok = ok(ChannelKind::Speed, session.speed.as_ref());
+        let hr_ok = ok(ChannelKind::Hr, session.hr.as_ref());
+        let cadence_ok = ok(ChannelKind::Cadence, session.cadence.as_ref());
+        let moving = match &session.speed {
+            Some(sp) => (0..n)
+                .map(|i| speed_ok[i] && sp.get(i).is_some_and(|v| v >= MOVING_SPEED_MPS))
+                .collect(),
+            None => paused.iter().map(|p| !p).collect(),
+        };
+        let hill = hill_adjusted_speed(session);
+        let hill_adjusted = hill
+            .as_ref()
+            .is_some_and(|h| h.adjustment == HillAdjustment::Adjusted);
+        Series {
+            t: &session.t,
+            speed: session.speed.as_ref().map(|c| c.values.as_slice()),
+            adj: hill.map(|h| h.values),
+            hill_adjusted,
+            hr: session.hr.as_ref().map(|c| c.values.as_slice()),
+            cadence: session.cadence.as_ref().map(|c| c.values.as_slice()),
+            distance: session.distance.as_ref().map(|c| c.values.as_slice()),
+            speed_ok,
+            hr_ok,
+            cadence_ok,
+            moving,
+        }
+    }
+
+    fn dt(&self, i: usize) -> f64 {
+        sample_dt(self.t, i)
+    }
+
+    /// Time-weighted mean of `values` over samples `a+1..=b` where `ok` holds.
+    fn mean(
+        &self,
+        values: &[Option<f64>],
+        ok: impl Fn(usize) -> bool,
+        a: usize,
+        b: usize,
+    ) -> Option<f64> {
+        let (mut sum, mut w) = (0.0, 0.0);
+        for i in (a + 1)..=b.min(self.t.len().saturating_sub(1)) {
+            if !ok(i) {
+                continue;
+            }
+            if let Some(v) = values.get(i).copied().flatten() {
+                let dt = self.dt(i);
+                sum += v * dt;
+                w += dt;
+            }
+        }
+        (w > 0.0).then(|| sum / w)
+    }
+
+    /// Moving time over samples `a+1..=b`.
+    fn moving_s(&self, a: usize, b: usize) -> f64 {
+        ((a + 1)..=b.min(self.t.len().saturating_sub(1)))
+            .filter(|&i| self.moving.get(i).copied().unwrap_or(false))
+            .map(|i| self.dt(i))
+            .sum()
+    }
+
+    /// Mean moving speed over `a+1..=b` from `values` (time-weighted over moving samples).
+    fn moving_speed(&self, values: &[Option<f64>], a: usize, b: usize) -> Option<f64> {
+        self.mean(
+            values,
+            |i| self.moving.get(i).copied().unwrap_or(false),
+            a,
+            b,
+        )
+    }
+
+    fn hr_ok(&self, i: usize) -> bool {
+        self.hr_ok.get(i).copied().unwrap_or(false)
+    }
+}
+
+/// Review a session whose intervals have been found.
+pub fn review(
+    session: &Session,
+    set: &IntervalSet,
+    plan: Option<&Plan>,
+    profile: &AthleteProfile,
+) -> Review {
+    let s = Series::new(session);
+    let expected = plan.map(Plan::expand).unwrap_or_default();
+    let intervals = interval_metrics(session, &s, set, &expected, profile);
+    let recoveries = recovery_metrics(session, &s, set, &intervals);
+    let trends = trends(&intervals, &recoveries, profile);
+    let analysed = analysed_range(session, set, plan.is_some());
+    let whole = whole_session(session, &s, analysed, profile);
+    let zones = zones(session, &s, profile);
+    let (gain, loss) = match &session.altitude {
+        Some(a) => {
+            let (g, l) = gain_loss(a, DEFAULT_HYSTERESIS_M);
+            (Some(g), Some(l))
+        }
+        None => (None, None),
+    };
+    let flags: Vec<FlagOut> = session
+        .flags
+        .iter()
+        .map(|f| FlagOut {
+            from_s: f.from_s,
+            to_s: f.to_s,
+            channel: f.channel.as_str(),
+            kind: f.kind.as_str(),
+            reason: f.reason.clone(),
+        })
+        .collect();
+    let mut review = Review {
+        schema: SCHEMA,
+        analysis_version: ANALYSIS_VERSION,
+        file: String::new(),
+        athlete: profile.id.clone(),
+        units: profile.units.label(),
+        session: SessionInfo {
+            format: session.format.as_str(),
+            sport: session.sport.label().to_string(),
+            start: session
+                .start
+                .to_rfc3339_opts(chrono::SecondsFormat::Secs, true),
+            duration_s: session.duration_s(),
+            moving_s: moving_time_s(session),
+            distance_m: session.distance_m(),
+            samples: session.len(),
+            channels: session
+                .channels_present()
+                .iter()
+                .map(|c| c.as_str())
+                .collect(),
+        },
+        plan: plan.map(|p| PlanInfo {
+            title: p.title.clone(),
+            purpose: p.purpose.clone(),
+        }),
+        flags,
+        flagged_fraction: flagged_fraction(session, &session.flags),
+        inferred: set.inferred,
+        interval_notes: set.notes.clone(),
+        missing_planned: set.missing.iter().map(|m| m + 1).collect(),
+        intervals,
+        recoveries,
+        trends,
+        decoupling_pct: whole.decoupling,
+        decoupling_raw_pct: whole.decoupling_raw,
+        hill_adjusted: s.hill_adjusted,
+        hr_drift_bpm_per_h: whole.drift,
+        trimp: whole.trimp,
+        elevation_gain_m: gain,
+        elevation_loss_m: loss,
+        zones,
+        findings: Vec::new(),
+    };
+    review.findings = findings::findings(&review, session, set, profile, &whole);
+    review
+}
+
+fn target_words(target: &Target, profile: &AthleteProfile) -> String {
+    let u = profile.units;
+    match target {
+        Target::Open => "open".to_string(),
+        Target::PaceRange { slow_mps, fast_mps } => {
+            format!(
+                "{}-{}",
+                format_pace(*slow_mps, u),
+                format_pace(*fast_mps, u)
+            )
+        }
+        Target::NamedPace { name, .. } => match target.speed_band(profile) {
+            Some((slow, fast)) => {
+                format!("{name} ({}-{})", format_pace(slow, u), format_pace(fast, u))
+            }
+            None => format!("{name} (not in the profile)"),
+        },
+        Target::HrRange { low_bpm, high_bpm } => format!("HR {low_bpm:.0}-{high_bpm:.0}"),
+    }
+}
+
+/// Centred moving average of `values` over `±half_s` seconds, only over `ok` samples. O(n).
+pub(crate) fn smooth(
+    t: &[f64],
+    values: &[Option<f64>],
+    ok: &[bool],
+    half_s: f64,
+) -> Vec<Option<f64>> {
+    let n = t.len().min(values.len());
+    let mut out = vec![None; n];
+    let (mut lo, mut hi) = (0usize, 0usize);
+    let (mut sum, mut cnt) = (0.0, 0usize);
+    let val = |k: usize| -> Option<f64> {
+        if ok.get(k).copied().unwrap_or(false) {
+            values.get(k).copied().flatten()
+        } else {
+            None
+        }
+    };
+    for i in 0..n {
+        while hi < n && t[hi] <= t[i] + half_s {
+            if let Some(v) = val(hi) {
+                sum += v;
+                cnt += 1;
+            }
+            hi += 1;
+        }
+        while lo < n && t[lo] < t[i] - half_s {
+            if let Some(v) = val(lo) {
+                sum -= v;
+                cnt -= 1;
+            }
+            lo += 1;
+        }
+        if cnt > 0 && val(i).is_some() {
+            out[i] = Some(sum / cnt as f64);
+        }
+    }
+    out
+}
+
+fn interval_metrics(
+    session: &Session,
+    s: &Series<'_>,
+    set: &IntervalSet,
+    expected: &[crate::model::ExpectedInterval],
+    profile: &AthleteProfile,
+) -> Vec<IntervalMetrics> {
+    let smoothed = s
+        .speed
+        .map(|sp| smooth(s.t, sp, &s.speed_ok, TARGET_SMOOTHING_HALF_S));
+    let mut work_no = 0;
+    set.intervals
+        .iter()
+        .enumerate()
+        .map(|(k, iv)| {
+            let work_number = (iv.kind == SegmentKind::Work).then(|| {
+                work_no += 1;
+                work_no
+            });
+            let target = iv.expected.and_then(|e| expected.get(e)).map(|e| &e.target);
+            one_interval(
+                session,
+                s,
+                iv,
+                k + 1,
+                work_number,
+                target,
+                smoothed.as_deref(),
+                profile,
+            )
+        })
+        .collect()
+}
+
+#[allow(clippy::too_many_arguments)]
+fn one_interval(
+    session: &Session,
+    s: &Series<'_>,
+    iv: &Interval,
+    index: usize,
+    work_number: Option<usize>,
+    target: Option<&Target>,
+    smoothed: Option<&[Option<f64>]>,
+    profile: &AthleteProfile,
+) -> IntervalMetrics {
+    let (a, b) = (iv.start, iv.end.min(session.len().saturating_sub(1)));
+    let moving_s = s.moving_s(a, b);
+    let distance_m = match s.distance {
+        Some(d) => {
+            let first = (a..=b).find_map(|i| d.get(i).copied().flatten());
+            let last = (a..=b).rev().find_map(|i| d.get(i).copied().flatten());
+            first.zip(last).map(|(x, y)| (y - x).max(0.0))
+        }
+        None => s.speed.map(|sp| {
+            ((a + 1)..=b)
+                .filter(|&i| s.speed_ok.get(i).copied().unwrap_or(false))
+                .filter_map(|i| sp.get(i).copied().flatten().map(|v| v * s.dt(i)))
+                .sum()
+        }),
+    };
+    // Average pace (moving): distance over moving time where the file has distance,
+    // otherwise the time-weighted mean of the moving speed samples.
+    let avg_speed = match distance_m {
+        Some(d) if s.distance.is_some() && moving_s > 0.0 => Some(d / moving_s),
+        _ => s.speed.and_then(|sp| s.moving_speed(sp, a, b)),
+    };
+    let adj_speed = s.adj.as_deref().and_then(|v| s.moving_speed(v, a, b));
+    let hr = s.hr;
+    let avg_hr = hr.and_then(|h| s.mean(h, |i| s.hr_ok(i), a, b));
+    let max_hr = hr.and_then(|h| {
+        (a..=b)
+            .filter(|&i| s.hr_ok(i))
+            .filter_map(|i| h.get(i).copied().flatten())
+            .reduce(f64::max)
+    });
+    let end_hr = hr.and_then(|h| {
+        (a..=b)
+            .rev()
+            .filter(|&i| s.hr_ok(i))
+            .find_map(|i| h.get(i).copied().flatten())
+    });
+    let avg_cadence = s.cadence.and_then(|c| {
+        s.mean(
+            c,
+            |i| {
+                s.cadence_ok.get(i).copied().unwrap_or(false)
+                    && s.moving.get(i).copied().unwrap_or(false)
+            },
+            a,
+            b,
+        )
+    });
+    let relative_intensity = adj_speed
+        .zip(profile.threshold_speed_mps)
+        .map(|(v, thr)| v / thr);
+    // Halves by time.
+    let mid_t = 0.5 * (iv.start_s + iv.end_s);
+    let mid = (a..=b).find(|&i| s.t[i] >= mid_t).unwrap_or(b);
+    let half_pace = |x: usize, y: usize| {
+        s.speed
+            .and_then(|sp| s.moving_speed(sp, x, y))
+            .and_then(pace_s_per_km)
+    };
+    let decoupling = if iv.kind == SegmentKind::Work && iv.duration_s() >= MIN_INTERVAL_DECOUPLING_S
+    {
+        match (s.adj.as_deref(), hr) {
+            (Some(v), Some(h)) => {
+                let usable: Vec<bool> = (0..session.len())
+                    .map(|i| {
+                        i > a && i <= b && s.moving.get(i).copied().unwrap_or(false) && s.hr_ok(i)
+                    })
+                    .collect();
+                decoupling_pct(v, h, s.t, &usable)
+            }
+            _ => None,
+        }
+    } else {
+        None
+    };
+    let target_band = target.and_then(|t| t.speed_band(profile));
+    let target_hr = match target {
+        Some(Target::HrRange { low_bpm, high_bpm }) => Some((*low_bpm, *high_bpm)),
+        _ => None,
+    };
+    let (in_target_pct, target_hit) = match (target_band, target_hr) {
+        (Some((slow, fast)), _) => {
+            let (mut inside, mut total) = (0.0, 0.0);
+            if let Some(sm) = smoothed {
+                for i in (a + 1)..=b {
+                    if !s.moving.get(i).copied().unwrap_or(false) {
+                        continue;
+                    }
+                    if let Some(v) = sm.get(i).copied().flatten() {
+                        let dt = s.dt(i);
+                        total += dt;
+                        if v >= slow && v <= fast {
+                            inside += dt;
+                        }
+                    }
+                }
+            }
+            let pct = (total > 0.0).then(|| inside / total * 100.0);
+            let hit = avg_speed.map(|v| v >= slow && v <= fast);
+            (pct, hit)
+        }
+        (None, Some((lo, hi))) => {
+            let (mut inside, mut total) = (0.0, 0.0);
+            if let Some(h) = hr {
+                for i in (a + 1)..=b {
+                    if !s.hr_ok(i) {
+                        continue;
+                    }
+                    if let Some(v) = h.get(i).copied().flatten() {
+                        let dt = s.dt(i);
+                        total += dt;
+                        if v >= lo && v <= hi {
+                            inside += dt;
+                        }
+                    }
+                }
+            }
+            let pct = (total > 0.0).then(|| inside / total * 100.0);
+            (pct, avg_hr.map(|h| h >= lo && h <= hi))
+        }
+        (None, None) => (None, None),
+    };
+    IntervalMetrics {
+        index,
+        work_number,
+        kind: iv.kind.as_str(),
+        source: iv.source.as_str(),
+        mode: iv.mode.map(|m| m.as_str()),
+        start_s: iv.start_s,
+        end_s: iv.end_s,
+        duration_s: iv.duration_s(),
+        moving_s,
+        distance_m,
+        avg_pace_s_per_km: avg_speed.and_then(pace_s_per_km),
+        hill_adjusted_pace_s_per_km: adj_speed.and_then(pace_s_per_km),
+        avg_hr,
+        max_hr,
+        end_hr,
+        avg_cadence_spm: avg_cadence,
+        relative_intensity,
+        first_half_pace_s_per_km: half_pace(a, mid),
+        second_half_pace_s_per_km: half_pace(mid, b),
+        decoupling_pct: decoupling,
+        target: target.map(|t| target_words(t, profile)),
+        target_band_mps: target_band,
+        target_hr,
+        in_target_pct,
+        target_hit,
+    }
+}
+
+fn recovery_metrics(
+    session: &Session,
+    s: &Series<'_>,
+    set: &IntervalSet,
+    metrics: &[IntervalMetrics],
+) -> Vec<RecoveryMetrics> {
+    let Some(hr) = s.hr else {
+        return set
+            .intervals
+            .iter()
+            .zip(metrics)
+            .filter(|(iv, _)| iv.kind == SegmentKind::Work)
+            .map(|(_, m)| RecoveryMetrics {
+                after_work: m.index,
+                work_number: m.work_number.unwrap_or(0),
+                recovery_trough_bpm: None,
+                trough_at_s: None,
+                hr_lag_s: None,
+                hr_lag_bpm: None,
+                hr_drop_60s_bpm: None,
+            })
+            .collect();
+    };
+    let n = session.len();
+    // Beat-to-beat noise of a bpm or two moves a raw maximum by several seconds: the peak
+    // and trough are read off HR smoothed over a few seconds.
+    let smoothed = smooth(s.t, hr, &s.hr_ok, HR_SMOOTHING_HALF_S);
+    let hr_at = |i: usize| -> Option<f64> { smoothed.get(i).copied().flatten() };
+    let mut out = Vec::new();
+    for (k, iv) in set.intervals.iter().enumerate() {
+        if iv.kind != SegmentKind::Work {
+            continue;
+        }
+        let Some(m) = metrics.get(k) else { continue };
+        // The recovery: the non-work stretch that follows, up to the next work interval.
+        let rec_end = set
+            .intervals
+            .iter()
+            .skip(k + 1)
+            .take_while(|x| x.kind != SegmentKind::Work)
+            .filter(|x| x.kind == SegmentKind::Recovery)
+            .map(|x| x.end)
+            .last();
+        let (trough, trough_at) = match rec_end {
+            Some(e) => (iv.end..=e.min(n.saturating_sub(1)))
+                .filter_map(|i| hr_at(i).map(|h| (h, s.t[i])))
+                .fold((None, None), |(best, at), (h, ti)| match best {
+                    Some(b) if b <= h => (Some(b), at),
+                    _ => (Some(h), Some(ti)),
+                }),
+            None => (None, None),
+        };
+        let end_i = iv.end.min(n.saturating_sub(1));
+        let end_hr = (iv.start..=end_i).rev().find_map(hr_at);
+        let end_t = iv.end_s;
+        let window: Vec<(f64, f64)> = ((end_i + 1)..n)
+            .take_while(|&i| s.t[i] <= end_t + HR_LAG_WINDOW_S)
+            .filter_map(|i| hr_at(i).map(|h| (s.t[i], h)))
+            .collect();
+        let (lag_s, lag_bpm) = match end_hr {
+            Some(e) => {
+                let peak = window
+                    .iter()
+                    .copied()
+                    .fold(None::<(f64, f64)>, |best, (ti, h)| match best {
+                        Some((_, bh)) if bh >= h => best,
+                        _ => Some((ti, h)),
+                    });
+                // The top of the HR curve is flat: take the middle of the stretch within
+                // PEAK_PLATEAU_BPM of the highest value as the time of the peak.
+                let peak = peak.map(|(ti, h)| {
+                    let band = PEAK_PLATEAU_BPM.max(0.25 * (h - e));
+                    let near: Vec<f64> = window
+                        .iter()
+                        .filter(|(_, x)| *x >= h - band)
+                        .map(|(t, _)| *t)
+                        .collect();
+                    match (near.first(), near.last()) {
+                        (Some(a), Some(b)) => (0.5 * (a + b), h),
+                        _ => (ti, h),
+                    }
+                });
+                match peak {
+                    Some((ti, h)) if h > e => (Some(ti - end_t), Some(h - e)),
+                    Some(_) => (Some(0.0), Some(0.0)),
+                    None => (None, None),
+                }
+            }
+            None => (None, None),
+        };
+        // HR 60 s after the end: the sample nearest to end + 60 s, within 5 s.
+        let drop = end_hr.and_then(|e| {
+            let target = end_t + 60.0;
+            ((end_i + 1)..n)
+                .take_while(|&i| s.t[i] <= target + 5.0)
+                .filter(|&i| s.t[i] >= target - 5.0)
+                .filter_map(|i| hr_at(i).map(|h| ((s.t[i] - target).abs(), h)))
+                .min_by(|x, y| x.0.total_cmp(&y.0))
+                .map(|(_, h)| e - h)
+        });
+        out.push(RecoveryMetrics {
+            after_work: m.index,
+            work_number: m.work_number.unwrap_or(0),
+            recovery_trough_bpm: trough,
+            trough_at_s: trough_at,
+            hr_lag_s: lag_s,
+            hr_lag_bpm: lag_bpm,
+            hr_drop_60s_bpm: drop,
+        });
+    }
+    out
+}
+
+/// Per-repeat (x, y) pairs of one metric.
+type Points = (Vec<f64>, Vec<f64>);
+
+fn trends(
+    intervals: &[IntervalMetrics],
+    recoveries: &[RecoveryMetrics],
+    profile: &AthleteProfile,
+) -> Vec<TrendOut> {
+    let work: Vec<&IntervalMetrics> = intervals.iter().filter(|i| i.kind == "work").collect();
+    if work.len() < 3 {
+        return Vec::new();
+    }
+    let mut out = Vec::new();
+    let per_work = |f: &dyn Fn(&IntervalMetrics) -> Option<f64>| -> (Vec<f64>, Vec<f64>) {
+        work.iter()
+            .filter_map(|m| Some((m.work_number? as f64, f(m)?)))
+            .unzip()
+    };
+    let per_rec = |f: &dyn Fn(&RecoveryMetrics) -> Option<f64>| -> (Vec<f64>, Vec<f64>) {
+        recoveries
+            .iter()
+            .filter_map(|r| Some((r.work_number as f64, f(r)?)))
+            .unzip()
+    };
+    let series: Vec<(&'static str, Points, f64)> = vec![
+        (
+            "avg_pace_s_per_km",
+            per_work(&|m| m.avg_pace_s_per_km),
+            FLAT_PACE_S_PER_KM,
+        ),
+        (
+            "hill_adjusted_pace_s_per_km",
+            per_work(&|m| m.hill_adjusted_pace_s_per_km),
+            FLAT_PACE_S_PER_KM,
+        ),
+        ("avg_hr", per_work(&|m| m.avg_hr), FLAT_HR_BPM),
+        ("max_hr", per_work(&|m| m.max_hr), FLAT_HR_BPM),
+        ("end_hr", per_work(&|m| m.end_hr), FLAT_HR_BPM),
+        (
+            "avg_cadence_spm",
+            per_work(&|m| m.avg_cadence_spm),
+            FLAT_CADENCE_SPM,
+        ),
+        (
+            "recovery_trough_bpm",
+            per_rec(&|r| r.recovery_trough_bpm),
+            FLAT_HR_BPM,
+        ),
+        ("hr_lag_s", per_rec(&|r| r.hr_lag_s), FLAT_LAG_S),
+        (
+            "hr_drop_60s_bpm",
+            per_rec(&|r| r.hr_drop_60s_bpm),
+            FLAT_HR_BPM,
+        ),
+    ];
+    for (metric, (xs, ys), flat) in series {
+        if xs.len() < 3 {
+            continue;
+        }
+        let Some(f) = trend::fit(&xs, &ys) else {
+            continue;
+        };
+        let direction = f.direction(flat);
+        out.push(TrendOut {
+            metric,
+            slope_per_rep: f.slope,
+            r2: f.r2,
+            n: f.n,
+            change_over_set: f.change(),
+            direction: direction.as_str(),
+            text: trend_text(metric, &f, direction, profile),
+        });
+    }
+    out
+}
+
+fn trend_text(
+    metric: &str,
+    f: &trend::Fit,
+    direction: trend::Direction,
+    profile: &AthleteProfile,
+) -> String {
+    use trend::Direction::*;
+    let per = f.slope.abs();
+    let total = f.change().abs();
+    match metric {
+        "avg_pace_s_per_km" | "hill_adjusted_pace_s_per_km" => {
+            let scale = profile.units.metres() / 1000.0;
+            let u = profile.units.label();
+            let what = if metric == "avg_pace_s_per_km" {
+                "pace"
+            } else {
+                "hill-adjusted pace"
+            };
+            match direction {
+                Falling => format!(
+                    "{what} faster by {:.0} s/{u} each repeat ({:.0} s/{u} over the set)",
+                    per * scale,
+                    total * scale
+                ),
+                Rising => format!(
+                    "{what} slower by {:.0} s/{u} each repeat ({:.0} s/{u} over the set)",
+                    per * scale,
+                    total * scale
+                ),
+                Flat => {
+                    format!("{what} steady across the set (within {FLAT_PACE_S_PER_KM:.0} s/km)")
+                }
+            }
+        }
+        _ => {
+            let (what, unit, flat) = match metric {
+                "avg_hr" => ("average HR", "bpm", FLAT_HR_BPM),
+                "max_hr" => ("peak HR", "bpm", FLAT_HR_BPM),
+                "end_hr" => ("HR at the end of each repeat", "bpm", FLAT_HR_BPM),
+                "avg_cadence_spm" => ("cadence", "steps/min", FLAT_CADENCE_SPM),
+                "recovery_trough_bpm" => ("recovery trough", "bpm", FLAT_HR_BPM),
+                "hr_lag_s" => ("HR lag", "s", FLAT_LAG_S),
+                "hr_drop_60s_bpm" => ("60-s HR drop", "bpm", FLAT_HR_BPM),
+                _ => (metric, "", 0.0),
+            };
+            match direction {
+                Rising => format!("{what} up {total:.0} {unit} over the set ({per:.1} per repeat)"),
+                Falling => {
+                    format!("{what} down {total:.0} {unit} over the set ({per:.1} per repeat)")
+                }
+                Flat => format!("{what} flat across the set (within {flat:.0} {unit})"),
+            }
+        }
+    }
+}
+
+/// The sample range of the analysed part for the whole-session decoupling: without a plan,
+/// the session minus its first 10 minutes; with a plan, minus the warm-up and cool-down.
+fn analysed_range(session: &Session, set: &IntervalSet, has_plan: bool) -> (usize, usize) {
+    let n = session.len();
+    if n == 0 {
+        return (0, 0);
+    }
+    let last = n - 1;
+    if has_plan {
+        let start = set
+            .intervals
+            .iter()
+            .take_while(|i| i.kind == SegmentKind::Warmup)
+            .map(|i| i.end)
+            .last()
+            .unwrap_or(0);
+        let end = set
+            .intervals
+            .iter()
+            .rev()
+            .take_while(|i| i.kind == SegmentKind::Cooldown)
+            .map(|i| i.start)
+            .last()
+            .unwrap_or(last);
+        (start.min(last), end.min(last))
+    } else {
+        let start = session
+            .t
+            .iter()
+            .position(|&t| t >= DEFAULT_WARMUP_S)
+            .unwrap_or(last);
+        (start, last)
+    }
+}
+
+/// Whole-session numbers shared with the findings.
+#[derive(Debug, Clone, Default)]
+pub(crate) struct Whole {
+    pub decoupling: Option<f64>,
+    pub decoupling_raw: Option<f64>,
+    pub drift: Option<f64>,
+    pub trimp: Option<f64>,
+    /// Net descent of the second half of the analysed part minus that of the first, m.
+    pub extra_descent_second_half_m: Option<f64>,
+    pub analysed_s: f64,
+    /// Unflagged HR samples above the profile maximum: (seconds, highest bpm).
+    pub above_max: Option<(f64, f64)>,
+}
+
+fn whole_session(
+    session: &Session,
+    s: &Series<'_>,
+    (a, b): (usize, usize),
+    profile: &AthleteProfile,
+) -> Whole {
+    let n = session.len();
+    let usable: Vec<bool> = (0..n)
+        .map(|i| i > a && i <= b && s.moving.get(i).copied().unwrap_or(false) && s.hr_ok(i))
+        .collect();
+    let analysed_s: f64 = (0..n).filter(|&i| usable[i]).map(|i| s.dt(i)).sum();
+    let mut whole = Whole {
+        analysed_s,
+        ..Whole::default()
+    };
+    if let (Some(hr), Some(speed)) = (s.hr, s.speed) {
+        if analysed_s >= MIN_DECOUPLING_S {
+            whole.decoupling_raw = decoupling_pct(speed, hr, s.t, &usable);
+            whole.decoupling = match s.adj.as_deref() {
+                Some(adj) if s.hill_adjusted => decoupling_pct(adj, hr, s.t, &usable),
+                _ => whole.decoupling_raw,
+            };
+            // Steady pace: hill-adjusted speed within the band around its median.
+            if let Some(adj) = s.adj.as_deref() {
+                let mut vals: Vec<f64> = (0..n)
+                    .filter(|&i| usable[i])
+                    .filter_map(|i| adj.get(i).copied().flatten())
+                    .collect();
+                if !vals.is_empty() {
+                    vals.sort_by(f64::total_cmp);
+                    let med = vals[vals.len() / 2];
+                    let steady: Vec<bool> = (0..n)
+                        .map(|i| {
+                            usable[i]
+                                && adj
+                                    .get(i)
+                                    .copied()
+                                    .flatten()
+                                    .is_some_and(|v| (v - med).abs() <= STEADY_BAND * med)
+                        })
+                        .collect();
+                    let steady_s: f64 = (0..n).filter(|&i| steady[i]).map(|i| s.dt(i)).sum();
+                    if steady_s >= MIN_DECOUPLING_S {
+                        whole.drift = hr_drift_bpm_per_h(s.t, hr, &steady);
+                    }
+                }
+            }
+        }
+        // Elevation check for a negative decoupling: descent in each half of the analysed part.
+        if let Some(alt) = &session.altitude {
+            let times: Vec<usize> = (0..n).filter(|&i| usable[i]).collect();
+            if let (Some(&first), Some(&last)) = (times.first(), times.last()) {
+                let mid_t = 0.5 * (s.t[first] + s.t[last]);
+                let at = |i: usize| alt.get(i);
+                let mid = (first..=last).find(|&i| s.t[i] >= mid_t).unwrap_or(last);
+                let near = |i: usize| -> Option<f64> {
+                    (i..=last)
+                        .find_map(at)
+                        .or_else(|| (first..=i).rev().find_map(at))
+                };
+                if let (Some(x0), Some(xm), Some(x1)) = (near(first), near(mid), near(last)) {
+                    whole.extra_descent_second_half_m = Some((xm - x1) - (x0 - xm));
+                }
+            }
+        }
+    }
+    if let (Some(hr), Some(rest), Some(max)) = (&session.hr, profile.hr_rest, profile.hr_max) {
+        let mask: Vec<bool> = (0..n).map(|i| s.hr_ok(i)).collect();
+        whole.trimp = trimp_from_samples(&session.t, hr, Some(&mask), rest, max, profile.sex);
+        let (mut secs, mut top) = (0.0, 0.0f64);
+        for i in 0..n {
+            if let Some(h) = s.hr.and_then(|h| h.get(i).copied().flatten()) {
+                if s.hr_ok(i) && h > max {
+                    secs += s.dt(i).max(1.0);
+                    top = top.max(h);
+                }
+            }
+        }
+        if secs > 0.0 {
+            whole.above_max = Some((secs, top));
+        }
+    }
+    whole
+}
+
+fn zones(session: &Session, s: &Series<'_>, profile: &AthleteProfile) -> Zones {
+    let n = session.len();
+    let age = profile
+        .birth_year
+        .map(|y| f64::from(chrono::Datelike::year(&session.start) - y));
+    let mut out = Zones::default();
+    if let (Some(hr), Some(z)) = (s.hr, hr_zones(profile, age)) {
+        let usable: Vec<bool> = (0..n).map(|i| s.hr_ok(i)).collect();
+        let secs = time_in_zones(s.t, hr, &usable, &z.zones);
+        out.hr = z
+            .zones
+            .iter()
+            .zip(secs)
+            .map(|(z, seconds)| HrZoneOut {
+                name: z.name.clone(),
+                from_bpm: z.from,
+                to_bpm: z.to,
+                seconds,
+            })
+            .collect();
+    }
+    if let (Some(adj), Some(z)) = (
+        s.adj.as_deref(),
+        profile.threshold_speed_mps.and_then(pace_zones),
+    ) {
+        let secs = time_in_zones(s.t, adj, &s.moving, &z);
+        out.pace = z
+            .iter()
+            .zip(secs)
+            .map(|(z, seconds)| PaceZoneOut {
+                name: z.name.clone(),
+                from_s_per_km: pace_s_per_km(z.from),
+                to_s_per_km: pace_s_per_km(z.to),
+                seconds,
+            })
+            .collect();
+    }
+    out
+}
+
+/// Whether the decoupling is above the usual coaching line.
+pub fn decoupling_above_line(d: f64) -> bool {
+    d > DECOUPLING_COACHING_LINE_PCT
+}

@@ -8,9 +8,7 @@ use sim_support::{intervals, named, profile, recovery};
 use splitdesk::analysis::review::review;
 use splitdesk::demo::simulate::{simulate, Conditions, SimInput, SimOutput};
 use splitdesk::ingest::{clean, derive};
-use splitdesk::model::{
-    Amount, Interval, IntervalSet, IntervalSource, Plan, RecoveryMode, SegmentKind,
-};
+use splitdesk::model::{Amount, Interval, IntervalSet, IntervalSource, Plan, RecoveryMode};
 
 /// Run the simulator, clean its output like ingest does, and build the true interval set.
 fn run(plan: &Plan, conditions: Conditions, seed: u64) -> (SimOutput, IntervalSet) {
@@ -151,9 +149,11 @@ fn progression_and_climbing_troughs_show_in_the_trends() {
         named("10k"),
         recovery(Amount::Duration(90.0), RecoveryMode::Jog),
     );
-    let mut c = Conditions::default();
-    c.pacing = splitdesk::demo::simulate::Pacing::Progression;
-    c.fatigue = 1.0;
+    let c = Conditions {
+        pacing: splitdesk::demo::simulate::Pacing::Progression,
+        fatigue: 1.0,
+        ..Conditions::default()
+    };
     let (out, set) = run(&plan, c, 7);
     let r = review(&out.session, &set, Some(&plan), &profile());
     let pace = r.trend("avg_pace_s_per_km").unwrap();
@@ -239,5 +239,4 @@ fn missing_channels_give_nulls_and_findings() {
         .iter()
         .any(|f| f.text.starts_with("No heart rate")));
     assert!(r.findings.iter().any(|f| f.text.starts_with("No altitude")));
-    let _ = SegmentKind::Work;
 }

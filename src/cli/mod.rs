@@ -3,9 +3,11 @@
 //! Every command prints errors as one line `error: PATH: reason` on stderr and returns
 //! a non-zero exit code; nothing here panics on bad input.
 
+mod analyze;
 mod check;
 mod inspect;
 pub mod plan_cmd;
+mod review_text;
 mod summary;
 
 use std::path::PathBuf;
@@ -43,6 +45,24 @@ pub enum Command {
         #[arg(value_name = "ROSTER")]
         dir: Option<PathBuf>,
         /// Print JSON instead of text.
+        #[arg(long)]
+        json: bool,
+    },
+    /// The objective review of one session: interval table, recoveries, trends, findings.
+    Analyze {
+        /// A FIT, TCX or GPX file (inside a roster, its athlete and plan are found).
+        #[arg(value_name = "FILE")]
+        file: PathBuf,
+        /// The athlete's profile (`athlete.toml`), when the file is not in a roster.
+        #[arg(long, value_name = "ATHLETE_TOML")]
+        athlete: Option<PathBuf>,
+        /// A plan file to analyse the session against.
+        #[arg(long, value_name = "PLAN_TOML", conflicts_with = "plan_line")]
+        plan: Option<PathBuf>,
+        /// A one-line plan in shorthand.
+        #[arg(long, value_name = "TEXT")]
+        plan_line: Option<String>,
+        /// Print the JSON contract (`splitdesk.analysis/1`) instead of text.
         #[arg(long)]
         json: bool,
     },
@@ -85,6 +105,19 @@ pub fn run(cli: Cli) -> anyhow::Result<i32> {
                 .unwrap_or_else(|| crate::config::resolve_roster(cli.roster.as_deref(), &config));
             check::run(&root, json)
         }
+        Some(Command::Analyze {
+            file,
+            athlete,
+            plan,
+            plan_line,
+            json,
+        }) => analyze::run(
+            &file,
+            athlete.as_deref(),
+            plan.as_deref(),
+            plan_line.as_deref(),
+            json,
+        ),
         Some(Command::Plan(PlanCommand::Check { file, line, json })) => {
             plan_cmd::run_check(file.as_deref(), line.as_deref(), json)
         }

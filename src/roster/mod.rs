@@ -11,6 +11,7 @@
 //! Discovery only lists files; it never decodes activities. Anything unreadable becomes a
 //! `Problem` in the listing, never a failure of the whole roster.
 
+pub mod plans;
 mod profile;
 
 pub(crate) use profile::toml_error_line;
@@ -108,6 +109,16 @@ impl Roster {
         let athlete = self.athlete(aid)?;
         let act = athlete.activities.iter().find(|a| a.stem == stem)?;
         Some((athlete, act))
+    }
+
+    /// The athlete folder and activity entry of a file inside this roster, if it is one.
+    pub fn locate_file(&self, file: &Path) -> Option<(&Athlete, &Activity)> {
+        let canon = std::fs::canonicalize(file).ok()?;
+        self.activities().find(|(_, a)| {
+            std::fs::canonicalize(&a.path)
+                .map(|p| p == canon)
+                .unwrap_or(false)
+        })
     }
 
     /// Every activity of every athlete.

@@ -1,0 +1,146 @@
+//! `splitdesk analyze FILE [--athlete athlete.toml] [--plan PLAN.toml | --plan-line TEXT] [--json]`
+//!
+//! Inside a roster the athlete's profile and the day's plan are found automatically;
+//! outside one they come from the flags. Without a profile, metrics that need one are null.
+
+use std::path::{Path, PathBuf};
+
+use anyhow::Context;
+
+use crate::analysis::review::Review;
+use crate::ingest;
+use crate::model::{AthleteProfile, Plan, Units};
+use crate::roster::{plans, Roster};
+
+/// Where the profile and plan came from, for the human output.
+struct Context_ {
+    profile: AthleteProfile,
+    plan: Option<Plan>,
+    plan_source: Option<String>,
+}
+
+/// The roster a file sits in, when its path is `<roster>/<athlete>/activities/<file>`.
+fn roster_of(file: &Path) -> Option<PathBuf> {
+    let canon = std::fs::canonicalize(file).ok()?;
+    let activities = canon.parent()?;
+    if activities.file_name()? != "activities" {
+        return None;
+    }
+    let athlete = activities.parent()?;
+    athlete
+        .join("athlete.toml")
+        .is_file()
+        .then(|| athlete.parent().map(Path::to_path_buf))
+        .flatten()
+}
+
+fn load_profile(path: &Path) -> anyhow::Result<AthleteProfile> {
+    let text = std::fs::read_to_string(path).with_context(|| path.display().to_string())?;
+    let id = path
+        .parent()
+        .and_then(|p| p.file_name())
+        .map(|n| n.to_string_lossy().into_owned())
+        .unwrap_or_else(|| "athlete".to_string());
+    crate::roster::parse_profile(&text, &id, Units::Km)
+        .map_err(|e| anyhow::anyhow!("{}: {e}", path.display()))
+}
+
+fn context(
+    file: &Path,
+    session: &crate::model::Session,
+    athlete: Option<&Path>,
+    plan_file: Option<&Path>,
+    plan_line: Option<&str>,
+) -> anyhow::Result<Context_> {
+    let in_roster = roster_of(file).and_then(|root| Roster::open(&root).ok());
+    let located = in_roster.as_ref().and_then(|r| r.locate_file(file));
+    let profile = match (athlete, located) {
+        (Some(p), _) => load_profile(p)?,
+        (None, Some((a, _))) => a.profile.clone(),
+        (None, None) => AthleteProfile::bare("athlete"),
+    };
+    let (plan, plan_source) = match (plan_file, plan_line, located) {
+        (Some(p), _, _) => (
+            Some(crate::plan::load(p).map_err(|e| anyhow::anyhow!("{e}"))?),
+            Some(p.display().to_string()),
+        ),
+        (None, Some(line), _) => {
+            let steps = crate::plan::parse_line(line)
+                .map_err(|e| anyhow::anyhow!("--plan-line: {e}"))?;
+            (
+                Some(Plan {
+                    title: "plan from --plan-line".into(),
+                    purpose: String::new(),
+                    date: None,
+                    steps,
+                }),
+                Some("--plan-line".into()),
+            )
+        }
+        (None, None, Some((a, _))) => {
+            match plans::plan_for_session(a, session.start, session.duration_s())
+                .map_err(|e| anyhow::anyhow!("{e}"))?
+            {
+                Some((path, plan)) => (Some(plan), Some(path.display().to_string())),
+                None => (None, None),
+            }
+        }
+        (None, None, None) => (None, None),
+    };
+    Ok(Context_ {
+        profile,
+        plan,
+        plan_source,
+    })
+}
+
+/// Analyse one file; exit 2 with one line when it cannot be read.
+pub fn run(
+    file: &Path,
+    athlete: Option<&Path>,
+    plan_file: Option<&Path>,
+    plan_line: Option<&str>,
+    json: bool,
+) -> anyhow::Result<i32> {
+    // The profile is needed for the HR flags; read it first when given explicitly.
+    let explicit = match athlete {
+        Some(p) => Some(load_profile(p)?),
+        None => None,
+    };
+    let session = match ingest::ingest_file(file, explicit.as_ref()) {
+        Ok(s) => s,
+        Err(e) => {
+            eprintln!("error: {e}");
+            return Ok(2);
+        }
+    };
+    let ctx = context(file, &session, athlete, plan_file, plan_line)?;
+    // Re-flag with the roster profile (HR above its maximum) when it was found there.
+    let session = if explicit.is_none() && ctx.profile.hr_max.is_some() {
+        let mut s = session;
+        s.flags = ingest::clean::flag(&s, Some(&ctx.profile));
+        s
+    } else {
+        session
+    };
+    let mut review = crate::analysis::analyze(&session, ctx.plan.as_ref(), &ctx.profile);
+    review.file = file.display().to_string();
+    if json {
+        println!("{}", serde_json::to_string_pretty(&review)?);
+    } else {
+        print!("{}", super::review_text::render(&review, &ctx.profile, ctx.plan_source.as_deref()));
+    }
+    Ok(0)
+}
+
+/// For tests and other front ends: the review of a file with an explicit context.
+pub fn review_file(
+    file: &Path,
+    profile: &AthleteProfile,
+    plan: Option<&Plan>,
+) -> Result<Review, ingest::IngestError> {
+    let session = ingest::ingest_file(file, Some(profile))?;
+    let mut r = crate::analysis::analyze(&session, plan, profile);
+    r.file = file.display().to_string();
+    Ok(r)
+}

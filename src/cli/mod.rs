@@ -56,7 +56,11 @@ pub enum PlanCommand {
     /// Print the expanded interval sequence of a plan file or a shorthand line, or the error.
     Check {
         /// A plan file (`<athlete>/plans/<date>-<slug>.toml`).
-        #[arg(value_name = "FILE", required_unless_present = "line", conflicts_with = "line")]
+        #[arg(
+            value_name = "FILE",
+            required_unless_present = "line",
+            conflicts_with = "line"
+        )]
         file: Option<PathBuf>,
         /// A one-line plan in shorthand, e.g. "12:00 easy; 5 x 3:00 @ half / 2:00 jog; 8:00 easy".
         #[arg(long, value_name = "TEXT")]

@@ -255,7 +255,12 @@ impl Journal {
             Ok(_) => {
                 identify(&path)?;
             }
-            Err(e) if e.kind() == std::io::ErrorKind::NotFound => {}
+            // Missing, or a parent is not a folder: the folder check below explains.
+            Err(e)
+                if matches!(
+                    e.kind(),
+                    std::io::ErrorKind::NotFound | std::io::ErrorKind::NotADirectory
+                ) => {}
             Err(source) => return Err(JournalError::Io { path, source }),
         }
         check_writable_dir(&path)?;

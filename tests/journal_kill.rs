@@ -76,7 +76,10 @@ fn verify_unit(j: &Journal, i: u64) {
         .unwrap_or_else(|e| panic!("{sid} reported committed but missing: {e}"));
     assert_eq!(st.scores.len(), 1, "{sid}");
     assert_eq!(st.scores[0].blind, score_of(i), "{sid}");
-    assert_eq!(st.verdict.as_ref().map(|v| v.blind), Some(PurposeVerdict::Met));
+    assert_eq!(
+        st.verdict.as_ref().map(|v| v.blind),
+        Some(PurposeVerdict::Met)
+    );
     if i % 3 == 0 {
         assert_eq!(st.scores[0].current, revised_of(i), "{sid}");
         let revs = j.revisions(&sid).unwrap();

@@ -57,7 +57,7 @@ fn write_unit(j: &mut Journal, i: u64) {
     j.set_score(&sid, 1, score_of(i), t(i as i64)).unwrap();
     j.set_verdict(&sid, PurposeVerdict::Met, t(i as i64))
         .unwrap();
-    if i % 3 == 0 {
+    if i.is_multiple_of(3) {
         j.reveal(&sid, t(i as i64)).unwrap();
         j.set_score(&sid, 1, revised_of(i), t(i as i64 + 1))
             .unwrap();
@@ -80,7 +80,7 @@ fn verify_unit(j: &Journal, i: u64) {
         st.verdict.as_ref().map(|v| v.blind),
         Some(PurposeVerdict::Met)
     );
-    if i % 3 == 0 {
+    if i.is_multiple_of(3) {
         assert_eq!(st.scores[0].current, revised_of(i), "{sid}");
         let revs = j.revisions(&sid).unwrap();
         assert_eq!(
@@ -149,7 +149,7 @@ fn kill_mid_write_keeps_every_commit() {
     let mut next_start = 0u64;
     let began = Instant::now();
 
-    for round in 0..50 {
+    for round in 0..50u32 {
         let mut child = Command::new(&exe)
             .args(["child_writer", "--exact", "--nocapture", "--test-threads=1"])
             .env(DB_ENV, &db)
@@ -176,7 +176,7 @@ fn kill_mid_write_keeps_every_commit() {
 
         // Every third round kill blindly (often during open or the first write); otherwise
         // wait for a few commits and kill somewhere in the next ones.
-        if round % 3 == 0 {
+        if round.is_multiple_of(3) {
             std::thread::sleep(Duration::from_micros(rng.below(40_000)));
         } else {
             let want = 1 + rng.below(6);

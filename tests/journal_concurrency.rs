@@ -8,7 +8,9 @@ use std::path::{Path, PathBuf};
 use std::process::{Command, Stdio};
 
 use chrono::{DateTime, TimeZone, Utc};
-use splitdesk::journal::{Journal, PurposeVerdict, RevisionChange, SessionRecord, SummaryCache};
+use splitdesk::journal::{
+    Journal, JournalError, PurposeVerdict, RevisionChange, SessionRecord, SummaryCache,
+};
 
 const DB_ENV: &str = "SPLITDESK_CONCURRENT_CHILD_DB";
 const WHO_ENV: &str = "SPLITDESK_CONCURRENT_CHILD_WHO";
@@ -146,4 +148,25 @@ fn two_processes() {
         );
     }
     verify(&path);
+}
+
+#[test]
+fn a_lock_held_too_long_is_reported_as_busy() {
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("j.sqlite");
+    prepare(&path);
+    let mut j = Journal::open(&path).unwrap();
+    j.set_busy_timeout(std::time::Duration::from_millis(100))
+        .unwrap();
+    let other = rusqlite::Connection::open(&path).unwrap();
+    other.execute_batch("BEGIN IMMEDIATE").unwrap();
+    let err = j.save_feedback(SESSION, "blocked", t(5)).unwrap_err();
+    assert!(matches!(err, JournalError::Busy { .. }), "{err}");
+    assert!(err.to_string().contains("busy"), "{err}");
+    other.execute_batch("ROLLBACK").unwrap();
+    j.save_feedback(SESSION, "now it works", t(6)).unwrap();
+    // Readers are never blocked by a writer in WAL mode.
+    other.execute_batch("BEGIN IMMEDIATE").unwrap();
+    assert_eq!(j.feedback(SESSION).unwrap().unwrap().body, "now it works");
+    other.execute_batch("ROLLBACK").unwrap();
 }

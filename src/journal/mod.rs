@@ -381,6 +381,12 @@ impl Journal {
         }
     }
 
+    /// Change how long a write waits for another connection's lock (default [`BUSY_TIMEOUT`])
+    /// before failing with [`JournalError::Busy`].
+    pub fn set_busy_timeout(&self, timeout: Duration) -> Result<()> {
+        self.conn.busy_timeout(timeout).sq(&self.path)
+    }
+
     /// The journal's file path (`:memory:` for an in-memory journal).
     pub fn path(&self) -> &Path {
         &self.path

@@ -9,6 +9,7 @@ pub mod config;
 pub mod demo;
 pub mod export;
 pub mod ingest;
+pub mod journal;
 pub mod model;
 pub mod plan;
 pub mod roster;

@@ -1,0 +1,215 @@
+//! The journal's error type. Every variant names the journal file it concerns.
+
+use std::fmt;
+use std::path::PathBuf;
+
+/// What still blocks the reveal of a session's notes under the blind protocol.
+#[derive(Debug, Clone, PartialEq, Eq, Default)]
+pub struct Missing {
+    /// Work-interval numbers (1-based) that have no score yet, ascending.
+    pub scores: Vec<u32>,
+    /// `true` when the purpose verdict is not set yet.
+    pub verdict: bool,
+}
+
+impl Missing {
+    /// `true` when nothing is missing: the blind grading is complete.
+    pub fn is_empty(&self) -> bool {
+        self.scores.is_empty() && !self.verdict
+    }
+}
+
+impl fmt::Display for Missing {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        let mut parts = Vec::new();
+        match self.scores.as_slice() {
+            [] => {}
+            [one] => parts.push(format!("score missing for work interval {one}")),
+            many => {
+                let list: Vec<String> = many.iter().map(u32::to_string).collect();
+                parts.push(format!(
+                    "scores missing for work intervals {}",
+                    list.join(", ")
+                ));
+            }
+        }
+        if self.verdict {
+            parts.push("purpose verdict not set".to_string());
+        }
+        if parts.is_empty() {
+            f.write_str("nothing missing")
+        } else {
+            f.write_str(&parts.join("; "))
+        }
+    }
+}
+
+/// Everything that can go wrong with the coach's journal.
+#[derive(Debug, thiserror::Error)]
+pub enum JournalError {
+    /// The file exists but is not a splitdesk journal. It was not changed.
+    #[error("{path}: not a splitdesk journal ({reason}); the file was left untouched")]
+    NotAJournal { path: PathBuf, reason: String },
+
+    /// The file looks like a splitdesk journal but SQLite finds it damaged.
+    #[error("{path}: the journal is damaged ({detail}); restore a backup")]
+    Corrupt { path: PathBuf, detail: String },
+
+    /// The journal was written by a newer splitdesk. It was not changed.
+    #[error(
+        "{path}: the journal has schema version {found}, this splitdesk knows up to {supported}; \
+         update splitdesk (the file was left untouched)"
+    )]
+    TooNew {
+        path: PathBuf,
+        found: u32,
+        supported: u32,
+    },
+
+    /// A read-only open found a journal that first needs a schema upgrade.
+    #[error(
+        "{path}: the journal has schema version {found} and needs upgrading to {supported}; \
+         open it once read-write"
+    )]
+    NeedsUpgrade {
+        path: PathBuf,
+        found: u32,
+        supported: u32,
+    },
+
+    /// The journal cannot be written at its location.
+    #[error("{path}: the journal cannot be written there ({detail})")]
+    ReadOnlyLocation { path: PathBuf, detail: String },
+
+    /// Another program held the journal locked for longer than the busy timeout.
+    #[error("{path}: the journal is busy (locked by another splitdesk?); try again")]
+    Busy { path: PathBuf },
+
+    /// The journal would sit inside the roster folder, which may be shared with athletes.
+    #[error(
+        "{path}: the journal must not live inside the roster folder {roster} \
+         (it may be shared with athletes); choose another --journal path"
+    )]
+    InsideRoster { path: PathBuf, roster: PathBuf },
+
+    /// The backup destination already exists; backups never overwrite a file.
+    #[error("{path}: backup destination already exists; choose a new file name")]
+    DestinationExists { path: PathBuf },
+
+    /// The blind protocol: the notes stay hidden until the blind grading is complete.
+    #[error("{path}: {session_id}: notes stay hidden until grading is complete: {missing}")]
+    NotYetGraded {
+        path: PathBuf,
+        session_id: String,
+        missing: Missing,
+    },
+
+    /// Feedback belongs after the reveal.
+    #[error("{path}: {session_id}: the notes have not been revealed yet")]
+    NotRevealed { path: PathBuf, session_id: String },
+
+    /// The session id is not in the journal (call `upsert_session` first).
+    #[error("{path}: unknown session {session_id}")]
+    UnknownSession { path: PathBuf, session_id: String },
+
+    /// Grading needs the number of work intervals, which comes with the analysis summary.
+    #[error("{path}: {session_id}: not analysed yet (number of work intervals unknown)")]
+    NotAnalysed { path: PathBuf, session_id: String },
+
+    /// A score for a work interval the session does not have.
+    #[error(
+        "{path}: {session_id}: no work interval {interval} (the session has {work_intervals})"
+    )]
+    NoSuchInterval {
+        path: PathBuf,
+        session_id: String,
+        interval: u32,
+        work_intervals: u32,
+    },
+
+    /// A score outside 1..=5.
+    #[error("{path}: score {score} is outside 1-5")]
+    InvalidScore { path: PathBuf, score: u8 },
+
+    /// A ruler whose window is empty or not finite.
+    #[error("{path}: ruler from {from_s} s to {to_s} s is not a valid window")]
+    InvalidRuler {
+        path: PathBuf,
+        from_s: f64,
+        to_s: f64,
+    },
+
+    /// A stored value the journal cannot interpret (hand-edited or damaged row).
+    #[error("{path}: unexpected stored value: {detail}")]
+    BadValue { path: PathBuf, detail: String },
+
+    /// A file-system operation failed.
+    #[error("{path}: {source}")]
+    Io {
+        path: PathBuf,
+        #[source]
+        source: std::io::Error,
+    },
+
+    /// Any other SQLite failure.
+    #[error("{path}: {source}")]
+    Sqlite {
+        path: PathBuf,
+        #[source]
+        source: rusqlite::Error,
+    },
+}
+
+impl JournalError {
+    /// Classify a SQLite error for the journal at `path`.
+    pub(crate) fn sql(path: &std::path::Path, source: rusqlite::Error) -> JournalError {
+        use rusqlite::ErrorCode;
+        let path = path.to_path_buf();
+        match source.sqlite_error_code() {
+            Some(ErrorCode::DatabaseBusy) | Some(ErrorCode::DatabaseLocked) => {
+                JournalError::Busy { path }
+            }
+            Some(ErrorCode::NotADatabase) | Some(ErrorCode::DatabaseCorrupt) => {
+                JournalError::Corrupt {
+                    path,
+                    detail: source.to_string(),
+                }
+            }
+            Some(ErrorCode::ReadOnly) | Some(ErrorCode::CannotOpen) => {
+                JournalError::ReadOnlyLocation {
+                    path,
+                    detail: source.to_string(),
+                }
+            }
+            _ => JournalError::Sqlite { path, source },
+        }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn missing_reads_plainly() {
+        let m = Missing {
+            scores: vec![3, 4],
+            verdict: true,
+        };
+        assert_eq!(
+            m.to_string(),
+            "scores missing for work intervals 3, 4; purpose verdict not set"
+        );
+        let m = Missing {
+            scores: vec![2],
+            verdict: false,
+        };
+        assert_eq!(m.to_string(), "score missing for work interval 2");
+        let m = Missing {
+            scores: vec![],
+            verdict: true,
+        };
+        assert_eq!(m.to_string(), "purpose verdict not set");
+        assert!(Missing::default().is_empty());
+    }
+}

@@ -1,0 +1,1509 @@
+//! The coach's journal: grades, revisions, feedback, rulers and the analysis cache, in one
+//! SQLite file per roster, outside the roster folder. The only module that speaks SQL.
+//!
+//! # Safety of the coach's data
+//!
+//! - WAL mode, `synchronous = FULL`, foreign keys on, 5 s busy timeout. Every write method is
+//!   one `BEGIN IMMEDIATE` transaction, so a crash or kill loses at most the write in flight.
+//! - A file is identified before anything is written to it: it must carry the SQLite header
+//!   and our `PRAGMA application_id` (or be a brand-new, empty database). Anything else is
+//!   refused and left byte-for-byte untouched, as is a journal from a newer splitdesk.
+//!   Identification uses a read-only connection.
+//! - Schema changes are numbered migration steps ([`schema::MIGRATIONS`]), each applied in its
+//!   own transaction with the `user_version` bump.
+//! - Reviews are never deleted; [`Journal::backup_to`] copies the journal with SQLite's
+//!   online backup API.
+//!
+//! # The blind protocol
+//!
+//! The athlete's note can only be read through [`read_note`], which needs a [`RevealPermit`],
+//! which only [`Journal::reveal`] makes, and only once every work interval has a score and the
+//! purpose verdict is set (a session with no work intervals needs the verdict only).
+//! Before the reveal a new score or verdict simply replaces the blind value: the coach has not
+//! seen the notes, so it is still a blind judgement. After the reveal a change is stored as a
+//! [`Revision`] beside the blind value, which is never overwritten. Feedback can be saved and
+//! sent only after the reveal.
+//!
+//! # Reviews follow the content
+//!
+//! A review is created for the content hash of the session's file at the time of the first
+//! grade or ruler. A session id seen for the first time links to the latest review of its
+//! content hash, so renaming or moving a file keeps its review. When a known session's
+//! content changes, it keeps its review, which is then reported as `content_changed`;
+//! [`Journal::restart_review`] starts afresh for the new content, keeping the old review.
+//!
+//! Times are passed in (`now`) so that callers and tests control the clock.
+
+mod error;
+mod location;
+mod note;
+pub mod schema;
+mod types;
+
+use std::collections::{BTreeMap, BTreeSet};
+use std::fs;
+use std::io::Read;
+use std::path::{Path, PathBuf};
+use std::time::Duration;
+
+use chrono::{DateTime, SecondsFormat, Utc};
+use rusqlite::{
+    params, Connection, OpenFlags, OptionalExtension, Transaction, TransactionBehavior,
+};
+
+pub use error::{JournalError, Missing};
+pub use location::{check_outside_roster, default_path, default_path_in, DATA_DIR_ENV};
+pub use note::{read_note, RevealPermit};
+pub use types::{
+    BiasInput, CheckReport, FeedbackEvent, FeedbackEventKind, FeedbackVersion, PurposeVerdict,
+    QueueEntry, ReviewStage, ReviewState, Revision, RevisionChange, Ruler, ScoreCell,
+    SessionChange, SessionRecord, SummaryCache, VerdictCell,
+};
+
+use schema::{current_version, APPLICATION_ID, MIGRATIONS};
+
+/// How long a write waits for another connection's lock before giving up with `Busy`.
+pub const BUSY_TIMEOUT: Duration = Duration::from_secs(5);
+
+/// Result of journal operations.
+pub type Result<T, E = JournalError> = std::result::Result<T, E>;
+
+/// An open journal. Reads take `&self`; every write takes `&mut self` and is one transaction.
+#[derive(Debug)]
+pub struct Journal {
+    conn: Connection,
+    path: PathBuf,
+}
+
+/// Map rusqlite results into journal errors carrying the path.
+trait SqlExt<T> {
+    fn sq(self, path: &Path) -> Result<T>;
+}
+
+impl<T> SqlExt<T> for rusqlite::Result<T> {
+    fn sq(self, path: &Path) -> Result<T> {
+        self.map_err(|e| JournalError::sql(path, e))
+    }
+}
+
+fn ts(t: DateTime<Utc>) -> String {
+    t.to_rfc3339_opts(SecondsFormat::Millis, true)
+}
+
+fn parse_ts(path: &Path, s: &str) -> Result<DateTime<Utc>> {
+    DateTime::parse_from_rfc3339(s)
+        .map(|d| d.with_timezone(&Utc))
+        .map_err(|e| JournalError::BadValue {
+            path: path.to_path_buf(),
+            detail: format!("time {s:?}: {e}"),
+        })
+}
+
+fn parse_verdict(path: &Path, s: &str) -> Result<PurposeVerdict> {
+    PurposeVerdict::parse(s).ok_or_else(|| JournalError::BadValue {
+        path: path.to_path_buf(),
+        detail: format!("purpose verdict {s:?}"),
+    })
+}
+
+fn parse_score(path: &Path, s: &str) -> Result<u8> {
+    s.parse::<u8>()
+        .ok()
+        .filter(|v| (1..=5).contains(v))
+        .ok_or_else(|| JournalError::BadValue {
+            path: path.to_path_buf(),
+            detail: format!("score {s:?}"),
+        })
+}
+
+/// What an existing file turned out to be.
+enum Identity {
+    /// A splitdesk journal at this schema version.
+    Ours(u32),
+    /// An empty SQLite database (e.g. a zero-byte file): nothing to lose, adopt it.
+    Empty,
+}
+
+const SQLITE_MAGIC: &[u8; 16] = b"SQLite format 3\0";
+
+/// Check the first bytes without SQLite: a non-empty file must start with the SQLite header.
+fn check_header(path: &Path) -> Result<()> {
+    let io = |source| JournalError::Io {
+        path: path.to_path_buf(),
+        source,
+    };
+    let mut f = fs::File::open(path).map_err(io)?;
+    let mut head = Vec::with_capacity(16);
+    f.by_ref().take(16).read_to_end(&mut head).map_err(io)?;
+    if head.is_empty() || head.as_slice() == SQLITE_MAGIC {
+        Ok(())
+    } else {
+        Err(JournalError::NotAJournal {
+            path: path.to_path_buf(),
+            reason: "not an SQLite database".into(),
+        })
+    }
+}
+
+/// Identify an existing file through a read-only connection, which never changes it.
+fn identify(path: &Path) -> Result<Identity> {
+    check_header(path)?;
+    let conn = Connection::open_with_flags(
+        path,
+        OpenFlags::SQLITE_OPEN_READ_ONLY | OpenFlags::SQLITE_OPEN_NO_MUTEX,
+    )
+    .sq(path)?;
+    conn.busy_timeout(BUSY_TIMEOUT).sq(path)?;
+    let identity = identify_conn(&conn, path)?;
+    if let Identity::Ours(_) = identity {
+        quick_check(&conn, path)?;
+    }
+    Ok(identity)
+}
+
+fn identify_conn(conn: &Connection, path: &Path) -> Result<Identity> {
+    let app_id: i32 = conn
+        .pragma_query_value(None, "application_id", |r| r.get(0))
+        .sq(path)?;
+    let version: i64 = conn
+        .pragma_query_value(None, "user_version", |r| r.get(0))
+        .sq(path)?;
+    let objects: i64 = conn
+        .query_row("SELECT count(*) FROM sqlite_schema", [], |r| r.get(0))
+        .sq(path)?;
+    if app_id == APPLICATION_ID {
+        let supported = current_version();
+        let found = u32::try_from(version).unwrap_or(u32::MAX);
+        if found > supported {
+            return Err(JournalError::TooNew {
+                path: path.to_path_buf(),
+                found,
+                supported,
+            });
+        }
+        return Ok(Identity::Ours(found));
+    }
+    if app_id == 0 && version == 0 && objects == 0 {
+        return Ok(Identity::Empty);
+    }
+    let reason = if app_id != 0 {
+        format!("an SQLite database of another program (application id {app_id:#x})")
+    } else {
+        format!(
+            "an SQLite database of another program ({objects} schema objects, no splitdesk marker)"
+        )
+    };
+    Err(JournalError::NotAJournal {
+        path: path.to_path_buf(),
+        reason,
+    })
+}
+
+fn quick_check(conn: &Connection, path: &Path) -> Result<()> {
+    let mut stmt = conn.prepare("PRAGMA quick_check").sq(path)?;
+    let rows: Vec<String> = stmt
+        .query_map([], |r| r.get::<_, String>(0))
+        .sq(path)?
+        .collect::<rusqlite::Result<_>>()
+        .sq(path)?;
+    if rows.len() == 1 && rows[0] == "ok" {
+        Ok(())
+    } else {
+        Err(JournalError::Corrupt {
+            path: path.to_path_buf(),
+            detail: rows.join("; "),
+        })
+    }
+}
+
+/// Make sure the folder exists and a file can be created in it.
+fn check_writable_dir(journal: &Path) -> Result<()> {
+    let dir = match journal.parent() {
+        Some(p) if !p.as_os_str().is_empty() => p.to_path_buf(),
+        _ => PathBuf::from("."),
+    };
+    let ro = |detail: String| JournalError::ReadOnlyLocation {
+        path: journal.to_path_buf(),
+        detail,
+    };
+    fs::create_dir_all(&dir).map_err(|e| ro(format!("cannot create {}: {e}", dir.display())))?;
+    let probe = dir.join(format!(".splitdesk-probe-{}", std::process::id()));
+    fs::OpenOptions::new()
+        .write(true)
+        .create(true)
+        .truncate(true)
+        .open(&probe)
+        .map_err(|e| ro(format!("cannot write in {}: {e}", dir.display())))?;
+    let _ = fs::remove_file(&probe);
+    Ok(())
+}
+
+impl Journal {
+    /// Open the journal at `path` for reading and writing, creating it (and its folder) if
+    /// missing and upgrading its schema if older. Refuses, without changing the file, anything
+    /// that is not a splitdesk journal or that comes from a newer splitdesk; refuses a location
+    /// where it could not write.
+    pub fn open(path: &Path) -> Result<Journal> {
+        let path = path.to_path_buf();
+        match fs::metadata(&path) {
+            Ok(meta) if meta.is_dir() => {
+                return Err(JournalError::NotAJournal {
+                    path,
+                    reason: "a folder".into(),
+                })
+            }
+            Ok(_) => {
+                identify(&path)?;
+            }
+            // Missing, or a parent is not a folder: the folder check below explains.
+            Err(e)
+                if matches!(
+                    e.kind(),
+                    std::io::ErrorKind::NotFound | std::io::ErrorKind::NotADirectory
+                ) => {}
+            Err(source) => return Err(JournalError::Io { path, source }),
+        }
+        check_writable_dir(&path)?;
+        let conn = Connection::open_with_flags(
+            &path,
+            OpenFlags::SQLITE_OPEN_READ_WRITE
+                | OpenFlags::SQLITE_OPEN_CREATE
+                | OpenFlags::SQLITE_OPEN_NO_MUTEX,
+        )
+        .sq(&path)?;
+        conn.busy_timeout(BUSY_TIMEOUT).sq(&path)?;
+        if conn.is_readonly(rusqlite::MAIN_DB).sq(&path)? {
+            return Err(JournalError::ReadOnlyLocation {
+                path,
+                detail: "the file is read-only".into(),
+            });
+        }
+        // Identify again on this connection: the file may have been created meanwhile.
+        identify_conn(&conn, &path)?;
+        let mode: String = conn
+            .pragma_update_and_check(None, "journal_mode", "WAL", |r| r.get(0))
+            .sq(&path)?;
+        if !mode.eq_ignore_ascii_case("wal") {
+            return Err(JournalError::ReadOnlyLocation {
+                path,
+                detail: format!("could not switch to WAL mode (got {mode})"),
+            });
+        }
+        let mut journal = Journal { conn, path };
+        journal.configure()?;
+        journal.migrate()?;
+        Ok(journal)
+    }
+
+    /// [`Journal::open`] after checking that `path` is not inside `roster_root`.
+    pub fn open_for_roster(path: &Path, roster_root: &Path) -> Result<Journal> {
+        check_outside_roster(path, roster_root)?;
+        Journal::open(path)
+    }
+
+    /// Open an existing journal read-only. Write methods then fail with `ReadOnlyLocation`.
+    pub fn open_read_only(path: &Path) -> Result<Journal> {
+        let path = path.to_path_buf();
+        if let Err(source) = fs::metadata(&path) {
+            return Err(JournalError::Io { path, source });
+        }
+        check_header(&path)?;
+        let conn = Connection::open_with_flags(
+            &path,
+            OpenFlags::SQLITE_OPEN_READ_ONLY | OpenFlags::SQLITE_OPEN_NO_MUTEX,
+        )
+        .sq(&path)?;
+        conn.busy_timeout(BUSY_TIMEOUT).sq(&path)?;
+        match identify_conn(&conn, &path)? {
+            Identity::Ours(v) if v == current_version() => {}
+            Identity::Ours(found) => {
+                return Err(JournalError::NeedsUpgrade {
+                    path,
+                    found,
+                    supported: current_version(),
+                })
+            }
+            Identity::Empty => {
+                return Err(JournalError::NotAJournal {
+                    path,
+                    reason: "an empty database".into(),
+                })
+            }
+        }
+        quick_check(&conn, &path)?;
+        let journal = Journal { conn, path };
+        journal.configure()?;
+        Ok(journal)
+    }
+
+    /// A fresh journal in memory (tests, throw-away runs).
+    pub fn open_in_memory() -> Result<Journal> {
+        let path = PathBuf::from(":memory:");
+        let conn = Connection::open_in_memory().sq(&path)?;
+        let mut journal = Journal { conn, path };
+        journal.configure()?;
+        journal.migrate()?;
+        Ok(journal)
+    }
+
+    fn configure(&self) -> Result<()> {
+        self.conn
+            .pragma_update(None, "foreign_keys", true)
+            .sq(&self.path)?;
+        self.conn
+            .pragma_update(None, "synchronous", "FULL")
+            .sq(&self.path)?;
+        Ok(())
+    }
+
+    fn migrate(&mut self) -> Result<()> {
+        let path = self.path.clone();
+        loop {
+            let tx = self
+                .conn
+                .transaction_with_behavior(TransactionBehavior::Immediate)
+                .sq(&path)?;
+            let version = match identify_conn(&tx, &path)? {
+                Identity::Ours(v) => v,
+                Identity::Empty => 0,
+            };
+            if version as usize >= MIGRATIONS.len() {
+                return Ok(());
+            }
+            if version == 0 {
+                tx.pragma_update(None, "application_id", APPLICATION_ID)
+                    .sq(&path)?;
+            }
+            tx.execute_batch(MIGRATIONS[version as usize]).sq(&path)?;
+            tx.pragma_update(None, "user_version", version + 1)
+                .sq(&path)?;
+            tx.commit().sq(&path)?;
+        }
+    }
+
+    /// Change how long a write waits for another connection's lock (default [`BUSY_TIMEOUT`])
+    /// before failing with [`JournalError::Busy`].
+    pub fn set_busy_timeout(&self, timeout: Duration) -> Result<()> {
+        self.conn.busy_timeout(timeout).sq(&self.path)
+    }
+
+    /// The journal's file path (`:memory:` for an in-memory journal).
+    pub fn path(&self) -> &Path {
+        &self.path
+    }
+
+    /// Run `f` in one `BEGIN IMMEDIATE` transaction; commit on success, roll back on error.
+    fn write<T>(&mut self, f: impl FnOnce(&Transaction<'_>, &Path) -> Result<T>) -> Result<T> {
+        let path = self.path.clone();
+        let tx = self
+            .conn
+            .transaction_with_behavior(TransactionBehavior::Immediate)
+            .sq(&path)?;
+        let out = f(&tx, &path)?;
+        tx.commit().sq(&path)?;
+        Ok(out)
+    }
+
+    /// Run `f` in a read transaction, for a consistent view across several queries.
+    fn read<T>(&self, f: impl FnOnce(&Connection, &Path) -> Result<T>) -> Result<T> {
+        let tx = self.conn.unchecked_transaction().sq(&self.path)?;
+        let out = f(&tx, &self.path)?;
+        drop(tx);
+        Ok(out)
+    }
+
+    // ----- sessions and the analysis cache -----
+
+    /// Record a session seen in the roster (insert or refresh). See [`SessionChange`].
+    pub fn upsert_session(
+        &mut self,
+        record: &SessionRecord,
+        now: DateTime<Utc>,
+    ) -> Result<SessionChange> {
+        self.write(|tx, path| {
+            let existing = session_row(tx, path, &record.session_id)?;
+            let (mut change, review_id) = match &existing {
+                None => match latest_review_for_hash(tx, path, &record.content_hash)? {
+                    Some(id) => (SessionChange::FoundReview, Some(id)),
+                    None => (SessionChange::New, None),
+                },
+                Some(row) if row.content_hash == record.content_hash => {
+                    (SessionChange::Same, row.review_id)
+                }
+                Some(row) => (SessionChange::ContentChanged, row.review_id),
+            };
+            let review_id = match review_id {
+                Some(id) => Some(id),
+                None => {
+                    let found = latest_review_for_hash(tx, path, &record.content_hash)?;
+                    if found.is_some() && change == SessionChange::New {
+                        change = SessionChange::FoundReview;
+                    }
+                    found
+                }
+            };
+            // The summary: the one given, else the one kept (same content), else one cached for
+            // the same content under another session id (a renamed file).
+            let summary = match &record.summary {
+                Some(s) => Some((s.json.clone(), s.analysis_version, s.work_intervals)),
+                None => match &existing {
+                    Some(row) if row.content_hash == record.content_hash => row.summary.clone(),
+                    _ => summary_for_hash(tx, path, &record.content_hash)?,
+                },
+            };
+            let (json, version, intervals) = match summary {
+                Some((j, v, n)) => (Some(j), Some(v), Some(n)),
+                None => (None, None, None),
+            };
+            let summary_hash = json.as_ref().map(|_| record.content_hash.as_str());
+            tx.execute(
+                "INSERT INTO session (session_id, athlete_id, file_path, content_hash, start_time,
+                     seen_at, review_id, summary_json, summary_version, summary_hash, work_intervals)
+                 VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7, ?8, ?9, ?10, ?11)
+                 ON CONFLICT (session_id) DO UPDATE SET
+                     athlete_id = excluded.athlete_id, file_path = excluded.file_path,
+                     content_hash = excluded.content_hash, start_time = excluded.start_time,
+                     seen_at = excluded.seen_at, review_id = excluded.review_id,
+                     summary_json = excluded.summary_json,
+                     summary_version = excluded.summary_version,
+                     summary_hash = excluded.summary_hash,
+                     work_intervals = excluded.work_intervals",
+                params![
+                    record.session_id,
+                    record.athlete_id,
+                    record.file_path.to_string_lossy(),
+                    record.content_hash,
+                    ts(record.start),
+                    ts(now),
+                    review_id,
+                    json,
+                    version,
+                    summary_hash,
+                    intervals,
+                ],
+            )
+            .sq(path)?;
+            Ok(change)
+        })
+    }
+
+    /// Store an analysis summary computed for `content_hash`. Ignored (returns `false`) when
+    /// the session's content has changed since: a stale result never replaces a fresh one.
+    pub fn store_summary(
+        &mut self,
+        session_id: &str,
+        content_hash: &str,
+        summary: &SummaryCache,
+    ) -> Result<bool> {
+        self.write(|tx, path| {
+            let row = require_session(tx, path, session_id)?;
+            if row.content_hash != content_hash {
+                return Ok(false);
+            }
+            tx.execute(
+                "UPDATE session SET summary_json = ?2, summary_version = ?3, summary_hash = ?4,
+                     work_intervals = ?5 WHERE session_id = ?1",
+                params![
+                    session_id,
+                    summary.json,
+                    summary.analysis_version,
+                    content_hash,
+                    summary.work_intervals
+                ],
+            )
+            .sq(path)?;
+            Ok(true)
+        })
+    }
+
+    /// The cached summary JSON when it was made by `analysis_version` for the session's current
+    /// content; `None` otherwise (or for an unknown session).
+    pub fn cached_summary(
+        &self,
+        session_id: &str,
+        analysis_version: u32,
+    ) -> Result<Option<String>> {
+        self.conn
+            .query_row(
+                "SELECT summary_json FROM session
+                 WHERE session_id = ?1 AND summary_version = ?2 AND summary_hash = content_hash",
+                params![session_id, analysis_version],
+                |r| r.get::<_, Option<String>>(0),
+            )
+            .optional()
+            .map(Option::flatten)
+            .sq(&self.path)
+    }
+
+    /// Forget session rows whose ids are not in `present` (files gone from the roster).
+    /// Their reviews stay in the journal and reattach if the same content reappears.
+    pub fn retain_sessions(&mut self, present: &[&str]) -> Result<usize> {
+        let keep: BTreeSet<&str> = present.iter().copied().collect();
+        self.write(|tx, path| {
+            let ids: Vec<String> = {
+                let mut stmt = tx.prepare("SELECT session_id FROM session").sq(path)?;
+                let rows = stmt.query_map([], |r| r.get(0)).sq(path)?;
+                rows.collect::<rusqlite::Result<_>>().sq(path)?
+            };
+            let mut removed = 0;
+            for id in ids.iter().filter(|id| !keep.contains(id.as_str())) {
+                removed += tx
+                    .execute("DELETE FROM session WHERE session_id = ?1", [id])
+                    .sq(path)?;
+            }
+            Ok(removed)
+        })
+    }
+
+    /// After the content changed, start a fresh review for the new content (the old review is
+    /// kept in the journal). Returns `false` when the review already matches the content.
+    pub fn restart_review(&mut self, session_id: &str) -> Result<bool> {
+        self.write(|tx, path| {
+            let row = require_session(tx, path, session_id)?;
+            let Some(rid) = row.review_id else {
+                return Ok(false);
+            };
+            let review = review_row(tx, path, rid)?;
+            if review.content_hash == row.content_hash {
+                return Ok(false);
+            }
+            let other = latest_review_for_hash(tx, path, &row.content_hash)?;
+            tx.execute(
+                "UPDATE session SET review_id = ?2 WHERE session_id = ?1",
+                params![session_id, other],
+            )
+            .sq(path)?;
+            Ok(true)
+        })
+    }
+
+    // ----- grading -----
+
+    /// Give (before the reveal) or revise (after it) the score of work interval `interval`
+    /// (1-based). After the reveal an unchanged value records nothing.
+    pub fn set_score(
+        &mut self,
+        session_id: &str,
+        interval: u32,
+        score: u8,
+        now: DateTime<Utc>,
+    ) -> Result<()> {
+        if !(1..=5).contains(&score) {
+            return Err(JournalError::InvalidScore {
+                path: self.path.clone(),
+                score,
+            });
+        }
+        self.write(|tx, path| {
+            let row = require_session(tx, path, session_id)?;
+            let rid = ensure_review(tx, path, &row, now)?;
+            let review = review_row(tx, path, rid)?;
+            let n = if review.revealed_at.is_some() {
+                review.work_intervals.unwrap_or(0)
+            } else {
+                row.work_intervals
+                    .ok_or_else(|| JournalError::NotAnalysed {
+                        path: path.to_path_buf(),
+                        session_id: session_id.to_string(),
+                    })?
+            };
+            if interval == 0 || interval > n {
+                return Err(JournalError::NoSuchInterval {
+                    path: path.to_path_buf(),
+                    session_id: session_id.to_string(),
+                    interval,
+                    work_intervals: n,
+                });
+            }
+            if review.revealed_at.is_none() {
+                tx.execute(
+                    "INSERT INTO score (review_id, interval_no, score, given_at)
+                     VALUES (?1, ?2, ?3, ?4)
+                     ON CONFLICT (review_id, interval_no)
+                     DO UPDATE SET score = excluded.score, given_at = excluded.given_at",
+                    params![rid, interval, score, ts(now)],
+                )
+                .sq(path)?;
+                return Ok(());
+            }
+            let current =
+                current_score(tx, path, rid, interval)?.ok_or_else(|| JournalError::BadValue {
+                    path: path.to_path_buf(),
+                    detail: format!("{session_id}: revealed without a score for {interval}"),
+                })?;
+            if current != score {
+                tx.execute(
+                    "INSERT INTO revision (review_id, target, interval_no, old_value, new_value, at)
+                     VALUES (?1, 'score', ?2, ?3, ?4, ?5)",
+                    params![rid, interval, current.to_string(), score.to_string(), ts(now)],
+                )
+                .sq(path)?;
+            }
+            Ok(())
+        })
+    }
+
+    /// Give (before the reveal) or revise (after it) the purpose verdict.
+    pub fn set_verdict(
+        &mut self,
+        session_id: &str,
+        verdict: PurposeVerdict,
+        now: DateTime<Utc>,
+    ) -> Result<()> {
+        self.write(|tx, path| {
+            let row = require_session(tx, path, session_id)?;
+            let rid = ensure_review(tx, path, &row, now)?;
+            let review = review_row(tx, path, rid)?;
+            if review.revealed_at.is_none() {
+                tx.execute(
+                    "UPDATE review SET verdict = ?2, verdict_at = ?3 WHERE id = ?1",
+                    params![rid, verdict.as_str(), ts(now)],
+                )
+                .sq(path)?;
+                return Ok(());
+            }
+            let current =
+                current_verdict(tx, path, rid)?.ok_or_else(|| JournalError::BadValue {
+                    path: path.to_path_buf(),
+                    detail: format!("{session_id}: revealed without a verdict"),
+                })?;
+            if current != verdict {
+                tx.execute(
+                    "INSERT INTO revision (review_id, target, interval_no, old_value, new_value, at)
+                     VALUES (?1, 'verdict', NULL, ?2, ?3, ?4)",
+                    params![rid, current.as_str(), verdict.as_str(), ts(now)],
+                )
+                .sq(path)?;
+            }
+            Ok(())
+        })
+    }
+
+    /// Reveal the athlete's notes: allowed once every work interval has a score and the
+    /// purpose verdict is set. Records the reveal time the first time; later calls return a
+    /// permit without changing anything.
+    pub fn reveal(&mut self, session_id: &str, now: DateTime<Utc>) -> Result<RevealPermit> {
+        self.write(|tx, path| {
+            let row = require_session(tx, path, session_id)?;
+            let review = match row.review_id {
+                Some(rid) => Some(review_row(tx, path, rid)?),
+                None => None,
+            };
+            if let Some(r) = &review {
+                if r.revealed_at.is_some() {
+                    return Ok(permit(&row));
+                }
+            }
+            let n = row
+                .work_intervals
+                .ok_or_else(|| JournalError::NotAnalysed {
+                    path: path.to_path_buf(),
+                    session_id: session_id.to_string(),
+                })?;
+            let (scored, has_verdict) = match (&review, row.review_id) {
+                (Some(r), Some(rid)) => (scored_intervals(tx, path, rid)?, r.verdict.is_some()),
+                _ => (BTreeMap::new(), false),
+            };
+            let missing = missing_of(n, &scored, has_verdict);
+            if !missing.is_empty() {
+                return Err(JournalError::NotYetGraded {
+                    path: path.to_path_buf(),
+                    session_id: session_id.to_string(),
+                    missing,
+                });
+            }
+            tx.execute(
+                "UPDATE review SET revealed_at = ?2, work_intervals = ?3 WHERE id = ?1",
+                params![row.review_id, ts(now), n],
+            )
+            .sq(path)?;
+            Ok(permit(&row))
+        })
+    }
+
+    /// The grading state of one session.
+    pub fn review_state(&self, session_id: &str) -> Result<ReviewState> {
+        self.read(|conn, path| {
+            let row = require_session(conn, path, session_id)?;
+            let Some(rid) = row.review_id else {
+                return Ok(ReviewState {
+                    stage: ReviewStage::New,
+                    content_changed: false,
+                    work_intervals: row.work_intervals,
+                    scores: Vec::new(),
+                    verdict: None,
+                    revealed_at: None,
+                    missing: missing_of(
+                        row.work_intervals.unwrap_or(0),
+                        &BTreeMap::<u32, ()>::new(),
+                        false,
+                    ),
+                });
+            };
+            let review = review_row(conn, path, rid)?;
+            let revealed_at = match &review.revealed_at {
+                Some(s) => Some(parse_ts(path, s)?),
+                None => None,
+            };
+            let n = if revealed_at.is_some() {
+                review.work_intervals
+            } else {
+                row.work_intervals
+            };
+            let blind = scored_intervals(conn, path, rid)?;
+            let mut scores = Vec::with_capacity(blind.len());
+            for (interval, (score, at)) in &blind {
+                let current = current_score(conn, path, rid, *interval)?.unwrap_or(*score);
+                scores.push(ScoreCell {
+                    interval: *interval,
+                    blind: *score,
+                    given_at: parse_ts(path, at)?,
+                    current,
+                });
+            }
+            let verdict = match (&review.verdict, &review.verdict_at) {
+                (Some(v), Some(at)) => {
+                    let blind = parse_verdict(path, v)?;
+                    Some(VerdictCell {
+                        blind,
+                        given_at: parse_ts(path, at)?,
+                        current: current_verdict(conn, path, rid)?.unwrap_or(blind),
+                    })
+                }
+                _ => None,
+            };
+            let missing = if revealed_at.is_some() {
+                Missing::default()
+            } else {
+                missing_of(n.unwrap_or(0), &blind, verdict.is_some())
+            };
+            let sent = feedback_sent(conn, path, rid)?;
+            let stage = stage_of(
+                !blind.is_empty() || verdict.is_some(),
+                n.is_some() && missing.is_empty(),
+                revealed_at.is_some(),
+                sent,
+            );
+            Ok(ReviewState {
+                stage,
+                content_changed: review.content_hash != row.content_hash,
+                work_intervals: n,
+                scores,
+                verdict,
+                revealed_at,
+                missing,
+            })
+        })
+    }
+
+    /// Every change made after the reveal, oldest first.
+    pub fn revisions(&self, session_id: &str) -> Result<Vec<Revision>> {
+        self.read(|conn, path| {
+            let row = require_session(conn, path, session_id)?;
+            match row.review_id {
+                Some(rid) => revisions_of(conn, path, rid),
+                None => Ok(Vec::new()),
+            }
+        })
+    }
+
+    // ----- feedback -----
+
+    /// Save a version of the feedback text (every save is kept). Needs the reveal first.
+    pub fn save_feedback(
+        &mut self,
+        session_id: &str,
+        body: &str,
+        now: DateTime<Utc>,
+    ) -> Result<()> {
+        self.write(|tx, path| {
+            let rid = revealed_review(tx, path, session_id)?;
+            tx.execute(
+                "INSERT INTO feedback_version (review_id, body, saved_at) VALUES (?1, ?2, ?3)",
+                params![rid, body, ts(now)],
+            )
+            .sq(path)?;
+            Ok(())
+        })
+    }
+
+    /// The latest saved feedback text.
+    pub fn feedback(&self, session_id: &str) -> Result<Option<FeedbackVersion>> {
+        Ok(self.feedback_history(session_id)?.pop())
+    }
+
+    /// Every saved version of the feedback, oldest first.
+    pub fn feedback_history(&self, session_id: &str) -> Result<Vec<FeedbackVersion>> {
+        self.read(|conn, path| {
+            let row = require_session(conn, path, session_id)?;
+            let Some(rid) = row.review_id else {
+                return Ok(Vec::new());
+            };
+            let mut stmt = conn
+                .prepare(
+                    "SELECT body, saved_at FROM feedback_version WHERE review_id = ?1 ORDER BY id",
+                )
+                .sq(path)?;
+            let raw: Vec<(String, String)> = stmt
+                .query_map([rid], |r| Ok((r.get(0)?, r.get(1)?)))
+                .sq(path)?
+                .collect::<rusqlite::Result<_>>()
+                .sq(path)?;
+            raw.into_iter()
+                .map(|(body, at)| {
+                    Ok(FeedbackVersion {
+                        body,
+                        saved_at: parse_ts(path, &at)?,
+                    })
+                })
+                .collect()
+        })
+    }
+
+    /// Record that the feedback was copied, exported or printed. Needs the reveal first.
+    pub fn record_feedback_event(
+        &mut self,
+        session_id: &str,
+        kind: FeedbackEventKind,
+        now: DateTime<Utc>,
+    ) -> Result<()> {
+        self.write(|tx, path| {
+            let rid = revealed_review(tx, path, session_id)?;
+            tx.execute(
+                "INSERT INTO feedback_event (review_id, kind, at) VALUES (?1, ?2, ?3)",
+                params![rid, kind.as_str(), ts(now)],
+            )
+            .sq(path)?;
+            Ok(())
+        })
+    }
+
+    /// When and how the feedback left splitdesk, oldest first.
+    pub fn feedback_events(&self, session_id: &str) -> Result<Vec<FeedbackEvent>> {
+        self.read(|conn, path| {
+            let row = require_session(conn, path, session_id)?;
+            let Some(rid) = row.review_id else {
+                return Ok(Vec::new());
+            };
+            let mut stmt = conn
+                .prepare("SELECT kind, at FROM feedback_event WHERE review_id = ?1 ORDER BY id")
+                .sq(path)?;
+            let raw: Vec<(String, String)> = stmt
+                .query_map([rid], |r| Ok((r.get(0)?, r.get(1)?)))
+                .sq(path)?
+                .collect::<rusqlite::Result<_>>()
+                .sq(path)?;
+            raw.into_iter()
+                .map(|(kind, at)| {
+                    Ok(FeedbackEvent {
+                        kind: FeedbackEventKind::parse(&kind).ok_or_else(|| {
+                            JournalError::BadValue {
+                                path: path.to_path_buf(),
+                                detail: format!("feedback event {kind:?}"),
+                            }
+                        })?,
+                        at: parse_ts(path, &at)?,
+                    })
+                })
+                .collect()
+        })
+    }
+
+    // ----- rulers -----
+
+    /// Keep a ruler (a time window, seconds from the session start) for the session's chart.
+    pub fn add_ruler(
+        &mut self,
+        session_id: &str,
+        from_s: f64,
+        to_s: f64,
+        now: DateTime<Utc>,
+    ) -> Result<Ruler> {
+        if !(from_s.is_finite() && to_s.is_finite() && to_s > from_s) {
+            return Err(JournalError::InvalidRuler {
+                path: self.path.clone(),
+                from_s,
+                to_s,
+            });
+        }
+        self.write(|tx, path| {
+            let row = require_session(tx, path, session_id)?;
+            let rid = ensure_review(tx, path, &row, now)?;
+            tx.execute(
+                "INSERT INTO ruler (review_id, from_s, to_s, added_at) VALUES (?1, ?2, ?3, ?4)",
+                params![rid, from_s, to_s, ts(now)],
+            )
+            .sq(path)?;
+            Ok(Ruler {
+                id: tx.last_insert_rowid(),
+                from_s,
+                to_s,
+            })
+        })
+    }
+
+    /// The session's rulers, in the order added.
+    pub fn rulers(&self, session_id: &str) -> Result<Vec<Ruler>> {
+        self.read(|conn, path| {
+            let row = require_session(conn, path, session_id)?;
+            let Some(rid) = row.review_id else {
+                return Ok(Vec::new());
+            };
+            let mut stmt = conn
+                .prepare("SELECT id, from_s, to_s FROM ruler WHERE review_id = ?1 ORDER BY id")
+                .sq(path)?;
+            let out = stmt
+                .query_map([rid], |r| {
+                    Ok(Ruler {
+                        id: r.get(0)?,
+                        from_s: r.get(1)?,
+                        to_s: r.get(2)?,
+                    })
+                })
+                .sq(path)?
+                .collect::<rusqlite::Result<_>>()
+                .sq(path)?;
+            Ok(out)
+        })
+    }
+
+    /// Remove all of the session's rulers; returns how many there were.
+    pub fn clear_rulers(&mut self, session_id: &str) -> Result<usize> {
+        self.write(|tx, path| {
+            let row = require_session(tx, path, session_id)?;
+            match row.review_id {
+                Some(rid) => tx
+                    .execute("DELETE FROM ruler WHERE review_id = ?1", [rid])
+                    .sq(path),
+                None => Ok(0),
+            }
+        })
+    }
+
+    // ----- lists -----
+
+    /// Sessions with their review stage, newest first (the roster pane), optionally for one
+    /// athlete.
+    pub fn sessions(&self, athlete: Option<&str>) -> Result<Vec<QueueEntry>> {
+        let mut all = self.overview(athlete)?;
+        all.reverse();
+        Ok(all)
+    }
+
+    /// The review queue: sessions not yet reviewed (stage below `Revealed`), oldest first.
+    pub fn unreviewed(&self, athlete: Option<&str>) -> Result<Vec<QueueEntry>> {
+        let mut all = self.overview(athlete)?;
+        all.retain(|e| e.stage.is_unreviewed());
+        Ok(all)
+    }
+
+    /// Number of unreviewed sessions per athlete (athletes with none are absent).
+    pub fn unreviewed_counts(&self) -> Result<BTreeMap<String, usize>> {
+        let mut out = BTreeMap::new();
+        for e in self.unreviewed(None)? {
+            *out.entry(e.athlete).or_insert(0) += 1;
+        }
+        Ok(out)
+    }
+
+    /// All sessions (optionally of one athlete) with their stage, oldest first.
+    fn overview(&self, athlete: Option<&str>) -> Result<Vec<QueueEntry>> {
+        let path = &self.path;
+        let mut stmt = self
+            .conn
+            .prepare(
+                "SELECT s.session_id, s.athlete_id, s.start_time, s.file_path,
+                    r.id IS NOT NULL AND r.content_hash <> s.content_hash,
+                    r.revealed_at IS NOT NULL,
+                    coalesce(CASE WHEN r.revealed_at IS NOT NULL THEN r.work_intervals END,
+                             s.work_intervals),
+                    r.verdict IS NOT NULL,
+                    (SELECT count(*) FROM score c WHERE c.review_id = r.id),
+                    (SELECT count(*) FROM score c WHERE c.review_id = r.id AND c.interval_no <=
+                        coalesce(CASE WHEN r.revealed_at IS NOT NULL THEN r.work_intervals END,
+                                 s.work_intervals, 0)),
+                    EXISTS (SELECT 1 FROM feedback_event e WHERE e.review_id = r.id)
+                 FROM session s LEFT JOIN review r ON r.id = s.review_id
+                 WHERE ?1 IS NULL OR s.athlete_id = ?1
+                 ORDER BY s.start_time, s.session_id",
+            )
+            .sq(path)?;
+        type Raw = (
+            String,
+            String,
+            String,
+            String,
+            bool,
+            bool,
+            Option<u32>,
+            bool,
+            u32,
+            u32,
+            bool,
+        );
+        let raw: Vec<Raw> = stmt
+            .query_map([athlete], |r| {
+                Ok((
+                    r.get(0)?,
+                    r.get(1)?,
+                    r.get(2)?,
+                    r.get(3)?,
+                    r.get(4)?,
+                    r.get(5)?,
+                    r.get(6)?,
+                    r.get(7)?,
+                    r.get(8)?,
+                    r.get(9)?,
+                    r.get(10)?,
+                ))
+            })
+            .sq(path)?
+            .collect::<rusqlite::Result<_>>()
+            .sq(path)?;
+        raw.into_iter()
+            .map(
+                |(id, athlete, start, file, changed, revealed, n, verdict, any, scored, sent)| {
+                    let complete = n.is_some_and(|n| scored >= n) && verdict;
+                    Ok(QueueEntry {
+                        session_id: id,
+                        athlete,
+                        start: parse_ts(path, &start)?,
+                        file_path: PathBuf::from(file),
+                        stage: stage_of(any > 0 || verdict, complete, revealed, sent),
+                        content_changed: changed,
+                    })
+                },
+            )
+            .collect()
+    }
+
+    /// For the bias check: every revealed review with its blind and revised grades, by
+    /// session start.
+    pub fn bias_inputs(&self) -> Result<Vec<BiasInput>> {
+        self.read(|conn, path| {
+            let mut stmt = conn
+                .prepare(
+                    "SELECT s.session_id, s.athlete_id, s.start_time, r.id, r.revealed_at,
+                        r.verdict, r.work_intervals
+                     FROM session s JOIN review r ON r.id = s.review_id
+                     WHERE r.revealed_at IS NOT NULL
+                     ORDER BY s.start_time, s.session_id",
+                )
+                .sq(path)?;
+            type Raw = (
+                String,
+                String,
+                String,
+                i64,
+                String,
+                Option<String>,
+                Option<u32>,
+            );
+            let raw: Vec<Raw> = stmt
+                .query_map([], |r| {
+                    Ok((
+                        r.get(0)?,
+                        r.get(1)?,
+                        r.get(2)?,
+                        r.get(3)?,
+                        r.get(4)?,
+                        r.get(5)?,
+                        r.get(6)?,
+                    ))
+                })
+                .sq(path)?
+                .collect::<rusqlite::Result<_>>()
+                .sq(path)?;
+            let mut seen = BTreeSet::new();
+            let mut out = Vec::new();
+            for (session_id, athlete, start, rid, revealed_at, verdict, n) in raw {
+                if !seen.insert(rid) {
+                    continue;
+                }
+                let n = n.unwrap_or(0);
+                let blind: Vec<(u32, u8)> = scored_intervals(conn, path, rid)?
+                    .into_iter()
+                    .filter(|(i, _)| *i <= n)
+                    .map(|(i, (s, _))| (i, s))
+                    .collect();
+                let revisions = revisions_of(conn, path, rid)?;
+                let mut revised: BTreeMap<u32, u8> = blind.iter().copied().collect();
+                let blind_verdict = match verdict {
+                    Some(v) => Some(parse_verdict(path, &v)?),
+                    None => None,
+                };
+                let mut revised_verdict = blind_verdict;
+                for rev in &revisions {
+                    match rev.change {
+                        RevisionChange::Score { interval, new, .. } => {
+                            revised.insert(interval, new);
+                        }
+                        RevisionChange::Verdict { new, .. } => revised_verdict = Some(new),
+                    }
+                }
+                out.push(BiasInput {
+                    session_id,
+                    athlete,
+                    start: parse_ts(path, &start)?,
+                    revealed_at: parse_ts(path, &revealed_at)?,
+                    blind_scores: blind,
+                    revised_scores: revised.into_iter().collect(),
+                    blind_verdict,
+                    revised_verdict,
+                    revisions: revisions.len() as u32,
+                });
+            }
+            Ok(out)
+        })
+    }
+
+    // ----- maintenance -----
+
+    /// Full `PRAGMA integrity_check` and `foreign_key_check`, plus row counts.
+    pub fn check(&self) -> Result<CheckReport> {
+        self.read(|conn, path| {
+            let mut problems = Vec::new();
+            {
+                let mut stmt = conn.prepare("PRAGMA integrity_check").sq(path)?;
+                let rows: Vec<String> = stmt
+                    .query_map([], |r| r.get(0))
+                    .sq(path)?
+                    .collect::<rusqlite::Result<_>>()
+                    .sq(path)?;
+                problems.extend(rows.into_iter().filter(|r| r != "ok"));
+            }
+            {
+                let mut stmt = conn.prepare("PRAGMA foreign_key_check").sq(path)?;
+                let rows: Vec<String> = stmt
+                    .query_map([], |r| {
+                        Ok(format!(
+                            "foreign key: {} row {} -> {}",
+                            r.get::<_, String>(0)?,
+                            r.get::<_, Option<i64>>(1)?.unwrap_or(-1),
+                            r.get::<_, String>(2)?
+                        ))
+                    })
+                    .sq(path)?
+                    .collect::<rusqlite::Result<_>>()
+                    .sq(path)?;
+                problems.extend(rows);
+            }
+            let count = |table: &str| -> Result<u64> {
+                conn.query_row(&format!("SELECT count(*) FROM {table}"), [], |r| {
+                    r.get::<_, i64>(0)
+                })
+                .sq(path)
+                .map(|n| n.max(0) as u64)
+            };
+            let version: i64 = conn
+                .pragma_query_value(None, "user_version", |r| r.get(0))
+                .sq(path)?;
+            Ok(CheckReport {
+                problems,
+                schema_version: u32::try_from(version).unwrap_or(0),
+                sessions: count("session")?,
+                reviews: count("review")?,
+                scores: count("score")?,
+                revisions: count("revision")?,
+                feedback_versions: count("feedback_version")?,
+                feedback_events: count("feedback_event")?,
+                rulers: count("ruler")?,
+            })
+        })
+    }
+
+    /// Copy the journal to a new file `dest` with SQLite's online backup API (safe while in
+    /// use). Never overwrites: an existing `dest` is refused.
+    pub fn backup_to(&self, dest: &Path) -> Result<()> {
+        if dest.exists() {
+            return Err(JournalError::DestinationExists {
+                path: dest.to_path_buf(),
+            });
+        }
+        let run = || -> Result<()> {
+            let mut out = Connection::open_with_flags(
+                dest,
+                OpenFlags::SQLITE_OPEN_READ_WRITE
+                    | OpenFlags::SQLITE_OPEN_CREATE
+                    | OpenFlags::SQLITE_OPEN_NO_MUTEX,
+            )
+            .sq(dest)?;
+            {
+                let backup = rusqlite::backup::Backup::new(&self.conn, &mut out).sq(dest)?;
+                backup
+                    .run_to_completion(256, Duration::from_millis(10), None)
+                    .sq(dest)?;
+            }
+            out.close().map_err(|(_, e)| JournalError::sql(dest, e))
+        };
+        let result = run();
+        if result.is_err() {
+            let _ = fs::remove_file(dest);
+        }
+        result
+    }
+}
+
+// ----- row helpers (shared by read and write paths) -----
+
+struct SessionRow {
+    content_hash: String,
+    file_path: PathBuf,
+    session_id: String,
+    review_id: Option<i64>,
+    work_intervals: Option<u32>,
+    summary: Option<(String, u32, u32)>,
+}
+
+fn session_row(conn: &Connection, path: &Path, session_id: &str) -> Result<Option<SessionRow>> {
+    conn.query_row(
+        "SELECT content_hash, file_path, review_id,
+            CASE WHEN summary_hash = content_hash THEN work_intervals END,
+            CASE WHEN summary_hash = content_hash THEN summary_json END,
+            summary_version, work_intervals
+         FROM session WHERE session_id = ?1",
+        [session_id],
+        |r| {
+            let json: Option<String> = r.get(4)?;
+            let version: Option<u32> = r.get(5)?;
+            let n: Option<u32> = r.get(6)?;
+            Ok(SessionRow {
+                content_hash: r.get(0)?,
+                file_path: PathBuf::from(r.get::<_, String>(1)?),
+                session_id: session_id.to_string(),
+                review_id: r.get(2)?,
+                work_intervals: r.get(3)?,
+                summary: match (json, version, n) {
+                    (Some(j), Some(v), Some(n)) => Some((j, v, n)),
+                    _ => None,
+                },
+            })
+        },
+    )
+    .optional()
+    .sq(path)
+}
+
+fn require_session(conn: &Connection, path: &Path, session_id: &str) -> Result<SessionRow> {
+    session_row(conn, path, session_id)?.ok_or_else(|| JournalError::UnknownSession {
+        path: path.to_path_buf(),
+        session_id: session_id.to_string(),
+    })
+}
+
+fn summary_for_hash(
+    conn: &Connection,
+    path: &Path,
+    hash: &str,
+) -> Result<Option<(String, u32, u32)>> {
+    conn.query_row(
+        "SELECT summary_json, summary_version, work_intervals FROM session
+         WHERE content_hash = ?1 AND summary_hash = ?1 AND summary_json IS NOT NULL
+           AND summary_version IS NOT NULL AND work_intervals IS NOT NULL
+         ORDER BY seen_at DESC LIMIT 1",
+        [hash],
+        |r| Ok((r.get(0)?, r.get(1)?, r.get(2)?)),
+    )
+    .optional()
+    .sq(path)
+}
+
+fn latest_review_for_hash(conn: &Connection, path: &Path, hash: &str) -> Result<Option<i64>> {
+    conn.query_row(
+        "SELECT id FROM review WHERE content_hash = ?1 ORDER BY id DESC LIMIT 1",
+        [hash],
+        |r| r.get(0),
+    )
+    .optional()
+    .sq(path)
+}
+
+struct ReviewRow {
+    content_hash: String,
+    verdict: Option<String>,
+    verdict_at: Option<String>,
+    revealed_at: Option<String>,
+    work_intervals: Option<u32>,
+}
+
+fn review_row(conn: &Connection, path: &Path, id: i64) -> Result<ReviewRow> {
+    conn.query_row(
+        "SELECT content_hash, verdict, verdict_at, revealed_at, work_intervals
+         FROM review WHERE id = ?1",
+        [id],
+        |r| {
+            Ok(ReviewRow {
+                content_hash: r.get(0)?,
+                verdict: r.get(1)?,
+                verdict_at: r.get(2)?,
+                revealed_at: r.get(3)?,
+                work_intervals: r.get(4)?,
+            })
+        },
+    )
+    .sq(path)
+}
+
+/// The session's review, created (for its current content) if it has none yet.
+fn ensure_review(
+    conn: &Connection,
+    path: &Path,
+    row: &SessionRow,
+    now: DateTime<Utc>,
+) -> Result<i64> {
+    if let Some(id) = row.review_id {
+        return Ok(id);
+    }
+    conn.execute(
+        "INSERT INTO review (content_hash, created_at) VALUES (?1, ?2)",
+        params![row.content_hash, ts(now)],
+    )
+    .sq(path)?;
+    let id = conn.last_insert_rowid();
+    conn.execute(
+        "UPDATE session SET review_id = ?2 WHERE session_id = ?1",
+        params![row.session_id, id],
+    )
+    .sq(path)?;
+    Ok(id)
+}
+
+/// Blind scores by interval: (score, given_at).
+fn scored_intervals(
+    conn: &Connection,
+    path: &Path,
+    rid: i64,
+) -> Result<BTreeMap<u32, (u8, String)>> {
+    let mut stmt = conn
+        .prepare("SELECT interval_no, score, given_at FROM score WHERE review_id = ?1")
+        .sq(path)?;
+    let rows = stmt
+        .query_map([rid], |r| Ok((r.get(0)?, (r.get(1)?, r.get(2)?))))
+        .sq(path)?
+        .collect::<rusqlite::Result<_>>()
+        .sq(path)?;
+    Ok(rows)
+}
+
+fn current_score(conn: &Connection, path: &Path, rid: i64, interval: u32) -> Result<Option<u8>> {
+    let revised: Option<String> = conn
+        .query_row(
+            "SELECT new_value FROM revision
+             WHERE review_id = ?1 AND target = 'score' AND interval_no = ?2
+             ORDER BY id DESC LIMIT 1",
+            params![rid, interval],
+            |r| r.get(0),
+        )
+        .optional()
+        .sq(path)?;
+    if let Some(v) = revised {
+        return parse_score(path, &v).map(Some);
+    }
+    conn.query_row(
+        "SELECT score FROM score WHERE review_id = ?1 AND interval_no = ?2",
+        params![rid, interval],
+        |r| r.get(0),
+    )
+    .optional()
+    .sq(path)
+}
+
+fn current_verdict(conn: &Connection, path: &Path, rid: i64) -> Result<Option<PurposeVerdict>> {
+    let revised: Option<String> = conn
+        .query_row(
+            "SELECT new_value FROM revision WHERE review_id = ?1 AND target = 'verdict'
+             ORDER BY id DESC LIMIT 1",
+            [rid],
+            |r| r.get(0),
+        )
+        .optional()
+        .sq(path)?;
+    let raw = match revised {
+        Some(v) => Some(v),
+        None => review_row(conn, path, rid)?.verdict,
+    };
+    raw.map(|v| parse_verdict(path, &v)).transpose()
+}
+
+fn revisions_of(conn: &Connection, path: &Path, rid: i64) -> Result<Vec<Revision>> {
+    let mut stmt = conn
+        .prepare(
+            "SELECT target, interval_no, old_value, new_value, at FROM revision
+             WHERE review_id = ?1 ORDER BY id",
+        )
+        .sq(path)?;
+    type Raw = (String, Option<u32>, String, String, String);
+    let raw: Vec<Raw> = stmt
+        .query_map([rid], |r| {
+            Ok((r.get(0)?, r.get(1)?, r.get(2)?, r.get(3)?, r.get(4)?))
+        })
+        .sq(path)?
+        .collect::<rusqlite::Result<_>>()
+        .sq(path)?;
+    raw.into_iter()
+        .map(|(target, interval, old, new, at)| {
+            let change = match (target.as_str(), interval) {
+                ("score", Some(interval)) => RevisionChange::Score {
+                    interval,
+                    old: parse_score(path, &old)?,
+                    new: parse_score(path, &new)?,
+                },
+                _ => RevisionChange::Verdict {
+                    old: parse_verdict(path, &old)?,
+                    new: parse_verdict(path, &new)?,
+                },
+            };
+            Ok(Revision {
+                change,
+                at: parse_ts(path, &at)?,
+            })
+        })
+        .collect()
+}
+
+fn feedback_sent(conn: &Connection, path: &Path, rid: i64) -> Result<bool> {
+    conn.query_row(
+        "SELECT EXISTS (SELECT 1 FROM feedback_event WHERE review_id = ?1)",
+        [rid],
+        |r| r.get(0),
+    )
+    .sq(path)
+}
+
+/// The review id of a revealed session, else `NotRevealed`.
+fn revealed_review(conn: &Connection, path: &Path, session_id: &str) -> Result<i64> {
+    let row = require_session(conn, path, session_id)?;
+    let not_revealed = || JournalError::NotRevealed {
+        path: path.to_path_buf(),
+        session_id: session_id.to_string(),
+    };
+    let rid = row.review_id.ok_or_else(not_revealed)?;
+    if review_row(conn, path, rid)?.revealed_at.is_none() {
+        return Err(not_revealed());
+    }
+    Ok(rid)
+}
+
+fn missing_of<V>(n: u32, scored: &BTreeMap<u32, V>, has_verdict: bool) -> Missing {
+    Missing {
+        scores: (1..=n).filter(|i| !scored.contains_key(i)).collect(),
+        verdict: !has_verdict,
+    }
+}
+
+fn stage_of(any_grade: bool, complete: bool, revealed: bool, sent: bool) -> ReviewStage {
+    match (revealed, sent) {
+        (true, true) => ReviewStage::FeedbackDone,
+        (true, false) => ReviewStage::Revealed,
+        _ if complete => ReviewStage::Graded,
+        _ if any_grade => ReviewStage::Grading,
+        _ => ReviewStage::New,
+    }
+}
+
+fn permit(row: &SessionRow) -> RevealPermit {
+    RevealPermit {
+        session_id: row.session_id.clone(),
+        file_path: row.file_path.clone(),
+    }
+}

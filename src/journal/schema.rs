@@ -1,0 +1,101 @@
+//! The journal schema as a list of migration steps.
+//!
+//! `PRAGMA user_version` holds the number of steps applied. Each step runs in its own
+//! `BEGIN IMMEDIATE` transaction together with the `user_version` bump, so a crash leaves the
+//! journal at a whole step. Steps are append-only: never edit a released step, add a new one.
+//!
+//! Design notes:
+//! - `session` is what the roster showed us (one row per session id). It links to a `review`
+//!   through `review_id`. Reviews are linked to the content hash they were graded against, so a
+//!   renamed or moved file (new session id, same hash) finds its review again, and a file whose
+//!   bytes changed keeps its old review, flagged as changed.
+//! - Reviews and everything under them are never deleted by the journal.
+//! - Blind values live in `score` and on `review` (verdict); changes after the reveal go to
+//!   `revision` and never touch the blind values.
+//! - Times are RFC 3339 UTC strings with milliseconds (`2026-03-01T07:15:00.000Z`), so they
+//!   sort as text.
+
+/// `PRAGMA application_id` of a splitdesk journal: ASCII "SPLD".
+pub const APPLICATION_ID: i32 = 0x5350_4C44;
+
+/// The schema steps. `user_version == MIGRATIONS.len()` is the current schema.
+pub const MIGRATIONS: &[&str] = &[
+    // 1: initial schema
+    r#"
+CREATE TABLE review (
+    id              INTEGER PRIMARY KEY,
+    content_hash    TEXT NOT NULL,
+    created_at      TEXT NOT NULL,
+    verdict         TEXT CHECK (verdict IN ('met', 'partly', 'missed')),
+    verdict_at      TEXT,
+    revealed_at     TEXT,
+    work_intervals  INTEGER CHECK (work_intervals >= 0)
+);
+CREATE INDEX review_by_hash ON review (content_hash);
+
+CREATE TABLE session (
+    session_id       TEXT PRIMARY KEY,
+    athlete_id       TEXT NOT NULL,
+    file_path        TEXT NOT NULL,
+    content_hash     TEXT NOT NULL,
+    start_time       TEXT NOT NULL,
+    seen_at          TEXT NOT NULL,
+    review_id        INTEGER REFERENCES review (id) ON DELETE RESTRICT,
+    summary_json     TEXT,
+    summary_version  INTEGER,
+    summary_hash     TEXT,
+    work_intervals   INTEGER CHECK (work_intervals >= 0)
+);
+CREATE INDEX session_by_athlete ON session (athlete_id, start_time);
+CREATE INDEX session_by_hash ON session (content_hash);
+
+CREATE TABLE score (
+    review_id    INTEGER NOT NULL REFERENCES review (id) ON DELETE RESTRICT,
+    interval_no  INTEGER NOT NULL CHECK (interval_no >= 1),
+    score        INTEGER NOT NULL CHECK (score BETWEEN 1 AND 5),
+    given_at     TEXT NOT NULL,
+    PRIMARY KEY (review_id, interval_no)
+) WITHOUT ROWID;
+
+CREATE TABLE revision (
+    id           INTEGER PRIMARY KEY,
+    review_id    INTEGER NOT NULL REFERENCES review (id) ON DELETE RESTRICT,
+    target       TEXT NOT NULL CHECK (target IN ('score', 'verdict')),
+    interval_no  INTEGER CHECK ((target = 'score') = (interval_no IS NOT NULL)),
+    old_value    TEXT NOT NULL,
+    new_value    TEXT NOT NULL,
+    at           TEXT NOT NULL
+);
+CREATE INDEX revision_by_review ON revision (review_id, id);
+
+CREATE TABLE feedback_version (
+    id         INTEGER PRIMARY KEY,
+    review_id  INTEGER NOT NULL REFERENCES review (id) ON DELETE RESTRICT,
+    body       TEXT NOT NULL,
+    saved_at   TEXT NOT NULL
+);
+CREATE INDEX feedback_by_review ON feedback_version (review_id, id);
+
+CREATE TABLE feedback_event (
+    id         INTEGER PRIMARY KEY,
+    review_id  INTEGER NOT NULL REFERENCES review (id) ON DELETE RESTRICT,
+    kind       TEXT NOT NULL CHECK (kind IN ('copied', 'exported', 'printed')),
+    at         TEXT NOT NULL
+);
+CREATE INDEX feedback_event_by_review ON feedback_event (review_id, id);
+
+CREATE TABLE ruler (
+    id         INTEGER PRIMARY KEY,
+    review_id  INTEGER NOT NULL REFERENCES review (id) ON DELETE RESTRICT,
+    from_s     REAL NOT NULL,
+    to_s       REAL NOT NULL CHECK (to_s > from_s),
+    added_at   TEXT NOT NULL
+);
+CREATE INDEX ruler_by_review ON ruler (review_id, id);
+"#,
+];
+
+/// The schema version this build writes and reads.
+pub fn current_version() -> u32 {
+    MIGRATIONS.len() as u32
+}

@@ -1,0 +1,339 @@
+//! The plain data the journal takes and gives.
+
+use std::fmt;
+use std::path::PathBuf;
+
+use chrono::{DateTime, Utc};
+
+use super::error::Missing;
+
+/// A session as the roster and the analysis see it, for [`super::Journal::upsert_session`].
+#[derive(Debug, Clone, PartialEq)]
+pub struct SessionRecord {
+    /// `<athlete-id>/<activity-file-stem>`.
+    pub session_id: String,
+    /// The athlete's id (folder name).
+    pub athlete_id: String,
+    /// Where the activity file is now.
+    pub file_path: PathBuf,
+    /// Lowercase hex SHA-256 of the file's bytes.
+    pub content_hash: String,
+    /// Time of the session's first sample.
+    pub start: DateTime<Utc>,
+    /// The analysis summary of exactly this content, when already computed.
+    /// `None` keeps the cached summary when the content is unchanged.
+    pub summary: Option<SummaryCache>,
+}
+
+/// A cached analysis summary: opaque JSON from the analysis layer plus what the journal needs.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct SummaryCache {
+    /// The summary as JSON text; the journal never looks inside.
+    pub json: String,
+    /// Version of the analysis code that produced it; a different version is a cache miss.
+    pub analysis_version: u32,
+    /// Number of work intervals the analysis found: the number of scores blind grading needs.
+    pub work_intervals: u32,
+}
+
+/// What [`super::Journal::upsert_session`] found.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum SessionChange {
+    /// A session id the journal had not seen, with content it had never reviewed.
+    New,
+    /// A new session id whose content already has a review (the file was renamed or moved,
+    /// or is a copy): the review now shows under this id too.
+    FoundReview,
+    /// Known session, same content; path, start or summary may have been refreshed.
+    Same,
+    /// Known session whose file content changed. Its review (if any) is kept and reported as
+    /// `content_changed`; the cached summary is dropped.
+    ContentChanged,
+}
+
+/// The coach's judgement whether a session served its purpose.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
+pub enum PurposeVerdict {
+    /// The session did what it was for.
+    Met,
+    /// Partly.
+    Partly,
+    /// It did not.
+    Missed,
+}
+
+impl PurposeVerdict {
+    /// The stored and displayed word: `met`, `partly` or `missed`.
+    pub fn as_str(self) -> &'static str {
+        match self {
+            PurposeVerdict::Met => "met",
+            PurposeVerdict::Partly => "partly",
+            PurposeVerdict::Missed => "missed",
+        }
+    }
+
+    /// Parse `met`, `partly` or `missed`.
+    pub fn parse(s: &str) -> Option<PurposeVerdict> {
+        match s {
+            "met" => Some(PurposeVerdict::Met),
+            "partly" => Some(PurposeVerdict::Partly),
+            "missed" => Some(PurposeVerdict::Missed),
+            _ => None,
+        }
+    }
+}
+
+impl fmt::Display for PurposeVerdict {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        f.write_str(self.as_str())
+    }
+}
+
+/// Where a session stands in the daily review, in order.
+///
+/// - `New`: nothing graded yet (rulers do not count).
+/// - `Grading`: some scores or the verdict given, blind grading not complete.
+/// - `Graded`: every work interval scored and the verdict set; notes still hidden.
+/// - `Revealed`: the notes were revealed; no feedback sent yet.
+/// - `FeedbackDone`: feedback copied, exported or printed at least once.
+///
+/// A session is *unreviewed* while its stage is below `Revealed`: the coach has not yet
+/// finished the blind grading and read the athlete's notes.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord, Hash)]
+pub enum ReviewStage {
+    /// Nothing graded yet.
+    New,
+    /// Blind grading started but incomplete.
+    Grading,
+    /// Blind grading complete, notes not revealed.
+    Graded,
+    /// Notes revealed, no feedback sent.
+    Revealed,
+    /// Feedback copied, exported or printed.
+    FeedbackDone,
+}
+
+impl ReviewStage {
+    /// Short lowercase label for lists and JSON: `new`, `grading`, `graded`, `revealed`,
+    /// `feedback done`.
+    pub fn label(self) -> &'static str {
+        match self {
+            ReviewStage::New => "new",
+            ReviewStage::Grading => "grading",
+            ReviewStage::Graded => "graded",
+            ReviewStage::Revealed => "revealed",
+            ReviewStage::FeedbackDone => "feedback done",
+        }
+    }
+
+    /// `true` below `Revealed`.
+    pub fn is_unreviewed(self) -> bool {
+        self < ReviewStage::Revealed
+    }
+}
+
+/// One work interval's score: the blind value and the value in force after revisions.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct ScoreCell {
+    /// Work-interval number, 1-based.
+    pub interval: u32,
+    /// The score given before the reveal (1-5).
+    pub blind: u8,
+    /// When the blind score was (last) given.
+    pub given_at: DateTime<Utc>,
+    /// The score in force now: the latest revision, or the blind score.
+    pub current: u8,
+}
+
+/// The purpose verdict: the blind value and the value in force after revisions.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct VerdictCell {
+    /// The verdict given before the reveal.
+    pub blind: PurposeVerdict,
+    /// When the blind verdict was (last) given.
+    pub given_at: DateTime<Utc>,
+    /// The verdict in force now.
+    pub current: PurposeVerdict,
+}
+
+/// The full grading state of one session.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct ReviewState {
+    /// Where the session stands.
+    pub stage: ReviewStage,
+    /// The file's content changed after the review began; the grades shown are for the old
+    /// content. See [`super::Journal::restart_review`].
+    pub content_changed: bool,
+    /// Work intervals to score: frozen at the reveal, else the current analysis's count.
+    /// `None` when not analysed yet.
+    pub work_intervals: Option<u32>,
+    /// Scores by interval number.
+    pub scores: Vec<ScoreCell>,
+    /// The purpose verdict, if given.
+    pub verdict: Option<VerdictCell>,
+    /// When the notes were first revealed.
+    pub revealed_at: Option<DateTime<Utc>>,
+    /// What still blocks the reveal (empty once graded or revealed).
+    pub missing: Missing,
+}
+
+/// What a revision changed.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub enum RevisionChange {
+    /// A work interval's score.
+    Score {
+        /// Work-interval number, 1-based.
+        interval: u32,
+        /// Value in force before.
+        old: u8,
+        /// Value after.
+        new: u8,
+    },
+    /// The purpose verdict.
+    Verdict {
+        /// Value in force before.
+        old: PurposeVerdict,
+        /// Value after.
+        new: PurposeVerdict,
+    },
+}
+
+/// A change of grade after the reveal, kept beside the blind value.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct Revision {
+    /// What changed.
+    pub change: RevisionChange,
+    /// When.
+    pub at: DateTime<Utc>,
+}
+
+/// One saved version of the feedback text.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct FeedbackVersion {
+    /// The text.
+    pub body: String,
+    /// When it was saved.
+    pub saved_at: DateTime<Utc>,
+}
+
+/// How feedback left splitdesk.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
+pub enum FeedbackEventKind {
+    /// Copied to the clipboard.
+    Copied,
+    /// Saved to a file.
+    Exported,
+    /// Printed to standard output.
+    Printed,
+}
+
+impl FeedbackEventKind {
+    /// The stored word.
+    pub fn as_str(self) -> &'static str {
+        match self {
+            FeedbackEventKind::Copied => "copied",
+            FeedbackEventKind::Exported => "exported",
+            FeedbackEventKind::Printed => "printed",
+        }
+    }
+
+    /// Parse a stored word.
+    pub fn parse(s: &str) -> Option<FeedbackEventKind> {
+        match s {
+            "copied" => Some(FeedbackEventKind::Copied),
+            "exported" => Some(FeedbackEventKind::Exported),
+            "printed" => Some(FeedbackEventKind::Printed),
+            _ => None,
+        }
+    }
+}
+
+/// Feedback copied, exported or printed at a time.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct FeedbackEvent {
+    /// How.
+    pub kind: FeedbackEventKind,
+    /// When.
+    pub at: DateTime<Utc>,
+}
+
+/// A ruler kept for a session's chart: a time window in seconds from the session start.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Ruler {
+    /// Row id, stable for the life of the ruler.
+    pub id: i64,
+    /// Window start, seconds from the session start.
+    pub from_s: f64,
+    /// Window end, seconds from the session start.
+    pub to_s: f64,
+}
+
+/// A session in a list (roster pane, review queue).
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct QueueEntry {
+    /// `<athlete-id>/<stem>`.
+    pub session_id: String,
+    /// The athlete's id.
+    pub athlete: String,
+    /// Start of the session.
+    pub start: DateTime<Utc>,
+    /// Where the file was last seen.
+    pub file_path: PathBuf,
+    /// Review stage.
+    pub stage: ReviewStage,
+    /// The content changed after the review began.
+    pub content_changed: bool,
+}
+
+/// Inputs of the bias check for one revealed review: blind grades and the grades in force.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct BiasInput {
+    /// One session id showing this review.
+    pub session_id: String,
+    /// The athlete's id.
+    pub athlete: String,
+    /// Start of the session.
+    pub start: DateTime<Utc>,
+    /// When the notes were revealed.
+    pub revealed_at: DateTime<Utc>,
+    /// Blind scores as (interval, score), by interval.
+    pub blind_scores: Vec<(u32, u8)>,
+    /// Scores in force after revisions, by interval.
+    pub revised_scores: Vec<(u32, u8)>,
+    /// Blind purpose verdict.
+    pub blind_verdict: Option<PurposeVerdict>,
+    /// Purpose verdict in force after revisions.
+    pub revised_verdict: Option<PurposeVerdict>,
+    /// Number of revisions made.
+    pub revisions: u32,
+}
+
+/// Result of [`super::Journal::check`].
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct CheckReport {
+    /// Rows of `PRAGMA integrity_check` and `PRAGMA foreign_key_check`; empty when all is well.
+    pub problems: Vec<String>,
+    /// Schema version (`PRAGMA user_version`).
+    pub schema_version: u32,
+    /// Sessions seen.
+    pub sessions: u64,
+    /// Reviews.
+    pub reviews: u64,
+    /// Blind scores.
+    pub scores: u64,
+    /// Revisions.
+    pub revisions: u64,
+    /// Saved feedback versions.
+    pub feedback_versions: u64,
+    /// Feedback copied/exported/printed events.
+    pub feedback_events: u64,
+    /// Rulers.
+    pub rulers: u64,
+}
+
+impl CheckReport {
+    /// `true` when SQLite found nothing wrong.
+    pub fn is_ok(&self) -> bool {
+        self.problems.is_empty()
+    }
+}

@@ -13,3 +13,4 @@ pub mod journal;
 pub mod model;
 pub mod plan;
 pub mod roster;
+pub mod workspace;

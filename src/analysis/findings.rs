@@ -1,7 +1,7 @@
 //! Findings: a short ordered list of plain-language observations, each tied to the numbers
 //! behind it. They seed the feedback draft.
 
-use serde::Serialize;
+use serde::{Deserialize, Serialize};
 
 use crate::model::units::format_pace;
 use crate::model::{AthleteProfile, IntervalSet, Session};
@@ -10,7 +10,7 @@ use super::decoupling::DECOUPLING_COACHING_LINE_PCT;
 use super::review::{Review, Whole};
 
 /// How much a finding matters. `Caution` is reserved for possible health signals.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord, Serialize)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord, Serialize, Deserialize)]
 #[serde(rename_all = "lowercase")]
 pub enum Severity {
     Info,
@@ -31,9 +31,11 @@ impl Severity {
 }
 
 /// One observation.
-#[derive(Debug, Clone, PartialEq, Serialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct Finding {
     pub severity: Severity,
+    /// Stable machine name of the observation (e.g. `decoupling_high`), for the feedback draft.
+    pub code: String,
     pub text: String,
     /// The review keys behind it, e.g. `intervals[3].avg_pace_s_per_km`.
     pub metrics: Vec<String>,
@@ -59,9 +61,10 @@ pub const DOWNHILL_EXPLAINS_M: f64 = 15.0;
 /// threshold, NEJM 341:1351, measured in a treadmill test, not on a field run).
 pub const COLE_HRR_BPM: f64 = 12.0;
 
-fn f(severity: Severity, text: String, metrics: Vec<String>) -> Finding {
+fn f(severity: Severity, code: &str, text: String, metrics: Vec<String>) -> Finding {
     Finding {
         severity,
+        code: code.to_string(),
         text,
         metrics,
     }
@@ -81,6 +84,7 @@ pub(crate) fn findings(
     if let (Some((secs, top)), Some(max)) = (whole.above_max, profile.hr_max) {
         out.push(f(
             Severity::Caution,
+            "hr_above_max",
             format!(
                 "Heart rate reached {top:.0} bpm, above the profile maximum of {max:.0} bpm, for {secs:.0} s. \
                  Check the sensor and the profile first. {MEDICAL_CAUTION}"
@@ -96,6 +100,7 @@ pub(crate) fn findings(
     if hr_rate_flags >= 3 {
         out.push(f(
             Severity::Caution,
+            "hr_rate",
             format!(
                 "Heart rate jumped faster than a heart can {hr_rate_flags} times. This is usually the sensor; \
                  if the athlete felt palpitations or dizziness, take it seriously. {MEDICAL_CAUTION}"
@@ -109,6 +114,7 @@ pub(crate) fn findings(
         let list: Vec<String> = r.missing_planned.iter().map(|m| m.to_string()).collect();
         out.push(f(
             Severity::Warning,
+            "missing_planned",
             format!(
                 "{} planned interval{} not found in the recording (plan steps {}).",
                 list.len(),
@@ -121,6 +127,7 @@ pub(crate) fn findings(
     if !set.extra.is_empty() {
         out.push(f(
             Severity::Note,
+            "extra_work",
             format!(
                 "{} work interval{} that the plan did not ask for.",
                 set.extra.len(),
@@ -165,6 +172,7 @@ pub(crate) fn findings(
         text.push('.');
         out.push(f(
             severity,
+            "targets",
             text,
             judged
                 .iter()
@@ -182,11 +190,13 @@ pub(crate) fn findings(
         match t.direction {
             "falling" => out.push(f(
                 Severity::Info,
+                "progression",
                 format!("Progression: {}.", t.text),
                 vec![format!("trends.{}", t.metric)],
             )),
             "rising" => out.push(f(
                 Severity::Note,
+                "fade_set",
                 format!("Fade across the set: {}.", t.text),
                 vec![format!("trends.{}", t.metric)],
             )),
@@ -205,6 +215,7 @@ pub(crate) fn findings(
     if work.len() >= 2 && fades * 2 > work.len() {
         out.push(f(
             Severity::Note,
+            "fade_within",
             format!(
                 "{fades} of {} work intervals slowed by more than 3 % in their second half: started too fast?",
                 work.len()
@@ -220,6 +231,7 @@ pub(crate) fn findings(
     {
         out.push(f(
             Severity::Note,
+            "troughs_rising",
             format!("Recoveries got less complete: {}.", t.text),
             vec!["trends.recovery_trough_bpm".into()],
         ));
@@ -237,6 +249,7 @@ pub(crate) fn findings(
             text.push('.');
             out.push(f(
                 Severity::Note,
+                "hr_lag",
                 text,
                 vec!["recoveries[].hr_lag_s".into()],
             ));
@@ -251,6 +264,7 @@ pub(crate) fn findings(
     if !low_drops.is_empty() && !r.recoveries.is_empty() && low_drops.len() == r.recoveries.len() {
         out.push(f(
             Severity::Info,
+            "hr_drop_info",
             format!(
                 "HR fell by {COLE_HRR_BPM:.0} bpm or less in the minute after every work interval. Clinical tests \
                  (Cole et al. 1999) use a similar number after a set treadmill protocol; on a field run with a \
@@ -270,6 +284,7 @@ pub(crate) fn findings(
         if d > DECOUPLING_COACHING_LINE_PCT {
             out.push(f(
                 Severity::Warning,
+                "decoupling_high",
                 format!(
                     "Decoupling {d:.1} % ({kind}speed per heartbeat fell from the first half to the second), above \
                      the usual 5 % line (common coaching practice): heat, fuelling, fatigue or a pace beyond \
@@ -280,6 +295,7 @@ pub(crate) fn findings(
         } else if d >= 0.0 {
             out.push(f(
                 Severity::Info,
+                "decoupling_ok",
                 format!(
                     "Decoupling {d:.1} %: heart-rate cost held steady (under the usual 5 % line)."
                 ),
@@ -296,6 +312,7 @@ pub(crate) fn findings(
         match whole.extra_descent_second_half_m {
             Some(m) if m >= DOWNHILL_EXPLAINS_M => out.push(f(
                 Severity::Note,
+                "decoupling_negative_downhill",
                 format!(
                     "Negative decoupling ({raw:.1} % on raw speed) comes from downhill running: the second half \
                      dropped {m:.0} m more than the first, and running downhill costs less per metre{}.",
@@ -312,6 +329,7 @@ pub(crate) fn findings(
             )),
             _ => out.push(f(
                 Severity::Note,
+                "decoupling_negative",
                 format!(
                     "Negative decoupling ({:.1} %): HR cost fell in the second half. The elevation profile does \
                      not explain it; a slow warm-up, a cooler second half or an HR sensor settling in can.",
@@ -324,6 +342,7 @@ pub(crate) fn findings(
     if let Some(d) = r.hr_drift_bpm_per_h.filter(|d| *d > 10.0) {
         out.push(f(
             Severity::Note,
+            "hr_drift",
             format!("At steady pace, HR drifted up {d:.0} bpm per hour."),
             vec!["hr_drift_bpm_per_h".into()],
         ));
@@ -338,6 +357,7 @@ pub(crate) fn findings(
         };
         out.push(f(
             sev,
+            "flagged",
             format!(
                 "{:.0} % of the session is flagged as bad data and left out of the numbers.",
                 r.flagged_fraction * 100.0
@@ -352,6 +372,7 @@ pub(crate) fn findings(
     {
         out.push(f(
             Severity::Note,
+            "cadence_lock",
             "The heart-rate sensor locked onto the step rate for a while; HR there is masked."
                 .into(),
             vec!["flags".into()],
@@ -360,12 +381,14 @@ pub(crate) fn findings(
     if session.hr.is_none() {
         out.push(f(
             Severity::Note,
+            "no_hr",
             "No heart rate in this file: HR metrics, load and decoupling are not available.".into(),
             vec!["avg_hr".into(), "trimp".into(), "decoupling_pct".into()],
         ));
     } else if profile.hr_max.is_none() || profile.hr_rest.is_none() {
         out.push(f(
             Severity::Info,
+            "no_hr_profile",
             "The profile lacks resting or maximum HR: load (TRIMP) is not computed.".into(),
             vec!["trimp".into()],
         ));
@@ -373,6 +396,7 @@ pub(crate) fn findings(
     if session.lat.is_none() {
         out.push(f(
             Severity::Info,
+            "no_gps",
             "No GPS positions (treadmill or indoor): pace comes from the device's own speed."
                 .into(),
             vec!["session.channels".into()],
@@ -381,6 +405,7 @@ pub(crate) fn findings(
     if session.altitude.is_none() && session.lat.is_some() {
         out.push(f(
             Severity::Info,
+            "no_altitude",
             "No altitude: paces are not hill-adjusted.".into(),
             vec!["hill_adjusted".into()],
         ));
@@ -391,6 +416,7 @@ pub(crate) fn findings(
     {
         out.push(f(
             Severity::Info,
+            "decoupling_short",
             format!(
                 "Decoupling needs 20 minutes of steady running after the warm-up; this session had {:.0}.",
                 whole.analysed_s / 60.0
@@ -401,6 +427,7 @@ pub(crate) fn findings(
     if set.inferred {
         out.push(f(
             Severity::Info,
+            "inferred",
             "No plan for this session: the intervals were inferred from the speed.".into(),
             vec!["inferred".into()],
         ));

@@ -5,7 +5,7 @@
 //! `Review` out. Times are seconds from the first sample, paces seconds per km, speeds m/s.
 //! A metric that cannot be computed is `None` (JSON `null`), never invented.
 
-use serde::Serialize;
+use serde::{Deserialize, Serialize};
 
 use crate::ingest::clean::{flagged_fraction, sample_mask};
 use crate::model::units::{format_pace, pace_s_per_km};
@@ -72,43 +72,43 @@ pub const TARGET_SMOOTHING_HALF_S: f64 = 5.0;
 // Common coaching practice (no published source).
 pub const STEADY_BAND: f64 = 0.10;
 
-#[derive(Debug, Clone, Serialize, PartialEq)]
+#[derive(Debug, Clone, Serialize, Deserialize, PartialEq)]
 pub struct SessionInfo {
-    pub format: &'static str,
+    pub format: String,
     pub sport: String,
     pub start: String,
     pub duration_s: f64,
     pub moving_s: f64,
     pub distance_m: Option<f64>,
     pub samples: usize,
-    pub channels: Vec<&'static str>,
+    pub channels: Vec<String>,
 }
 
-#[derive(Debug, Clone, Serialize, PartialEq)]
+#[derive(Debug, Clone, Serialize, Deserialize, PartialEq)]
 pub struct PlanInfo {
     pub title: String,
     pub purpose: String,
 }
 
-#[derive(Debug, Clone, Serialize, PartialEq)]
+#[derive(Debug, Clone, Serialize, Deserialize, PartialEq)]
 pub struct FlagOut {
     pub from_s: f64,
     pub to_s: f64,
-    pub channel: &'static str,
-    pub kind: &'static str,
+    pub channel: String,
+    pub kind: String,
     pub reason: String,
 }
 
 /// The metrics of one interval.
-#[derive(Debug, Clone, Serialize, PartialEq)]
+#[derive(Debug, Clone, Serialize, Deserialize, PartialEq)]
 pub struct IntervalMetrics {
     /// 1-based position in the session.
     pub index: usize,
     /// 1-based number among the work intervals (work intervals only).
     pub work_number: Option<usize>,
-    pub kind: &'static str,
-    pub source: &'static str,
-    pub mode: Option<&'static str>,
+    pub kind: String,
+    pub source: String,
+    pub mode: Option<String>,
     pub start_s: f64,
     pub end_s: f64,
     pub duration_s: f64,
@@ -127,16 +127,14 @@ pub struct IntervalMetrics {
     /// The plan's target in words, in the athlete's units.
     pub target: Option<String>,
     /// Target band as speeds (slow, fast), m/s, when it is a pace target.
-    #[serde(skip)]
     pub target_band_mps: Option<(f64, f64)>,
-    #[serde(skip)]
     pub target_hr: Option<(f64, f64)>,
     pub in_target_pct: Option<f64>,
     pub target_hit: Option<bool>,
 }
 
 /// What happened after one work interval.
-#[derive(Debug, Clone, Serialize, PartialEq)]
+#[derive(Debug, Clone, Serialize, Deserialize, PartialEq)]
 pub struct RecoveryMetrics {
     /// `index` of the work interval this follows.
     pub after_work: usize,
@@ -150,18 +148,18 @@ pub struct RecoveryMetrics {
 }
 
 /// A least-squares trend of one per-interval metric against repeat number.
-#[derive(Debug, Clone, Serialize, PartialEq)]
+#[derive(Debug, Clone, Serialize, Deserialize, PartialEq)]
 pub struct TrendOut {
-    pub metric: &'static str,
+    pub metric: String,
     pub slope_per_rep: f64,
     pub r2: f64,
     pub n: usize,
     pub change_over_set: f64,
-    pub direction: &'static str,
+    pub direction: String,
     pub text: String,
 }
 
-#[derive(Debug, Clone, Serialize, PartialEq)]
+#[derive(Debug, Clone, Serialize, Deserialize, PartialEq)]
 pub struct HrZoneOut {
     pub name: String,
     pub from_bpm: f64,
@@ -169,7 +167,7 @@ pub struct HrZoneOut {
     pub seconds: f64,
 }
 
-#[derive(Debug, Clone, Serialize, PartialEq)]
+#[derive(Debug, Clone, Serialize, Deserialize, PartialEq)]
 pub struct PaceZoneOut {
     pub name: String,
     /// Slow edge of the zone, s/km (`None` for the open-ended slowest zone).
@@ -179,20 +177,20 @@ pub struct PaceZoneOut {
     pub seconds: f64,
 }
 
-#[derive(Debug, Clone, Serialize, PartialEq, Default)]
+#[derive(Debug, Clone, Serialize, Deserialize, PartialEq, Default)]
 pub struct Zones {
     pub hr: Vec<HrZoneOut>,
     pub pace: Vec<PaceZoneOut>,
 }
 
 /// The objective review of one session (the `splitdesk.analysis/1` JSON contract).
-#[derive(Debug, Clone, Serialize, PartialEq)]
+#[derive(Debug, Clone, Serialize, Deserialize, PartialEq)]
 pub struct Review {
-    pub schema: &'static str,
+    pub schema: String,
     pub analysis_version: u32,
     pub file: String,
     pub athlete: String,
-    pub units: &'static str,
+    pub units: String,
     pub session: SessionInfo,
     pub plan: Option<PlanInfo>,
     pub flags: Vec<FlagOut>,
@@ -371,19 +369,19 @@ pub fn review(
         .map(|f| FlagOut {
             from_s: f.from_s,
             to_s: f.to_s,
-            channel: f.channel.as_str(),
-            kind: f.kind.as_str(),
+            channel: f.channel.as_str().to_string(),
+            kind: f.kind.as_str().to_string(),
             reason: f.reason.clone(),
         })
         .collect();
     let mut review = Review {
-        schema: SCHEMA,
+        schema: SCHEMA.to_string(),
         analysis_version: ANALYSIS_VERSION,
         file: String::new(),
         athlete: profile.id.clone(),
-        units: profile.units.label(),
+        units: profile.units.label().to_string(),
         session: SessionInfo {
-            format: session.format.as_str(),
+            format: session.format.as_str().to_string(),
             sport: session.sport.label().to_string(),
             start: session
                 .start
@@ -395,7 +393,7 @@ pub fn review(
             channels: session
                 .channels_present()
                 .iter()
-                .map(|c| c.as_str())
+                .map(|c| c.as_str().to_string())
                 .collect(),
         },
         plan: plan.map(|p| PlanInfo {
@@ -654,9 +652,9 @@ fn one_interval(
     IntervalMetrics {
         index,
         work_number,
-        kind: iv.kind.as_str(),
-        source: iv.source.as_str(),
-        mode: iv.mode.map(|m| m.as_str()),
+        kind: iv.kind.as_str().to_string(),
+        source: iv.source.as_str().to_string(),
+        mode: iv.mode.map(|m| m.as_str().to_string()),
         start_s: iv.start_s,
         end_s: iv.end_s,
         duration_s: iv.duration_s(),
@@ -857,12 +855,12 @@ fn trends(
         };
         let direction = f.direction(flat);
         out.push(TrendOut {
-            metric,
+            metric: metric.to_string(),
             slope_per_rep: f.slope,
             r2: f.r2,
             n: f.n,
             change_over_set: f.change(),
-            direction: direction.as_str(),
+            direction: direction.as_str().to_string(),
             text: trend_text(metric, &f, direction, profile),
         });
     }

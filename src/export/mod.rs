@@ -1,1 +1,3 @@
-//! Feedback text, tables, clipboard.
+//! What leaves splitdesk: feedback text, tables, clipboard.
+
+pub mod feedback;

@@ -535,6 +535,18 @@ impl Journal {
             .sq(&self.path)
     }
 
+    /// The content hash the journal last recorded for a session; `None` for an unknown one.
+    pub fn session_hash(&self, session_id: &str) -> Result<Option<String>> {
+        self.conn
+            .query_row(
+                "SELECT content_hash FROM session WHERE session_id = ?1",
+                params![session_id],
+                |r| r.get::<_, String>(0),
+            )
+            .optional()
+            .sq(&self.path)
+    }
+
     /// Forget session rows whose ids are not in `present` (files gone from the roster).
     /// Their reviews stay in the journal and reattach if the same content reappears.
     pub fn retain_sessions(&mut self, present: &[&str]) -> Result<usize> {

@@ -1,0 +1,230 @@
+//! A roster with its journal: what the headless commands and the workstation share.
+//!
+//! Reading and analysing a session is a pure step (`analyse_activity`, safe on any thread);
+//! recording it, and everything the coach decides, goes through the journal.
+
+use std::path::{Path, PathBuf};
+
+use chrono::{DateTime, Utc};
+
+use crate::analysis::review::{Review, ANALYSIS_VERSION};
+use crate::ingest::{self, IngestError};
+use crate::journal::{self, Journal, JournalError, SessionRecord, SummaryCache};
+use crate::model::{Plan, Session};
+use crate::plan::PlanFileError;
+use crate::roster::{plans, Activity, Athlete, Roster, RosterError};
+
+/// Why a workspace operation failed. Each variant's message names the file.
+#[derive(Debug, thiserror::Error)]
+pub enum WorkspaceError {
+    #[error(transparent)]
+    Roster(#[from] RosterError),
+    #[error(transparent)]
+    Journal(#[from] JournalError),
+    #[error(transparent)]
+    Ingest(#[from] IngestError),
+    #[error(transparent)]
+    Plan(#[from] PlanFileError),
+    #[error("no session {0:?} in the roster (ids look like athlete-id/file-stem)")]
+    UnknownSession(String),
+    #[error("no journal location: the platform has no data directory; pass --journal PATH")]
+    NoJournalLocation,
+    #[error("{path}: cached analysis is unreadable ({message})")]
+    BadCache { path: PathBuf, message: String },
+}
+
+/// One session read and analysed.
+#[derive(Debug, Clone)]
+pub struct Analysed {
+    pub session_id: String,
+    pub athlete_id: String,
+    pub path: PathBuf,
+    pub session: Session,
+    pub plan: Option<Plan>,
+    pub plan_path: Option<PathBuf>,
+    pub review: Review,
+}
+
+impl Analysed {
+    /// The journal record of this session, with its summary.
+    pub fn record(&self) -> Result<SessionRecord, WorkspaceError> {
+        let json = serde_json::to_string(&self.review).map_err(|e| WorkspaceError::BadCache {
+            path: self.path.clone(),
+            message: e.to_string(),
+        })?;
+        Ok(SessionRecord {
+            session_id: self.session_id.clone(),
+            athlete_id: self.athlete_id.clone(),
+            file_path: self.path.clone(),
+            content_hash: self.session.content_hash.clone(),
+            start: self.session.start,
+            summary: Some(SummaryCache {
+                json,
+                analysis_version: ANALYSIS_VERSION,
+                work_intervals: self.review.work().count() as u32,
+            }),
+        })
+    }
+}
+
+/// Read, clean and analyse one activity of a roster (no journal; any thread).
+pub fn analyse_activity(athlete: &Athlete, act: &Activity) -> Result<Analysed, WorkspaceError> {
+    let bytes = std::fs::read(&act.path).map_err(|source| IngestError::Io {
+        path: act.path.clone(),
+        source,
+    })?;
+    analyse_bytes(athlete, act, &bytes)
+}
+
+fn analyse_bytes(
+    athlete: &Athlete,
+    act: &Activity,
+    bytes: &[u8],
+) -> Result<Analysed, WorkspaceError> {
+    let session = ingest::ingest_bytes(bytes, act.format, Some(&athlete.profile)).map_err(
+        |source| IngestError::Parse {
+            path: act.path.clone(),
+            source,
+        },
+    )?;
+    let (plan_path, plan) =
+        match plans::plan_for_session(athlete, session.start, session.duration_s())? {
+            Some((p, plan)) => (Some(p), Some(plan)),
+            None => (None, None),
+        };
+    let mut review = crate::analysis::analyze(&session, plan.as_ref(), &athlete.profile);
+    review.file = act.path.display().to_string();
+    Ok(Analysed {
+        session_id: athlete.session_id(act),
+        athlete_id: athlete.id.clone(),
+        path: act.path.clone(),
+        session,
+        plan,
+        plan_path,
+        review,
+    })
+}
+
+/// What `sync` did.
+#[derive(Debug, Default)]
+pub struct SyncReport {
+    pub sessions: usize,
+    pub analysed: usize,
+    pub cached: usize,
+    /// Files that could not be read or analysed, one line each.
+    pub problems: Vec<String>,
+}
+
+/// A roster opened with its journal.
+pub struct Workspace {
+    pub roster: Roster,
+    pub journal: Journal,
+}
+
+/// The journal path for a roster: the explicit one, else the per-roster default.
+pub fn journal_path(roster_root: &Path, explicit: Option<&Path>) -> Result<PathBuf, WorkspaceError> {
+    match explicit {
+        Some(p) => Ok(p.to_path_buf()),
+        None => journal::default_path(roster_root).ok_or(WorkspaceError::NoJournalLocation),
+    }
+}
+
+impl Workspace {
+    /// Open the roster and its journal (created when missing; never inside the roster).
+    pub fn open(roster_dir: &Path, journal: Option<&Path>) -> Result<Workspace, WorkspaceError> {
+        let roster = Roster::open(roster_dir)?;
+        let path = journal_path(&roster.root, journal)?;
+        if let Some(parent) = path.parent() {
+            if !parent.as_os_str().is_empty() && !parent.exists() {
+                std::fs::create_dir_all(parent).map_err(|source| {
+                    WorkspaceError::Journal(JournalError::Io {
+                        path: parent.to_path_buf(),
+                        source,
+                    })
+                })?;
+            }
+        }
+        let journal = Journal::open_for_roster(&path, &roster.root)?;
+        Ok(Workspace { roster, journal })
+    }
+
+    /// Find an athlete and activity by session id.
+    pub fn find(&self, session_id: &str) -> Result<(&Athlete, &Activity), WorkspaceError> {
+        self.roster
+            .find_session(session_id)
+            .ok_or_else(|| WorkspaceError::UnknownSession(session_id.to_string()))
+    }
+
+    /// Bring one session up to date in the journal: hash the file, record it, and analyse it
+    /// unless the journal already holds a summary of this content by this analysis version.
+    /// Returns the review.
+    pub fn refresh(&mut self, session_id: &str, now: DateTime<Utc>) -> Result<Review, WorkspaceError> {
+        self.refresh_inner(session_id, now).map(|(r, _)| r)
+    }
+
+    /// `refresh`, also saying whether the cached summary was used.
+    fn refresh_inner(
+        &mut self,
+        session_id: &str,
+        now: DateTime<Utc>,
+    ) -> Result<(Review, bool), WorkspaceError> {
+        let (athlete, act) = self.find(session_id)?;
+        let (athlete, act) = (athlete.clone(), act.clone());
+        let bytes = std::fs::read(&act.path).map_err(|source| IngestError::Io {
+            path: act.path.clone(),
+            source,
+        })?;
+        let hash = ingest::hash::sha256_hex(&bytes);
+        if let Some(json) = self.cached(session_id, &hash)? {
+            let review = serde_json::from_str(&json).map_err(|e| WorkspaceError::BadCache {
+                path: act.path.clone(),
+                message: e.to_string(),
+            })?;
+            return Ok((review, true));
+        }
+        let analysed = analyse_bytes(&athlete, &act, &bytes)?;
+        self.record(&analysed, now)?;
+        Ok((analysed.review, false))
+    }
+
+    /// The cached summary when the journal knows this session with exactly this content.
+    fn cached(&self, session_id: &str, hash: &str) -> Result<Option<String>, WorkspaceError> {
+        match self.journal.session_hash(session_id)? {
+            Some(h) if h == hash => Ok(self.journal.cached_summary(session_id, ANALYSIS_VERSION)?),
+            _ => Ok(None),
+        }
+    }
+
+    /// Record an analysed session (and its summary) in the journal.
+    pub fn record(&mut self, a: &Analysed, now: DateTime<Utc>) -> Result<(), WorkspaceError> {
+        self.journal.upsert_session(&a.record()?, now)?;
+        Ok(())
+    }
+
+    /// Bring every session of the roster up to date in the journal.
+    pub fn sync(
+        &mut self,
+        now: DateTime<Utc>,
+        mut progress: impl FnMut(usize, usize),
+    ) -> Result<SyncReport, WorkspaceError> {
+        let ids: Vec<String> = self
+            .roster
+            .activities()
+            .map(|(a, x)| a.session_id(x))
+            .collect();
+        let mut report = SyncReport {
+            sessions: ids.len(),
+            ..SyncReport::default()
+        };
+        for (k, id) in ids.iter().enumerate() {
+            match self.refresh_inner(id, now) {
+                Ok((_, true)) => report.cached += 1,
+                Ok((_, false)) => report.analysed += 1,
+                Err(WorkspaceError::Journal(e)) => return Err(WorkspaceError::Journal(e)),
+                Err(e) => report.problems.push(e.to_string()),
+            }
+            progress(k + 1, ids.len());
+        }
+        Ok(report)
+    }
+}

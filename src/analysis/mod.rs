@@ -3,6 +3,7 @@
 pub mod decoupling;
 pub mod elevation;
 pub mod gradient;
+pub mod intervals;
 pub mod load;
 pub mod race;
 pub mod sampling;

@@ -4,6 +4,7 @@ pub mod decoupling;
 pub mod elevation;
 pub mod findings;
 pub mod gradient;
+pub mod intervals;
 pub mod load;
 pub mod race;
 pub mod review;

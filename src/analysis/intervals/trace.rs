@@ -1,0 +1,243 @@
+//! The speed trace the interval finder works on: hill-adjusted speed with flagged samples
+//! removed, per-sample time weights, and segment statistics.
+
+use crate::analysis::gradient::{cumulative_distance, hill_adjusted_speed};
+use crate::analysis::sampling::MAX_SAMPLE_DT_S;
+use crate::ingest::clean::{sample_mask, MAX_SPEED_MPS};
+use crate::model::{ChannelKind, Session};
+
+/// The per-sample signals, all of the session's length.
+#[derive(Debug, Clone)]
+pub(crate) struct Trace {
+    /// Elapsed seconds.
+    pub t: Vec<f64>,
+    /// Hill-adjusted speed, m/s; `None` where missing or flagged.
+    pub adj: Vec<Option<f64>>,
+    /// Recorded speed, m/s; `None` where missing or flagged.
+    pub raw: Vec<Option<f64>>,
+    /// Time each sample stands for, seconds (half the spacing to each neighbour, capped,
+    /// timer pauses excluded).
+    pub w: Vec<f64>,
+    /// Moving time from sample `i - 1` to sample `i` (0 for `i == 0` and across a pause).
+    pub gap: Vec<f64>,
+    /// Cumulative distance, metres (`None` where unknown).
+    pub dist: Option<Vec<Option<f64>>>,
+}
+
+/// Statistics of the stretch between two boundary samples.
+#[derive(Debug, Clone, Copy, Default)]
+pub(crate) struct SegStats {
+    /// Moving time, seconds.
+    pub duration_s: f64,
+    /// Distance, metres, when known.
+    pub distance_m: Option<f64>,
+    /// Time-weighted mean hill-adjusted speed, m/s.
+    pub adj_speed: Option<f64>,
+    /// Mean recorded speed (distance over moving time, else time-weighted mean), m/s.
+    pub raw_speed: Option<f64>,
+}
+
+impl Trace {
+    /// Build the trace of a session. `None` without any speed or distance.
+    pub fn new(session: &Session) -> Option<Trace> {
+        let n = session.len();
+        let t = session.t.clone();
+        let dist = cumulative_distance(session);
+        // Speed: recorded, or from the distance channel when there is none.
+        let raw_in: Vec<Option<f64>> = match &session.speed {
+            Some(s) => s.values.clone(),
+            None => {
+                let d = dist.as_ref()?;
+                (0..n)
+                    .map(|i| {
+                        let a = i.checked_sub(1)?;
+                        let (da, db) = (d.get(a).copied()??, d.get(i).copied()??);
+                        let dt = t.get(i)? - t.get(a)?;
+                        (dt > 0.0).then(|| (db - da) / dt)
+                    })
+                    .collect()
+            }
+        };
+        let adj_in: Vec<Option<f64>> = if session.speed.is_some() {
+            hill_adjusted_speed(session)
+                .map(|h| h.values)
+                .unwrap_or_else(|| raw_in.clone())
+        } else {
+            raw_in.clone()
+        };
+        let mask = sample_mask(session, &session.flags, ChannelKind::Speed);
+        let ok = |i: usize, v: Option<f64>| -> Option<f64> {
+            let v = v.filter(|v| v.is_finite())?;
+            if mask.get(i).copied().unwrap_or(false) {
+                return None;
+            }
+            Some(v.clamp(0.0, MAX_SPEED_MPS))
+        };
+        let raw: Vec<Option<f64>> = (0..n)
+            .map(|i| ok(i, raw_in.get(i).copied().flatten()))
+            .collect();
+        let adj: Vec<Option<f64>> = (0..n)
+            .map(|i| {
+                // A flagged raw speed also invalidates the adjusted one.
+                raw.get(i).copied().flatten()?;
+                ok(i, adj_in.get(i).copied().flatten())
+            })
+            .collect();
+        let mut gap = vec![0.0; n];
+        for (i, g) in gap.iter_mut().enumerate().skip(1) {
+            let (Some(&a), Some(&b)) = (t.get(i - 1), t.get(i)) else {
+                continue;
+            };
+            let dt = b - a;
+            let paused = session
+                .pauses
+                .iter()
+                .any(|p| a >= p.from_s - 1e-9 && b <= p.to_s + 1e-9 && p.to_s > p.from_s);
+            if dt.is_finite() && dt > 0.0 && !paused {
+                *g = dt.min(MAX_SAMPLE_DT_S);
+            }
+        }
+        let w = (0..n)
+            .map(|i| {
+                let before = gap.get(i).copied().unwrap_or(0.0);
+                let after = gap.get(i + 1).copied().unwrap_or(0.0);
+                0.5 * (before + after)
+            })
+            .collect();
+        Some(Trace {
+            t,
+            adj,
+            raw,
+            w,
+            gap,
+            dist,
+        })
+    }
+
+    pub fn len(&self) -> usize {
+        self.t.len()
+    }
+
+    /// Elapsed time of sample `i` (0 past the end).
+    pub fn time(&self, i: usize) -> f64 {
+        self.t.get(i).copied().unwrap_or(0.0)
+    }
+
+    /// Index of the sample nearest to `t_s`.
+    pub fn nearest(&self, t_s: f64) -> usize {
+        let n = self.t.len();
+        if n == 0 {
+            return 0;
+        }
+        let k = self.t.partition_point(|&x| x < t_s);
+        if k == 0 {
+            return 0;
+        }
+        if k >= n {
+            return n - 1;
+        }
+        let before = t_s - self.time(k - 1);
+        let after = self.time(k) - t_s;
+        if before <= after {
+            k - 1
+        } else {
+            k
+        }
+    }
+
+    /// Distance at sample `i`: the nearest present value at or before it, else after it.
+    pub fn dist_at(&self, i: usize) -> Option<f64> {
+        let d = self.dist.as_ref()?;
+        let back = d.get(..=i.min(d.len().saturating_sub(1)))?;
+        if let Some(v) = back.iter().rev().find_map(|v| *v) {
+            return Some(v);
+        }
+        d.iter().skip(i).find_map(|v| *v)
+    }
+
+    /// Statistics of samples `start..=end` (the boundaries shared with the neighbours).
+    pub fn stats(&self, start: usize, end: usize) -> SegStats {
+        let duration_s: f64 = (start + 1..=end)
+            .map(|i| self.gap.get(i).copied().unwrap_or(0.0))
+            .sum();
+        let distance_m = match (self.dist_at(start), self.dist_at(end)) {
+            (Some(a), Some(b)) => Some((b - a).max(0.0)),
+            _ => None,
+        };
+        let mean = |vals: &[Option<f64>]| {
+            let (mut s, mut wsum) = (0.0, 0.0);
+            for i in start..=end {
+                if let (Some(Some(v)), Some(&w)) = (vals.get(i), self.w.get(i)) {
+                    s += v * w;
+                    wsum += w;
+                }
+            }
+            (wsum > 0.0).then(|| s / wsum)
+        };
+        let adj_speed = mean(&self.adj);
+        let raw_speed = match distance_m {
+            Some(d) if duration_s > 0.0 => Some(d / duration_s),
+            _ => mean(&self.raw),
+        };
+        SegStats {
+            duration_s,
+            distance_m,
+            adj_speed,
+            raw_speed,
+        }
+    }
+}
+
+/// Centred time-window, time-weighted mean of `vals` (window `t ± half`). Samples with no
+/// valid value in their window take the nearest computed value (before, else after). O(n).
+pub(crate) fn window_mean(t: &[f64], vals: &[Option<f64>], w: &[f64], half: f64) -> Vec<f64> {
+    let n = t.len();
+    let val = |j: usize| -> Option<(f64, f64)> {
+        let v = vals.get(j).copied().flatten()?;
+        // A sample standing for no time (both neighbours across pauses) still counts a little.
+        let wj = w.get(j).copied().unwrap_or(0.0).max(1e-3);
+        Some((v * wj, wj))
+    };
+    let mut out: Vec<Option<f64>> = Vec::with_capacity(n);
+    let (mut lo, mut hi) = (0usize, 0usize);
+    let (mut sum, mut wsum, mut count) = (0.0f64, 0.0f64, 0usize);
+    for &tk in t {
+        while hi < n && t.get(hi).is_some_and(|&th| th <= tk + half) {
+            if let Some((vw, wj)) = val(hi) {
+                sum += vw;
+                wsum += wj;
+                count += 1;
+            }
+            hi += 1;
+        }
+        while lo < hi && t.get(lo).is_some_and(|&tl| tl < tk - half) {
+            if let Some((vw, wj)) = val(lo) {
+                sum -= vw;
+                wsum -= wj;
+                count -= 1;
+            }
+            lo += 1;
+        }
+        if count == 0 {
+            sum = 0.0;
+            wsum = 0.0;
+        }
+        out.push((count > 0 && wsum > 0.0).then(|| sum / wsum));
+    }
+    fill_nearest(&out)
+}
+
+/// Replace `None` by the nearest earlier value, or the nearest later one at the start; all
+/// zeros when there is no value at all.
+fn fill_nearest(v: &[Option<f64>]) -> Vec<f64> {
+    let first = v.iter().find_map(|x| *x).unwrap_or(0.0);
+    let mut last = first;
+    v.iter()
+        .map(|x| {
+            if let Some(x) = x {
+                last = *x;
+            }
+            last
+        })
+        .collect()
+}

@@ -81,12 +81,13 @@ fn analyse_bytes(
     act: &Activity,
     bytes: &[u8],
 ) -> Result<Analysed, WorkspaceError> {
-    let session = ingest::ingest_bytes(bytes, act.format, Some(&athlete.profile)).map_err(
-        |source| IngestError::Parse {
-            path: act.path.clone(),
-            source,
-        },
-    )?;
+    let session =
+        ingest::ingest_bytes(bytes, act.format, Some(&athlete.profile)).map_err(|source| {
+            IngestError::Parse {
+                path: act.path.clone(),
+                source,
+            }
+        })?;
     let (plan_path, plan) =
         match plans::plan_for_session(athlete, session.start, session.duration_s())? {
             Some((p, plan)) => (Some(p), Some(plan)),
@@ -122,7 +123,10 @@ pub struct Workspace {
 }
 
 /// The journal path for a roster: the explicit one, else the per-roster default.
-pub fn journal_path(roster_root: &Path, explicit: Option<&Path>) -> Result<PathBuf, WorkspaceError> {
+pub fn journal_path(
+    roster_root: &Path,
+    explicit: Option<&Path>,
+) -> Result<PathBuf, WorkspaceError> {
     match explicit {
         Some(p) => Ok(p.to_path_buf()),
         None => journal::default_path(roster_root).ok_or(WorkspaceError::NoJournalLocation),
@@ -158,7 +162,11 @@ impl Workspace {
     /// Bring one session up to date in the journal: hash the file, record it, and analyse it
     /// unless the journal already holds a summary of this content by this analysis version.
     /// Returns the review.
-    pub fn refresh(&mut self, session_id: &str, now: DateTime<Utc>) -> Result<Review, WorkspaceError> {
+    pub fn refresh(
+        &mut self,
+        session_id: &str,
+        now: DateTime<Utc>,
+    ) -> Result<Review, WorkspaceError> {
         self.refresh_inner(session_id, now).map(|(r, _)| r)
     }
 
@@ -190,7 +198,9 @@ impl Workspace {
     /// The cached summary when the journal knows this session with exactly this content.
     fn cached(&self, session_id: &str, hash: &str) -> Result<Option<String>, WorkspaceError> {
         match self.journal.session_hash(session_id)? {
-            Some(h) if h == hash => Ok(self.journal.cached_summary(session_id, ANALYSIS_VERSION)?),
+            Some(h) if h == hash => {
+                Ok(self.journal.cached_summary(session_id, ANALYSIS_VERSION)?)
+            }
             _ => Ok(None),
         }
     }

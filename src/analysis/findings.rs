@@ -187,7 +187,7 @@ pub(crate) fn findings(
         .filter(|_| r.hill_adjusted)
         .or_else(|| r.trend("avg_pace_s_per_km"))
     {
-        match t.direction {
+        match t.direction.as_str() {
             "falling" => out.push(f(
                 Severity::Info,
                 "progression",
@@ -274,8 +274,9 @@ pub(crate) fn findings(
         ));
     }
 
-    // Whole-session efficiency.
-    if let Some(d) = r.decoupling_pct {
+    // Whole-session efficiency: meaningful for steady running, not across a set of repeats.
+    let steady_session = work.is_empty();
+    if let Some(d) = r.decoupling_pct.filter(|_| steady_session) {
         let kind = if r.hill_adjusted {
             "hill-adjusted "
         } else {
@@ -303,10 +304,11 @@ pub(crate) fn findings(
             ));
         }
     }
-    let negative = [r.decoupling_pct, r.decoupling_raw_pct]
-        .into_iter()
-        .flatten()
-        .any(|d| d < 0.0);
+    let negative = steady_session
+        && [r.decoupling_pct, r.decoupling_raw_pct]
+            .into_iter()
+            .flatten()
+            .any(|d| d < 0.0);
     if negative {
         let raw = r.decoupling_raw_pct.unwrap_or(0.0);
         match whole.extra_descent_second_half_m {

@@ -12,3 +12,13 @@ pub mod sampling;
 pub mod summary;
 pub mod trend;
 pub mod zones;
+
+/// Find the intervals of a cleaned session and review it: the whole objective review.
+pub fn analyze(
+    session: &crate::model::Session,
+    plan: Option<&crate::model::Plan>,
+    profile: &crate::model::AthleteProfile,
+) -> review::Review {
+    let set = intervals::find_intervals(session, plan, profile);
+    review::review(session, &set, plan, profile)
+}

@@ -422,21 +422,21 @@ pub fn review(
     review
 }
 
+/// A pace band as `fast-slow/unit`, e.g. `4:00-4:10/km`.
+fn band_words(slow_mps: f64, fast_mps: f64, u: crate::model::Units) -> String {
+    let fast = format_pace(fast_mps, u);
+    let slow = format_pace(slow_mps, u);
+    let fast_clock = fast.split('/').next().unwrap_or(&fast);
+    format!("{fast_clock}-{slow}")
+}
+
 fn target_words(target: &Target, profile: &AthleteProfile) -> String {
     let u = profile.units;
     match target {
         Target::Open => "open".to_string(),
-        Target::PaceRange { slow_mps, fast_mps } => {
-            format!(
-                "{}-{}",
-                format_pace(*slow_mps, u),
-                format_pace(*fast_mps, u)
-            )
-        }
+        Target::PaceRange { slow_mps, fast_mps } => band_words(*slow_mps, *fast_mps, u),
         Target::NamedPace { name, .. } => match target.speed_band(profile) {
-            Some((slow, fast)) => {
-                format!("{name} ({}-{})", format_pace(slow, u), format_pace(fast, u))
-            }
+            Some((slow, fast)) => format!("{name} ({})", band_words(slow, fast, u)),
             None => format!("{name} (not in the profile)"),
         },
         Target::HrRange { low_bpm, high_bpm } => format!("HR {low_bpm:.0}-{high_bpm:.0}"),
@@ -607,7 +607,10 @@ fn one_interval(
         Some(Target::HrRange { low_bpm, high_bpm }) => Some((*low_bpm, *high_bpm)),
         _ => None,
     };
+    // Warm-ups, recoveries and cool-downs show their target but are not judged on it.
+    let judged = matches!(iv.kind, SegmentKind::Work | SegmentKind::Steady);
     let (in_target_pct, target_hit) = match (target_band, target_hr) {
+        _ if !judged => (None, None),
         (Some((slow, fast)), _) => {
             let (mut inside, mut total) = (0.0, 0.0);
             if let Some(sm) = smoothed {

@@ -7,7 +7,6 @@ use std::path::{Path, PathBuf};
 
 use anyhow::Context;
 
-use crate::analysis::review::Review;
 use crate::ingest;
 use crate::model::{AthleteProfile, Plan, Units};
 use crate::roster::{plans, Roster};
@@ -65,8 +64,8 @@ fn context(
             Some(p.display().to_string()),
         ),
         (None, Some(line), _) => {
-            let steps = crate::plan::parse_line(line)
-                .map_err(|e| anyhow::anyhow!("--plan-line: {e}"))?;
+            let steps =
+                crate::plan::parse_line(line).map_err(|e| anyhow::anyhow!("--plan-line: {e}"))?;
             (
                 Some(Plan {
                     title: "plan from --plan-line".into(),
@@ -128,19 +127,10 @@ pub fn run(
     if json {
         println!("{}", serde_json::to_string_pretty(&review)?);
     } else {
-        print!("{}", super::review_text::render(&review, &ctx.profile, ctx.plan_source.as_deref()));
+        print!(
+            "{}",
+            super::review_text::render(&review, &ctx.profile, ctx.plan_source.as_deref())
+        );
     }
     Ok(0)
-}
-
-/// For tests and other front ends: the review of a file with an explicit context.
-pub fn review_file(
-    file: &Path,
-    profile: &AthleteProfile,
-    plan: Option<&Plan>,
-) -> Result<Review, ingest::IngestError> {
-    let session = ingest::ingest_file(file, Some(profile))?;
-    let mut r = crate::analysis::analyze(&session, plan, profile);
-    r.file = file.display().to_string();
-    Ok(r)
 }

@@ -68,7 +68,7 @@ pub fn render(r: &Review, profile: &AthleteProfile, plan_source: Option<&str>) -
         "hill"
     );
     for m in &r.intervals {
-        let label = match (m.kind, m.work_number, m.mode) {
+        let label = match (m.kind.as_str(), m.work_number, m.mode.as_deref()) {
             ("work", Some(n), _) => format!("work {n}"),
             ("recovery", _, Some(mode)) => format!("rec {mode}"),
             (k, _, _) => k.to_string(),
@@ -99,9 +99,13 @@ pub fn render(r: &Review, profile: &AthleteProfile, plan_source: Option<&str>) -
     }
     if !r.recoveries.is_empty() {
         let _ = writeln!(o);
-        let _ = writeln!(o, "  After each work interval:  trough (at)       HR lag           60-s drop");
+        let _ = writeln!(
+            o,
+            "  After each work interval:  trough (at)       HR lag           60-s drop"
+        );
         for x in &r.recoveries {
-            let _ = writeln!(
+            let _ =
+                writeln!(
                 o,
                 "    work {:<3}                {:>4} bpm ({:>6})  {:>3} s, +{:>2} bpm   {:>3} bpm",
                 x.work_number,
@@ -117,7 +121,11 @@ pub fn render(r: &Review, profile: &AthleteProfile, plan_source: Option<&str>) -
         let _ = writeln!(o);
         let _ = writeln!(o, "  Across the set (least squares against repeat number):");
         for t in &r.trends {
-            let _ = writeln!(o, "    {:<28} {:<8} r² {:.2}  {}", t.metric, t.direction, t.r2, t.text);
+            let _ = writeln!(
+                o,
+                "    {:<28} {:<8} r² {:.2}  {}",
+                t.metric, t.direction, t.r2, t.text
+            );
         }
     }
     let _ = writeln!(o);
@@ -125,7 +133,11 @@ pub fn render(r: &Review, profile: &AthleteProfile, plan_source: Option<&str>) -
         o,
         "  Decoupling {} %{}   HR drift {} bpm/h   Load (TRIMP) {}   Elevation +{}/-{} m",
         num(r.decoupling_pct, 1),
-        if r.hill_adjusted { " (hill-adjusted)" } else { "" },
+        if r.hill_adjusted {
+            " (hill-adjusted)"
+        } else {
+            ""
+        },
         num(r.hr_drift_bpm_per_h, 1),
         num(r.trimp, 0),
         num(r.elevation_gain_m, 0),

@@ -59,7 +59,11 @@ fn facts(findings: &[Finding]) -> Vec<String> {
         .filter(|f| {
             !matches!(
                 f.code.as_str(),
-                "no_hr_profile" | "no_gps" | "no_altitude" | "decoupling_short" | "inferred"
+                "no_hr_profile"
+                    | "no_gps"
+                    | "no_altitude"
+                    | "decoupling_short"
+                    | "inferred"
                     | "hr_drop_info"
             ) && f.severity != Severity::Caution
         })
@@ -87,7 +91,13 @@ pub fn draft(review: &Review, profile: &AthleteProfile, verdict: Option<&str>) -
             let dist = review
                 .session
                 .distance_m
-                .map(|d| format!(" of {:.1} {}", d / profile.units.metres(), profile.units.label()))
+                .map(|d| {
+                    format!(
+                        " of {:.1} {}",
+                        d / profile.units.metres(),
+                        profile.units.label()
+                    )
+                })
                 .unwrap_or_default();
             out.push_str(&format!("{date} run{dist}\n"));
         }

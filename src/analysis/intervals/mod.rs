@@ -56,9 +56,9 @@ pub use align::{
     AMOUNT_WEIGHT, GAP_WEIGHT, MAX_GROUP, SKIP_DETECTED_COST, SKIP_EXPECTED_COST, SPEED_WEIGHT,
 };
 pub use detect::{
-    CHANGE_LAG_S, CLASSIFY_HALF_WINDOW_S, FAST_QUANTILE, FLOOR_OF_FAST, HYSTERESIS,
-    LEVEL_SKIP_S, LEVEL_SPAN_S, MIN_RUN_S, REFINE_HALF_WINDOW_S, REFINE_SEARCH_S,
-    STRUCTURE_MIN_GAP_MPS, STRUCTURE_RATIO,
+    CHANGE_LAG_S, CLASSIFY_HALF_WINDOW_S, FAST_QUANTILE, FLOOR_OF_FAST, HYSTERESIS, LEVEL_SKIP_S,
+    LEVEL_SPAN_S, MIN_RUN_S, REFINE_HALF_WINDOW_S, REFINE_SEARCH_S, STRUCTURE_MIN_GAP_MPS,
+    STRUCTURE_RATIO,
 };
 pub use laps::{
     AUTO_LAP_DISTANCES_M, AUTO_LAP_SHARE, AUTO_LAP_TOLERANCE, LAP_PACE_RATIO, LAP_TOLERANCE,
@@ -179,21 +179,34 @@ pub fn find_intervals(
                 .map(|(w, &f)| (w[0], w[1], f))
                 .collect();
             set.notes.push("device laps split the pace".into());
-            set.intervals = build(&trace.t, &label_inferred(&runs, &trace), IntervalSource::DeviceLap);
+            set.intervals = build(
+                &trace.t,
+                &label_inferred(&runs, &trace),
+                IntervalSource::DeviceLap,
+            );
             return set;
         }
     }
 
     // 2. Detection from the speed.
     let det = detect::detect(&trace);
-    let runs: Vec<(usize, usize, bool)> = det.runs.iter().map(|r| (r.start, r.end, r.fast)).collect();
+    let runs: Vec<(usize, usize, bool)> =
+        det.runs.iter().map(|r| (r.start, r.end, r.fast)).collect();
     let Some(plan) = plan else {
         if runs.is_empty() {
             set.notes
                 .push("no clear change of pace: one steady interval".into());
-            set.intervals = build(&trace.t, &[single(n, SegmentKind::Steady)], IntervalSource::Detected);
+            set.intervals = build(
+                &trace.t,
+                &[single(n, SegmentKind::Steady)],
+                IntervalSource::Detected,
+            );
         } else {
-            set.intervals = build(&trace.t, &label_inferred(&runs, &trace), IntervalSource::Detected);
+            set.intervals = build(
+                &trace.t,
+                &label_inferred(&runs, &trace),
+                IntervalSource::Detected,
+            );
         }
         return set;
     };
@@ -210,7 +223,11 @@ pub fn find_intervals(
         set.notes
             .push("no clear change of pace: no planned work interval was found".into());
         set.missing = (0..expected.len()).collect();
-        set.intervals = build(&trace.t, &[single(n, SegmentKind::Steady)], IntervalSource::Detected);
+        set.intervals = build(
+            &trace.t,
+            &[single(n, SegmentKind::Steady)],
+            IntervalSource::Detected,
+        );
         return set;
     }
     let pieces = aligned_pieces(&runs, &expected, &trace, profile);
@@ -425,7 +442,9 @@ fn aligned_pieces(
             for (c, cut) in cuts.iter_mut().enumerate() {
                 let speeds = (
                     items.get(c).and_then(|e| e.target.centre_speed(profile)),
-                    items.get(c + 1).and_then(|e| e.target.centre_speed(profile)),
+                    items
+                        .get(c + 1)
+                        .and_then(|e| e.target.centre_speed(profile)),
                 );
                 if let (Some(a), Some(b)) = speeds {
                     if (a / b - 1.0).abs() > GROUP_SPLIT_SPEED_DIFF {

@@ -4,6 +4,7 @@
 //! `model`, `plan` and `analysis` do no I/O and know nothing of terminals.
 
 pub mod analysis;
+pub mod bias;
 pub mod cli;
 pub mod config;
 pub mod demo;

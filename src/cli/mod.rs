@@ -7,6 +7,7 @@ mod analyze;
 mod check;
 mod inspect;
 pub mod plan_cmd;
+mod review_cmds;
 mod review_text;
 mod summary;
 
@@ -69,6 +70,110 @@ pub enum Command {
     /// Planned workouts.
     #[command(subcommand)]
     Plan(PlanCommand),
+    /// Sessions not yet reviewed, oldest first (the daily queue).
+    Queue {
+        /// Only this athlete (id, e.g. mara-lindqvist).
+        #[arg(long)]
+        athlete: Option<String>,
+        #[arg(long)]
+        json: bool,
+    },
+    /// Grade a session blind: a score 1-5 per work interval and the purpose verdict.
+    /// After the notes were revealed, a change is kept as a revision beside the blind grade.
+    Grade {
+        /// Session id: <athlete-id>/<activity-file-stem>.
+        session: String,
+        /// Work interval N gets score S (1-5); repeat for each interval, e.g. --score 1=4 --score 2=3.
+        #[arg(long = "score", value_name = "N=S")]
+        scores: Vec<String>,
+        /// Did the session serve its purpose: met, partly or missed.
+        #[arg(long, value_name = "met|partly|missed")]
+        verdict: Option<String>,
+        #[arg(long)]
+        json: bool,
+    },
+    /// The athlete's note, once every work interval is scored and the verdict set (exit 3 before).
+    Notes {
+        /// Session id: <athlete-id>/<activity-file-stem>.
+        session: String,
+        #[arg(long)]
+        json: bool,
+    },
+    /// The feedback for a session: the saved text, or the draft built from the findings.
+    Feedback {
+        /// Session id: <athlete-id>/<activity-file-stem>.
+        session: String,
+        /// Print the draft built from the findings (ignoring saved text).
+        #[arg(long, conflicts_with_all = ["set", "edit"])]
+        draft: bool,
+        /// Save the feedback text from FILE (after the reveal).
+        #[arg(long, value_name = "FILE", conflicts_with = "edit")]
+        set: Option<PathBuf>,
+        /// Edit the feedback in $EDITOR and save it (after the reveal).
+        #[arg(long)]
+        edit: bool,
+        #[arg(long)]
+        json: bool,
+    },
+    /// Feedback, interval tables and charts, ready to paste or attach.
+    #[command(subcommand)]
+    Export(ExportCommand),
+    /// How often and how far grades moved after reading the notes, against the notes' tone.
+    /// Tone is a simple word-list measure (positive minus negative words, negations flip).
+    BiasCheck {
+        #[arg(long)]
+        athlete: Option<String>,
+        #[arg(long)]
+        json: bool,
+    },
+    /// The coach's journal: backup and integrity check.
+    #[command(subcommand)]
+    Journal(JournalCommand),
+    /// Print shell completions (bash, zsh, fish, elvish, powershell).
+    Completions {
+        shell: clap_complete::Shell,
+    },
+    /// Print the man page (roff) generated from this command line.
+    Man,
+}
+
+#[derive(Debug, Subcommand)]
+pub enum ExportCommand {
+    /// Feedback of reviewed sessions, one block per session.
+    Feedback {
+        /// Sessions of this day (YYYY-MM-DD).
+        #[arg(long, conflicts_with = "since")]
+        date: Option<String>,
+        #[arg(long)]
+        athlete: Option<String>,
+        /// Sessions from this day on (YYYY-MM-DD).
+        #[arg(long)]
+        since: Option<String>,
+        #[arg(long, default_value = "text", value_name = "text|md|json")]
+        format: String,
+    },
+    /// One CSV row per interval with the analysis columns and the scores.
+    Intervals {
+        #[arg(long)]
+        athlete: Option<String>,
+        /// Sessions from this day on (YYYY-MM-DD).
+        #[arg(long)]
+        since: Option<String>,
+        /// CSV output (the only format).
+        #[arg(long, required = true)]
+        csv: bool,
+    },
+}
+
+#[derive(Debug, Subcommand)]
+pub enum JournalCommand {
+    /// Copy the journal to FILE with SQLite's online backup (never overwrites).
+    Backup { file: PathBuf },
+    /// Run SQLite's integrity checks and count what the journal holds.
+    Check {
+        #[arg(long)]
+        json: bool,
+    },
 }
 
 #[derive(Debug, Subcommand)]
@@ -121,6 +226,84 @@ pub fn run(cli: Cli) -> anyhow::Result<i32> {
         Some(Command::Plan(PlanCommand::Check { file, line, json })) => {
             plan_cmd::run_check(file.as_deref(), line.as_deref(), json)
         }
+        Some(Command::Completions { shell }) => {
+            let mut cmd = <Cli as clap::CommandFactory>::command();
+            clap_complete::generate(shell, &mut cmd, "splitdesk", &mut std::io::stdout());
+            Ok(0)
+        }
+        Some(Command::Man) => {
+            let cmd = <Cli as clap::CommandFactory>::command();
+            clap_mangen::Man::new(cmd).render(&mut std::io::stdout())?;
+            Ok(0)
+        }
+        Some(cmd) => {
+            let roster = crate::config::resolve_roster(cli.roster.as_deref(), &config);
+            let journal = cli.journal.clone().or_else(|| config.journal.clone());
+            run_with_journal(cmd, &roster, journal.as_deref())
+        }
+    }
+}
+
+/// The commands that need the roster's journal.
+fn run_with_journal(
+    cmd: Command,
+    roster: &std::path::Path,
+    journal: Option<&std::path::Path>,
+) -> anyhow::Result<i32> {
+    use review_cmds as rc;
+    let mut ws = rc::open_synced(roster, journal)?;
+    match cmd {
+        Command::Queue { athlete, json } => rc::queue(&mut ws, athlete.as_deref(), json),
+        Command::Grade {
+            session,
+            scores,
+            verdict,
+            json,
+        } => {
+            let scores = rc::parse_scores(&scores)?;
+            rc::grade(&mut ws, &session, &scores, verdict.as_deref(), json)
+        }
+        Command::Notes { session, json } => rc::notes(&mut ws, &session, json),
+        Command::Feedback {
+            session,
+            draft,
+            set,
+            edit,
+            json,
+        } => {
+            let action = match (draft, set, edit) {
+                (true, _, _) => rc::FeedbackAction::Draft,
+                (_, Some(f), _) => rc::FeedbackAction::Set(f),
+                (_, _, true) => rc::FeedbackAction::Edit,
+                _ => rc::FeedbackAction::Show,
+            };
+            rc::feedback(&mut ws, &session, action, json)
+        }
+        Command::Export(ExportCommand::Feedback {
+            date,
+            athlete,
+            since,
+            format,
+        }) => {
+            let filter = rc::Filter {
+                athlete,
+                date: date.map(|d| rc::parse_date("--date", &d)).transpose()?,
+                since: since.map(|d| rc::parse_date("--since", &d)).transpose()?,
+            };
+            rc::export_feedback(&mut ws, &filter, &format)
+        }
+        Command::Export(ExportCommand::Intervals { athlete, since, .. }) => {
+            let filter = rc::Filter {
+                athlete,
+                date: None,
+                since: since.map(|d| rc::parse_date("--since", &d)).transpose()?,
+            };
+            rc::export_intervals(&mut ws, &filter)
+        }
+        Command::BiasCheck { athlete, json } => rc::bias_check(&mut ws, athlete.as_deref(), json),
+        Command::Journal(JournalCommand::Backup { file }) => rc::journal_backup(&ws, &file),
+        Command::Journal(JournalCommand::Check { json }) => rc::journal_check(&ws, json),
+        _ => Ok(0),
     }
 }
 

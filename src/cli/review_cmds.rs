@@ -1,0 +1,587 @@
+//! The daily review from the shell: queue, grade, notes, feedback, exports, bias check,
+//! journal maintenance. Every command works on a roster and its journal.
+
+use std::collections::BTreeMap;
+use std::io::Write;
+use std::path::{Path, PathBuf};
+
+use anyhow::{bail, Context};
+use chrono::{NaiveDate, Utc};
+use serde::Serialize;
+
+use crate::analysis::review::Review;
+use crate::journal::{self, FeedbackEventKind, JournalError, PurposeVerdict, QueueEntry};
+use crate::workspace::Workspace;
+
+/// Exit code when the blind protocol refuses (notes asked for before grading is complete).
+pub const EXIT_BLIND: i32 = 3;
+
+/// Open the workspace and bring the journal up to date with the roster (progress on stderr).
+pub fn open_synced(roster: &Path, journal: Option<&Path>) -> anyhow::Result<Workspace> {
+    let mut ws = Workspace::open(roster, journal)?;
+    let total = ws.roster.activities().count() as u64;
+    let bar = super::progress_bar(total, "analysing");
+    let report = ws.sync(Utc::now(), |done, _| bar.set_position(done as u64))?;
+    bar.finish_and_clear();
+    for p in &report.problems {
+        eprintln!("warning: {p}");
+    }
+    Ok(ws)
+}
+
+/// The plan title, or sport and distance, of a reviewed session.
+pub fn title(r: &Review) -> String {
+    match &r.plan {
+        Some(p) => p.title.clone(),
+        None => {
+            let u = crate::model::Units::parse(&r.units).unwrap_or_default();
+            match r.session.distance_m {
+                Some(d) => format!("{} {:.1} {}", r.session.sport, d / u.metres(), u.label()),
+                None => r.session.sport.clone(),
+            }
+        }
+    }
+}
+
+#[derive(Debug, Serialize)]
+struct QueueOut {
+    session: String,
+    athlete: String,
+    start: String,
+    title: String,
+    stage: &'static str,
+    content_changed: bool,
+}
+
+fn queue_out(ws: &mut Workspace, e: &QueueEntry) -> QueueOut {
+    let title = ws
+        .refresh(&e.session_id, Utc::now())
+        .map(|r| title(&r))
+        .unwrap_or_default();
+    QueueOut {
+        session: e.session_id.clone(),
+        athlete: e.athlete.clone(),
+        start: e.start.to_rfc3339_opts(chrono::SecondsFormat::Secs, true),
+        title,
+        stage: e.stage.label(),
+        content_changed: e.content_changed,
+    }
+}
+
+/// `splitdesk queue [--athlete A] [--json]`: sessions not yet reviewed, oldest first.
+pub fn queue(ws: &mut Workspace, athlete: Option<&str>, json: bool) -> anyhow::Result<i32> {
+    let entries = ws.journal.unreviewed(athlete)?;
+    let rows: Vec<QueueOut> = entries.iter().map(|e| queue_out(ws, e)).collect();
+    if json {
+        println!("{}", serde_json::to_string_pretty(&rows)?);
+        return Ok(0);
+    }
+    if rows.is_empty() {
+        println!("nothing to review");
+    }
+    for r in &rows {
+        println!(
+            "{:<40} {}  {:<8} {}",
+            r.session,
+            r.start.get(..10).unwrap_or(""),
+            r.stage,
+            r.title
+        );
+    }
+    Ok(0)
+}
+
+/// Parse `N=S` score arguments.
+pub fn parse_scores(args: &[String]) -> anyhow::Result<Vec<(u32, u8)>> {
+    args.iter()
+        .map(|a| {
+            let (n, s) = a
+                .split_once('=')
+                .with_context(|| format!("--score {a:?}: expected N=S, e.g. 2=4"))?;
+            let n: u32 = n
+                .trim()
+                .parse()
+                .with_context(|| format!("--score {a:?}: {n:?} is not a work-interval number"))?;
+            let s: u8 = s
+                .trim()
+                .parse()
+                .ok()
+                .filter(|s| (1..=5).contains(s))
+                .with_context(|| format!("--score {a:?}: the score must be 1-5"))?;
+            Ok((n, s))
+        })
+        .collect()
+}
+
+#[derive(Debug, Serialize)]
+struct GradeOut {
+    session: String,
+    stage: &'static str,
+    scores: BTreeMap<u32, u8>,
+    blind_scores: BTreeMap<u32, u8>,
+    verdict: Option<&'static str>,
+    blind_verdict: Option<&'static str>,
+    revisions: usize,
+    missing: String,
+}
+
+fn grade_out(ws: &Workspace, id: &str) -> anyhow::Result<GradeOut> {
+    let st = ws.journal.review_state(id)?;
+    Ok(GradeOut {
+        session: id.to_string(),
+        stage: st.stage.label(),
+        scores: st.scores.iter().map(|c| (c.interval, c.current)).collect(),
+        blind_scores: st.scores.iter().map(|c| (c.interval, c.blind)).collect(),
+        verdict: st.verdict.as_ref().map(|v| v.current.as_str()),
+        blind_verdict: st.verdict.as_ref().map(|v| v.blind.as_str()),
+        revisions: ws.journal.revisions(id)?.len(),
+        missing: st.missing.to_string(),
+    })
+}
+
+/// `splitdesk grade SESSION --score N=S ... --verdict V`.
+pub fn grade(
+    ws: &mut Workspace,
+    id: &str,
+    scores: &[(u32, u8)],
+    verdict: Option<&str>,
+    json: bool,
+) -> anyhow::Result<i32> {
+    ws.refresh(id, Utc::now())?;
+    let verdict = match verdict {
+        Some(v) => Some(PurposeVerdict::parse(v).with_context(|| {
+            format!("--verdict {v:?}: expected met, partly or missed")
+        })?),
+        None => None,
+    };
+    for &(n, s) in scores {
+        ws.journal.set_score(id, n, s, Utc::now())?;
+    }
+    if let Some(v) = verdict {
+        ws.journal.set_verdict(id, v, Utc::now())?;
+    }
+    let out = grade_out(ws, id)?;
+    if json {
+        println!("{}", serde_json::to_string_pretty(&out)?);
+    } else {
+        let scores: Vec<String> = out
+            .scores
+            .iter()
+            .map(|(k, v)| match out.blind_scores.get(k) {
+                Some(b) if b != v => format!("{k}={b}→{v}"),
+                _ => format!("{k}={v}"),
+            })
+            .collect();
+        println!(
+            "{id}: {}; scores {}; verdict {}",
+            out.stage,
+            if scores.is_empty() { "none".into() } else { scores.join(" ") },
+            match (out.blind_verdict, out.verdict) {
+                (Some(b), Some(v)) if b != v => format!("{b}→{v}"),
+                (_, Some(v)) => v.to_string(),
+                _ => "not set".into(),
+            }
+        );
+        if !out.missing.is_empty() {
+            println!("still needed before the notes: {}", out.missing);
+        }
+    }
+    Ok(0)
+}
+
+/// `splitdesk notes SESSION`: the athlete's note, once grading is complete (else exit 3).
+pub fn notes(ws: &mut Workspace, id: &str, json: bool) -> anyhow::Result<i32> {
+    ws.refresh(id, Utc::now())?;
+    let permit = match ws.journal.reveal(id, Utc::now()) {
+        Ok(p) => p,
+        Err(JournalError::NotYetGraded { missing, .. }) => {
+            eprintln!("error: {id}: notes stay hidden until grading is complete: {missing}");
+            return Ok(EXIT_BLIND);
+        }
+        Err(e) => return Err(e.into()),
+    };
+    let (_, act) = ws.find(id)?;
+    let act = act.clone();
+    // The note embedded in the file (TCX Notes / GPX desc) counts too.
+    let embedded = crate::ingest::ingest_file(&act.path, None)
+        .ok()
+        .and_then(|s| s.note);
+    let note = journal::read_note(&permit, act.note_file.as_deref(), embedded.as_deref());
+    if json {
+        println!(
+            "{}",
+            serde_json::to_string_pretty(&serde_json::json!({ "session": id, "note": note }))?
+        );
+    } else {
+        match note {
+            Some(n) => println!("{}", n.trim_end()),
+            None => println!("(no note from the athlete)"),
+        }
+    }
+    Ok(0)
+}
+
+fn verdict_of(ws: &Workspace, id: &str) -> anyhow::Result<Option<&'static str>> {
+    Ok(ws
+        .journal
+        .review_state(id)?
+        .verdict
+        .map(|v| v.current.as_str()))
+}
+
+/// The draft for a session from its review and the coach's verdict.
+pub fn draft_for(ws: &mut Workspace, id: &str) -> anyhow::Result<String> {
+    let review = ws.refresh(id, Utc::now())?;
+    let (athlete, _) = ws.find(id)?;
+    let profile = athlete.profile.clone();
+    let verdict = verdict_of(ws, id)?;
+    Ok(crate::export::feedback::draft(&review, &profile, verdict))
+}
+
+/// The feedback to send: the saved text, else the draft.
+fn current_feedback(ws: &mut Workspace, id: &str) -> anyhow::Result<(String, bool)> {
+    match ws.journal.feedback(id) {
+        Ok(Some(v)) => Ok((v.body, true)),
+        Ok(None) | Err(JournalError::NotRevealed { .. }) => Ok((draft_for(ws, id)?, false)),
+        Err(e) => Err(e.into()),
+    }
+}
+
+/// Open `$EDITOR` (or `$VISUAL`, else `vi`) on `text`; returns the edited text.
+pub fn edit_in_editor(text: &str) -> anyhow::Result<String> {
+    let editor = std::env::var("VISUAL")
+        .or_else(|_| std::env::var("EDITOR"))
+        .unwrap_or_else(|_| "vi".to_string());
+    let mut file = tempfile::Builder::new()
+        .prefix("splitdesk-feedback-")
+        .suffix(".txt")
+        .tempfile()
+        .context("temporary file for the editor")?;
+    file.write_all(text.as_bytes())?;
+    file.flush()?;
+    let mut parts = editor.split_whitespace();
+    let program = parts.next().unwrap_or("vi");
+    let status = std::process::Command::new(program)
+        .args(parts)
+        .arg(file.path())
+        .status()
+        .with_context(|| format!("could not start the editor {editor:?}"))?;
+    if !status.success() {
+        bail!("the editor {editor:?} exited with {status}; feedback left unchanged");
+    }
+    std::fs::read_to_string(file.path()).context("reading the edited feedback")
+}
+
+/// What `splitdesk feedback` should do.
+pub enum FeedbackAction {
+    Show,
+    Draft,
+    Set(PathBuf),
+    Edit,
+}
+
+/// `splitdesk feedback SESSION [--draft | --set FILE | --edit]`.
+pub fn feedback(
+    ws: &mut Workspace,
+    id: &str,
+    action: FeedbackAction,
+    json: bool,
+) -> anyhow::Result<i32> {
+    let text = match action {
+        FeedbackAction::Draft => draft_for(ws, id)?,
+        FeedbackAction::Show => current_feedback(ws, id)?.0,
+        FeedbackAction::Set(path) => {
+            let text = std::fs::read_to_string(&path)
+                .with_context(|| path.display().to_string())?;
+            ws.journal.save_feedback(id, &text, Utc::now())?;
+            text
+        }
+        FeedbackAction::Edit => {
+            // Fail before the editor opens when the notes are not revealed yet.
+            if ws.journal.review_state(id)?.revealed_at.is_none() {
+                bail!("{id}: feedback is written after the reveal: grade the session and read the notes first (splitdesk notes {id})");
+            }
+            let (current, _) = current_feedback(ws, id)?;
+            let edited = edit_in_editor(&current)?;
+            ws.journal.save_feedback(id, &edited, Utc::now())?;
+            edited
+        }
+    };
+    if json {
+        println!(
+            "{}",
+            serde_json::to_string_pretty(&serde_json::json!({ "session": id, "feedback": text }))?
+        );
+    } else {
+        print!("{text}");
+        if !text.ends_with('\n') {
+            println!();
+        }
+    }
+    Ok(0)
+}
+
+/// Which sessions an export covers.
+#[derive(Debug, Default, Clone)]
+pub struct Filter {
+    pub athlete: Option<String>,
+    pub date: Option<NaiveDate>,
+    pub since: Option<NaiveDate>,
+}
+
+impl Filter {
+    fn keeps(&self, e: &QueueEntry) -> bool {
+        let day = e.start.date_naive();
+        self.athlete.as_ref().is_none_or(|a| &e.athlete == a)
+            && self.date.is_none_or(|d| day == d)
+            && self.since.is_none_or(|d| day >= d)
+    }
+}
+
+/// Parse a `YYYY-MM-DD` flag.
+pub fn parse_date(flag: &str, s: &str) -> anyhow::Result<NaiveDate> {
+    NaiveDate::parse_from_str(s, "%Y-%m-%d")
+        .with_context(|| format!("{flag} {s:?}: expected a date like 2026-11-03"))
+}
+
+#[derive(Debug, Serialize)]
+struct FeedbackBlock {
+    session: String,
+    athlete: String,
+    name: String,
+    date: String,
+    title: String,
+    feedback: String,
+    saved: bool,
+}
+
+/// `splitdesk export feedback [--date D | --athlete A | --since D] [--format text|md|json]`.
+/// Only sessions whose notes were revealed (the review is done); the saved text, else the draft.
+pub fn export_feedback(ws: &mut Workspace, filter: &Filter, format: &str) -> anyhow::Result<i32> {
+    if !matches!(format, "text" | "md" | "json") {
+        bail!("--format {format:?}: expected text, md or json");
+    }
+    let entries: Vec<QueueEntry> = ws
+        .journal
+        .sessions(None)?
+        .into_iter()
+        .rev()
+        .filter(|e| filter.keeps(e) && !e.stage.is_unreviewed())
+        .collect();
+    let mut blocks = Vec::new();
+    for e in &entries {
+        let review = ws.refresh(&e.session_id, Utc::now())?;
+        let (text, saved) = current_feedback(ws, &e.session_id)?;
+        let name = ws
+            .roster
+            .athlete(&e.athlete)
+            .map(|a| a.profile.name.clone())
+            .unwrap_or_else(|| e.athlete.clone());
+        blocks.push(FeedbackBlock {
+            session: e.session_id.clone(),
+            athlete: e.athlete.clone(),
+            name,
+            date: e.start.date_naive().to_string(),
+            title: title(&review),
+            feedback: text,
+            saved,
+        });
+        ws.journal
+            .record_feedback_event(&e.session_id, FeedbackEventKind::Exported, Utc::now())?;
+    }
+    match format {
+        "json" => println!("{}", serde_json::to_string_pretty(&blocks)?),
+        "md" => {
+            for b in &blocks {
+                println!("## {} — {} ({})\n", b.name, b.title, b.date);
+                println!("{}\n", b.feedback.trim_end());
+            }
+        }
+        _ => {
+            for (k, b) in blocks.iter().enumerate() {
+                if k > 0 {
+                    println!("\n----------------------------------------\n");
+                }
+                println!("To {} | {} | {}\n", b.name, b.date, b.title);
+                println!("{}", b.feedback.trim_end());
+            }
+        }
+    }
+    if blocks.is_empty() {
+        eprintln!("no reviewed sessions match (feedback is exported once the notes were revealed)");
+    }
+    Ok(0)
+}
+
+/// `splitdesk export intervals [--athlete A] [--since D] --csv`: one row per interval.
+pub fn export_intervals(ws: &mut Workspace, filter: &Filter) -> anyhow::Result<i32> {
+    let entries: Vec<QueueEntry> = ws
+        .journal
+        .sessions(None)?
+        .into_iter()
+        .rev()
+        .filter(|e| filter.keeps(e))
+        .collect();
+    let mut w = csv::Writer::from_writer(std::io::stdout().lock());
+    w.write_record([
+        "session",
+        "athlete",
+        "date",
+        "title",
+        "index",
+        "kind",
+        "work_number",
+        "source",
+        "start_s",
+        "end_s",
+        "duration_s",
+        "distance_m",
+        "avg_pace_s_per_km",
+        "hill_adjusted_pace_s_per_km",
+        "avg_hr",
+        "max_hr",
+        "end_hr",
+        "avg_cadence_spm",
+        "relative_intensity",
+        "first_half_pace_s_per_km",
+        "second_half_pace_s_per_km",
+        "decoupling_pct",
+        "target",
+        "in_target_pct",
+        "target_hit",
+        "blind_score",
+        "score",
+    ])?;
+    let opt = |v: Option<f64>| v.map(|x| format!("{x:.3}")).unwrap_or_default();
+    for e in &entries {
+        let review = ws.refresh(&e.session_id, Utc::now())?;
+        let state = ws.journal.review_state(&e.session_id)?;
+        let scores: BTreeMap<u32, (u8, u8)> = state
+            .scores
+            .iter()
+            .map(|c| (c.interval, (c.blind, c.current)))
+            .collect();
+        for m in &review.intervals {
+            let sc = m.work_number.and_then(|n| scores.get(&(n as u32)));
+            w.write_record([
+                e.session_id.clone(),
+                e.athlete.clone(),
+                e.start.date_naive().to_string(),
+                title(&review),
+                m.index.to_string(),
+                m.kind.clone(),
+                m.work_number.map(|n| n.to_string()).unwrap_or_default(),
+                m.source.clone(),
+                format!("{:.1}", m.start_s),
+                format!("{:.1}", m.end_s),
+                format!("{:.1}", m.duration_s),
+                opt(m.distance_m),
+                opt(m.avg_pace_s_per_km),
+                opt(m.hill_adjusted_pace_s_per_km),
+                opt(m.avg_hr),
+                opt(m.max_hr),
+                opt(m.end_hr),
+                opt(m.avg_cadence_spm),
+                opt(m.relative_intensity),
+                opt(m.first_half_pace_s_per_km),
+                opt(m.second_half_pace_s_per_km),
+                opt(m.decoupling_pct),
+                m.target.clone().unwrap_or_default(),
+                opt(m.in_target_pct),
+                m.target_hit.map(|h| h.to_string()).unwrap_or_default(),
+                sc.map(|s| s.0.to_string()).unwrap_or_default(),
+                sc.map(|s| s.1.to_string()).unwrap_or_default(),
+            ])?;
+        }
+    }
+    w.flush()?;
+    Ok(0)
+}
+
+/// `splitdesk bias-check [--athlete A] [--json]`.
+pub fn bias_check(ws: &mut Workspace, athlete: Option<&str>, json: bool) -> anyhow::Result<i32> {
+    let mut cases = Vec::new();
+    for input in ws.journal.bias_inputs()? {
+        if athlete.is_some_and(|a| a != input.athlete) {
+            continue;
+        }
+        // Revealed already: the permit is granted without changing anything.
+        let tone = match ws.journal.reveal(&input.session_id, Utc::now()) {
+            Ok(permit) => {
+                let act = ws.find(&input.session_id).ok().map(|(_, a)| a.clone());
+                let embedded = act
+                    .as_ref()
+                    .and_then(|a| crate::ingest::ingest_file(&a.path, None).ok())
+                    .and_then(|s| s.note);
+                journal::read_note(
+                    &permit,
+                    act.as_ref().and_then(|a| a.note_file.as_deref()),
+                    embedded.as_deref(),
+                )
+                .map(|n| crate::bias::tone(&n))
+            }
+            Err(_) => None,
+        };
+        cases.push(crate::bias::BiasCase { input, tone });
+    }
+    let report = crate::bias::report(&cases);
+    if json {
+        println!("{}", serde_json::to_string_pretty(&report)?);
+    } else {
+        println!("overall: {}", report.overall.text);
+        for (a, s) in &report.athletes {
+            println!("  {a}: {}", s.text);
+        }
+        println!(
+            "(tone is a simple word-list measure of the athlete's note; see `splitdesk bias-check --help`)"
+        );
+    }
+    Ok(0)
+}
+
+/// `splitdesk journal backup FILE`.
+pub fn journal_backup(ws: &Workspace, dest: &Path) -> anyhow::Result<i32> {
+    ws.journal.backup_to(dest)?;
+    println!("{}: backup of {} written", dest.display(), ws.journal.path().display());
+    Ok(0)
+}
+
+/// `splitdesk journal check`: exit 1 when SQLite reports a problem.
+pub fn journal_check(ws: &Workspace, json: bool) -> anyhow::Result<i32> {
+    let r = ws.journal.check()?;
+    if json {
+        println!(
+            "{}",
+            serde_json::to_string_pretty(&serde_json::json!({
+                "journal": ws.journal.path(),
+                "ok": r.is_ok(),
+                "problems": r.problems,
+                "schema_version": r.schema_version,
+                "sessions": r.sessions,
+                "reviews": r.reviews,
+                "scores": r.scores,
+                "revisions": r.revisions,
+                "feedback_versions": r.feedback_versions,
+                "feedback_events": r.feedback_events,
+                "rulers": r.rulers,
+            }))?
+        );
+    } else {
+        println!(
+            "{}: {} (schema {}; {} sessions, {} reviews, {} scores, {} revisions, {} feedback versions, {} rulers)",
+            ws.journal.path().display(),
+            if r.is_ok() { "ok" } else { "PROBLEMS" },
+            r.schema_version,
+            r.sessions,
+            r.reviews,
+            r.scores,
+            r.revisions,
+            r.feedback_versions,
+            r.rulers
+        );
+        for p in &r.problems {
+            println!("  {p}");
+        }
+    }
+    Ok(if r.is_ok() { 0 } else { 1 })
+}

@@ -16,17 +16,69 @@ use crate::journal::{BiasInput, PurposeVerdict};
 
 /// Words that usually mean the athlete liked the session.
 pub const POSITIVE_WORDS: &[&str] = &[
-    "great", "good", "strong", "easy", "smooth", "fresh", "relaxed", "comfortable", "fast",
-    "happy", "loved", "love", "best", "solid", "controlled", "fun", "nice", "perfect", "awesome",
-    "light", "confident", "brilliant", "excellent", "pleased", "enjoyed", "flew", "flying",
+    "great",
+    "good",
+    "strong",
+    "easy",
+    "smooth",
+    "fresh",
+    "relaxed",
+    "comfortable",
+    "fast",
+    "happy",
+    "loved",
+    "love",
+    "best",
+    "solid",
+    "controlled",
+    "fun",
+    "nice",
+    "perfect",
+    "awesome",
+    "light",
+    "confident",
+    "brilliant",
+    "excellent",
+    "pleased",
+    "enjoyed",
+    "flew",
+    "flying",
 ];
 
 /// Words that usually mean the athlete did not.
 pub const NEGATIVE_WORDS: &[&str] = &[
-    "awful", "bad", "terrible", "hard", "heavy", "tired", "dead", "sore", "struggled",
-    "struggle", "slow", "hurt", "hurts", "pain", "painful", "horrible", "exhausted", "rough",
-    "weak", "sluggish", "miserable", "worst", "cramp", "cramped", "sick", "dizzy", "rubbish",
-    "disappointed", "flat", "tough", "suffered", "suffering",
+    "awful",
+    "bad",
+    "terrible",
+    "hard",
+    "heavy",
+    "tired",
+    "dead",
+    "sore",
+    "struggled",
+    "struggle",
+    "slow",
+    "hurt",
+    "hurts",
+    "pain",
+    "painful",
+    "horrible",
+    "exhausted",
+    "rough",
+    "weak",
+    "sluggish",
+    "miserable",
+    "worst",
+    "cramp",
+    "cramped",
+    "sick",
+    "dizzy",
+    "rubbish",
+    "disappointed",
+    "flat",
+    "tough",
+    "suffered",
+    "suffering",
 ];
 
 const NEGATIONS: &[&str] = &[
@@ -191,10 +243,7 @@ pub fn report(cases: &[BiasCase]) -> BiasReport {
     }
     BiasReport {
         overall: summarise(&all),
-        athletes: by
-            .into_iter()
-            .map(|(a, cs)| (a, summarise(&cs)))
-            .collect(),
+        athletes: by.into_iter().map(|(a, cs)| (a, summarise(&cs))).collect(),
     }
 }
 

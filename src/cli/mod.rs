@@ -130,9 +130,7 @@ pub enum Command {
     #[command(subcommand)]
     Journal(JournalCommand),
     /// Print shell completions (bash, zsh, fish, elvish, powershell).
-    Completions {
-        shell: clap_complete::Shell,
-    },
+    Completions { shell: clap_complete::Shell },
     /// Print the man page (roff) generated from this command line.
     Man,
 }

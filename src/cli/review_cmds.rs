@@ -149,9 +149,10 @@ pub fn grade(
 ) -> anyhow::Result<i32> {
     ws.refresh(id, Utc::now())?;
     let verdict = match verdict {
-        Some(v) => Some(PurposeVerdict::parse(v).with_context(|| {
-            format!("--verdict {v:?}: expected met, partly or missed")
-        })?),
+        Some(v) => Some(
+            PurposeVerdict::parse(v)
+                .with_context(|| format!("--verdict {v:?}: expected met, partly or missed"))?,
+        ),
         None => None,
     };
     for &(n, s) in scores {
@@ -175,7 +176,11 @@ pub fn grade(
         println!(
             "{id}: {}; scores {}; verdict {}",
             out.stage,
-            if scores.is_empty() { "none".into() } else { scores.join(" ") },
+            if scores.is_empty() {
+                "none".into()
+            } else {
+                scores.join(" ")
+            },
             match (out.blind_verdict, out.verdict) {
                 (Some(b), Some(v)) if b != v => format!("{b}→{v}"),
                 (_, Some(v)) => v.to_string(),
@@ -291,8 +296,8 @@ pub fn feedback(
         FeedbackAction::Draft => draft_for(ws, id)?,
         FeedbackAction::Show => current_feedback(ws, id)?.0,
         FeedbackAction::Set(path) => {
-            let text = std::fs::read_to_string(&path)
-                .with_context(|| path.display().to_string())?;
+            let text =
+                std::fs::read_to_string(&path).with_context(|| path.display().to_string())?;
             ws.journal.save_feedback(id, &text, Utc::now())?;
             text
         }
@@ -542,7 +547,11 @@ pub fn bias_check(ws: &mut Workspace, athlete: Option<&str>, json: bool) -> anyh
 /// `splitdesk journal backup FILE`.
 pub fn journal_backup(ws: &Workspace, dest: &Path) -> anyhow::Result<i32> {
     ws.journal.backup_to(dest)?;
-    println!("{}: backup of {} written", dest.display(), ws.journal.path().display());
+    println!(
+        "{}: backup of {} written",
+        dest.display(),
+        ws.journal.path().display()
+    );
     Ok(0)
 }
 

@@ -1,0 +1,303 @@
+//! The daily review from the shell, end to end through the real binary on a tiny roster:
+//! queue, blind grading, notes, revisions, feedback, exports, bias check, journal upkeep.
+
+mod roster_support;
+
+use assert_cmd::Command;
+use roster_support::{write_roster, EASY_ID, NOTE_MARKER, REPS_ID};
+
+struct Env {
+    _dir: tempfile::TempDir,
+    roster: std::path::PathBuf,
+    journal: std::path::PathBuf,
+}
+
+fn env() -> Env {
+    let dir = tempfile::tempdir().unwrap();
+    let roster = dir.path().join("roster");
+    write_roster(&roster);
+    let journal = dir.path().join("coach/journal.sqlite");
+    Env {
+        _dir: dir,
+        roster,
+        journal,
+    }
+}
+
+impl Env {
+    fn run(&self, args: &[&str]) -> (i32, String, String) {
+        let out = Command::cargo_bin("splitdesk")
+            .unwrap()
+            .env("SPLITDESK_CONFIG", "/nonexistent/config.toml")
+            .env("EDITOR", "true")
+            .arg("--roster")
+            .arg(&self.roster)
+            .arg("--journal")
+            .arg(&self.journal)
+            .args(args)
+            .output()
+            .unwrap();
+        (
+            out.status.code().unwrap_or(-1),
+            String::from_utf8_lossy(&out.stdout).into_owned(),
+            String::from_utf8_lossy(&out.stderr).into_owned(),
+        )
+    }
+
+    fn ok(&self, args: &[&str]) -> String {
+        let (code, out, err) = self.run(args);
+        assert_eq!(code, 0, "{args:?}: {err}");
+        out
+    }
+}
+
+fn work_count(env: &Env) -> usize {
+    let out = env.ok(&[
+        "analyze",
+        env.roster
+            .join("tova-renn/activities/2026-11-03-reps.fit")
+            .to_str()
+            .unwrap(),
+        "--json",
+    ]);
+    let v: serde_json::Value = serde_json::from_str(&out).unwrap();
+    v["intervals"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .filter(|i| i["kind"] == "work")
+        .count()
+}
+
+#[test]
+fn queue_is_oldest_first_and_shows_plan_titles() {
+    let e = env();
+    let v: serde_json::Value = serde_json::from_str(&e.ok(&["queue", "--json"])).unwrap();
+    let rows = v.as_array().unwrap();
+    assert_eq!(rows.len(), 2);
+    assert_eq!(rows[0]["session"], EASY_ID);
+    assert_eq!(rows[1]["session"], REPS_ID);
+    assert_eq!(rows[1]["title"], "5k-pace repeats");
+    assert_eq!(rows[1]["stage"], "new");
+    // the journal lives where we said, never inside the roster
+    assert!(e.journal.exists());
+    assert!(!walk_has_sqlite(&e.roster));
+}
+
+fn walk_has_sqlite(dir: &std::path::Path) -> bool {
+    std::fs::read_dir(dir).unwrap().flatten().any(|x| {
+        let p = x.path();
+        if p.is_dir() {
+            walk_has_sqlite(&p)
+        } else {
+            p.extension().is_some_and(|e| e == "sqlite")
+        }
+    })
+}
+
+#[test]
+fn notes_stay_hidden_from_every_command_until_grading_is_complete() {
+    let e = env();
+    let n = work_count(&e);
+    assert_eq!(n, 5, "the plan has five repeats");
+    let check_hidden = |e: &Env| {
+        for args in [
+            vec!["queue"],
+            vec!["queue", "--json"],
+            vec!["feedback", REPS_ID],
+            vec!["feedback", REPS_ID, "--draft", "--json"],
+            vec!["export", "feedback", "--format", "json"],
+            vec!["export", "intervals", "--csv"],
+            vec!["bias-check", "--json"],
+        ] {
+            let (_, out, err) = e.run(&args);
+            assert!(
+                !out.contains(NOTE_MARKER) && !err.contains(NOTE_MARKER),
+                "{args:?} leaked the note"
+            );
+        }
+        let (code, out, err) = e.run(&["notes", REPS_ID]);
+        assert_eq!(code, 3);
+        assert!(out.is_empty());
+        assert!(!err.contains(NOTE_MARKER));
+        assert_eq!(err.lines().count(), 1, "{err}");
+        err
+    };
+    let err = check_hidden(&e);
+    assert!(
+        err.contains("scores missing for work intervals 1, 2, 3, 4, 5"),
+        "{err}"
+    );
+    assert!(err.contains("purpose verdict not set"), "{err}");
+
+    e.ok(&[
+        "grade", REPS_ID, "--score", "1=4", "--score", "2=4", "--score", "3=3",
+    ]);
+    let err = check_hidden(&e);
+    assert!(
+        err.contains("scores missing for work intervals 4, 5"),
+        "{err}"
+    );
+    e.ok(&["grade", REPS_ID, "--score", "4=3", "--score", "5=2"]);
+    let err = check_hidden(&e);
+    assert!(
+        err.contains("purpose verdict not set") && !err.contains("scores missing"),
+        "{err}"
+    );
+    // feedback cannot be saved before the reveal
+    let (code, _, err) = e.run(&["feedback", REPS_ID, "--edit"]);
+    assert_ne!(code, 0);
+    assert!(err.contains("after the reveal"), "{err}");
+
+    e.ok(&["grade", REPS_ID, "--verdict", "partly"]);
+    let note = e.ok(&["notes", REPS_ID]);
+    assert!(note.contains(NOTE_MARKER), "{note}");
+    assert!(note.starts_with("Felt awful"));
+}
+
+#[test]
+fn revision_after_reveal_keeps_the_blind_grade_and_bias_check_reports_it() {
+    let e = env();
+    e.ok(&[
+        "grade",
+        REPS_ID,
+        "--score",
+        "1=4",
+        "--score",
+        "2=4",
+        "--score",
+        "3=4",
+        "--score",
+        "4=4",
+        "--score",
+        "5=4",
+        "--verdict",
+        "met",
+    ]);
+    e.ok(&["notes", REPS_ID]);
+    // the note says "awful": the coach marks two reps down after reading it
+    let v: serde_json::Value = serde_json::from_str(&e.ok(&[
+        "grade", REPS_ID, "--score", "4=2", "--score", "5=3", "--json",
+    ]))
+    .unwrap();
+    assert_eq!(v["blind_scores"]["4"], 4);
+    assert_eq!(v["scores"]["4"], 2);
+    assert_eq!(v["scores"]["5"], 3);
+    assert_eq!(v["revisions"], 2);
+    assert_eq!(v["stage"], "revealed");
+
+    let b: serde_json::Value = serde_json::from_str(&e.ok(&["bias-check", "--json"])).unwrap();
+    assert_eq!(b["overall"]["reviews"], 1);
+    assert_eq!(b["overall"]["changed"], 1);
+    assert_eq!(b["overall"]["mean_shift"], -3.0);
+    assert_eq!(b["overall"]["with_tone"], 1, "down after a negative note");
+    assert_eq!(b["athletes"]["tova-renn"]["changed"], 1);
+}
+
+#[test]
+fn feedback_export_and_interval_csv() {
+    let e = env();
+    let args: Vec<String> = (1..=5).map(|k| format!("{k}=4")).collect();
+    let mut grade = vec!["grade", REPS_ID, "--verdict", "met"];
+    for a in &args {
+        grade.push("--score");
+        grade.push(a);
+    }
+    e.ok(&grade);
+    e.ok(&["notes", REPS_ID]);
+    let draft = e.ok(&["feedback", REPS_ID, "--draft"]);
+    assert!(draft.starts_with("Hi Tova,"), "{draft}");
+    assert!(draft.contains("5k-pace repeats"));
+    assert!(draft.contains("Next time:"));
+    assert!(
+        draft.contains("/km"),
+        "paces in the athlete's units: {draft}"
+    );
+
+    let dir = tempfile::tempdir().unwrap();
+    let f = dir.path().join("fb.txt");
+    std::fs::write(&f, "Great work today, Tova.\n").unwrap();
+    e.ok(&["feedback", REPS_ID, "--set", f.to_str().unwrap()]);
+    assert_eq!(e.ok(&["feedback", REPS_ID]), "Great work today, Tova.\n");
+
+    let text = e.ok(&["export", "feedback", "--date", "2026-11-03"]);
+    assert_eq!(
+        text.matches("To Tova Renn").count(),
+        1,
+        "one block per session: {text}"
+    );
+    assert!(text.contains("Great work today"));
+    let md = e.ok(&[
+        "export",
+        "feedback",
+        "--athlete",
+        "tova-renn",
+        "--format",
+        "md",
+    ]);
+    assert!(md.starts_with("## Tova Renn"), "{md}");
+    // exported: the session now counts as feedback done
+    let q: serde_json::Value = serde_json::from_str(&e.ok(&["queue", "--json"])).unwrap();
+    assert_eq!(q.as_array().unwrap().len(), 1, "only the easy run is left");
+
+    // CSV parses with the csv crate and round-trips the analysis numbers
+    let csv_text = e.ok(&["export", "intervals", "--csv"]);
+    let mut rdr = csv::Reader::from_reader(csv_text.as_bytes());
+    let headers = rdr.headers().unwrap().clone();
+    let rows: Vec<csv::StringRecord> = rdr.records().map(|r| r.unwrap()).collect();
+    let col = |name: &str| headers.iter().position(|h| h == name).unwrap();
+    let analysis: serde_json::Value = serde_json::from_str(
+        &e.ok(&[
+            "analyze",
+            e.roster
+                .join("tova-renn/activities/2026-11-03-reps.fit")
+                .to_str()
+                .unwrap(),
+            "--json",
+        ]),
+    )
+    .unwrap();
+    let reps: Vec<&csv::StringRecord> = rows
+        .iter()
+        .filter(|r| &r[col("session")] == REPS_ID)
+        .collect();
+    let ivs = analysis["intervals"].as_array().unwrap();
+    assert_eq!(reps.len(), ivs.len());
+    for (r, iv) in reps.iter().zip(ivs) {
+        let pace: f64 = r[col("avg_pace_s_per_km")].parse().unwrap();
+        assert!((pace - iv["avg_pace_s_per_km"].as_f64().unwrap()).abs() < 1e-3);
+        if iv["kind"] == "work" {
+            assert_eq!(&r[col("blind_score")], "4");
+        }
+    }
+}
+
+#[test]
+fn journal_check_and_backup() {
+    let e = env();
+    let v: serde_json::Value =
+        serde_json::from_str(&e.ok(&["journal", "check", "--json"])).unwrap();
+    assert_eq!(v["ok"], true);
+    assert_eq!(v["sessions"], 2);
+    let dir = tempfile::tempdir().unwrap();
+    let copy = dir.path().join("copy.sqlite");
+    e.ok(&["journal", "backup", copy.to_str().unwrap()]);
+    assert!(splitdesk::journal::Journal::open(&copy).is_ok());
+    // never overwrites
+    let (code, _, err) = e.run(&["journal", "backup", copy.to_str().unwrap()]);
+    assert_eq!(code, 2);
+    assert!(err.contains("already exists"), "{err}");
+}
+
+#[test]
+fn completions_and_man_page_come_from_the_cli_definition() {
+    let e = env();
+    let bash = e.ok(&["completions", "bash"]);
+    assert!(bash.contains("splitdesk") && bash.contains("bias-check"));
+    let man = e.ok(&["man"]);
+    assert!(
+        man.contains(".TH splitdesk"),
+        "{}",
+        &man[..200.min(man.len())]
+    );
+}

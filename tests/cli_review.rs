@@ -301,3 +301,51 @@ fn completions_and_man_page_come_from_the_cli_definition() {
         &man[..200.min(man.len())]
     );
 }
+
+#[test]
+fn chart_export_as_svg_and_png_with_rulers() {
+    let e = env();
+    e.ok(&["queue"]); // creates the journal and records the sessions
+    {
+        let mut j = splitdesk::journal::Journal::open(&e.journal).unwrap();
+        let now = chrono::Utc::now();
+        j.add_ruler(REPS_ID, 60.0, 600.0, now).unwrap();
+        j.add_ruler(REPS_ID, 900.0, 1500.0, now).unwrap();
+    }
+    let dir = tempfile::tempdir().unwrap();
+    let svg = dir.path().join("c.svg");
+    let out = e.ok(&["export", "chart", REPS_ID, "--out", svg.to_str().unwrap()]);
+    assert!(out.contains("2 rulers"), "{out}");
+    // Source: quick-xml (crates.io), a general-purpose XML reader: the SVG is well-formed.
+    let text = std::fs::read_to_string(&svg).unwrap();
+    let mut reader = quick_xml::Reader::from_str(&text);
+    let (mut elements, mut rulers) = (0, 0);
+    loop {
+        match reader.read_event().unwrap() {
+            quick_xml::events::Event::Eof => break,
+            quick_xml::events::Event::Start(x) | quick_xml::events::Event::Empty(x) => {
+                elements += 1;
+                if x.attributes()
+                    .flatten()
+                    .any(|a| a.key.as_ref() == b"class" && a.value.as_ref() == b"ruler")
+                {
+                    rulers += 1;
+                }
+            }
+            _ => {}
+        }
+    }
+    assert!(elements > 20);
+    assert_eq!(rulers, 4, "pace and HR line for each of two rulers");
+    assert!(text.contains("ruler 1:") && text.contains("ruler 2:"));
+
+    let png = dir.path().join("c.png");
+    e.ok(&["export", "chart", REPS_ID, "--out", png.to_str().unwrap()]);
+    // Source: the `image` crate (crates.io), an independent PNG decoder.
+    let img = image::open(&png).unwrap();
+    assert_eq!((img.width(), img.height()), (1200, 520));
+
+    let (code, _, err) = e.run(&["export", "chart", REPS_ID, "--out", "x.jpg"]);
+    assert_eq!(code, 2);
+    assert!(err.contains(".svg or .png"), "{err}");
+}

@@ -8,6 +8,7 @@ pub mod intervals;
 pub mod load;
 pub mod race;
 pub mod review;
+pub mod ruler;
 pub mod sampling;
 pub mod summary;
 pub mod trend;

@@ -161,6 +161,14 @@ pub enum ExportCommand {
         #[arg(long, required = true)]
         csv: bool,
     },
+    /// The session's pace and HR traces with interval bands and the coach's rulers.
+    Chart {
+        /// Session id: <athlete-id>/<activity-file-stem>.
+        session: String,
+        /// Output file: .svg or .png.
+        #[arg(long, value_name = "FILE")]
+        out: PathBuf,
+    },
 }
 
 #[derive(Debug, Subcommand)]
@@ -297,6 +305,9 @@ fn run_with_journal(
                 since: since.map(|d| rc::parse_date("--since", &d)).transpose()?,
             };
             rc::export_intervals(&mut ws, &filter)
+        }
+        Command::Export(ExportCommand::Chart { session, out }) => {
+            rc::export_chart(&mut ws, &session, &out)
         }
         Command::BiasCheck { athlete, json } => rc::bias_check(&mut ws, athlete.as_deref(), json),
         Command::Journal(JournalCommand::Backup { file }) => rc::journal_backup(&ws, &file),

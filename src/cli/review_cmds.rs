@@ -503,6 +503,46 @@ pub fn export_intervals(ws: &mut Workspace, filter: &Filter) -> anyhow::Result<i
     Ok(0)
 }
 
+/// Chart size for `export chart`, pixels (PNG) or user units (SVG).
+pub const CHART_SIZE: (u32, u32) = (1200, 520);
+
+/// `splitdesk export chart SESSION --out FILE.svg|FILE.png`.
+pub fn export_chart(ws: &mut Workspace, id: &str, out: &Path) -> anyhow::Result<i32> {
+    let ext = out
+        .extension()
+        .and_then(|e| e.to_str())
+        .map(str::to_ascii_lowercase);
+    if !matches!(ext.as_deref(), Some("svg") | Some("png")) {
+        bail!("{}: the chart is written as .svg or .png", out.display());
+    }
+    let (athlete, act) = ws.find(id)?;
+    let (athlete, act) = (athlete.clone(), act.clone());
+    let analysed = crate::workspace::analyse_activity(&athlete, &act)?;
+    ws.record(&analysed, Utc::now())?;
+    let rulers: Vec<(f64, f64)> = ws
+        .journal
+        .rulers(id)?
+        .iter()
+        .map(|r| (r.from_s, r.to_s))
+        .collect();
+    let model = crate::export::chart::model(
+        &analysed.session,
+        &analysed.review,
+        &rulers,
+        athlete.profile.units,
+    );
+    let (w, h) = CHART_SIZE;
+    let bytes = if ext.as_deref() == Some("svg") {
+        crate::export::chart::svg(&model, w, h).into_bytes()
+    } else {
+        crate::export::chart::png(&model, w, h)
+            .map_err(|e| anyhow::anyhow!("{}: {e}", out.display()))?
+    };
+    std::fs::write(out, bytes).with_context(|| out.display().to_string())?;
+    println!("{}: chart of {id} ({} rulers)", out.display(), rulers.len());
+    Ok(0)
+}
+
 /// `splitdesk bias-check [--athlete A] [--json]`.
 pub fn bias_check(ws: &mut Workspace, athlete: Option<&str>, json: bool) -> anyhow::Result<i32> {
     let mut cases = Vec::new();

@@ -31,7 +31,7 @@ pub const STRUCTURE_MIN_GAP_MPS: f64 = 0.4;
 /// smoothed speed) are raised to it before the fast/slow threshold is chosen, so that a
 /// standing or walking recovery does not pull the threshold down between itself and the
 /// jog. Our design choice.
-pub const FLOOR_OF_FAST: f64 = 0.6;
+pub const FLOOR_OF_FAST: f64 = 0.75;
 
 /// Quantile of the smoothed speed taken as the fast reference. Our design choice: reps are
 /// more than 5 % of a session's time.
@@ -59,6 +59,12 @@ pub const LEVEL_SKIP_S: f64 = 6.0;
 /// (who reaches a new pace within 5-10 s) and in line with recorded reps: the boundary is
 /// put this much before the midpoint crossing.
 pub const CHANGE_LAG_S: f64 = 2.0;
+
+/// A fast stretch must average at least this fraction of the level gap above the
+/// threshold, a slow one as far below it; others are dips inside a rep (a hill, a surge
+/// easing off) or pick-ups inside a jog, and are merged into their neighbours. Our design
+/// choice (the dual threshold of hysteresis, applied to whole stretches).
+pub const CONFIRM: f64 = 0.25;
 
 /// Histogram bin for the threshold and quantile, m/s.
 const BIN_MPS: f64 = 0.02;
@@ -186,6 +192,8 @@ pub(crate) fn detect(trace: &Trace) -> Detection {
     }
     let mut runs = runs_of(&class);
     merge_short(&mut runs, trace);
+    confirm(&mut runs, trace, &smooth, threshold, CONFIRM * (hi - lo));
+    merge_short(&mut runs, trace);
     if !runs.iter().any(|r| r.fast) || !runs.iter().any(|r| !r.fast) {
         return Detection {
             runs: Vec::new(),
@@ -239,25 +247,90 @@ fn merge_short(runs: &mut Vec<Run>, trace: &Trace) {
         if d >= MIN_RUN_S {
             return;
         }
-        // Flip run k: it joins its neighbours.
-        let Some(&r) = runs.get(k) else { return };
-        let start = if k > 0 {
-            runs.get(k - 1).map_or(r.start, |p| p.start)
-        } else {
-            r.start
-        };
-        let end = runs.get(k + 1).map_or(r.end, |x| x.end);
-        let lo = k.saturating_sub(1);
-        let hi = (k + 1).min(runs.len() - 1);
-        runs.splice(
-            lo..=hi,
-            [Run {
-                fast: !r.fast,
-                start,
-                end,
-            }],
-        );
+        flip(runs, k);
     }
+}
+
+/// Merge stretches whose mean smoothed speed does not clear the threshold by `margin`
+/// (the worst first, until all clear). Prefix sums keep each mean O(1).
+fn confirm(runs: &mut Vec<Run>, trace: &Trace, smooth: &[f64], threshold: f64, margin: f64) {
+    let mut ps = Vec::with_capacity(smooth.len() + 1);
+    let mut pw = Vec::with_capacity(smooth.len() + 1);
+    let (mut a, mut b) = (0.0, 0.0);
+    ps.push(0.0);
+    pw.push(0.0);
+    for (i, v) in smooth.iter().enumerate() {
+        let w = trace.w.get(i).copied().unwrap_or(0.0).max(1e-3);
+        a += v * w;
+        b += w;
+        ps.push(a);
+        pw.push(b);
+    }
+    // Mean over the run's core: [`LEVEL_SKIP_S`] left out at each end (the pace is still
+    // changing there), unless that leaves nothing.
+    let mean = |r: &Run| -> f64 {
+        let (t0, t1) = (trace.time(r.start), trace.time(r.end));
+        let (mut lo, mut hi) = (r.start, r.end + 1);
+        if t1 - t0 > 3.0 * LEVEL_SKIP_S {
+            lo = trace.t.partition_point(|&x| x < t0 + LEVEL_SKIP_S).max(r.start);
+            hi = trace.t.partition_point(|&x| x <= t1 - LEVEL_SKIP_S).min(r.end + 1);
+            if hi <= lo {
+                (lo, hi) = (r.start, r.end + 1);
+            }
+        }
+        let s = ps.get(hi).copied().unwrap_or(0.0) - ps.get(lo).copied().unwrap_or(0.0);
+        let w = pw.get(hi).copied().unwrap_or(0.0) - pw.get(lo).copied().unwrap_or(0.0);
+        if w > 0.0 {
+            s / w
+        } else {
+            threshold
+        }
+    };
+    loop {
+        if runs.len() < 2 {
+            return;
+        }
+        // Shortfall: how far a run's mean falls short of clearing the threshold by `margin`.
+        let worst = runs
+            .iter()
+            .enumerate()
+            .map(|(k, r)| {
+                let m = mean(r);
+                let short = if r.fast {
+                    threshold + margin - m
+                } else {
+                    m - (threshold - margin)
+                };
+                (k, short)
+            })
+            .max_by(|x, y| x.1.total_cmp(&y.1));
+        let Some((k, short)) = worst else { return };
+        if short <= 0.0 {
+            return;
+        }
+        flip(runs, k);
+    }
+}
+
+/// Flip run `k`: it joins its neighbours into one run.
+fn flip(runs: &mut Vec<Run>, k: usize) {
+    let Some(&r) = runs.get(k) else { return };
+    let start = if k > 0 {
+        runs.get(k - 1).map_or(r.start, |p| p.start)
+    } else {
+        r.start
+    };
+    let end = runs.get(k + 1).map_or(r.end, |x| x.end);
+    let lo = k.saturating_sub(1);
+    let hi = (k + 1).min(runs.len() - 1);
+    runs.splice(
+        lo..=hi,
+        [Run {
+            fast: !r.fast,
+            start,
+            end,
+        }],
+    );
 }
 
 /// Place every boundary to the sample (see [`refine_one`]).

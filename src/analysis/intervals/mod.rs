@@ -69,6 +69,8 @@ use crate::model::{
     Amount, AthleteProfile, ExpectedInterval, Interval, IntervalSet, IntervalSource, Plan,
     RecoveryMode, SegmentKind, Session,
 };
+pub use trace::{hill_factor, DOWNHILL_FACTOR_FLOOR, HILL_EXPONENT};
+
 use align::Fast;
 use trace::Trace;
 

@@ -15,7 +15,7 @@ pub const REFINE_HALF_WINDOW_S: f64 = 2.0;
 /// Shortest fast or slow stretch kept, seconds; shorter ones are merged into their
 /// neighbours. Our design choice: below the shortest rep or recovery coaches set (about
 /// 15 s), above the length of a surge or a GPS wobble that survives smoothing.
-pub const MIN_RUN_S: f64 = 12.0;
+pub const MIN_RUN_S: f64 = 8.0;
 
 /// The fast level must exceed the slow level by this factor for the session to have a
 /// work/recovery structure. Common coaching practice (no published source): a rep is run
@@ -60,11 +60,16 @@ pub const LEVEL_SKIP_S: f64 = 6.0;
 /// put this much before the midpoint crossing.
 pub const CHANGE_LAG_S: f64 = 2.0;
 
-/// A fast stretch must average at least this fraction of the level gap above the
+/// A fast stretch must average (lightly smoothed, its first and last [`LEVEL_SKIP_S`] left
+/// out) at least this fraction of the level gap above the
 /// threshold, a slow one as far below it; others are dips inside a rep (a hill, a surge
 /// easing off) or pick-ups inside a jog, and are merged into their neighbours. Our design
 /// choice (the dual threshold of hysteresis, applied to whole stretches).
-pub const CONFIRM: f64 = 0.25;
+pub const CONFIRM: f64 = 0.2;
+
+/// With a plan, the fast/slow threshold stays this fraction below the slowest planned work
+/// target. Our design choice: reps are run within a few per cent of target.
+pub const WORK_TARGET_MARGIN: f64 = 0.07;
 
 /// Histogram bin for the threshold and quantile, m/s.
 const BIN_MPS: f64 = 0.02;
@@ -123,7 +128,7 @@ fn quantile(vals: &[f64], w: &[f64], q: f64) -> f64 {
 
 /// Otsu's threshold (maximum between-class variance) of a time-weighted sample, with the
 /// means of the two classes. `None` when all values fall in one bin.
-fn otsu(vals: &[f64], w: &[f64]) -> Option<(f64, f64, f64)> {
+fn otsu(vals: &[f64], w: &[f64], max_threshold: f64) -> Option<(f64, f64, f64)> {
     let h = histogram(vals, w);
     let total: f64 = h.iter().sum();
     let total_m: f64 = h.iter().enumerate().map(|(b, x)| x * bin_centre(b)).sum();
@@ -139,6 +144,9 @@ fn otsu(vals: &[f64], w: &[f64]) -> Option<(f64, f64, f64)> {
         if w0 <= 0.0 || w1 <= 1e-9 {
             continue;
         }
+        if (b as f64 + 1.0) * BIN_MPS > max_threshold {
+            break;
+        }
         let (mu0, mu1) = (m0 / w0, (total_m - m0) / w1);
         let var = w0 * w1 * (mu1 - mu0).powi(2);
         if best.is_none_or(|bb| var > bb.0) {
@@ -148,9 +156,10 @@ fn otsu(vals: &[f64], w: &[f64]) -> Option<(f64, f64, f64)> {
     best.map(|(_, th, lo, hi)| (th, lo, hi))
 }
 
-/// Classify, clean and refine. `force_structure` skips the structure test (used when a plan
-/// asks for work segments; the ratio test still applies, at a lower bar).
-pub(crate) fn detect(trace: &Trace) -> Detection {
+/// Classify, clean and refine. With a plan, `slowest_work` is the slowest planned work
+/// target (m/s): the threshold stays [`WORK_TARGET_MARGIN`] below it, so a rep at marathon
+/// pace next to one at 5-km pace is not taken for a recovery.
+pub(crate) fn detect(trace: &Trace, slowest_work: Option<f64>) -> Detection {
     let n = trace.len();
     let smooth = window_mean(&trace.t, &trace.adj, &trace.w, CLASSIFY_HALF_WINDOW_S);
     let valid_w: Vec<f64> = (0..n)
@@ -165,7 +174,8 @@ pub(crate) fn detect(trace: &Trace) -> Detection {
     let fast_ref = quantile(&smooth, &valid_w, FAST_QUANTILE);
     let floor = FLOOR_OF_FAST * fast_ref;
     let floored: Vec<f64> = smooth.iter().map(|v| v.max(floor)).collect();
-    let Some((threshold, lo, hi)) = otsu(&floored, &valid_w) else {
+    let max_threshold = slowest_work.map_or(f64::INFINITY, |v| v * (1.0 - WORK_TARGET_MARGIN));
+    let Some((threshold, lo, hi)) = otsu(&floored, &valid_w, max_threshold) else {
         return Detection {
             runs: Vec::new(),
             levels: (fast_ref, fast_ref),
@@ -192,7 +202,8 @@ pub(crate) fn detect(trace: &Trace) -> Detection {
     }
     let mut runs = runs_of(&class);
     merge_short(&mut runs, trace);
-    confirm(&mut runs, trace, &smooth, threshold, CONFIRM * (hi - lo));
+    let light = light_trace(trace);
+    confirm(&mut runs, trace, &light, threshold, CONFIRM * (hi - lo));
     merge_short(&mut runs, trace);
     if !runs.iter().any(|r| r.fast) || !runs.iter().any(|r| !r.fast) {
         return Detection {

@@ -58,7 +58,7 @@ pub use align::{
 pub use detect::{
     CHANGE_LAG_S, CLASSIFY_HALF_WINDOW_S, FAST_QUANTILE, FLOOR_OF_FAST, HYSTERESIS,
     LEVEL_SKIP_S, LEVEL_SPAN_S, MIN_RUN_S, REFINE_HALF_WINDOW_S, REFINE_SEARCH_S,
-    STRUCTURE_MIN_GAP_MPS, STRUCTURE_RATIO,
+    STRUCTURE_MIN_GAP_MPS, STRUCTURE_RATIO, WORK_TARGET_MARGIN, CONFIRM,
 };
 pub use laps::{
     AUTO_LAP_DISTANCES_M, AUTO_LAP_SHARE, AUTO_LAP_TOLERANCE, LAP_PACE_RATIO, LAP_TOLERANCE,
@@ -187,7 +187,13 @@ pub fn find_intervals(
     }
 
     // 2. Detection from the speed.
-    let det = detect::detect(&trace);
+    let slowest_work = expected
+        .iter()
+        .filter(|e| e.kind == SegmentKind::Work)
+        .map(|e| e.target.centre_speed(profile))
+        .collect::<Option<Vec<f64>>>()
+        .and_then(|v| v.into_iter().min_by(f64::total_cmp));
+    let det = detect::detect(&trace, slowest_work);
     let runs: Vec<(usize, usize, bool)> = det.runs.iter().map(|r| (r.start, r.end, r.fast)).collect();
     let Some(plan) = plan else {
         if runs.is_empty() {
@@ -199,7 +205,6 @@ pub fn find_intervals(
         }
         return set;
     };
-    let _ = plan;
     if !expected.iter().any(|e| e.kind == SegmentKind::Work) {
         let pieces = proportional(&expected, &trace);
         set.notes
@@ -466,12 +471,18 @@ fn aligned_pieces(
         let next = (k + 1..runs.len()).find_map(|q| cover.get(q).and_then(|c| c.first().copied()));
         let lo = prev.map_or(0, |p| p + 1);
         let hi = next.unwrap_or(expected.len());
-        let candidate = (lo..hi).find(|&i| {
-            expected.get(i).is_some_and(|e| e.kind != SegmentKind::Work)
-                && !used.get(i).copied().unwrap_or(true)
-        });
         let any_fast_before = runs.iter().take(k).any(|r| r.2);
         let any_fast_after = runs.iter().skip(k + 1).any(|r| r.2);
+        let free = |i: &usize| {
+            expected.get(*i).is_some_and(|e| e.kind != SegmentKind::Work)
+                && !used.get(*i).copied().unwrap_or(true)
+        };
+        // The last slow stretch takes the last planned one (the cool-down), others the first.
+        let candidate = if any_fast_after {
+            (lo..hi).find(free)
+        } else {
+            (lo..hi).rev().find(free)
+        };
         let (kind, planned_mode) = match candidate.and_then(|i| expected.get(i)) {
             Some(e) => (e.kind, e.mode),
             None if !any_fast_before => (SegmentKind::Warmup, None),

@@ -158,7 +158,10 @@ fn a_missing_rep_is_reported() {
     // Warm-up and cool-down still matched.
     assert_eq!(set.intervals[0].expected, Some(0));
     assert_eq!(set.intervals.last().unwrap().kind, SegmentKind::Cooldown);
-    assert_eq!(set.intervals.last().unwrap().expected, Some(expected.len() - 1));
+    assert_eq!(
+        set.intervals.last().unwrap().expected,
+        Some(expected.len() - 1)
+    );
 }
 
 #[test]
@@ -173,15 +176,27 @@ fn an_extra_rep_is_reported() {
     let extra = &set.intervals[set.extra[0]];
     assert_eq!(extra.kind, SegmentKind::Work);
     assert_eq!(extra.expected, None);
-    assert!(set.missing.is_empty() || set.missing.iter().all(|&i| six.expand()[i].kind != SegmentKind::Work));
+    assert!(
+        set.missing.is_empty()
+            || set
+                .missing
+                .iter()
+                .all(|&i| six.expand()[i].kind != SegmentKind::Work)
+    );
 }
 
 #[test]
 fn without_a_plan_the_set_is_inferred() {
     for (line, mode) in [
         (SIX, RecoveryMode::Jog),
-        ("10:00 easy; 8 x 1:00 @ 5k / 1:00 walk; 8:00 easy", RecoveryMode::Walk),
-        ("10:00 easy; 6 x 2:00 @ 5k / 1:00 stand; 8:00 easy", RecoveryMode::Stand),
+        (
+            "10:00 easy; 8 x 1:00 @ 5k / 1:00 walk; 8:00 easy",
+            RecoveryMode::Walk,
+        ),
+        (
+            "10:00 easy; 6 x 2:00 @ 5k / 1:00 stand; 8:00 easy",
+            RecoveryMode::Stand,
+        ),
     ] {
         let out = run(line, 6);
         let s = without_laps(out.session);
@@ -255,8 +270,18 @@ fn back_to_back_work_segments_are_split() {
     assert_eq!(set.work().count(), 8, "{:?}", kinds(&set));
     assert!(set.missing.is_empty(), "{:?}", set.missing);
     for (w, t) in set.work().zip(out.truth.work()) {
-        assert!((w.start_s - t.start_s).abs() <= 5.0, "{} vs {}", w.start_s, t.start_s);
-        assert!((w.end_s - t.end_s).abs() <= 5.0, "{} vs {}", w.end_s, t.end_s);
+        assert!(
+            (w.start_s - t.start_s).abs() <= 5.0,
+            "{} vs {}",
+            w.start_s,
+            t.start_s
+        );
+        assert!(
+            (w.end_s - t.end_s).abs() <= 5.0,
+            "{} vs {}",
+            w.end_s,
+            t.end_s
+        );
     }
 }
 
@@ -285,7 +310,18 @@ fn empty_and_tiny_sessions() {
     let mut s = out.session.clone();
     s.t.truncate(1);
     s.time.truncate(1);
-    for ch in [&mut s.distance, &mut s.speed, &mut s.hr, &mut s.cadence, &mut s.altitude, &mut s.lat, &mut s.lon].into_iter().flatten() {
+    for ch in [
+        &mut s.distance,
+        &mut s.speed,
+        &mut s.hr,
+        &mut s.cadence,
+        &mut s.altitude,
+        &mut s.lat,
+        &mut s.lon,
+    ]
+    .into_iter()
+    .flatten()
+    {
         ch.values.truncate(1);
     }
     let set = find_intervals(&s, Some(&plan(SIX)), &profile());

@@ -10,7 +10,7 @@ use sim_support::profile;
 use splitdesk::analysis::intervals::find_intervals;
 use splitdesk::demo::simulate::{simulate, Faults, Pacing, Sampling, SimInput, Terrain};
 use splitdesk::ingest::clean;
-use splitdesk::model::{IntervalSet, Plan, SegmentKind};
+use splitdesk::model::{IntervalSet, Plan};
 use splitdesk::plan::parse_line;
 
 /// Boundary tolerance for a found rep, seconds (the issue's acceptance bar).
@@ -67,22 +67,55 @@ fn rolling() -> Terrain {
 
 fn cases() -> Vec<Case> {
     let lines: &[(&str, &'static str)] = &[
-        ("6x3min 5k jog", "10:00 easy; 6 x 3:00 @ 5k / 2:00 jog; 8:00 easy"),
-        ("5x4min 10k jog", "10:00 easy; 5 x 4:00 @ 10k / 1:30 jog; 8:00 easy"),
-        ("10x400 jog200", "10:00 easy; 10 x 400m @ 5k / 200m jog; 8:00 easy"),
-        ("5x1km 10k", "12:00 easy; 5 x 1km @ 10k / 2:00 jog; 8:00 easy"),
-        ("8x1min walk", "10:00 easy; 8 x 1:00 @ 5k / 1:00 walk; 8:00 easy"),
-        ("12x30s stand", "10:00 easy; 12 x 0:30 @ 5k / 0:45 stand; 8:00 easy"),
-        ("3x8min threshold", "10:00 easy; 3 x 8:00 @ threshold / 2:00 jog; 8:00 easy"),
-        ("4x6min marathon", "10:00 easy; 4 x 6:00 @ marathon / 1:30 jog; 8:00 easy"),
-        ("6x2min stand", "10:00 easy; 6 x 2:00 @ 5k / 1:00 stand; 8:00 easy"),
+        (
+            "6x3min 5k jog",
+            "10:00 easy; 6 x 3:00 @ 5k / 2:00 jog; 8:00 easy",
+        ),
+        (
+            "5x4min 10k jog",
+            "10:00 easy; 5 x 4:00 @ 10k / 1:30 jog; 8:00 easy",
+        ),
+        (
+            "10x400 jog200",
+            "10:00 easy; 10 x 400m @ 5k / 200m jog; 8:00 easy",
+        ),
+        (
+            "5x1km 10k",
+            "12:00 easy; 5 x 1km @ 10k / 2:00 jog; 8:00 easy",
+        ),
+        (
+            "8x1min walk",
+            "10:00 easy; 8 x 1:00 @ 5k / 1:00 walk; 8:00 easy",
+        ),
+        (
+            "12x30s stand",
+            "10:00 easy; 12 x 0:30 @ 5k / 0:45 stand; 8:00 easy",
+        ),
+        (
+            "3x8min threshold",
+            "10:00 easy; 3 x 8:00 @ threshold / 2:00 jog; 8:00 easy",
+        ),
+        (
+            "4x6min marathon",
+            "10:00 easy; 4 x 6:00 @ marathon / 1:30 jog; 8:00 easy",
+        ),
+        (
+            "6x2min stand",
+            "10:00 easy; 6 x 2:00 @ 5k / 1:00 stand; 8:00 easy",
+        ),
         (
             "pyramid",
             "10:00 easy; 1:00 @ 5k; 1:00 jog; 2:00 @ 5k; 1:00 jog; 3:00 @ 10k; 1:30 jog; \
              2:00 @ 5k; 1:00 jog; 1:00 @ 5k; 8:00 easy",
         ),
-        ("2x2km threshold", "12:00 easy; 2 x 2km @ threshold / 3:00 jog; 10:00 easy"),
-        ("12x200 walk", "10:00 easy; 12 x 200m @ 5k / 200m walk; 8:00 easy"),
+        (
+            "2x2km threshold",
+            "12:00 easy; 2 x 2km @ threshold / 3:00 jog; 10:00 easy",
+        ),
+        (
+            "12x200 walk",
+            "10:00 easy; 12 x 200m @ 5k / 200m walk; 8:00 easy",
+        ),
     ];
     let mut out = Vec::new();
     let mut seed = 100;
@@ -112,10 +145,26 @@ fn cases() -> Vec<Case> {
     }
     // Hill repeats.
     for (name, line, grade) in [
-        ("hill 8x1min", "10:00 easy; 8 x 1:00 @ 5k / 1:30 jog; 8:00 easy", 0.06),
-        ("hill 6x90s", "10:00 easy; 6 x 1:30 @ 5k / 2:00 jog; 8:00 easy", 0.08),
-        ("hill 10x45s", "10:00 easy; 10 x 0:45 @ 5k / 1:15 jog; 8:00 easy", 0.05),
-        ("hill 5x2min walk", "10:00 easy; 5 x 2:00 @ 10k / 2:30 walk; 8:00 easy", 0.07),
+        (
+            "hill 8x1min",
+            "10:00 easy; 8 x 1:00 @ 5k / 1:30 jog; 8:00 easy",
+            0.06,
+        ),
+        (
+            "hill 6x90s",
+            "10:00 easy; 6 x 1:30 @ 5k / 2:00 jog; 8:00 easy",
+            0.08,
+        ),
+        (
+            "hill 10x45s",
+            "10:00 easy; 10 x 0:45 @ 5k / 1:15 jog; 8:00 easy",
+            0.05,
+        ),
+        (
+            "hill 5x2min walk",
+            "10:00 easy; 5 x 2:00 @ 10k / 2:30 walk; 8:00 easy",
+            0.07,
+        ),
     ] {
         let mut c = case(name, line, seed);
         c.terrain = Terrain::Hill { grade };
@@ -204,7 +253,10 @@ fn detection_matches_the_truth() {
                         ));
                     }
                 }
-                None => failures.push(format!("{}: true {:.0}-{:.0} not found", c.name, tw.0, tw.1)),
+                None => failures.push(format!(
+                    "{}: true {:.0}-{:.0} not found",
+                    c.name, tw.0, tw.1
+                )),
             }
         }
         for &m in &mine {

@@ -113,7 +113,10 @@ pub(crate) fn align(
             if j > 0 {
                 for g in 1..=MAX_GROUP.min(a) {
                     let first = a - g;
-                    let idx: Vec<usize> = work.get(first..a).map(<[usize]>::to_vec).unwrap_or_default();
+                    let idx: Vec<usize> = work
+                        .get(first..a)
+                        .map(<[usize]>::to_vec)
+                        .unwrap_or_default();
                     // Back-to-back in the plan: consecutive expanded indices.
                     if idx.windows(2).any(|p| p[1] != p[0] + 1) {
                         break;
@@ -129,8 +132,8 @@ pub(crate) fn align(
                 }
             }
             if j > 0 {
-                let total = cost.get(at(a, j - 1)).copied().unwrap_or(f64::INFINITY)
-                    + SKIP_DETECTED_COST;
+                let total =
+                    cost.get(at(a, j - 1)).copied().unwrap_or(f64::INFINITY) + SKIP_DETECTED_COST;
                 if total < best.0 - 1e-12 {
                     best = (total, Move::SkipDetected);
                 }
@@ -138,8 +141,8 @@ pub(crate) fn align(
             if a > 0 {
                 // `<=`: on a tie, skip the later planned rep (backtracking from the end
                 // meets it first).
-                let total = cost.get(at(a - 1, j)).copied().unwrap_or(f64::INFINITY)
-                    + SKIP_EXPECTED_COST;
+                let total =
+                    cost.get(at(a - 1, j)).copied().unwrap_or(f64::INFINITY) + SKIP_EXPECTED_COST;
                 if total <= best.0 + 1e-12 {
                     best = (total, Move::SkipExpected);
                 }

@@ -13,8 +13,9 @@ pub const CLASSIFY_HALF_WINDOW_S: f64 = 5.0;
 pub const REFINE_HALF_WINDOW_S: f64 = 2.0;
 
 /// Shortest fast or slow stretch kept, seconds; shorter ones are merged into their
-/// neighbours. Our design choice: below the shortest rep or recovery coaches set (about
-/// 15 s), above the length of a surge or a GPS wobble that survives smoothing.
+/// neighbours. Our design choice: well below the shortest rep or recovery coaches set
+/// (about 15 s; a 30-s rep clears the hysteresis for only 10-20 s of the 10-s smoothed
+/// trace); surges and GPS wobbles longer than this are removed by [`CONFIRM`].
 pub const MIN_RUN_S: f64 = 8.0;
 
 /// The fast level must exceed the slow level by this factor for the session to have a
@@ -87,8 +88,6 @@ pub(crate) struct Run {
 pub(crate) struct Detection {
     /// Contiguous runs covering the session; empty when the session has no structure.
     pub runs: Vec<Run>,
-    /// Slow and fast levels (means of the two classes of the floored, smoothed speed), m/s.
-    pub levels: (f64, f64),
 }
 
 /// Time-weighted histogram over `[0, max]` with [`BIN_MPS`] bins.
@@ -176,17 +175,10 @@ pub(crate) fn detect(trace: &Trace, slowest_work: Option<f64>) -> Detection {
     let floored: Vec<f64> = smooth.iter().map(|v| v.max(floor)).collect();
     let max_threshold = slowest_work.map_or(f64::INFINITY, |v| v * (1.0 - WORK_TARGET_MARGIN));
     let Some((threshold, lo, hi)) = otsu(&floored, &valid_w, max_threshold) else {
-        return Detection {
-            runs: Vec::new(),
-            levels: (fast_ref, fast_ref),
-        };
+        return Detection { runs: Vec::new() };
     };
-    let levels = (lo, hi);
     if n < 3 || hi < STRUCTURE_RATIO * lo || hi - lo < STRUCTURE_MIN_GAP_MPS {
-        return Detection {
-            runs: Vec::new(),
-            levels,
-        };
+        return Detection { runs: Vec::new() };
     }
     let band = HYSTERESIS * (hi - lo);
     // Hysteresis classification.
@@ -206,13 +198,10 @@ pub(crate) fn detect(trace: &Trace, slowest_work: Option<f64>) -> Detection {
     confirm(&mut runs, trace, &light, threshold, CONFIRM * (hi - lo));
     merge_short(&mut runs, trace);
     if !runs.iter().any(|r| r.fast) || !runs.iter().any(|r| !r.fast) {
-        return Detection {
-            runs: Vec::new(),
-            levels,
-        };
+        return Detection { runs: Vec::new() };
     }
     refine(&mut runs, trace);
-    Detection { runs, levels }
+    Detection { runs }
 }
 
 /// Runs of equal class; consecutive runs share their boundary sample (the first sample of
@@ -283,8 +272,14 @@ fn confirm(runs: &mut Vec<Run>, trace: &Trace, smooth: &[f64], threshold: f64, m
         let (t0, t1) = (trace.time(r.start), trace.time(r.end));
         let (mut lo, mut hi) = (r.start, r.end + 1);
         if t1 - t0 > 3.0 * LEVEL_SKIP_S {
-            lo = trace.t.partition_point(|&x| x < t0 + LEVEL_SKIP_S).max(r.start);
-            hi = trace.t.partition_point(|&x| x <= t1 - LEVEL_SKIP_S).min(r.end + 1);
+            lo = trace
+                .t
+                .partition_point(|&x| x < t0 + LEVEL_SKIP_S)
+                .max(r.start);
+            hi = trace
+                .t
+                .partition_point(|&x| x <= t1 - LEVEL_SKIP_S)
+                .min(r.end + 1);
             if hi <= lo {
                 (lo, hi) = (r.start, r.end + 1);
             }

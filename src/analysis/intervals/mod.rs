@@ -10,18 +10,24 @@
 //!    (the widest gap between lap paces at least 15 %, fast laps never back to back) and
 //!    are not auto-laps (most laps the same distance, such as every kilometre or mile).
 //!    Lap starts snap to the nearest sample.
-//! 2. Otherwise the **speed signal** is used: hill-adjusted speed (Minetti et al. 2002, J
-//!    Appl Physiol 93:1039; see [`crate::analysis::gradient`]) with flagged speed samples
-//!    removed ([`crate::ingest::clean::sample_mask`]), smoothed with a 10-s centred,
-//!    time-weighted window (so irregular "smart" sampling keeps its time span). A fast and a
-//!    slow level come from Otsu's threshold on that trace, after speeds below 60 % of the
-//!    95th percentile are raised to that floor (a standing or walking recovery would
-//!    otherwise pull the threshold between itself and the jog). Samples are classified
-//!    with hysteresis around the threshold, stretches under 12 s merged into their
-//!    neighbours, and each boundary refined to the sample: the split within ±15 s that puts
-//!    the most time on the correct side of the midpoint between the local levels either
-//!    side (a step fit with fixed levels), with the crossing interpolated and moved 2 s
-//!    earlier for the time a runner takes to change pace.
+//! 2. Otherwise the **speed signal** is used: hill-adjusted speed with flagged speed
+//!    samples removed ([`crate::ingest::clean::sample_mask`]; the gaps are interpolated in
+//!    time), smoothed with a 10-s centred, time-weighted window (so irregular "smart"
+//!    sampling keeps its time span). The hill adjustment uses the Minetti et al. 2002 cost
+//!    of gradient (J Appl Physiol 93:1039; [`crate::analysis::gradient`]) to a partial power
+//!    with a floor on descents ([`hill_factor`]): runners hold neither pace nor metabolic
+//!    power on hills, and the full correction makes an easy climb look like a rep. A fast
+//!    and a slow level come from Otsu's threshold on that trace, after speeds below 75 %
+//!    of its 95th percentile are raised to that floor (a standing or walking recovery
+//!    would otherwise pull the threshold between itself and the warm-up); with a plan the
+//!    threshold stays 7 % below the slowest planned work target. Samples are classified
+//!    with hysteresis around the threshold; stretches under 8 s are merged into their
+//!    neighbours, and so are stretches whose core mean does not clear the threshold by a
+//!    fifth of the level gap (a dip inside a rep, a pick-up inside a jog). Each boundary is
+//!    then refined to the sample: the split within ±15 s that puts the most time on the
+//!    correct side of the midpoint between the local levels either side (a step fit with
+//!    fixed levels), the crossing interpolated and moved 2 s earlier for the time a runner
+//!    takes to change pace.
 //!
 //!    We chose two-level classification over a general change-point search (PELT, binary
 //!    segmentation on the mean) because a workout *is* two-level at the resolution that
@@ -56,9 +62,9 @@ pub use align::{
     AMOUNT_WEIGHT, GAP_WEIGHT, MAX_GROUP, SKIP_DETECTED_COST, SKIP_EXPECTED_COST, SPEED_WEIGHT,
 };
 pub use detect::{
-    CHANGE_LAG_S, CLASSIFY_HALF_WINDOW_S, FAST_QUANTILE, FLOOR_OF_FAST, HYSTERESIS,
+    CHANGE_LAG_S, CLASSIFY_HALF_WINDOW_S, CONFIRM, FAST_QUANTILE, FLOOR_OF_FAST, HYSTERESIS,
     LEVEL_SKIP_S, LEVEL_SPAN_S, MIN_RUN_S, REFINE_HALF_WINDOW_S, REFINE_SEARCH_S,
-    STRUCTURE_MIN_GAP_MPS, STRUCTURE_RATIO, WORK_TARGET_MARGIN, CONFIRM,
+    STRUCTURE_MIN_GAP_MPS, STRUCTURE_RATIO, WORK_TARGET_MARGIN,
 };
 pub use laps::{
     AUTO_LAP_DISTANCES_M, AUTO_LAP_SHARE, AUTO_LAP_TOLERANCE, LAP_PACE_RATIO, LAP_TOLERANCE,
@@ -139,7 +145,7 @@ pub fn find_intervals(
             .push("no speed or distance: the intervals could not be found".into());
         set.missing = (0..expected.len()).collect();
         set.intervals = build(
-            &trace_free_t(session),
+            &session.t,
             &[single(n, SegmentKind::Steady)],
             IntervalSource::Detected,
         );
@@ -181,7 +187,11 @@ pub fn find_intervals(
                 .map(|(w, &f)| (w[0], w[1], f))
                 .collect();
             set.notes.push("device laps split the pace".into());
-            set.intervals = build(&trace.t, &label_inferred(&runs, &trace), IntervalSource::DeviceLap);
+            set.intervals = build(
+                &trace.t,
+                &label_inferred(&runs, &trace),
+                IntervalSource::DeviceLap,
+            );
             return set;
         }
     }
@@ -194,17 +204,26 @@ pub fn find_intervals(
         .collect::<Option<Vec<f64>>>()
         .and_then(|v| v.into_iter().min_by(f64::total_cmp));
     let det = detect::detect(&trace, slowest_work);
-    let runs: Vec<(usize, usize, bool)> = det.runs.iter().map(|r| (r.start, r.end, r.fast)).collect();
-    let Some(plan) = plan else {
+    let runs: Vec<(usize, usize, bool)> =
+        det.runs.iter().map(|r| (r.start, r.end, r.fast)).collect();
+    if plan.is_none() {
         if runs.is_empty() {
             set.notes
                 .push("no clear change of pace: one steady interval".into());
-            set.intervals = build(&trace.t, &[single(n, SegmentKind::Steady)], IntervalSource::Detected);
+            set.intervals = build(
+                &trace.t,
+                &[single(n, SegmentKind::Steady)],
+                IntervalSource::Detected,
+            );
         } else {
-            set.intervals = build(&trace.t, &label_inferred(&runs, &trace), IntervalSource::Detected);
+            set.intervals = build(
+                &trace.t,
+                &label_inferred(&runs, &trace),
+                IntervalSource::Detected,
+            );
         }
         return set;
-    };
+    }
     if !expected.iter().any(|e| e.kind == SegmentKind::Work) {
         let pieces = proportional(&expected, &trace);
         set.notes
@@ -217,7 +236,11 @@ pub fn find_intervals(
         set.notes
             .push("no clear change of pace: no planned work interval was found".into());
         set.missing = (0..expected.len()).collect();
-        set.intervals = build(&trace.t, &[single(n, SegmentKind::Steady)], IntervalSource::Detected);
+        set.intervals = build(
+            &trace.t,
+            &[single(n, SegmentKind::Steady)],
+            IntervalSource::Detected,
+        );
         return set;
     }
     let pieces = aligned_pieces(&runs, &expected, &trace, profile);
@@ -248,10 +271,6 @@ pub fn find_intervals(
         ));
     }
     set
-}
-
-fn trace_free_t(session: &Session) -> Vec<f64> {
-    session.t.clone()
 }
 
 fn single(n: usize, kind: SegmentKind) -> Piece {
@@ -432,7 +451,9 @@ fn aligned_pieces(
             for (c, cut) in cuts.iter_mut().enumerate() {
                 let speeds = (
                     items.get(c).and_then(|e| e.target.centre_speed(profile)),
-                    items.get(c + 1).and_then(|e| e.target.centre_speed(profile)),
+                    items
+                        .get(c + 1)
+                        .and_then(|e| e.target.centre_speed(profile)),
                 );
                 if let (Some(a), Some(b)) = speeds {
                     if (a / b - 1.0).abs() > GROUP_SPLIT_SPEED_DIFF {
@@ -474,7 +495,9 @@ fn aligned_pieces(
         let any_fast_before = runs.iter().take(k).any(|r| r.2);
         let any_fast_after = runs.iter().skip(k + 1).any(|r| r.2);
         let free = |i: &usize| {
-            expected.get(*i).is_some_and(|e| e.kind != SegmentKind::Work)
+            expected
+                .get(*i)
+                .is_some_and(|e| e.kind != SegmentKind::Work)
                 && !used.get(*i).copied().unwrap_or(true)
         };
         // The last slow stretch takes the last planned one (the cool-down), others the first.

@@ -143,7 +143,7 @@ pub(crate) fn align(
                 // meets it first).
                 let total =
                     cost.get(at(a - 1, j)).copied().unwrap_or(f64::INFINITY) + SKIP_EXPECTED_COST;
-                if total < best.0 - 1e-12 {
+                if total <= best.0 + 1e-12 {
                     best = (total, Move::SkipExpected);
                 }
             }

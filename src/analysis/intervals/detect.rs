@@ -13,9 +13,10 @@ pub const CLASSIFY_HALF_WINDOW_S: f64 = 5.0;
 pub const REFINE_HALF_WINDOW_S: f64 = 2.0;
 
 /// Shortest fast or slow stretch kept, seconds; shorter ones are merged into their
-/// neighbours. Our design choice: below the shortest rep or recovery coaches set (about
-/// 15 s), above the length of a surge or a GPS wobble that survives smoothing.
-pub const MIN_RUN_S: f64 = 12.0;
+/// neighbours. Our design choice: well below the shortest rep or recovery coaches set
+/// (about 15 s; a 30-s rep clears the hysteresis for only 10-20 s of the 10-s smoothed
+/// trace); surges and GPS wobbles longer than this are removed by [`CONFIRM`].
+pub const MIN_RUN_S: f64 = 8.0;
 
 /// The fast level must exceed the slow level by this factor for the session to have a
 /// work/recovery structure. Common coaching practice (no published source): a rep is run
@@ -31,7 +32,7 @@ pub const STRUCTURE_MIN_GAP_MPS: f64 = 0.4;
 /// smoothed speed) are raised to it before the fast/slow threshold is chosen, so that a
 /// standing or walking recovery does not pull the threshold down between itself and the
 /// jog. Our design choice.
-pub const FLOOR_OF_FAST: f64 = 0.6;
+pub const FLOOR_OF_FAST: f64 = 0.75;
 
 /// Quantile of the smoothed speed taken as the fast reference. Our design choice: reps are
 /// more than 5 % of a session's time.
@@ -60,6 +61,17 @@ pub const LEVEL_SKIP_S: f64 = 6.0;
 /// put this much before the midpoint crossing.
 pub const CHANGE_LAG_S: f64 = 2.0;
 
+/// A fast stretch must average (lightly smoothed, its first and last [`LEVEL_SKIP_S`] left
+/// out) at least this fraction of the level gap above the
+/// threshold, a slow one as far below it; others are dips inside a rep (a hill, a surge
+/// easing off) or pick-ups inside a jog, and are merged into their neighbours. Our design
+/// choice (the dual threshold of hysteresis, applied to whole stretches).
+pub const CONFIRM: f64 = 0.2;
+
+/// With a plan, the fast/slow threshold stays this fraction below the slowest planned work
+/// target. Our design choice: reps are run within a few per cent of target.
+pub const WORK_TARGET_MARGIN: f64 = 0.07;
+
 /// Histogram bin for the threshold and quantile, m/s.
 const BIN_MPS: f64 = 0.02;
 
@@ -76,8 +88,6 @@ pub(crate) struct Run {
 pub(crate) struct Detection {
     /// Contiguous runs covering the session; empty when the session has no structure.
     pub runs: Vec<Run>,
-    /// Slow and fast levels (means of the two classes of the floored, smoothed speed), m/s.
-    pub levels: (f64, f64),
 }
 
 /// Time-weighted histogram over `[0, max]` with [`BIN_MPS`] bins.
@@ -117,7 +127,7 @@ fn quantile(vals: &[f64], w: &[f64], q: f64) -> f64 {
 
 /// Otsu's threshold (maximum between-class variance) of a time-weighted sample, with the
 /// means of the two classes. `None` when all values fall in one bin.
-fn otsu(vals: &[f64], w: &[f64]) -> Option<(f64, f64, f64)> {
+fn otsu(vals: &[f64], w: &[f64], max_threshold: f64) -> Option<(f64, f64, f64)> {
     let h = histogram(vals, w);
     let total: f64 = h.iter().sum();
     let total_m: f64 = h.iter().enumerate().map(|(b, x)| x * bin_centre(b)).sum();
@@ -133,6 +143,9 @@ fn otsu(vals: &[f64], w: &[f64]) -> Option<(f64, f64, f64)> {
         if w0 <= 0.0 || w1 <= 1e-9 {
             continue;
         }
+        if (b as f64 + 1.0) * BIN_MPS > max_threshold {
+            break;
+        }
         let (mu0, mu1) = (m0 / w0, (total_m - m0) / w1);
         let var = w0 * w1 * (mu1 - mu0).powi(2);
         if best.is_none_or(|bb| var > bb.0) {
@@ -142,9 +155,10 @@ fn otsu(vals: &[f64], w: &[f64]) -> Option<(f64, f64, f64)> {
     best.map(|(_, th, lo, hi)| (th, lo, hi))
 }
 
-/// Classify, clean and refine. `force_structure` skips the structure test (used when a plan
-/// asks for work segments; the ratio test still applies, at a lower bar).
-pub(crate) fn detect(trace: &Trace) -> Detection {
+/// Classify, clean and refine. With a plan, `slowest_work` is the slowest planned work
+/// target (m/s): the threshold stays [`WORK_TARGET_MARGIN`] below it, so a rep at marathon
+/// pace next to one at 5-km pace is not taken for a recovery.
+pub(crate) fn detect(trace: &Trace, slowest_work: Option<f64>) -> Detection {
     let n = trace.len();
     let smooth = window_mean(&trace.t, &trace.adj, &trace.w, CLASSIFY_HALF_WINDOW_S);
     let valid_w: Vec<f64> = (0..n)
@@ -159,18 +173,12 @@ pub(crate) fn detect(trace: &Trace) -> Detection {
     let fast_ref = quantile(&smooth, &valid_w, FAST_QUANTILE);
     let floor = FLOOR_OF_FAST * fast_ref;
     let floored: Vec<f64> = smooth.iter().map(|v| v.max(floor)).collect();
-    let Some((threshold, lo, hi)) = otsu(&floored, &valid_w) else {
-        return Detection {
-            runs: Vec::new(),
-            levels: (fast_ref, fast_ref),
-        };
+    let max_threshold = slowest_work.map_or(f64::INFINITY, |v| v * (1.0 - WORK_TARGET_MARGIN));
+    let Some((threshold, lo, hi)) = otsu(&floored, &valid_w, max_threshold) else {
+        return Detection { runs: Vec::new() };
     };
-    let levels = (lo, hi);
     if n < 3 || hi < STRUCTURE_RATIO * lo || hi - lo < STRUCTURE_MIN_GAP_MPS {
-        return Detection {
-            runs: Vec::new(),
-            levels,
-        };
+        return Detection { runs: Vec::new() };
     }
     let band = HYSTERESIS * (hi - lo);
     // Hysteresis classification.
@@ -186,14 +194,14 @@ pub(crate) fn detect(trace: &Trace) -> Detection {
     }
     let mut runs = runs_of(&class);
     merge_short(&mut runs, trace);
+    let light = light_trace(trace);
+    confirm(&mut runs, trace, &light, threshold, CONFIRM * (hi - lo));
+    merge_short(&mut runs, trace);
     if !runs.iter().any(|r| r.fast) || !runs.iter().any(|r| !r.fast) {
-        return Detection {
-            runs: Vec::new(),
-            levels,
-        };
+        return Detection { runs: Vec::new() };
     }
     refine(&mut runs, trace);
-    Detection { runs, levels }
+    Detection { runs }
 }
 
 /// Runs of equal class; consecutive runs share their boundary sample (the first sample of
@@ -239,25 +247,96 @@ fn merge_short(runs: &mut Vec<Run>, trace: &Trace) {
         if d >= MIN_RUN_S {
             return;
         }
-        // Flip run k: it joins its neighbours.
-        let Some(&r) = runs.get(k) else { return };
-        let start = if k > 0 {
-            runs.get(k - 1).map_or(r.start, |p| p.start)
-        } else {
-            r.start
-        };
-        let end = runs.get(k + 1).map_or(r.end, |x| x.end);
-        let lo = k.saturating_sub(1);
-        let hi = (k + 1).min(runs.len() - 1);
-        runs.splice(
-            lo..=hi,
-            [Run {
-                fast: !r.fast,
-                start,
-                end,
-            }],
-        );
+        flip(runs, k);
     }
+}
+
+/// Merge stretches whose mean smoothed speed does not clear the threshold by `margin`
+/// (the worst first, until all clear). Prefix sums keep each mean O(1).
+fn confirm(runs: &mut Vec<Run>, trace: &Trace, smooth: &[f64], threshold: f64, margin: f64) {
+    let mut ps = Vec::with_capacity(smooth.len() + 1);
+    let mut pw = Vec::with_capacity(smooth.len() + 1);
+    let (mut a, mut b) = (0.0, 0.0);
+    ps.push(0.0);
+    pw.push(0.0);
+    for (i, v) in smooth.iter().enumerate() {
+        let w = trace.w.get(i).copied().unwrap_or(0.0).max(1e-3);
+        a += v * w;
+        b += w;
+        ps.push(a);
+        pw.push(b);
+    }
+    // Mean over the run's core: [`LEVEL_SKIP_S`] left out at each end (the pace is still
+    // changing there), unless that leaves nothing.
+    let mean = |r: &Run| -> f64 {
+        let (t0, t1) = (trace.time(r.start), trace.time(r.end));
+        let (mut lo, mut hi) = (r.start, r.end + 1);
+        if t1 - t0 > 3.0 * LEVEL_SKIP_S {
+            lo = trace
+                .t
+                .partition_point(|&x| x < t0 + LEVEL_SKIP_S)
+                .max(r.start);
+            hi = trace
+                .t
+                .partition_point(|&x| x <= t1 - LEVEL_SKIP_S)
+                .min(r.end + 1);
+            if hi <= lo {
+                (lo, hi) = (r.start, r.end + 1);
+            }
+        }
+        let s = ps.get(hi).copied().unwrap_or(0.0) - ps.get(lo).copied().unwrap_or(0.0);
+        let w = pw.get(hi).copied().unwrap_or(0.0) - pw.get(lo).copied().unwrap_or(0.0);
+        if w > 0.0 {
+            s / w
+        } else {
+            threshold
+        }
+    };
+    loop {
+        if runs.len() < 2 {
+            return;
+        }
+        // Shortfall: how far a run's mean falls short of clearing the threshold by `margin`.
+        let worst = runs
+            .iter()
+            .enumerate()
+            .map(|(k, r)| {
+                let m = mean(r);
+                let short = if r.fast {
+                    threshold + margin - m
+                } else {
+                    m - (threshold - margin)
+                };
+                (k, short)
+            })
+            .max_by(|x, y| x.1.total_cmp(&y.1));
+        let Some((k, short)) = worst else { return };
+        if short <= 0.0 {
+            return;
+        }
+        flip(runs, k);
+    }
+}
+
+/// Flip run `k`: it joins its neighbours into one run.
+fn flip(runs: &mut Vec<Run>, k: usize) {
+    let Some(&r) = runs.get(k) else { return };
+    let start = if k > 0 {
+        runs.get(k - 1).map_or(r.start, |p| p.start)
+    } else {
+        r.start
+    };
+    let end = runs.get(k + 1).map_or(r.end, |x| x.end);
+    let lo = k.saturating_sub(1);
+    let hi = (k + 1).min(runs.len() - 1);
+    runs.splice(
+        lo..=hi,
+        [Run {
+            fast: !r.fast,
+            start,
+            end,
+        }],
+    );
 }
 
 /// Place every boundary to the sample (see [`refine_one`]).

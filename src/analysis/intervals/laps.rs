@@ -113,13 +113,6 @@ pub(crate) fn are_auto_laps(bounds: &[usize], trace: &Trace) -> bool {
 /// Share of equal-distance laps that marks auto-laps. Our design choice.
 pub const AUTO_LAP_SHARE: f64 = 0.75;
 
-/// True when `d` is about a kilometre or a mile (for the notes).
-pub(crate) fn is_standard_auto_distance(d: f64) -> bool {
-    AUTO_LAP_DISTANCES_M
-        .iter()
-        .any(|&x| (d - x).abs() <= AUTO_LAP_TOLERANCE * x)
-}
-
 /// Without a plan: the laps split the session into fast and slow laps by a clear margin,
 /// with at least one slow lap between fast ones. Returns which laps are fast.
 pub(crate) fn pace_split(bounds: &[usize], trace: &Trace) -> Option<Vec<bool>> {

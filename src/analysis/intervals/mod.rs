@@ -10,18 +10,24 @@
 //!    (the widest gap between lap paces at least 15 %, fast laps never back to back) and
 //!    are not auto-laps (most laps the same distance, such as every kilometre or mile).
 //!    Lap starts snap to the nearest sample.
-//! 2. Otherwise the **speed signal** is used: hill-adjusted speed (Minetti et al. 2002, J
-//!    Appl Physiol 93:1039; see [`crate::analysis::gradient`]) with flagged speed samples
-//!    removed ([`crate::ingest::clean::sample_mask`]), smoothed with a 10-s centred,
-//!    time-weighted window (so irregular "smart" sampling keeps its time span). A fast and a
-//!    slow level come from Otsu's threshold on that trace, after speeds below 60 % of the
-//!    95th percentile are raised to that floor (a standing or walking recovery would
-//!    otherwise pull the threshold between itself and the jog). Samples are classified
-//!    with hysteresis around the threshold, stretches under 12 s merged into their
-//!    neighbours, and each boundary refined to the sample: the split within ±15 s that puts
-//!    the most time on the correct side of the midpoint between the local levels either
-//!    side (a step fit with fixed levels), with the crossing interpolated and moved 2 s
-//!    earlier for the time a runner takes to change pace.
+//! 2. Otherwise the **speed signal** is used: hill-adjusted speed with flagged speed
+//!    samples removed ([`crate::ingest::clean::sample_mask`]; the gaps are interpolated in
+//!    time), smoothed with a 10-s centred, time-weighted window (so irregular "smart"
+//!    sampling keeps its time span). The hill adjustment uses the Minetti et al. 2002 cost
+//!    of gradient (J Appl Physiol 93:1039; [`crate::analysis::gradient`]) to a partial power
+//!    with a floor on descents ([`hill_factor`]): runners hold neither pace nor metabolic
+//!    power on hills, and the full correction makes an easy climb look like a rep. A fast
+//!    and a slow level come from Otsu's threshold on that trace, after speeds below 75 %
+//!    of its 95th percentile are raised to that floor (a standing or walking recovery
+//!    would otherwise pull the threshold between itself and the warm-up); with a plan the
+//!    threshold stays 7 % below the slowest planned work target. Samples are classified
+//!    with hysteresis around the threshold; stretches under 8 s are merged into their
+//!    neighbours, and so are stretches whose core mean does not clear the threshold by a
+//!    fifth of the level gap (a dip inside a rep, a pick-up inside a jog). Each boundary is
+//!    then refined to the sample: the split within ±15 s that puts the most time on the
+//!    correct side of the midpoint between the local levels either side (a step fit with
+//!    fixed levels), the crossing interpolated and moved 2 s earlier for the time a runner
+//!    takes to change pace.
 //!
 //!    We chose two-level classification over a general change-point search (PELT, binary
 //!    segmentation on the mean) because a workout *is* two-level at the resolution that
@@ -56,9 +62,9 @@ pub use align::{
     AMOUNT_WEIGHT, GAP_WEIGHT, MAX_GROUP, SKIP_DETECTED_COST, SKIP_EXPECTED_COST, SPEED_WEIGHT,
 };
 pub use detect::{
-    CHANGE_LAG_S, CLASSIFY_HALF_WINDOW_S, FAST_QUANTILE, FLOOR_OF_FAST, HYSTERESIS, LEVEL_SKIP_S,
-    LEVEL_SPAN_S, MIN_RUN_S, REFINE_HALF_WINDOW_S, REFINE_SEARCH_S, STRUCTURE_MIN_GAP_MPS,
-    STRUCTURE_RATIO,
+    CHANGE_LAG_S, CLASSIFY_HALF_WINDOW_S, CONFIRM, FAST_QUANTILE, FLOOR_OF_FAST, HYSTERESIS,
+    LEVEL_SKIP_S, LEVEL_SPAN_S, MIN_RUN_S, REFINE_HALF_WINDOW_S, REFINE_SEARCH_S,
+    STRUCTURE_MIN_GAP_MPS, STRUCTURE_RATIO, WORK_TARGET_MARGIN,
 };
 pub use laps::{
     AUTO_LAP_DISTANCES_M, AUTO_LAP_SHARE, AUTO_LAP_TOLERANCE, LAP_PACE_RATIO, LAP_TOLERANCE,
@@ -69,6 +75,8 @@ use crate::model::{
     Amount, AthleteProfile, ExpectedInterval, Interval, IntervalSet, IntervalSource, Plan,
     RecoveryMode, SegmentKind, Session,
 };
+pub use trace::{hill_factor, DOWNHILL_FACTOR_FLOOR, HILL_EXPONENT};
+
 use align::Fast;
 use trace::Trace;
 
@@ -137,7 +145,7 @@ pub fn find_intervals(
             .push("no speed or distance: the intervals could not be found".into());
         set.missing = (0..expected.len()).collect();
         set.intervals = build(
-            &trace_free_t(session),
+            &session.t,
             &[single(n, SegmentKind::Steady)],
             IntervalSource::Detected,
         );
@@ -189,10 +197,16 @@ pub fn find_intervals(
     }
 
     // 2. Detection from the speed.
-    let det = detect::detect(&trace);
+    let slowest_work = expected
+        .iter()
+        .filter(|e| e.kind == SegmentKind::Work)
+        .map(|e| e.target.centre_speed(profile))
+        .collect::<Option<Vec<f64>>>()
+        .and_then(|v| v.into_iter().min_by(f64::total_cmp));
+    let det = detect::detect(&trace, slowest_work);
     let runs: Vec<(usize, usize, bool)> =
         det.runs.iter().map(|r| (r.start, r.end, r.fast)).collect();
-    let Some(plan) = plan else {
+    if plan.is_none() {
         if runs.is_empty() {
             set.notes
                 .push("no clear change of pace: one steady interval".into());
@@ -209,8 +223,7 @@ pub fn find_intervals(
             );
         }
         return set;
-    };
-    let _ = plan;
+    }
     if !expected.iter().any(|e| e.kind == SegmentKind::Work) {
         let pieces = proportional(&expected, &trace);
         set.notes
@@ -258,10 +271,6 @@ pub fn find_intervals(
         ));
     }
     set
-}
-
-fn trace_free_t(session: &Session) -> Vec<f64> {
-    session.t.clone()
 }
 
 fn single(n: usize, kind: SegmentKind) -> Piece {
@@ -483,12 +492,20 @@ fn aligned_pieces(
         let next = (k + 1..runs.len()).find_map(|q| cover.get(q).and_then(|c| c.first().copied()));
         let lo = prev.map_or(0, |p| p + 1);
         let hi = next.unwrap_or(expected.len());
-        let candidate = (lo..hi).find(|&i| {
-            expected.get(i).is_some_and(|e| e.kind != SegmentKind::Work)
-                && !used.get(i).copied().unwrap_or(true)
-        });
         let any_fast_before = runs.iter().take(k).any(|r| r.2);
         let any_fast_after = runs.iter().skip(k + 1).any(|r| r.2);
+        let free = |i: &usize| {
+            expected
+                .get(*i)
+                .is_some_and(|e| e.kind != SegmentKind::Work)
+                && !used.get(*i).copied().unwrap_or(true)
+        };
+        // The last slow stretch takes the last planned one (the cool-down), others the first.
+        let candidate = if any_fast_after {
+            (lo..hi).find(free)
+        } else {
+            (lo..hi).rev().find(free)
+        };
         let (kind, planned_mode) = match candidate.and_then(|i| expected.get(i)) {
             Some(e) => (e.kind, e.mode),
             None if !any_fast_before => (SegmentKind::Warmup, None),

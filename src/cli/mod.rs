@@ -4,6 +4,7 @@
 //! a non-zero exit code; nothing here panics on bad input.
 
 mod check;
+mod demo_cmd;
 mod inspect;
 pub mod plan_cmd;
 mod summary;
@@ -49,6 +50,15 @@ pub enum Command {
     /// Planned workouts.
     #[command(subcommand)]
     Plan(PlanCommand),
+    /// Write the demo roster (an invented club, six invented athletes) into a folder.
+    Demo {
+        /// Output folder: new, empty, or a previous demo roster (which is replaced).
+        #[arg(long, value_name = "DIR")]
+        out: PathBuf,
+        /// Simulation seed; the same seed gives byte-identical files.
+        #[arg(long, default_value_t = crate::demo::scenario::DEFAULT_SEED)]
+        seed: u64,
+    },
 }
 
 #[derive(Debug, Subcommand)]
@@ -88,6 +98,7 @@ pub fn run(cli: Cli) -> anyhow::Result<i32> {
         Some(Command::Plan(PlanCommand::Check { file, line, json })) => {
             plan_cmd::run_check(file.as_deref(), line.as_deref(), json)
         }
+        Some(Command::Demo { out, seed }) => demo_cmd::run(&out, seed),
     }
 }
 

@@ -94,6 +94,10 @@ pub fn activity_bytes(
 ) -> io::Result<Vec<u8>> {
     let input = scenario.sim_input(athlete, session).map_err(invalid)?;
     let mut out = simulate::simulate(&input).session;
+    if let Some(max_c) = session.hr_lag_stretch {
+        let kinds: Vec<_> = input.plan.expand().iter().map(|e| e.kind).collect();
+        super::scenario::effects::stretch_hr_lag(&mut out, &kinds, max_c);
+    }
     if session.note_in_file {
         out.note = session.note_text().map(str::to_string);
     }

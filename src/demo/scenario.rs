@@ -31,9 +31,9 @@
 //! | tobias-wrenfield | 2026-10-29 | 2026-10-29-tempo | misleading note: a strong session the athlete calls awful |
 //! | tobias-wrenfield | 2026-11-05 | 2026-11-05-progression-repeats | treadmill session (no positions, no altitude) |
 //! | tobias-wrenfield | 2026-11-12 | 2026-11-12-tempo | poor execution of the same tempo: too fast early, fades (fatigue 0.5, 17 C) |
-//! | mira-castellan | 2026-10-24 | 2026-10-24-time-trial | badly paced 5 km time trial: surging, then a fade (fatigue 0.6) |
+//! | mira-castellan | 2026-10-24 | 2026-10-24-time-trial | badly paced 5 km time trial: surging, then a fade (fatigue 1.0) |
 //! | mira-castellan | 2026-10-27 | 2026-10-27-intervals | good execution of 6 x 3:00 at 5k pace: fresh, recoveries drop well |
-//! | mira-castellan | 2026-11-17 | 2026-11-17-intervals | poor execution of the same intervals, fatigue 0.9: recovery troughs climb rep to rep, HR lag after each rep lengthens |
+//! | mira-castellan | 2026-11-17 | 2026-11-17-intervals | poor execution of the same intervals, fatigue 0.9: recovery troughs climb rep to rep, HR lag after each rep lengthens (from about 9 s to 20 s) |
 //! | mira-castellan | 2026-11-17 | 2026-11-17-intervals | misleading note: a weak session the athlete calls great |
 //! | mira-castellan | 2026-11-28 | 2026-11-28-time-trial | well-paced 5 km time trial (even pacing) |
 //! | keziah-brandt | 2026-11-01 | 2026-11-01-long-run | long gentle downhill after a 4 km flat start (2.5 % down): negative decoupling |
@@ -49,6 +49,7 @@
 //! The table is kept in step with [`Scenario::planted`] by a unit test.
 
 mod athletes;
+pub(crate) mod effects;
 mod notes;
 
 use chrono::{DateTime, Duration, NaiveDate, TimeZone, Utc};
@@ -207,6 +208,9 @@ pub struct SessionSpec {
     pub note_in_file: bool,
     /// Keep only this fraction of the file's bytes (a damaged file).
     pub truncate_at: Option<f64>,
+    /// Lengthen the HR lag after each work rep, up to this warp (see
+    /// `effects::stretch_hr_lag`); `None` leaves the recording as simulated.
+    pub hr_lag_stretch: Option<f64>,
     /// Planted cases on this session: kind and plain words.
     pub planted: Vec<(PlantedKind, String)>,
 }
@@ -318,6 +322,10 @@ impl SessionSpec {
     }
     fn truncate(&mut self, keep: f64) -> &mut Self {
         self.truncate_at = Some(keep);
+        self
+    }
+    fn stretch_hr_lag(&mut self, max_c: f64) -> &mut Self {
+        self.hr_lag_stretch = Some(max_c);
         self
     }
     fn no_plan(&mut self) -> &mut Self {
@@ -624,6 +632,7 @@ impl Builder {
             note: NoteSpec::Auto,
             note_in_file: false,
             truncate_at: None,
+            hr_lag_stretch: None,
             planted: Vec::new(),
         };
         let i = self.sessions.len();

@@ -175,10 +175,12 @@ fn mira() -> AthleteSpec {
             _ => {
                 b.intervals(w, 1, 6, 180, 90)
                     .fatigue(0.9)
+                    .stretch_hr_lag(0.7)
                     .plant(
                         P::FatiguedIntervals,
                         "poor execution of the same intervals, fatigue 0.9: recovery troughs \
-                         climb rep to rep, HR lag after each rep lengthens",
+                         climb rep to rep, HR lag after each rep lengthens (from about 9 s \
+                         to 20 s)",
                     )
                     .plant(
                         P::NoteOverstates,
@@ -195,10 +197,10 @@ fn mira() -> AthleteSpec {
             1 => {
                 b.time_trial(w, 5, "5km", false)
                     .pacing(Pacing::Surging)
-                    .fatigue(0.6)
+                    .fatigue(1.0)
                     .plant(
                         P::BadlyPacedTimeTrial,
-                        "badly paced 5 km time trial: surging, then a fade (fatigue 0.6)",
+                        "badly paced 5 km time trial: surging, then a fade (fatigue 1.0)",
                     )
                     .note(
                         "ok so i went out with the boys and tried to hang on. kept surging \

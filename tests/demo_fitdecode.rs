@@ -138,7 +138,7 @@ fn the_smart_sampled_file_really_is_irregular() {
     let max = gaps.iter().copied().fold(0.0, f64::max);
     let ones = gaps.iter().filter(|g| **g == 1.0).count();
     assert!(
-        max <= 7.0 && max >= 5.0,
+        (5.0..=7.0).contains(&max),
         "{}: max gap {max}",
         path.display()
     );

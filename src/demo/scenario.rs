@@ -33,7 +33,7 @@
 //! | tobias-wrenfield | 2026-11-12 | 2026-11-12-tempo | poor execution of the same tempo: too fast early, fades (fatigue 0.5, 17 C) |
 //! | mira-castellan | 2026-10-24 | 2026-10-24-time-trial | badly paced 5 km time trial: surging, then a fade (fatigue 1.0) |
 //! | mira-castellan | 2026-10-27 | 2026-10-27-intervals | good execution of 6 x 3:00 at 5k pace: fresh, recoveries drop well |
-//! | mira-castellan | 2026-11-17 | 2026-11-17-intervals | poor execution of the same intervals, fatigue 0.9: recovery troughs climb rep to rep, HR lag after each rep lengthens (from about 9 s to 20 s) |
+//! | mira-castellan | 2026-11-17 | 2026-11-17-intervals | poor execution of the same intervals, fatigue 0.9: recovery troughs climb rep to rep, HR lag after each rep lengthens (to about 20 s by the last reps; the simulator's fatigue does not do this, so the recorded HR after each rep is slowed a little more every rep, see `effects`) |
 //! | mira-castellan | 2026-11-17 | 2026-11-17-intervals | misleading note: a weak session the athlete calls great |
 //! | mira-castellan | 2026-11-28 | 2026-11-28-time-trial | well-paced 5 km time trial (even pacing) |
 //! | keziah-brandt | 2026-11-01 | 2026-11-01-long-run | long gentle downhill after a 4 km flat start (2.5 % down): negative decoupling |

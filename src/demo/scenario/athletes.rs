@@ -179,8 +179,8 @@ fn mira() -> AthleteSpec {
                     .plant(
                         P::FatiguedIntervals,
                         "poor execution of the same intervals, fatigue 0.9: recovery troughs \
-                         climb rep to rep, HR lag after each rep lengthens (from about 9 s \
-                         to 20 s)",
+                         climb rep to rep, HR lag after each rep lengthens (to about 20 s \
+                         by the last reps)",
                     )
                     .plant(
                         P::NoteOverstates,

@@ -5,6 +5,7 @@
 
 mod analyze;
 mod check;
+mod demo_cmd;
 mod inspect;
 pub mod plan_cmd;
 mod review_cmds;
@@ -131,6 +132,15 @@ pub enum Command {
     Journal(JournalCommand),
     /// Print shell completions (bash, zsh, fish, elvish, powershell).
     Completions { shell: clap_complete::Shell },
+    /// Write the demo roster (an invented club, six invented athletes) into a folder.
+    Demo {
+        /// Output folder: new, empty, or a previous demo roster (which is replaced).
+        #[arg(long, value_name = "DIR")]
+        out: PathBuf,
+        /// Simulation seed; the same seed gives byte-identical files.
+        #[arg(long, default_value_t = crate::demo::scenario::DEFAULT_SEED)]
+        seed: u64,
+    },
     /// Print the man page (roff) generated from this command line.
     Man,
 }
@@ -237,6 +247,7 @@ pub fn run(cli: Cli) -> anyhow::Result<i32> {
             clap_complete::generate(shell, &mut cmd, "splitdesk", &mut std::io::stdout());
             Ok(0)
         }
+        Some(Command::Demo { out, seed }) => demo_cmd::run(&out, seed),
         Some(Command::Man) => {
             let cmd = <Cli as clap::CommandFactory>::command();
             clap_mangen::Man::new(cmd).render(&mut std::io::stdout())?;

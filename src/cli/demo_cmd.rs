@@ -1,0 +1,74 @@
+//! `splitdesk demo --out DIR [--seed N]`: write the demo roster.
+//!
+//! The folder must be new, empty, or a previous demo roster (its `roster.toml` starts with
+//! [`roster_writer::MARKER`]); a previous demo roster's athlete folders and `roster.toml` are
+//! removed first so no stale file survives. Anything else is refused in one line, exit 2.
+
+use std::path::Path;
+
+use crate::demo::roster_writer;
+use crate::demo::scenario::Scenario;
+
+/// Write the roster; returns the exit code.
+pub fn run(out: &Path, seed: u64) -> anyhow::Result<i32> {
+    match std::fs::metadata(out) {
+        Ok(meta) if !meta.is_dir() => {
+            eprintln!("error: {}: not a folder", out.display());
+            return Ok(2);
+        }
+        Ok(_) => {
+            let entries: Vec<_> = std::fs::read_dir(out)
+                .map_err(|e| anyhow::anyhow!("{}: {e}", out.display()))?
+                .filter_map(Result::ok)
+                .map(|e| e.path())
+                .collect();
+            if !entries.is_empty() {
+                if !roster_writer::is_demo_roster(out) {
+                    eprintln!(
+                        "error: {}: folder is not empty and is not a demo roster; \
+                         give a new or empty folder",
+                        out.display()
+                    );
+                    return Ok(2);
+                }
+                remove_previous_demo(&entries)?;
+            }
+        }
+        Err(e) if e.kind() == std::io::ErrorKind::NotFound => {}
+        Err(e) => anyhow::bail!("{}: {e}", out.display()),
+    }
+    let scenario = Scenario::build(seed);
+    let s = roster_writer::write_roster(&scenario, out)
+        .map_err(|e| anyhow::anyhow!("{}: {e}", out.display()))?;
+    println!(
+        "{}: {} ({}), {} athletes, {} sessions ({} FIT, {} TCX, {} GPX), {} plans, {} notes, \
+         {:.1} MB, seed {seed}",
+        out.display(),
+        scenario.club,
+        scenario.place,
+        s.athletes,
+        s.sessions,
+        s.fit,
+        s.tcx,
+        s.gpx,
+        s.plans,
+        s.notes,
+        s.bytes as f64 / 1e6,
+    );
+    Ok(0)
+}
+
+/// Remove what a previous demo run wrote: `roster.toml` and every athlete folder.
+fn remove_previous_demo(entries: &[std::path::PathBuf]) -> anyhow::Result<()> {
+    for path in entries {
+        let result = if path.is_dir() && path.join("athlete.toml").is_file() {
+            std::fs::remove_dir_all(path)
+        } else if path.file_name().is_some_and(|n| n == "roster.toml") {
+            std::fs::remove_file(path)
+        } else {
+            continue;
+        };
+        result.map_err(|e| anyhow::anyhow!("{}: {e}", path.display()))?;
+    }
+    Ok(())
+}

@@ -57,6 +57,11 @@ pub const LONG_HR_LAG_S: f64 = 20.0;
 // Common coaching practice (no published source): our threshold for "clearly more downhill".
 pub const DOWNHILL_EXPLAINS_M: f64 = 15.0;
 
+/// Variation of 30-s split speeds above which a long effort counts as unevenly paced, %.
+// Common coaching practice (no published source): GPS noise and ordinary pacing error
+// give 1-3 % on a well-run effort.
+pub const UNEVEN_PACING_PCT: f64 = 4.0;
+
 /// A 60-s HR drop at or below this is shown as information (Cole et al. 1999 clinical
 /// threshold, NEJM 341:1351, measured in a treadmill test, not on a field run).
 pub const COLE_HRR_BPM: f64 = 12.0;
@@ -212,15 +217,53 @@ pub(crate) fn findings(
             },
         )
         .count();
-    if work.len() >= 2 && fades * 2 > work.len() {
-        out.push(f(
-            Severity::Note,
-            "fade_within",
-            format!(
+    if !work.is_empty() && fades * 2 > work.len() {
+        let text = match (
+            work.len(),
+            work.first()
+                .and_then(|m| m.first_half_pace_s_per_km.zip(m.second_half_pace_s_per_km)),
+        ) {
+            (1, Some((a, b))) => format!(
+                "The effort slowed by {:.0} % in its second half ({} then {}): started too fast?",
+                (b / a - 1.0) * 100.0,
+                format_pace(1000.0 / a, u),
+                format_pace(1000.0 / b, u)
+            ),
+            _ => format!(
                 "{fades} of {} work intervals slowed by more than 3 % in their second half: started too fast?",
                 work.len()
             ),
+        };
+        out.push(f(
+            Severity::Note,
+            "fade_within",
+            text,
             vec!["intervals[].second_half_pace_s_per_km".into()],
+        ));
+    }
+    let uneven: Vec<String> = work
+        .iter()
+        .filter_map(|m| {
+            let v = m.pace_variability_pct?;
+            (v > UNEVEN_PACING_PCT).then(|| {
+                if work.len() == 1 {
+                    format!("{v:.1} %")
+                } else {
+                    format!("rep {} {v:.1} %", m.work_number.unwrap_or(0))
+                }
+            })
+        })
+        .collect();
+    if !uneven.is_empty() {
+        out.push(f(
+            Severity::Note,
+            "uneven_pacing",
+            format!(
+                "Uneven pacing: 30-s splits varied by {} (surges and slow-downs; even running \
+                 usually stays under {UNEVEN_PACING_PCT:.0} %).",
+                uneven.join(", ")
+            ),
+            vec!["intervals[].pace_variability_pct".into()],
         ));
     }
 
@@ -412,7 +455,8 @@ pub(crate) fn findings(
             vec!["hill_adjusted".into()],
         ));
     }
-    if r.decoupling_pct.is_none()
+    if steady_session
+        && r.decoupling_pct.is_none()
         && session.hr.is_some()
         && whole.analysed_s < super::review::MIN_DECOUPLING_S
     {

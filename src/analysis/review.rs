@@ -64,6 +64,14 @@ pub const HR_SMOOTHING_HALF_S: f64 = 5.0;
 // Our design choice: about the size of sensor noise once smoothed.
 pub const PEAK_PLATEAU_BPM: f64 = 0.5;
 
+/// Pace variability is reported for work intervals at least this long, seconds.
+// Common coaching practice (no published source).
+pub const MIN_VARIABILITY_S: f64 = 300.0;
+
+/// Length of the splits whose mean speeds give the pace variability, seconds.
+// Common coaching practice (no published source).
+pub const VARIABILITY_SPLIT_S: f64 = 30.0;
+
 /// Half-width of the centred window that smooths speed for time-in-target, seconds.
 // Our design choice: GPS speed jitters by several percent from second to second.
 pub const TARGET_SMOOTHING_HALF_S: f64 = 5.0;
@@ -124,6 +132,9 @@ pub struct IntervalMetrics {
     pub first_half_pace_s_per_km: Option<f64>,
     pub second_half_pace_s_per_km: Option<f64>,
     pub decoupling_pct: Option<f64>,
+    /// Work intervals of 5 min or more: coefficient of variation of the 30-s mean
+    /// (hill-adjusted) speeds, percent. Surges and fades raise it; even pacing keeps it low.
+    pub pace_variability_pct: Option<f64>,
     /// The plan's target in words, in the athlete's units.
     pub target: Option<String>,
     /// Target band as speeds (slow, fast), m/s, when it is a pace target.
@@ -602,6 +613,13 @@ fn one_interval(
     } else {
         None
     };
+    let variability = if iv.kind == SegmentKind::Work && iv.duration_s() >= MIN_VARIABILITY_S {
+        s.adj
+            .as_deref()
+            .and_then(|v| split_variability(s, v, a, b, VARIABILITY_SPLIT_S))
+    } else {
+        None
+    };
     let target_band = target.and_then(|t| t.speed_band(profile));
     let target_hr = match target {
         Some(Target::HrRange { low_bpm, high_bpm }) => Some((*low_bpm, *high_bpm)),
@@ -673,12 +691,49 @@ fn one_interval(
         first_half_pace_s_per_km: half_pace(a, mid),
         second_half_pace_s_per_km: half_pace(mid, b),
         decoupling_pct: decoupling,
+        pace_variability_pct: variability,
         target: target.map(|t| target_words(t, profile)),
         target_band_mps: target_band,
         target_hr,
         in_target_pct,
         target_hit,
     }
+}
+
+/// Coefficient of variation (percent) of the mean moving speed of consecutive `split_s`
+/// splits over samples `a+1..=b`. `None` with fewer than 4 full splits.
+fn split_variability(
+    s: &Series<'_>,
+    v: &[Option<f64>],
+    a: usize,
+    b: usize,
+    split_s: f64,
+) -> Option<f64> {
+    let mut means = Vec::new();
+    let (mut sum, mut w, mut acc) = (0.0, 0.0, 0.0);
+    for i in (a + 1)..=b.min(s.t.len().saturating_sub(1)) {
+        let dt = s.dt(i);
+        acc += dt;
+        if s.moving.get(i).copied().unwrap_or(false) {
+            if let Some(x) = v.get(i).copied().flatten() {
+                sum += x * dt;
+                w += dt;
+            }
+        }
+        if acc >= split_s {
+            if w >= 0.5 * split_s {
+                means.push(sum / w);
+            }
+            (sum, w, acc) = (0.0, 0.0, 0.0);
+        }
+    }
+    if means.len() < 4 {
+        return None;
+    }
+    let n = means.len() as f64;
+    let mean = means.iter().sum::<f64>() / n;
+    let var = means.iter().map(|m| (m - mean).powi(2)).sum::<f64>() / (n - 1.0);
+    (mean > 0.0).then(|| var.sqrt() / mean * 100.0)
 }
 
 fn recovery_metrics(

@@ -99,6 +99,9 @@ pub enum Pacing {
     Surging,
     /// Each work interval faster than the last; a single steady run speeds up through it.
     Progression,
+    /// Big surges in the first half of each effort, then a fade through the second half:
+    /// the badly paced time trial.
+    SurgeAndFade,
 }
 
 /// When the device writes a sample.

@@ -25,7 +25,7 @@ fn next_time(findings: &[Finding]) -> &'static str {
                 "Check the heart-rate strap or watch fit before the next hard session."
             }
             "missing_planned" => "Run the full set next time, or tell me early if it needs cutting.",
-            "fade_within" | "fade_set" => {
+            "fade_within" | "fade_set" | "uneven_pacing" => {
                 "Start each repeat a touch slower and hold it: aim for an even or slightly faster second half."
             }
             "targets" if f.severity >= Severity::Note && f.text.contains(" fast ") => {

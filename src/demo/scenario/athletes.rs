@@ -196,7 +196,7 @@ fn mira() -> AthleteSpec {
         match w {
             1 => {
                 b.time_trial(w, 5, "5km", false)
-                    .pacing(Pacing::Surging)
+                    .pacing(Pacing::SurgeAndFade)
                     .fatigue(1.0)
                     .plant(
                         P::BadlyPacedTimeTrial,

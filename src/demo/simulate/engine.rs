@@ -227,6 +227,9 @@ enum StopPhase {
 /// - Progression: work reps spread evenly over a span of 2 % per rep (at most 8 %),
 ///   centred on target; a steady run goes from -4 % to +4 %.
 /// - Surging: bursts of 8-20 s at +7 %, each followed by 20 s at -4 %.
+/// - Surge and fade: in the first half of an effort, bursts of 15-35 s at +9 % with 15 s at
+///   -3 % after each, on top of a start 3 % fast; through the second half the pace falls
+///   away to 6 % slow.
 fn style_multiplier(
     pacing: Pacing,
     seg: &SimSeg,
@@ -260,6 +263,29 @@ fn style_multiplier(
                 1.0 - span / 2.0 + span * set_pos
             } else {
                 0.96 + 0.08 * u
+            }
+        }
+        Pacing::SurgeAndFade => {
+            let base = if u < 0.5 {
+                1.03
+            } else {
+                1.03 - 0.18 * (u - 0.5)
+            };
+            let draw = rng.uniform();
+            *surge = match *surge {
+                Surge::Idle if u < 0.5 && clock > 10.0 && draw < 1.0 / 30.0 => {
+                    Surge::Burst(15 + rng.below(21) as u32)
+                }
+                Surge::Burst(0) => Surge::Ease(15),
+                Surge::Burst(n) => Surge::Burst(n - 1),
+                Surge::Ease(0) => Surge::Idle,
+                Surge::Ease(n) => Surge::Ease(n - 1),
+                s => s,
+            };
+            base * match *surge {
+                Surge::Idle => 1.0,
+                Surge::Burst(_) => 1.09,
+                Surge::Ease(_) => 0.97,
             }
         }
         Pacing::Surging => {

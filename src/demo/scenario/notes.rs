@@ -171,7 +171,7 @@ pub(super) fn apply(a: &mut AthleteSpec) {
         let lines = bank(&a.id, s.kind);
         let skip = if matches!(s.kind, SessionKind::Easy | SessionKind::Long) {
             plain += 1;
-            plain % 4 == 0 && !s.note_in_file
+            plain.is_multiple_of(4) && !s.note_in_file
         } else {
             false
         };

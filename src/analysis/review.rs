@@ -72,6 +72,10 @@ pub const MIN_VARIABILITY_S: f64 = 300.0;
 // Common coaching practice (no published source).
 pub const VARIABILITY_SPLIT_S: f64 = 30.0;
 
+/// Slack on the pace band for "target hit", s/km: a pace that rounds to the band's edge
+/// on screen is on target.
+pub const PACE_DISPLAY_SLACK_S: f64 = 0.5;
+
 /// Half-width of the centred window that smooths speed for time-in-target, seconds.
 // Our design choice: GPS speed jitters by several percent from second to second.
 pub const TARGET_SMOOTHING_HALF_S: f64 = 5.0;
@@ -646,7 +650,10 @@ fn one_interval(
                 }
             }
             let pct = (total > 0.0).then(|| inside / total * 100.0);
-            let hit = avg_speed.map(|v| v >= slow && v <= fast);
+            // A pace that shows as the band's edge (to the second) counts as inside it.
+            let hit = avg_speed.and_then(pace_s_per_km).map(|p| {
+                p >= 1000.0 / fast - PACE_DISPLAY_SLACK_S && p <= 1000.0 / slow + PACE_DISPLAY_SLACK_S
+            });
             (pct, hit)
         }
         (None, Some((lo, hi))) => {

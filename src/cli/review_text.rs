@@ -107,12 +107,12 @@ pub fn render(r: &Review, profile: &AthleteProfile, plan_source: Option<&str>) -
             let _ =
                 writeln!(
                 o,
-                "    work {:<3}                {:>4} bpm ({:>6})  {:>3} s, +{:>2} bpm   {:>3} bpm",
+                "    work {:<3}                {:>4} bpm ({:>6})  {:>3} s, +{:>3} bpm   {:>3} bpm",
                 x.work_number,
                 num(x.recovery_trough_bpm, 0),
                 x.trough_at_s.map(format_clock).unwrap_or_else(|| "-".into()),
                 num(x.hr_lag_s, 0),
-                num(x.hr_lag_bpm, 0),
+                num(x.hr_lag_bpm, 1),
                 num(x.hr_drop_60s_bpm, 0),
             );
         }

@@ -21,13 +21,22 @@ fn ewma_ratio_21_days_at_40_then_7_at_60() {
     // seeded with the first week's mean (= the first day's load here) the ratio is 1.198.
     let mut loads = vec![40.0; 21];
     loads.extend([60.0; 7]);
-    let h = build(&series(&loads), &profile(), &HistoryParams::default(), day(28));
+    let h = build(
+        &series(&loads),
+        &profile(),
+        &HistoryParams::default(),
+        day(28),
+    );
     let latest = h.acute_chronic_latest.expect("ratio on day 28");
     close(latest.value, 1.198, 0.0005);
     assert_eq!(latest.band, "within");
     assert!(h.cautions.is_empty(), "{:?}", h.cautions);
     // No ratio before day 28 (no full chronic window).
-    let d27 = h.acute_chronic_ratio.iter().find(|r| r.date == day(27)).unwrap();
+    let d27 = h
+        .acute_chronic_ratio
+        .iter()
+        .find(|r| r.date == day(27))
+        .unwrap();
     assert_eq!(d27.value, None);
     // The series ends today and the method names the seed.
     assert_eq!(h.acute_chronic_ratio.last().unwrap().date, day(28));
@@ -40,7 +49,12 @@ fn ewma_ratio_27_days_at_50_then_200() {
     // 87.5 / 60.34 = 1.450.
     let mut loads = vec![50.0; 27];
     loads.push(200.0);
-    let h = build(&series(&loads), &profile(), &HistoryParams::default(), day(28));
+    let h = build(
+        &series(&loads),
+        &profile(),
+        &HistoryParams::default(),
+        day(28),
+    );
     let latest = h.acute_chronic_latest.unwrap();
     close(latest.value, 1.450, 0.0005);
     assert_eq!(latest.band, "above");
@@ -63,7 +77,12 @@ fn seed_is_the_mean_of_the_first_week() {
         a = 0.25 * l + 0.75 * a;
         c = 2.0 / 29.0 * l + 27.0 / 29.0 * c;
     }
-    let h = build(&series(&loads), &profile(), &HistoryParams::default(), day(28));
+    let h = build(
+        &series(&loads),
+        &profile(),
+        &HistoryParams::default(),
+        day(28),
+    );
     close(h.acute_chronic_latest.unwrap().value, a / c, 1e-12);
     // Seeded from the first day instead, the ratio would differ.
     let (mut a1, mut c1) = (10.0, 10.0);
@@ -80,7 +99,12 @@ fn impulse_response_through_the_history() {
     // methods.md §10: 100 per day on days 1-14, then 7 rest days; τ 42/7, k1 = 1, k2 = 2.
     let mut loads = vec![100.0; 14];
     loads.extend([0.0; 7]);
-    let h = build(&series(&loads), &profile(), &HistoryParams::default(), day(21));
+    let h = build(
+        &series(&loads),
+        &profile(),
+        &HistoryParams::default(),
+        day(21),
+    );
     let at = |s: &[splitdesk::analysis::history::DailyValue], n: i64| {
         s.iter().find(|v| v.date == day(n)).unwrap().value
     };
@@ -130,7 +154,12 @@ fn a_sharp_rise_in_load_shows_the_caution() {
     // Planted: four weeks at 40 a day, then a week at 150 a day.
     let mut loads = vec![40.0; 28];
     loads.extend([150.0; 7]);
-    let h = build(&series(&loads), &profile(), &HistoryParams::default(), day(35));
+    let h = build(
+        &series(&loads),
+        &profile(),
+        &HistoryParams::default(),
+        day(35),
+    );
     let latest = h.acute_chronic_latest.unwrap();
     assert!(latest.value >= 1.5, "{}", latest.value);
     assert_eq!(latest.band, "caution");
@@ -139,7 +168,12 @@ fn a_sharp_rise_in_load_shows_the_caution() {
     assert!(c.contains("acute/chronic ratio"), "{c}");
     assert!(c.contains("not medical advice"), "{c}");
     // The steady four weeks before it carried no caution.
-    let h28 = build(&series(&loads[..28]), &profile(), &HistoryParams::default(), day(28));
+    let h28 = build(
+        &series(&loads[..28]),
+        &profile(),
+        &HistoryParams::default(),
+        day(28),
+    );
     assert!(h28.cautions.is_empty());
 }
 
@@ -149,8 +183,15 @@ fn sessions_without_load_count_as_zero_and_are_named() {
     s[3].trimp = None;
     let h = build(&s, &profile(), &HistoryParams::default(), day(28));
     assert_eq!(
-        h.daily_load.iter().find(|v| v.date == day(4)).unwrap().value,
+        h.daily_load
+            .iter()
+            .find(|v| v.date == day(4))
+            .unwrap()
+            .value,
         0.0
     );
-    assert!(h.notes.iter().any(|n| n.starts_with("1 session(s) without a load")));
+    assert!(h
+        .notes
+        .iter()
+        .any(|n| n.starts_with("1 session(s) without a load")));
 }

@@ -2,7 +2,7 @@
 //! cached reviews (no session file is read again).
 
 use anyhow::{bail, Context};
-use chrono::Utc;
+use chrono::{NaiveDate, Utc};
 
 use crate::analysis::history::{self, History, HistoryParams, SessionSummary};
 use crate::analysis::review::{Review, ANALYSIS_VERSION};
@@ -44,7 +44,13 @@ pub fn run(ws: &Workspace, athlete: &str, weeks: Option<u32>, json: bool) -> any
         }
         params.weeks = w;
     }
-    let mut h = history::build(&sums, &profile, &params, Utc::now().date_naive());
+    // The window ends today, or on the latest session when the files are dated ahead of the
+    // clock (a generated roster, a device with a wrong clock).
+    let latest = sums.iter().map(SessionSummary::date).max();
+    let today = Utc::now()
+        .date_naive()
+        .max(latest.unwrap_or(NaiveDate::MIN));
+    let mut h = history::build(&sums, &profile, &params, today);
     if skipped > 0 {
         h.notes.push(format!(
             "{skipped} session(s) without a readable analysis were left out"

@@ -21,8 +21,7 @@ pub fn with_load(n: i64, trimp: f64) -> SessionSummary {
     let d = day(n);
     SessionSummary {
         session_id: format!("planted/{d}"),
-        start: Utc
-            .from_utc_datetime(&d.and_hms_opt(7, 0, 0).unwrap()),
+        start: Utc.from_utc_datetime(&d.and_hms_opt(7, 0, 0).unwrap()),
         sport: "running".into(),
         distance_m: Some(10_000.0),
         moving_s: 3000.0,
@@ -65,11 +64,10 @@ pub fn session_1hz(seconds: usize, speed: impl Fn(f64) -> f64) -> Session {
     let start = Utc.with_ymd_and_hms(2026, 3, 2, 7, 0, 0).unwrap();
     let mut s = Session::empty(FileFormat::Fit, start);
     s.t = (0..=seconds).map(|i| i as f64).collect();
-    s.time = s
-        .t
-        .iter()
-        .map(|&x| start + Duration::seconds(x as i64))
-        .collect();
+    s.time =
+        s.t.iter()
+            .map(|&x| start + Duration::seconds(x as i64))
+            .collect();
     let v: Vec<f64> = s.t.iter().map(|&x| speed(x)).collect();
     let mut d = Vec::with_capacity(v.len());
     let mut acc = 0.0;

@@ -534,7 +534,7 @@ pub fn build(
 ) -> History {
     let mut sessions: Vec<&SessionSummary> =
         summaries.iter().filter(|s| s.date() <= today).collect();
-    sessions.sort_by(|a, b| a.start.cmp(&b.start));
+    sessions.sort_by_key(|s| s.start);
     let weeks = params.weeks.max(1);
     let from = week_monday(today) - Duration::weeks(i64::from(weeks) - 1);
     let in_window: Vec<&SessionSummary> = sessions

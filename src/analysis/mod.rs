@@ -1,9 +1,11 @@
 //! The objective review: pure functions over `model` types. No I/O, no terminal.
 
+pub mod best_efforts;
 pub mod decoupling;
 pub mod elevation;
 pub mod findings;
 pub mod gradient;
+pub mod history;
 pub mod intervals;
 pub mod load;
 pub mod race;

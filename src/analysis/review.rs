@@ -25,7 +25,7 @@ use super::zones::{hr_zones, pace_zones, time_in_zones};
 
 /// Bumped whenever a number in the review may change; cached summaries of another version
 /// are recomputed.
-pub const ANALYSIS_VERSION: u32 = 1;
+pub const ANALYSIS_VERSION: u32 = 2;
 
 /// The JSON schema name of [`Review`].
 pub const SCHEMA: &str = "splitdesk.analysis/1";
@@ -229,6 +229,9 @@ pub struct Review {
     pub elevation_loss_m: Option<f64>,
     pub zones: Zones,
     pub findings: Vec<Finding>,
+    /// Fastest unflagged window per duration (`analysis::best_efforts`), for the history.
+    #[serde(default)]
+    pub best_efforts: Vec<super::best_efforts::BestEffort>,
 }
 
 impl Review {
@@ -432,6 +435,7 @@ pub fn review(
         elevation_loss_m: loss,
         zones,
         findings: Vec::new(),
+        best_efforts: super::best_efforts::best_efforts(session),
     };
     review.findings = findings::findings(&review, session, set, profile, &whole);
     review

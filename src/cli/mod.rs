@@ -11,6 +11,7 @@ pub mod plan_cmd;
 mod review_cmds;
 mod review_text;
 mod summary;
+mod trends_cmd;
 
 use std::path::PathBuf;
 
@@ -124,6 +125,17 @@ pub enum Command {
     BiasCheck {
         #[arg(long)]
         athlete: Option<String>,
+        #[arg(long)]
+        json: bool,
+    },
+    /// An athlete's history: weekly volume, load, efficiency, long runs, best efforts,
+    /// critical speed and predicted race times.
+    Trends {
+        /// Athlete id, e.g. mara-lindqvist.
+        athlete: String,
+        /// ISO weeks to show, the current one last (default 12).
+        #[arg(long)]
+        weeks: Option<u32>,
         #[arg(long)]
         json: bool,
     },
@@ -321,6 +333,11 @@ fn run_with_journal(
             rc::export_chart(&mut ws, &session, &out)
         }
         Command::BiasCheck { athlete, json } => rc::bias_check(&mut ws, athlete.as_deref(), json),
+        Command::Trends {
+            athlete,
+            weeks,
+            json,
+        } => trends_cmd::run(&ws, &athlete, weeks, json),
         Command::Journal(JournalCommand::Backup { file }) => rc::journal_backup(&ws, &file),
         Command::Journal(JournalCommand::Check { json }) => rc::journal_check(&ws, json),
         _ => Ok(0),

@@ -56,6 +56,19 @@ fn load_jump_athlete_shows_the_caution() {
     )
     .unwrap();
     assert!(before.cautions.is_empty(), "{:?}", before.cautions);
+    // On the rest day after, the ratio is back under 1.5 but the week's peak still counts.
+    let after = history(
+        "oren-falkner",
+        NaiveDate::from_ymd_opt(2026, 11, 21).unwrap(),
+    )
+    .unwrap();
+    assert!(after.acute_chronic_latest.as_ref().unwrap().value < 1.5);
+    assert_eq!(after.cautions.len(), 1, "{:?}", after.cautions);
+    assert!(
+        after.cautions[0].contains("on 2026-11-19"),
+        "{}",
+        after.cautions[0]
+    );
 }
 
 #[test]

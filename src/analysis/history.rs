@@ -627,14 +627,30 @@ pub fn build(
             value,
             band: band_name(band).to_string(),
         });
-    match &acute_chronic_latest {
-        Some(l) if l.value >= ACUTE_CHRONIC_CAUTION => cautions.push(format!(
+    // The highest ratio of the last 7 days: a spike on Tuesday still matters on Thursday,
+    // when rest days have pulled the ratio back under the line.
+    let week_peak = acute_chronic_ratio
+        .iter()
+        .rev()
+        .take(7)
+        .filter_map(|r| r.value.map(|v| (r.date, v)))
+        .fold(None::<(NaiveDate, f64)>, |best, (d, v)| match best {
+            Some((_, b)) if b >= v => best,
+            _ => Some((d, v)),
+        });
+    match (&acute_chronic_latest, week_peak) {
+        (Some(l), _) if l.value >= ACUTE_CHRONIC_CAUTION => cautions.push(format!(
             "Training load rose sharply: the acute/chronic ratio is {:.2} today, at or above \
              {ACUTE_CHRONIC_CAUTION:.1}, the band usually marked for caution. {LOAD_CAUTION_WORDS}",
             l.value
         )),
-        Some(_) => {}
-        None => notes.push(
+        (Some(_), Some((date, v))) if v >= ACUTE_CHRONIC_CAUTION => cautions.push(format!(
+            "Training load rose sharply: the acute/chronic ratio reached {v:.2} on {date} (this \
+             week), at or above {ACUTE_CHRONIC_CAUTION:.1}, the band usually marked for caution. \
+             {LOAD_CAUTION_WORDS}"
+        )),
+        (Some(_), _) => {}
+        (None, _) => notes.push(
             "no acute/chronic ratio today: it needs 28 days of data and some chronic load"
                 .to_string(),
         ),

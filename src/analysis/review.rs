@@ -656,7 +656,8 @@ fn one_interval(
             let pct = (total > 0.0).then(|| inside / total * 100.0);
             // A pace that shows as the band's edge (to the second) counts as inside it.
             let hit = avg_speed.and_then(pace_s_per_km).map(|p| {
-                p >= 1000.0 / fast - PACE_DISPLAY_SLACK_S && p <= 1000.0 / slow + PACE_DISPLAY_SLACK_S
+                p >= 1000.0 / fast - PACE_DISPLAY_SLACK_S
+                    && p <= 1000.0 / slow + PACE_DISPLAY_SLACK_S
             });
             (pct, hit)
         }

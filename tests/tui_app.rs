@@ -2,73 +2,11 @@
 
 mod tui_support;
 
-use crossterm::event::{Event, KeyCode, KeyEvent, KeyModifiers};
-use splitdesk::journal::Journal;
-use splitdesk::roster::Roster;
-use splitdesk::tui::app::{App, Effect, Focus, Modal, Options};
+use crossterm::event::KeyCode;
+use splitdesk::tui::app::{App, Effect, Focus, Modal};
 use splitdesk::tui::event::AppEvent;
 use splitdesk::tui::keymap::KeyMap;
-use splitdesk::tui::theme::Theme;
-use splitdesk::worker::run_job;
 use tui_support::*;
-
-/// An app on a fresh test roster with an in-memory journal, every session scanned.
-fn app_with(dir: &std::path::Path) -> App {
-    build_roster(dir);
-    let roster = Roster::open(dir).expect("roster");
-    let journal = Journal::open_in_memory().expect("journal");
-    let mut app = App::new(
-        roster,
-        journal,
-        Options {
-            keymap: KeyMap::default(),
-            theme: Theme::plain(),
-            feedback_dir: Some(dir.join("feedback-out")),
-        },
-    );
-    app.size = (160, 48);
-    let effects = app.start_scan();
-    run_effects(&mut app, effects);
-    app
-}
-
-/// Carry out effects synchronously (jobs run on this thread).
-fn run_effects(app: &mut App, effects: Vec<Effect>) -> Vec<Effect> {
-    let mut other = Vec::new();
-    let mut queue: std::collections::VecDeque<Effect> = effects.into();
-    while let Some(e) = queue.pop_front() {
-        match e {
-            Effect::Submit { job, .. } => {
-                let done = splitdesk::worker::Done {
-                    generation: job.generation,
-                    kind: job.kind,
-                    session_id: job.session_id(),
-                    outcome: run_job(&job),
-                };
-                queue.extend(app.handle(AppEvent::Worker(done)));
-            }
-            Effect::DropStaleOpens(_) => {}
-            e => other.push(e),
-        }
-    }
-    other
-}
-
-fn key(app: &mut App, code: KeyCode) -> Vec<Effect> {
-    let e = app.handle(AppEvent::Input(Event::Key(KeyEvent::new(
-        code,
-        KeyModifiers::NONE,
-    ))));
-    run_effects(app, e)
-}
-
-fn ch(app: &mut App, c: char) -> Vec<Effect> {
-    key(app, KeyCode::Char(c))
-}
-
-fn message(app: &App) -> String {
-    app.message.as_ref().map(|m| m.text.clone()).unwrap_or_default()
-}
 
 #[test]
 fn scan_records_every_session_and_counts_unreviewed() {
@@ -102,13 +40,6 @@ fn queue_opens_oldest_first_and_focuses_the_verdict() {
     assert!(message(&app).contains("no later"));
     ch(&mut app, '[');
     assert_eq!(app.open.as_ref().unwrap().session_id, LONG);
-}
-
-fn open_intervals(app: &mut App) {
-    let fx = app.open_session(INTERVALS);
-    run_effects(app, fx);
-    let o = app.open.as_ref().expect("open");
-    assert_eq!(o.work_count(), 5, "five work intervals found");
 }
 
 #[test]
@@ -193,16 +124,6 @@ fn reveal_is_refused_with_what_is_missing_then_allowed() {
     assert!(fb.text().starts_with("Hi Ines,"));
 }
 
-fn grade_and_reveal(app: &mut App) {
-    open_intervals(app);
-    for c in ['3', '3', '4', '4', '2'] {
-        ch(app, c);
-    }
-    ch(app, 'v');
-    ch(app, 'o');
-    key(app, KeyCode::Esc);
-}
-
 #[test]
 fn a_score_changed_after_the_reveal_is_a_revision() {
     let dir = tempfile::tempdir().unwrap();
@@ -220,8 +141,7 @@ fn a_score_changed_after_the_reveal_is_a_revision() {
     assert_eq!(app.journal.revisions(INTERVALS).unwrap().len(), 1);
     let o = app.open.as_ref().unwrap();
     assert_eq!(o.revisions.len(), 1);
-    let (text, revised) =
-        splitdesk::tui::panes::verdict::score_cell(o.state.as_ref(), 2);
+    let (text, revised) = splitdesk::tui::panes::verdict::score_cell(o.state.as_ref(), 2);
     assert_eq!((text.as_str(), revised), ("3→4", true));
 }
 
@@ -326,9 +246,9 @@ fn roster_filter_and_unreviewed_toggle() {
     app.focus = Focus::Roster;
     ch(&mut app, 'u');
     app.cursor.athlete = Some("ines-aldana".into());
-    let has_intervals = app.roster_rows().iter().any(|r| {
-        matches!(r, splitdesk::tui::app::RosterRow::Session(s) if s.session_id == INTERVALS)
-    });
+    let has_intervals = app.roster_rows().iter().any(
+        |r| matches!(r, splitdesk::tui::app::RosterRow::Session(s) if s.session_id == INTERVALS),
+    );
     assert!(!has_intervals, "revealed sessions are hidden");
 }
 

@@ -248,6 +248,8 @@ pub struct TextEditor {
     pub editing: bool,
     /// Changed since last saved to the journal.
     pub dirty: bool,
+    /// The journal holds a saved version.
+    pub saved: bool,
 }
 
 impl TextEditor {
@@ -263,6 +265,7 @@ impl TextEditor {
             col: 0,
             editing: false,
             dirty: false,
+            saved: false,
         }
     }
 
@@ -1279,11 +1282,14 @@ impl App {
             Err(_) => return,
         };
         let saved = self.journal.feedback(&id).ok().flatten().map(|f| f.body);
+        let was_saved = saved.is_some();
         let draft = saved.unwrap_or_else(|| self.draft_text());
         if let Some(o) = self.open.as_mut() {
             o.note = Some(note);
             if o.feedback.is_none() {
-                o.feedback = Some(TextEditor::new(&draft));
+                let mut ed = TextEditor::new(&draft);
+                ed.saved = was_saved;
+                o.feedback = Some(ed);
             }
         }
     }
@@ -1619,6 +1625,7 @@ impl App {
             Ok(()) => {
                 if let Some(ed) = self.open.as_mut().and_then(|o| o.feedback.as_mut()) {
                     ed.dirty = false;
+                    ed.saved = true;
                 }
                 self.say(Tone::Done, "feedback saved in the journal");
             }

@@ -45,7 +45,7 @@ pub fn areas(area: Rect, app: &App) -> Areas {
     let roster_visible =
         app.open.is_none() || (app.show_roster && (wide || app.focus == Focus::Roster));
     let roster_w = if wide {
-        (area.width / 5).clamp(30, 42)
+        (area.width / 4).clamp(30, 44)
     } else {
         (area.width * 2 / 5).clamp(24, 34)
     };

@@ -5,11 +5,19 @@
 use std::path::{Path, PathBuf};
 
 use chrono::{TimeZone, Utc};
+use crossterm::event::{Event, KeyCode, KeyEvent, KeyModifiers};
 use splitdesk::demo::fit_writer;
 use splitdesk::demo::simulate::{simulate, SimInput};
+use splitdesk::journal::Journal;
 use splitdesk::model::AthleteProfile;
-use splitdesk::roster::parse_profile;
 use splitdesk::model::Units;
+use splitdesk::roster::parse_profile;
+use splitdesk::roster::Roster;
+use splitdesk::tui::app::{App, Effect, Options};
+use splitdesk::tui::event::AppEvent;
+use splitdesk::tui::keymap::KeyMap;
+use splitdesk::tui::theme::Theme;
+use splitdesk::worker::run_job;
 
 /// The athlete's note on the interval session: must never be on screen before the reveal.
 pub const SECRET_NOTE: &str = "Legs felt like lead after the third one, stomach was off.";
@@ -132,4 +140,82 @@ pub fn write_roster_from_env() {
     if let Ok(dir) = std::env::var("SPLITDESK_TEST_ROSTER") {
         build_roster(Path::new(&dir));
     }
+}
+
+/// An app on a fresh test roster with an in-memory journal, every session scanned.
+pub fn app_with(dir: &std::path::Path) -> App {
+    build_roster(dir);
+    let roster = Roster::open(dir).expect("roster");
+    let journal = Journal::open_in_memory().expect("journal");
+    let mut app = App::new(
+        roster,
+        journal,
+        Options {
+            keymap: KeyMap::default(),
+            theme: Theme::plain(),
+            feedback_dir: Some(dir.join("feedback-out")),
+        },
+    );
+    app.size = (160, 48);
+    let effects = app.start_scan();
+    run_effects(&mut app, effects);
+    app
+}
+
+/// Carry out effects synchronously (jobs run on this thread).
+pub fn run_effects(app: &mut App, effects: Vec<Effect>) -> Vec<Effect> {
+    let mut other = Vec::new();
+    let mut queue: std::collections::VecDeque<Effect> = effects.into();
+    while let Some(e) = queue.pop_front() {
+        match e {
+            Effect::Submit { job, .. } => {
+                let done = splitdesk::worker::Done {
+                    generation: job.generation,
+                    kind: job.kind,
+                    session_id: job.session_id(),
+                    outcome: run_job(&job),
+                };
+                queue.extend(app.handle(AppEvent::Worker(done)));
+            }
+            Effect::DropStaleOpens(_) => {}
+            e => other.push(e),
+        }
+    }
+    other
+}
+
+pub fn key(app: &mut App, code: KeyCode) -> Vec<Effect> {
+    let e = app.handle(AppEvent::Input(Event::Key(KeyEvent::new(
+        code,
+        KeyModifiers::NONE,
+    ))));
+    run_effects(app, e)
+}
+
+pub fn ch(app: &mut App, c: char) -> Vec<Effect> {
+    key(app, KeyCode::Char(c))
+}
+
+pub fn message(app: &App) -> String {
+    app.message
+        .as_ref()
+        .map(|m| m.text.clone())
+        .unwrap_or_default()
+}
+
+pub fn open_intervals(app: &mut App) {
+    let fx = app.open_session(INTERVALS);
+    run_effects(app, fx);
+    let o = app.open.as_ref().expect("open");
+    assert_eq!(o.work_count(), 5, "five work intervals found");
+}
+
+pub fn grade_and_reveal(app: &mut App) {
+    open_intervals(app);
+    for c in ['3', '3', '4', '4', '2'] {
+        ch(app, c);
+    }
+    ch(app, 'v');
+    ch(app, 'o');
+    key(app, KeyCode::Esc);
 }

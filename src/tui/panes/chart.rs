@@ -222,14 +222,13 @@ pub fn readout(session: &Session, at: f64, units: Units) -> String {
     parts.join(" · ")
 }
 
-struct Band<'a> {
+struct Band {
     cols: Vec<Option<ColumnRange>>,
     lo: f64,
     hi: f64,
     style: Style,
     labels: [String; 2],
     fits: Vec<(f64, f64, Fit)>,
-    _p: std::marker::PhantomData<&'a ()>,
 }
 
 fn band_bounds(cols: &[Option<ColumnRange>]) -> Option<(f64, f64)> {
@@ -392,14 +391,13 @@ pub fn render(app: &App, area: Rect, buf: &mut Buffer) {
                     .iter()
                     .filter_map(|(a, b, st)| st.speed.map(|f| (*a, *b, f)))
                     .collect(),
-                _p: Default::default(),
             });
         }
     }
     if let Some(hr) = &s.hr {
         let c = downsample(&s.t, &hr.values, None, view.from, view.to, cols);
         if let Some((lo, hi)) = band_bounds(&c) {
-            let (lo, hi) = (lo - 2.0, hi + 2.0);
+            let (lo, hi) = (lo - 1.0, hi + 1.0);
             bands.push(Band {
                 cols: c,
                 lo,
@@ -410,7 +408,6 @@ pub fn render(app: &App, area: Rect, buf: &mut Buffer) {
                     .iter()
                     .filter_map(|(a, b, st)| st.hr.map(|f| (*a, *b, f)))
                     .collect(),
-                _p: Default::default(),
             });
         }
     }
@@ -431,7 +428,6 @@ pub fn render(app: &App, area: Rect, buf: &mut Buffer) {
                     style: t.elevation,
                     labels: [format!("{hi:.0} m"), format!("{lo:.0} m")],
                     fits: Vec::new(),
-                    _p: Default::default(),
                 });
             }
         }

@@ -82,7 +82,7 @@ pub fn render(app: &App, area: Rect, buf: &mut Buffer) {
             }
             RosterRow::Session(s) => {
                 let date = match s.start {
-                    Some(d) if w >= 34 => d.format("%Y-%m-%d").to_string(),
+                    Some(d) if w >= 38 => d.format("%Y-%m-%d").to_string(),
                     Some(d) => d.format("%m-%d").to_string(),
                     None => "  …  ".to_string(),
                 };

@@ -55,27 +55,46 @@ fn opt<T>(v: Option<T>, f: impl Fn(T) -> String) -> String {
 
 /// Column layout of the interval table for a width.
 struct Cols {
-    wide: bool,
+    /// Start time, cadence, HR max.
     mid: bool,
+    /// Target and time in target, with this target width.
+    target: Option<usize>,
+}
+
+impl Cols {
+    fn for_width(w: usize) -> Cols {
+        Cols {
+            mid: w >= 62,
+            target: if w >= 110 {
+                Some(26)
+            } else if w >= 86 {
+                Some(16)
+            } else {
+                None
+            },
+        }
+    }
 }
 
 fn header(c: &Cols, units: Units) -> String {
-    let mut s = format!(
-        "  {:>2} {:<5}{:>7}{:>7}{:>10}{:>8}",
-        "#",
-        "kind",
-        "start",
+    let mut s = format!("  {:>2} {:<6}", "#", "kind");
+    if c.mid {
+        s.push_str(&format!("{:>7}", "start"));
+    }
+    s.push_str(&format!(
+        "{:>7}{:>8}{:>w$}",
         "time",
-        format!("pace/{}", units.label()),
-        "HR"
-    );
+        format!("/{}", units.label()),
+        "HR",
+        w = if c.mid { 8 } else { 5 }
+    ));
     if c.mid {
         s.push_str(&format!("{:>5}", "cad"));
     }
-    if c.wide {
-        s.push_str(&format!(" {:<16}{:>5}", "target", "in"));
+    if let Some(tw) = c.target {
+        s.push_str(&format!(" {:<tw$}{:>5}", "target", "in"));
     }
-    s.push_str(&format!(" {:>6}", "score"));
+    s.push_str(&format!(" {:>5}", "score"));
     s
 }
 
@@ -85,9 +104,9 @@ fn row_text(m: &IntervalMetrics, c: &Cols, units: Units, score: &str, selected: 
             .trim_end_matches(&format!("/{}", units.label()))
             .to_string()
     });
-    let hr = match (m.avg_hr, m.max_hr) {
-        (Some(a), Some(x)) => format!("{a:.0}/{x:.0}"),
-        (Some(a), None) => format!("{a:.0}"),
+    let hr = match (m.avg_hr, m.max_hr, c.mid) {
+        (Some(a), Some(x), true) => format!("{a:.0}/{x:.0}"),
+        (Some(a), _, _) => format!("{a:.0}"),
         _ => "-".to_string(),
     };
     let mark = if selected { "▶" } else { " " };
@@ -95,28 +114,30 @@ fn row_text(m: &IntervalMetrics, c: &Cols, units: Units, score: &str, selected: 
         Some(n) => n.to_string(),
         None => String::new(),
     };
-    let mut s = format!(
-        "{mark} {:>2} {:<5}{:>7}{:>7}{:>10}{:>8}",
-        num,
-        kind_label(&m.kind),
-        format_clock(m.start_s),
+    let mut s = format!("{mark} {:>2} {:<6}", num, kind_label(&m.kind));
+    if c.mid {
+        s.push_str(&format!("{:>7}", format_clock(m.start_s)));
+    }
+    s.push_str(&format!(
+        "{:>7}{:>8}{:>w$}",
         format_clock(m.duration_s),
         pace,
-        hr
-    );
+        hr,
+        w = if c.mid { 8 } else { 5 }
+    ));
     if c.mid {
         s.push_str(&format!(
             "{:>5}",
             opt(m.avg_cadence_spm, |x| format!("{x:.0}"))
         ));
     }
-    if c.wide {
+    if let Some(tw) = c.target {
         let target = m.target.clone().unwrap_or_else(|| "-".to_string());
         let hit = opt(m.in_target_pct, |p| format!("{p:.0}%"));
-        s.push_str(&format!(" {:<16}{:>5}", fit(&target, 16), hit));
+        s.push_str(&format!(" {:<tw$}{:>5}", fit(&target, tw), hit));
     }
     if m.kind == "work" {
-        s.push_str(&format!(" {score:>6}"));
+        s.push_str(&format!(" {score:>5}"));
     }
     s
 }
@@ -200,10 +221,7 @@ pub fn render(app: &App, area: Rect, buf: &mut Buffer) {
         .map(|a| a.profile.units)
         .unwrap_or_default();
     let w = inner.width as usize;
-    let cols = Cols {
-        wide: w >= 84,
-        mid: w >= 62,
-    };
+    let cols = Cols::for_width(w);
     let mut y = inner.y;
     let bottom = inner.y + inner.height;
     let mut put = |line: Line, y: &mut u16| {
@@ -374,8 +392,10 @@ fn render_revealed(app: &App, o: &OpenSession, area: Rect, buf: &mut Buffer) {
         "editing · C-s saves · Esc stops"
     } else if ed.dirty {
         "unsaved"
-    } else {
+    } else if ed.saved {
         "saved"
+    } else {
+        "draft"
     };
     let head = Line::from(vec![
         Span::styled("Feedback ", t.heading),

@@ -138,7 +138,7 @@ fn the_note_is_absent_before_the_reveal_and_present_after() {
     let mut app = app_with(dir.path());
     open_intervals(&mut app);
     let words = ["Legs felt like lead", "stomach was off", "third one"];
-    let mut check_absent = |app: &mut App, when: &str| {
+    let check_absent = |app: &mut App, when: &str| {
         for (w, h) in [(80, 24), (120, 40), (160, 48), (200, 60)] {
             let text = screen(app, w, h);
             for word in words {

@@ -1,7 +1,6 @@
 //! Layout and the top-level draw: pure functions of `&App` and the frame size.
 
 use ratatui::layout::{Constraint, Layout, Rect};
-use ratatui::style::Style;
 use ratatui::text::{Line, Span};
 use ratatui::widgets::{Block, Borders, Clear, Paragraph, Wrap};
 use ratatui::Frame;
@@ -403,5 +402,4 @@ fn draw_help(app: &App, area: Rect, buf: &mut Buffer) {
             .collect();
         Paragraph::new(lines).render(*c, buf);
     }
-    let _ = Style::default();
 }

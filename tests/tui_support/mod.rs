@@ -62,6 +62,7 @@ fn write(path: &Path, text: impl AsRef<[u8]>) {
     std::fs::write(path, text).expect("write");
 }
 
+#[allow(clippy::too_many_arguments)]
 fn session(
     root: &Path,
     athlete: &str,

@@ -313,7 +313,6 @@ pub fn render(app: &App, area: Rect, buf: &mut Buffer) {
             } else {
                 Line::styled(pad(&text, w), style)
             };
-            let _ = i;
             put(line, &mut y);
         }
     }

@@ -209,7 +209,7 @@ impl Default for KeyMap {
         KeyMap {
             bindings: vec![
                 b(Action::Help, &[Key::ch('?'), Key::plain(K::F(1))]),
-                b(Action::Quit, &[Key::ch('q')]),
+                b(Action::Quit, &[Key::ch('q'), Key::ctrl('c')]),
                 b(Action::Cancel, &[Key::plain(K::Esc)]),
                 b(Action::FocusNext, &[Key::plain(K::Tab)]),
                 b(Action::FocusPrev, &[Key::plain(K::BackTab)]),

@@ -94,7 +94,7 @@ pub fn render(app: &App, area: Rect, buf: &mut Buffer) {
                         None => "analysing".to_string(),
                     }
                 };
-                let stage_w = 10.min(w / 3);
+                let stage_w = 13.min(w / 3);
                 let open_mark = if open_id == Some(s.session_id.as_str()) {
                     "•"
                 } else {

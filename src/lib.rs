@@ -14,4 +14,6 @@ pub mod journal;
 pub mod model;
 pub mod plan;
 pub mod roster;
+pub mod tui;
+pub mod worker;
 pub mod workspace;

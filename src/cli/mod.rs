@@ -10,7 +10,6 @@ mod inspect;
 pub mod plan_cmd;
 mod review_cmds;
 mod review_text;
-mod summary;
 mod trends_cmd;
 
 use std::path::PathBuf;
@@ -228,10 +227,11 @@ pub enum PlanCommand {
 pub fn run(cli: Cli) -> anyhow::Result<i32> {
     let config = crate::config::load()?;
     match cli.command {
-        None => summary::run(&crate::config::resolve_roster(
-            cli.roster.as_deref(),
+        None => crate::tui::run(
+            &crate::config::resolve_roster(cli.roster.as_deref(), &config),
+            cli.journal.as_deref(),
             &config,
-        )),
+        ),
         Some(Command::Inspect { files, json }) => inspect::run(&files, json),
         Some(Command::Check { dir, json }) => {
             let root = dir

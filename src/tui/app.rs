@@ -1,0 +1,1750 @@
+//! The workstation's state and its one update function, [`App::handle`].
+//!
+//! `handle` takes an event (a key, a worker result, a tick) and returns the effects the
+//! event loop must carry out (run a job, copy, open `$EDITOR`, write a file, quit). Grades,
+//! verdicts, rulers and feedback are written to the journal inside `handle`, as they are
+//! typed: the App owns the journal, and only the UI thread touches it. No threads, no
+//! terminal: tests drive `handle` with an in-memory journal.
+
+use std::collections::{BTreeMap, HashMap};
+use std::path::PathBuf;
+use std::sync::Arc;
+
+use chrono::{DateTime, Utc};
+use crossterm::event::{Event, KeyCode, KeyEvent, KeyEventKind, KeyModifiers};
+
+use crate::analysis::review::{Review, ANALYSIS_VERSION};
+use crate::journal::{
+    read_note, FeedbackEventKind, Journal, JournalError, PurposeVerdict, QueueEntry, ReviewStage,
+    ReviewState, Revision, Ruler,
+};
+use crate::model::units::format_distance;
+use crate::roster::{Athlete, Roster};
+use crate::worker::{Done, Job, JobKind, Outcome};
+use crate::workspace::Analysed;
+
+use super::action::Action;
+use super::event::AppEvent;
+use super::keymap::{Key, KeyMap};
+use super::theme::Theme;
+
+/// Something the event loop must do after `handle`.
+#[derive(Debug)]
+pub enum Effect {
+    /// Queue a background job (`urgent`: ahead of the others).
+    Submit {
+        /// The job.
+        job: Job,
+        /// Put it first.
+        urgent: bool,
+    },
+    /// Drop queued `Open` jobs older than this generation.
+    DropStaleOpens(u64),
+    /// Copy the text to the clipboard.
+    Copy(String),
+    /// Suspend the terminal and edit this text in `$EDITOR`.
+    OpenEditor(String),
+    /// Write the feedback text to a file.
+    WriteFile {
+        /// Where.
+        path: PathBuf,
+        /// What.
+        text: String,
+    },
+    /// Leave the workstation.
+    Quit,
+}
+
+/// Which pane has the keyboard.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Focus {
+    /// Athletes and sessions.
+    Roster,
+    /// Pace and heart-rate traces.
+    Chart,
+    /// Purpose, interval table, grading, feedback.
+    Verdict,
+}
+
+/// What the right-hand side shows.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum View {
+    /// Chart and verdict of the open session.
+    Review,
+    /// The selected athlete's history.
+    History,
+}
+
+/// A popup. Only one at a time.
+#[derive(Debug, Clone, PartialEq)]
+pub enum Modal {
+    /// Every key, from the key map.
+    Help,
+    /// The athlete's notes (only ever built after the reveal).
+    Notes(String),
+    /// Quit with unsaved feedback edits?
+    ConfirmQuit,
+    /// A message to acknowledge.
+    Message {
+        /// Heading.
+        title: String,
+        /// Text.
+        text: String,
+    },
+}
+
+/// How a status message should look.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Tone {
+    /// Plain information.
+    Info,
+    /// Something done.
+    Done,
+    /// A refusal or problem.
+    Warn,
+}
+
+/// The status line message.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct Message {
+    /// Text.
+    pub text: String,
+    /// Look.
+    pub tone: Tone,
+}
+
+/// One session row in the roster pane.
+#[derive(Debug, Clone, PartialEq)]
+pub struct SessionRow {
+    /// `<athlete-id>/<stem>`.
+    pub session_id: String,
+    /// Session start, once the journal knows the session.
+    pub start: Option<DateTime<Utc>>,
+    /// Review stage, once the journal knows the session.
+    pub stage: Option<ReviewStage>,
+    /// The file could not be read.
+    pub failed: bool,
+}
+
+/// Where the roster cursor is: an athlete, or one of its sessions.
+#[derive(Debug, Clone, PartialEq, Eq, Default)]
+pub struct RosterCursor {
+    /// The athlete id.
+    pub athlete: Option<String>,
+    /// The session id, when on a session row.
+    pub session: Option<String>,
+}
+
+/// A row of the roster pane as drawn.
+#[derive(Debug, Clone, PartialEq)]
+pub enum RosterRow {
+    /// An athlete: index into `roster.athletes`.
+    Athlete(usize),
+    /// A session of the expanded athlete.
+    Session(SessionRow),
+}
+
+/// Background work progress.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
+pub struct Progress {
+    /// Jobs of the current scan.
+    pub total: usize,
+    /// Finished.
+    pub done: usize,
+    /// Failed.
+    pub failed: usize,
+}
+
+/// The chart's window and cursor, seconds from the session start.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct ChartView {
+    /// Session length.
+    pub duration: f64,
+    /// Window start.
+    pub from: f64,
+    /// Window end.
+    pub to: f64,
+    /// Cursor time.
+    pub cursor: f64,
+    /// Draw the elevation trace.
+    pub elevation: bool,
+}
+
+impl ChartView {
+    /// The whole session, cursor at the start.
+    pub fn full(duration: f64) -> ChartView {
+        let d = if duration.is_finite() && duration > 0.0 {
+            duration
+        } else {
+            1.0
+        };
+        ChartView {
+            duration: d,
+            from: 0.0,
+            to: d,
+            cursor: 0.0,
+            elevation: false,
+        }
+    }
+
+    /// Window length.
+    pub fn span(&self) -> f64 {
+        self.to - self.from
+    }
+
+    /// Zoomed in at all.
+    pub fn zoomed(&self) -> bool {
+        self.span() < self.duration - 1e-9
+    }
+
+    fn set_window(&mut self, from: f64, span: f64) {
+        let span = span.clamp(MIN_SPAN_S.min(self.duration), self.duration);
+        let from = from.clamp(0.0, (self.duration - span).max(0.0));
+        self.from = from;
+        self.to = from + span;
+    }
+
+    /// Halve (factor 0.5) or double (2.0) the window around the cursor.
+    pub fn zoom(&mut self, factor: f64) {
+        let span = self.span() * factor;
+        let rel = if self.span() > 0.0 {
+            (self.cursor - self.from) / self.span()
+        } else {
+            0.5
+        };
+        self.set_window(self.cursor - rel * span, span);
+    }
+
+    /// Move the cursor by `dt`; the window follows when the cursor leaves it.
+    pub fn move_cursor(&mut self, dt: f64) {
+        self.cursor = (self.cursor + dt).clamp(0.0, self.duration);
+        if self.cursor > self.to {
+            self.set_window(self.cursor - self.span(), self.span());
+        } else if self.cursor < self.from {
+            self.set_window(self.cursor, self.span());
+        }
+    }
+
+    /// Pan by a fraction of the window (negative: back); the cursor stays inside.
+    pub fn pan(&mut self, fraction: f64) {
+        self.set_window(self.from + fraction * self.span(), self.span());
+        self.cursor = self.cursor.clamp(self.from, self.to);
+    }
+}
+
+/// Shortest chart window, seconds.
+pub const MIN_SPAN_S: f64 = 60.0;
+
+/// A small multi-line text editor for the feedback.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct TextEditor {
+    /// The text, one entry per line.
+    pub lines: Vec<String>,
+    /// Cursor line.
+    pub row: usize,
+    /// Cursor column, in characters.
+    pub col: usize,
+    /// Keys go to the editor.
+    pub editing: bool,
+    /// Changed since last saved to the journal.
+    pub dirty: bool,
+    /// The journal holds a saved version.
+    pub saved: bool,
+}
+
+impl TextEditor {
+    /// An editor holding `text`, not editing.
+    pub fn new(text: &str) -> TextEditor {
+        let mut lines: Vec<String> = text.split('\n').map(str::to_string).collect();
+        if lines.len() > 1 && lines.last().is_some_and(String::is_empty) {
+            lines.pop();
+        }
+        TextEditor {
+            lines,
+            row: 0,
+            col: 0,
+            editing: false,
+            dirty: false,
+            saved: false,
+        }
+    }
+
+    /// The text, lines joined with newlines and a final newline.
+    pub fn text(&self) -> String {
+        let mut s = self.lines.join("\n");
+        s.push('\n');
+        s
+    }
+
+    fn line_len(&self) -> usize {
+        self.lines
+            .get(self.row)
+            .map(|l| l.chars().count())
+            .unwrap_or(0)
+    }
+
+    fn byte_at(line: &str, col: usize) -> usize {
+        line.char_indices()
+            .nth(col)
+            .map(|(b, _)| b)
+            .unwrap_or(line.len())
+    }
+
+    /// Apply one key; returns `false` when the key is not an editing key.
+    pub fn key(&mut self, key: &KeyEvent) -> bool {
+        if self.lines.is_empty() {
+            self.lines.push(String::new());
+        }
+        self.row = self.row.min(self.lines.len() - 1);
+        self.col = self.col.min(self.line_len());
+        let ctrl = key.modifiers.contains(KeyModifiers::CONTROL);
+        match key.code {
+            KeyCode::Char(c) if !ctrl => {
+                if let Some(line) = self.lines.get_mut(self.row) {
+                    let b = Self::byte_at(line, self.col);
+                    line.insert(b, c);
+                    self.col += 1;
+                    self.dirty = true;
+                }
+            }
+            KeyCode::Enter => {
+                if let Some(line) = self.lines.get_mut(self.row) {
+                    let b = Self::byte_at(line, self.col);
+                    let rest = line.split_off(b);
+                    self.lines.insert(self.row + 1, rest);
+                    self.row += 1;
+                    self.col = 0;
+                    self.dirty = true;
+                }
+            }
+            KeyCode::Backspace => {
+                if self.col > 0 {
+                    if let Some(line) = self.lines.get_mut(self.row) {
+                        let b = Self::byte_at(line, self.col - 1);
+                        line.remove(b);
+                        self.col -= 1;
+                        self.dirty = true;
+                    }
+                } else if self.row > 0 {
+                    let line = self.lines.remove(self.row);
+                    self.row -= 1;
+                    self.col = self.line_len();
+                    if let Some(prev) = self.lines.get_mut(self.row) {
+                        prev.push_str(&line);
+                    }
+                    self.dirty = true;
+                }
+            }
+            KeyCode::Delete => {
+                let len = self.line_len();
+                if self.col < len {
+                    if let Some(line) = self.lines.get_mut(self.row) {
+                        let b = Self::byte_at(line, self.col);
+                        line.remove(b);
+                        self.dirty = true;
+                    }
+                } else if self.row + 1 < self.lines.len() {
+                    let next = self.lines.remove(self.row + 1);
+                    if let Some(line) = self.lines.get_mut(self.row) {
+                        line.push_str(&next);
+                    }
+                    self.dirty = true;
+                }
+            }
+            KeyCode::Left => {
+                if self.col > 0 {
+                    self.col -= 1;
+                } else if self.row > 0 {
+                    self.row -= 1;
+                    self.col = self.line_len();
+                }
+            }
+            KeyCode::Right => {
+                if self.col < self.line_len() {
+                    self.col += 1;
+                } else if self.row + 1 < self.lines.len() {
+                    self.row += 1;
+                    self.col = 0;
+                }
+            }
+            KeyCode::Up => {
+                self.row = self.row.saturating_sub(1);
+                self.col = self.col.min(self.line_len());
+            }
+            KeyCode::Down => {
+                self.row = (self.row + 1).min(self.lines.len() - 1);
+                self.col = self.col.min(self.line_len());
+            }
+            KeyCode::Home => self.col = 0,
+            KeyCode::End => self.col = self.line_len(),
+            _ => return false,
+        }
+        true
+    }
+}
+
+/// The session the coach is reviewing.
+#[derive(Debug)]
+pub struct OpenSession {
+    /// `<athlete-id>/<stem>`.
+    pub session_id: String,
+    /// Index into `roster.athletes`.
+    pub athlete: usize,
+    /// Generation of the load request.
+    pub generation: u64,
+    /// The objective review (from the journal cache or the fresh analysis).
+    pub review: Option<Review>,
+    /// The full session and review, once analysed in the background.
+    pub analysed: Option<Box<Analysed>>,
+    /// Why the session could not be loaded.
+    pub load_error: Option<String>,
+    /// Grading state from the journal.
+    pub state: Option<ReviewState>,
+    /// Changes made after the reveal.
+    pub revisions: Vec<Revision>,
+    /// The session's rulers.
+    pub rulers: Vec<Ruler>,
+    /// First point of a ruler being marked.
+    pub pending_ruler: Option<f64>,
+    /// Chart window and cursor (once the duration is known).
+    pub chart: Option<ChartView>,
+    /// Selected work interval (0-based among the work intervals).
+    pub selected_work: usize,
+    /// The athlete's note: `Some` only after the reveal (`Some(None)`: there is no note).
+    pub note: Option<Option<String>>,
+    /// The feedback text (after the reveal).
+    pub feedback: Option<TextEditor>,
+}
+
+impl OpenSession {
+    /// Number of work intervals in the review.
+    pub fn work_count(&self) -> usize {
+        self.review.as_ref().map(|r| r.work().count()).unwrap_or(0)
+    }
+
+    /// The notes were revealed.
+    pub fn revealed(&self) -> bool {
+        self.state.as_ref().is_some_and(|s| s.revealed_at.is_some())
+    }
+}
+
+/// How the workstation is set up.
+#[derive(Debug, Clone)]
+pub struct Options {
+    /// Key bindings.
+    pub keymap: KeyMap,
+    /// Look.
+    pub theme: Theme,
+    /// Where `s` saves feedback files (`None`: the current folder).
+    pub feedback_dir: Option<PathBuf>,
+}
+
+/// The whole state of the workstation.
+pub struct App {
+    /// The coach's journal (only the UI thread holds it).
+    pub journal: Journal,
+    /// The roster.
+    pub roster: Roster,
+    athletes: Vec<Arc<Athlete>>,
+    /// Key bindings.
+    pub keymap: KeyMap,
+    /// Look.
+    pub theme: Theme,
+    /// Terminal size (columns, rows).
+    pub size: (u16, u16),
+    /// Focused pane.
+    pub focus: Focus,
+    /// Right-hand view.
+    pub view: View,
+    /// Show the roster pane even when the terminal is narrow.
+    pub show_roster: bool,
+    /// Name filter.
+    pub filter: String,
+    /// Typing into the filter.
+    pub filter_editing: bool,
+    /// Hide reviewed sessions and athletes with nothing to review.
+    pub only_unreviewed: bool,
+    /// Roster cursor.
+    pub cursor: RosterCursor,
+    /// Unreviewed sessions per athlete.
+    pub counts: BTreeMap<String, usize>,
+    /// Session rows per athlete, newest first; sessions not yet in the journal last.
+    pub rows: HashMap<String, Vec<SessionRow>>,
+    /// The daily queue (unreviewed sessions, oldest first).
+    pub queue: Vec<QueueEntry>,
+    /// Reviews known (cache or fresh analysis), by session id.
+    pub reviews: HashMap<String, Review>,
+    /// The session under review.
+    pub open: Option<OpenSession>,
+    /// The popup.
+    pub modal: Option<Modal>,
+    /// Start-up ingestion progress.
+    pub progress: Progress,
+    /// Files that could not be read.
+    pub problems: Vec<String>,
+    failed: std::collections::HashSet<String>,
+    /// The status line message.
+    pub message: Option<Message>,
+    scan_generation: u64,
+    open_generation: u64,
+    lists_dirty: bool,
+    /// Where feedback files go.
+    pub feedback_dir: Option<PathBuf>,
+}
+
+fn now() -> DateTime<Utc> {
+    Utc::now()
+}
+
+impl App {
+    /// A workstation on an opened roster and journal.
+    pub fn new(roster: Roster, journal: Journal, options: Options) -> App {
+        let athletes = roster.athletes.iter().cloned().map(Arc::new).collect();
+        let mut app = App {
+            journal,
+            athletes,
+            keymap: options.keymap,
+            theme: options.theme,
+            size: (80, 24),
+            focus: Focus::Roster,
+            view: View::Review,
+            show_roster: true,
+            filter: String::new(),
+            filter_editing: false,
+            only_unreviewed: false,
+            cursor: RosterCursor {
+                athlete: roster.athletes.first().map(|a| a.id.clone()),
+                session: None,
+            },
+            roster,
+            counts: BTreeMap::new(),
+            rows: HashMap::new(),
+            queue: Vec::new(),
+            reviews: HashMap::new(),
+            open: None,
+            modal: None,
+            progress: Progress::default(),
+            problems: Vec::new(),
+            failed: Default::default(),
+            message: None,
+            scan_generation: 0,
+            open_generation: 0,
+            lists_dirty: false,
+            feedback_dir: options.feedback_dir,
+        };
+        app.problems = app.roster.problems.iter().map(|p| p.to_string()).collect();
+        app.refresh_lists();
+        app
+    }
+
+    /// Start the background ingestion of every session: jobs for the event loop.
+    pub fn start_scan(&mut self) -> Vec<Effect> {
+        self.scan_generation += 1;
+        let generation = self.scan_generation;
+        let mut out = Vec::new();
+        for athlete in &self.athletes {
+            for act in &athlete.activities {
+                let id = athlete.session_id(act);
+                let cached = matches!(
+                    self.journal.cached_summary(&id, ANALYSIS_VERSION),
+                    Ok(Some(_))
+                );
+                let cached_hash = if cached {
+                    self.journal.session_hash(&id).ok().flatten()
+                } else {
+                    None
+                };
+                out.push(Effect::Submit {
+                    job: Job {
+                        generation,
+                        kind: JobKind::Scan,
+                        athlete: Arc::clone(athlete),
+                        activity: act.clone(),
+                        cached_hash,
+                    },
+                    urgent: false,
+                });
+            }
+        }
+        self.progress = Progress {
+            total: out.len(),
+            done: 0,
+            failed: 0,
+        };
+        out
+    }
+
+    /// Background work still running.
+    pub fn busy(&self) -> bool {
+        self.progress.done < self.progress.total
+            || self
+                .open
+                .as_ref()
+                .is_some_and(|o| o.analysed.is_none() && o.load_error.is_none())
+    }
+
+    fn say(&mut self, tone: Tone, text: impl Into<String>) {
+        self.message = Some(Message {
+            text: text.into(),
+            tone,
+        });
+    }
+
+    /// The athlete at an index.
+    pub fn athlete(&self, idx: usize) -> Option<&Athlete> {
+        self.roster.athletes.get(idx)
+    }
+
+    fn athlete_index(&self, id: &str) -> Option<usize> {
+        self.roster.athletes.iter().position(|a| a.id == id)
+    }
+
+    // ----- lists -----
+
+    /// Re-read the session lists and counts from the journal.
+    pub fn refresh_lists(&mut self) {
+        self.lists_dirty = false;
+        let all = match self.journal.sessions(None) {
+            Ok(v) => v,
+            Err(e) => {
+                self.say(Tone::Warn, e.to_string());
+                Vec::new()
+            }
+        };
+        self.counts = self.journal.unreviewed_counts().unwrap_or_default();
+        self.queue = self.journal.unreviewed(None).unwrap_or_default();
+        let mut rows: HashMap<String, Vec<SessionRow>> = HashMap::new();
+        let mut known = std::collections::HashSet::new();
+        for e in all {
+            known.insert(e.session_id.clone());
+            rows.entry(e.athlete.clone()).or_default().push(SessionRow {
+                failed: self.failed.contains(&e.session_id),
+                session_id: e.session_id,
+                start: Some(e.start),
+                stage: Some(e.stage),
+            });
+        }
+        for a in &self.roster.athletes {
+            let mut pending: Vec<SessionRow> = a
+                .activities
+                .iter()
+                .map(|x| a.session_id(x))
+                .filter(|id| !known.contains(id))
+                .map(|id| SessionRow {
+                    failed: self.failed.contains(&id),
+                    session_id: id,
+                    start: None,
+                    stage: None,
+                })
+                .collect();
+            pending.sort_by(|x, y| y.session_id.cmp(&x.session_id));
+            let list = rows.entry(a.id.clone()).or_default();
+            // Sessions of files no longer in the roster are not shown.
+            list.retain(|r| {
+                r.session_id
+                    .split_once('/')
+                    .is_some_and(|(_, stem)| a.activities.iter().any(|x| x.stem == stem))
+            });
+            list.extend(pending);
+        }
+        self.rows = rows;
+        if let Some(a) = self.cursor.athlete.clone() {
+            self.ensure_reviews(&a);
+        }
+    }
+
+    /// Load the cached reviews of an athlete's sessions (for titles and totals).
+    pub fn ensure_reviews(&mut self, athlete: &str) {
+        let ids: Vec<String> = self
+            .rows
+            .get(athlete)
+            .map(|rs| {
+                rs.iter()
+                    .filter(|r| r.start.is_some() && !self.reviews.contains_key(&r.session_id))
+                    .map(|r| r.session_id.clone())
+                    .collect()
+            })
+            .unwrap_or_default();
+        for id in ids {
+            if let Ok(Some(json)) = self.journal.cached_summary(&id, ANALYSIS_VERSION) {
+                if let Ok(r) = serde_json::from_str::<Review>(&json) {
+                    self.reviews.insert(id, r);
+                }
+            }
+        }
+    }
+
+    fn athlete_visible(&self, a: &Athlete) -> bool {
+        if self.only_unreviewed && self.counts.get(&a.id).copied().unwrap_or(0) == 0 {
+            return false;
+        }
+        if self.filter.is_empty() {
+            return true;
+        }
+        let f = self.filter.to_lowercase();
+        a.profile.name.to_lowercase().contains(&f) || a.id.contains(&f)
+    }
+
+    /// The rows of the roster pane: visible athletes, the cursor's athlete expanded.
+    pub fn roster_rows(&self) -> Vec<RosterRow> {
+        let mut out = Vec::new();
+        for (i, a) in self.roster.athletes.iter().enumerate() {
+            if !self.athlete_visible(a) {
+                continue;
+            }
+            out.push(RosterRow::Athlete(i));
+            if self.cursor.athlete.as_deref() == Some(a.id.as_str()) {
+                for r in self.rows.get(&a.id).map(Vec::as_slice).unwrap_or(&[]) {
+                    let reviewed = r.stage.is_some_and(|s| !s.is_unreviewed());
+                    if self.only_unreviewed && reviewed {
+                        continue;
+                    }
+                    out.push(RosterRow::Session(r.clone()));
+                }
+            }
+        }
+        out
+    }
+
+    /// Index of the cursor in [`App::roster_rows`].
+    pub fn cursor_index(&self, rows: &[RosterRow]) -> Option<usize> {
+        rows.iter().position(|r| match r {
+            RosterRow::Athlete(i) => {
+                self.cursor.session.is_none()
+                    && self.athlete(*i).map(|a| a.id.as_str()) == self.cursor.athlete.as_deref()
+            }
+            RosterRow::Session(s) => self.cursor.session.as_deref() == Some(&s.session_id),
+        })
+    }
+
+    fn set_cursor_row(&mut self, row: &RosterRow) {
+        match row {
+            RosterRow::Athlete(i) => {
+                let id = self.athlete(*i).map(|a| a.id.clone());
+                self.cursor = RosterCursor {
+                    athlete: id,
+                    session: None,
+                };
+            }
+            RosterRow::Session(s) => {
+                self.cursor.session = Some(s.session_id.clone());
+            }
+        }
+        if let Some(a) = self.cursor.athlete.clone() {
+            self.ensure_reviews(&a);
+        }
+    }
+
+    fn move_roster(&mut self, delta: i32) {
+        let rows = self.roster_rows();
+        if rows.is_empty() {
+            return;
+        }
+        let idx = self.cursor_index(&rows).unwrap_or(0) as i64 + i64::from(delta);
+        let idx = idx.clamp(0, rows.len() as i64 - 1) as usize;
+        if let Some(row) = rows.get(idx).cloned() {
+            self.set_cursor_row(&row);
+        }
+    }
+
+    /// Put the cursor on the first visible athlete when the current one is hidden.
+    fn fix_cursor(&mut self) {
+        let rows = self.roster_rows();
+        if self.cursor_index(&rows).is_none() {
+            let athlete_still = rows.iter().find(|r| match r {
+                RosterRow::Athlete(i) => {
+                    self.athlete(*i).map(|a| a.id.as_str()) == self.cursor.athlete.as_deref()
+                }
+                _ => false,
+            });
+            match athlete_still.or_else(|| rows.first()).cloned() {
+                Some(r) => {
+                    self.cursor.session = None;
+                    self.set_cursor_row(&r);
+                }
+                None => self.cursor = RosterCursor::default(),
+            }
+        }
+    }
+
+    // ----- events -----
+
+    /// Apply one event; returns what the event loop must do.
+    pub fn handle(&mut self, event: AppEvent) -> Vec<Effect> {
+        let out = match event {
+            AppEvent::Input(Event::Key(k)) if k.kind != KeyEventKind::Release => self.on_key(k),
+            AppEvent::Input(Event::Resize(w, h)) => {
+                self.size = (w, h);
+                Vec::new()
+            }
+            AppEvent::Input(Event::Paste(text)) => {
+                self.on_paste(&text);
+                Vec::new()
+            }
+            AppEvent::Input(_) => Vec::new(),
+            AppEvent::Worker(done) => {
+                self.on_done(done);
+                Vec::new()
+            }
+            AppEvent::Tick => Vec::new(),
+            AppEvent::EditorDone(r) => {
+                self.on_editor(r);
+                Vec::new()
+            }
+            AppEvent::FileWritten(r) => {
+                self.on_written(r);
+                Vec::new()
+            }
+            AppEvent::Copied(how) => {
+                self.say(Tone::Done, format!("feedback copied: {how}"));
+                Vec::new()
+            }
+        };
+        if self.lists_dirty && (!self.busy() || self.progress.done.is_multiple_of(16)) {
+            self.refresh_lists();
+        }
+        out
+    }
+
+    fn on_paste(&mut self, text: &str) {
+        if self.filter_editing {
+            self.filter.push_str(text.lines().next().unwrap_or(""));
+            self.fix_cursor();
+            return;
+        }
+        if let Some(ed) = self
+            .open
+            .as_mut()
+            .and_then(|o| o.feedback.as_mut())
+            .filter(|e| e.editing)
+        {
+            for c in text.chars() {
+                let code = if c == '\n' {
+                    KeyCode::Enter
+                } else {
+                    KeyCode::Char(c)
+                };
+                ed.key(&KeyEvent::new(code, KeyModifiers::NONE));
+            }
+        }
+    }
+
+    fn on_key(&mut self, k: KeyEvent) -> Vec<Effect> {
+        let key = Key::from_event(&k);
+        let action = self.keymap.action(key);
+        if let Some(modal) = self.modal.clone() {
+            return self.on_modal_key(&modal, key, action);
+        }
+        if self.filter_editing {
+            match k.code {
+                KeyCode::Enter => self.filter_editing = false,
+                KeyCode::Esc => {
+                    self.filter_editing = false;
+                    self.filter.clear();
+                }
+                KeyCode::Backspace => {
+                    self.filter.pop();
+                }
+                KeyCode::Char(c) if !k.modifiers.contains(KeyModifiers::CONTROL) => {
+                    self.filter.push(c)
+                }
+                _ => {}
+            }
+            self.fix_cursor();
+            return Vec::new();
+        }
+        let editing = self
+            .open
+            .as_ref()
+            .and_then(|o| o.feedback.as_ref())
+            .is_some_and(|e| e.editing);
+        if editing {
+            match action {
+                Some(Action::SaveFeedback) => self.save_feedback(),
+                Some(Action::Cancel) => {
+                    if let Some(ed) = self.open.as_mut().and_then(|o| o.feedback.as_mut()) {
+                        ed.editing = false;
+                        if ed.dirty {
+                            self.say(Tone::Info, "feedback edited, not saved yet (C-s saves)");
+                        }
+                    }
+                }
+                _ => {
+                    if let Some(ed) = self.open.as_mut().and_then(|o| o.feedback.as_mut()) {
+                        ed.key(&k);
+                    }
+                }
+            }
+            return Vec::new();
+        }
+        match action {
+            Some(a) => self.on_action(a),
+            None => Vec::new(),
+        }
+    }
+
+    fn on_modal_key(&mut self, modal: &Modal, key: Key, action: Option<Action>) -> Vec<Effect> {
+        match modal {
+            Modal::ConfirmQuit => match key.code {
+                KeyCode::Char('y') | KeyCode::Char('Y') => return vec![Effect::Quit],
+                KeyCode::Char('n') | KeyCode::Char('N') | KeyCode::Esc => self.modal = None,
+                _ => {}
+            },
+            Modal::Help => {
+                if matches!(action, Some(Action::Help | Action::Cancel | Action::Quit)) {
+                    self.modal = None;
+                }
+            }
+            Modal::Notes(_) | Modal::Message { .. } => {
+                if matches!(
+                    action,
+                    Some(Action::Cancel | Action::Open | Action::RevealNotes | Action::Quit)
+                ) {
+                    self.modal = None;
+                }
+            }
+        }
+        Vec::new()
+    }
+
+    /// Whether any feedback edit is unsaved.
+    pub fn unsaved(&self) -> bool {
+        self.open
+            .as_ref()
+            .and_then(|o| o.feedback.as_ref())
+            .is_some_and(|e| e.dirty)
+    }
+
+    fn on_action(&mut self, action: Action) -> Vec<Effect> {
+        match action {
+            Action::Quit => {
+                if self.unsaved() {
+                    self.modal = Some(Modal::ConfirmQuit);
+                } else {
+                    return vec![Effect::Quit];
+                }
+            }
+            Action::Help => self.modal = Some(Modal::Help),
+            Action::Cancel => {
+                if let Some(o) = self.open.as_mut().filter(|o| o.pending_ruler.is_some()) {
+                    o.pending_ruler = None;
+                    self.say(Tone::Info, "ruler cancelled");
+                } else if self.view == View::History {
+                    self.view = View::Review;
+                } else {
+                    self.message = None;
+                }
+            }
+            Action::FocusNext => self.cycle_focus(1),
+            Action::FocusPrev => self.cycle_focus(-1),
+            Action::Up | Action::Down | Action::Left | Action::Right | Action::Open => {
+                return self.on_move(action)
+            }
+            Action::Filter => {
+                self.show_roster = true;
+                self.focus = Focus::Roster;
+                self.filter_editing = true;
+            }
+            Action::ToggleUnreviewed => {
+                self.only_unreviewed = !self.only_unreviewed;
+                self.fix_cursor();
+                let what = if self.only_unreviewed {
+                    "showing only unreviewed sessions"
+                } else {
+                    "showing all sessions"
+                };
+                self.say(Tone::Info, what);
+            }
+            Action::NextUnreviewed => return self.queue_step(true),
+            Action::PrevUnreviewed => return self.queue_step(false),
+            Action::ToggleRoster => {
+                self.show_roster = !self.show_roster;
+                if !self.show_roster && self.focus == Focus::Roster && self.open.is_some() {
+                    self.focus = Focus::Verdict;
+                }
+                if self.show_roster {
+                    self.focus = Focus::Roster;
+                }
+            }
+            Action::Score1 | Action::Score2 | Action::Score3 | Action::Score4 | Action::Score5 => {
+                if let Some(s) = action.score() {
+                    self.score(s);
+                }
+            }
+            Action::CycleVerdict => self.cycle_verdict(),
+            Action::RevealNotes => self.reveal(),
+            Action::ToggleElevation => {
+                if let Some(c) = self.open.as_mut().and_then(|o| o.chart.as_mut()) {
+                    c.elevation = !c.elevation;
+                }
+            }
+            Action::Ruler => self.ruler(),
+            Action::ClearRulers => self.clear_rulers(),
+            Action::ZoomIn | Action::ZoomOut | Action::PanLeft | Action::PanRight => {
+                if let Some(c) = self.open.as_mut().and_then(|o| o.chart.as_mut()) {
+                    match action {
+                        Action::ZoomIn => c.zoom(0.5),
+                        Action::ZoomOut => c.zoom(2.0),
+                        Action::PanLeft => c.pan(-0.5),
+                        _ => c.pan(0.5),
+                    }
+                }
+            }
+            Action::EditFeedback => {
+                if self.feedback_ready() {
+                    if let Some(o) = self.open.as_mut() {
+                        if let Some(ed) = o.feedback.as_mut() {
+                            ed.editing = true;
+                        }
+                    }
+                    self.focus = Focus::Verdict;
+                    self.say(Tone::Info, "editing feedback: Esc stops, C-s saves");
+                }
+            }
+            Action::ExternalEditor => {
+                if self.feedback_ready() {
+                    if let Some(text) = self.feedback_text() {
+                        return vec![Effect::OpenEditor(text)];
+                    }
+                }
+            }
+            Action::SaveFeedback => {
+                if self.feedback_ready() {
+                    self.save_feedback();
+                }
+            }
+            Action::CopyFeedback => {
+                if self.feedback_ready() {
+                    return self.copy_feedback();
+                }
+            }
+            Action::ExportFeedback => {
+                if self.feedback_ready() {
+                    return self.export_feedback();
+                }
+            }
+            Action::History => {
+                self.view = match self.view {
+                    View::History => View::Review,
+                    View::Review => View::History,
+                };
+                if let Some(a) = self.cursor.athlete.clone() {
+                    self.ensure_reviews(&a);
+                }
+            }
+        }
+        Vec::new()
+    }
+
+    /// The panes that can take focus now, in Tab order.
+    pub fn focusable(&self) -> Vec<Focus> {
+        let mut v = Vec::new();
+        if self.show_roster || self.open.is_none() {
+            v.push(Focus::Roster);
+        }
+        if self.open.is_some() && self.view == View::Review {
+            v.push(Focus::Chart);
+            v.push(Focus::Verdict);
+        }
+        if v.is_empty() {
+            v.push(Focus::Roster);
+        }
+        v
+    }
+
+    fn cycle_focus(&mut self, step: i32) {
+        let panes = self.focusable();
+        let i = panes.iter().position(|f| *f == self.focus).unwrap_or(0) as i32;
+        let n = panes.len() as i32;
+        let next = (i + step).rem_euclid(n) as usize;
+        if let Some(f) = panes.get(next) {
+            self.focus = *f;
+        }
+    }
+
+    fn on_move(&mut self, action: Action) -> Vec<Effect> {
+        match self.focus {
+            Focus::Roster => match action {
+                Action::Up => self.move_roster(-1),
+                Action::Down => self.move_roster(1),
+                Action::Left => {
+                    self.cursor.session = None;
+                }
+                Action::Right | Action::Open => {
+                    if let Some(id) = self.cursor.session.clone() {
+                        if action == Action::Open {
+                            return self.open_session(&id);
+                        }
+                    } else {
+                        self.move_roster(1);
+                        if self.cursor.session.is_none() {
+                            // No sessions: stay on the athlete.
+                            self.move_roster(0);
+                        }
+                    }
+                }
+                _ => {}
+            },
+            Focus::Chart => {
+                let cols = f64::from(self.chart_columns().max(10));
+                if let Some(c) = self.open.as_mut().and_then(|o| o.chart.as_mut()) {
+                    let step = c.span() / cols;
+                    match action {
+                        Action::Left => c.move_cursor(-step),
+                        Action::Right => c.move_cursor(step),
+                        Action::Up => c.move_cursor(-step * 10.0),
+                        Action::Down => c.move_cursor(step * 10.0),
+                        _ => {}
+                    }
+                }
+            }
+            Focus::Verdict => {
+                if let Some(o) = self.open.as_mut() {
+                    let n = o.work_count();
+                    match action {
+                        Action::Up | Action::Left => {
+                            o.selected_work = o.selected_work.saturating_sub(1)
+                        }
+                        Action::Down | Action::Right if o.selected_work + 1 < n => {
+                            o.selected_work += 1;
+                        }
+                        _ => {}
+                    }
+                }
+            }
+        }
+        Vec::new()
+    }
+
+    /// Columns the chart traces span (from the same layout the drawing uses).
+    pub fn chart_columns(&self) -> u16 {
+        super::ui::chart_plot_width(self)
+    }
+
+    // ----- opening sessions -----
+
+    /// Open a session: show what the journal knows at once, load the series in the background.
+    pub fn open_session(&mut self, session_id: &str) -> Vec<Effect> {
+        let Some((aidx, act)) = self
+            .roster
+            .find_session(session_id)
+            .and_then(|(a, x)| self.athlete_index(&a.id).map(|i| (i, x.clone())))
+        else {
+            self.say(Tone::Warn, format!("no session {session_id} in the roster"));
+            return Vec::new();
+        };
+        if self.unsaved() {
+            self.save_feedback();
+        }
+        self.open_generation += 1;
+        let generation = self.open_generation;
+        let athlete_id = self.athlete(aidx).map(|a| a.id.clone());
+        self.cursor = RosterCursor {
+            athlete: athlete_id.clone(),
+            session: Some(session_id.to_string()),
+        };
+        if let Some(a) = athlete_id {
+            self.ensure_reviews(&a);
+        }
+        let review = self.reviews.get(session_id).cloned();
+        let chart = review
+            .as_ref()
+            .map(|r| ChartView::full(r.session.duration_s));
+        self.open = Some(OpenSession {
+            session_id: session_id.to_string(),
+            athlete: aidx,
+            generation,
+            review,
+            analysed: None,
+            load_error: None,
+            state: None,
+            revisions: Vec::new(),
+            rulers: Vec::new(),
+            pending_ruler: None,
+            chart,
+            selected_work: 0,
+            note: None,
+            feedback: None,
+        });
+        self.reload_grades();
+        self.load_revealed();
+        self.view = View::Review;
+        self.focus = Focus::Verdict;
+        self.message = None;
+        let Some(athlete) = self.athletes.get(aidx).cloned() else {
+            return Vec::new();
+        };
+        vec![
+            Effect::DropStaleOpens(generation),
+            Effect::Submit {
+                job: Job {
+                    generation,
+                    kind: JobKind::Open,
+                    athlete,
+                    activity: act,
+                    cached_hash: None,
+                },
+                urgent: true,
+            },
+        ]
+    }
+
+    fn queue_step(&mut self, forward: bool) -> Vec<Effect> {
+        if self.lists_dirty {
+            self.refresh_lists();
+        }
+        let current = self.open.as_ref().map(|o| o.session_id.clone());
+        let pos = current
+            .as_ref()
+            .and_then(|id| self.queue.iter().position(|e| &e.session_id == id));
+        let target = match (pos, &current) {
+            (Some(i), _) => {
+                if forward {
+                    self.queue.get(i + 1)
+                } else {
+                    i.checked_sub(1).and_then(|j| self.queue.get(j))
+                }
+            }
+            (None, Some(id)) => {
+                let start = self
+                    .rows
+                    .values()
+                    .flatten()
+                    .find(|r| &r.session_id == id)
+                    .and_then(|r| r.start);
+                match start {
+                    Some(s) if forward => self
+                        .queue
+                        .iter()
+                        .find(|e| (e.start, &e.session_id) > (s, id)),
+                    Some(s) => self
+                        .queue
+                        .iter()
+                        .rev()
+                        .find(|e| (e.start, &e.session_id) < (s, id)),
+                    None => self.queue.first(),
+                }
+            }
+            (None, None) => {
+                if forward {
+                    self.queue.first()
+                } else {
+                    self.queue.last()
+                }
+            }
+        };
+        match target.map(|e| e.session_id.clone()) {
+            Some(id) => self.open_session(&id),
+            None => {
+                let text = if self.queue.is_empty() {
+                    "the queue is empty: every session is reviewed"
+                } else if forward {
+                    "no later unreviewed session"
+                } else {
+                    "no earlier unreviewed session"
+                };
+                self.say(Tone::Info, text);
+                Vec::new()
+            }
+        }
+    }
+
+    fn reload_grades(&mut self) {
+        let Some(o) = self.open.as_mut() else { return };
+        match self.journal.review_state(&o.session_id) {
+            Ok(s) => o.state = Some(s),
+            Err(JournalError::UnknownSession { .. }) => o.state = None,
+            Err(e) => {
+                o.state = None;
+                let text = e.to_string();
+                self.say(Tone::Warn, text);
+                return;
+            }
+        }
+        o.revisions = self.journal.revisions(&o.session_id).unwrap_or_default();
+        o.rulers = self.journal.rulers(&o.session_id).unwrap_or_default();
+    }
+
+    /// After the reveal (now or earlier): the note and the feedback text.
+    fn load_revealed(&mut self) {
+        let Some(o) = self.open.as_ref() else { return };
+        if !o.revealed() {
+            return;
+        }
+        let id = o.session_id.clone();
+        let embedded = o.analysed.as_ref().and_then(|a| a.session.note.clone());
+        let note_file = self
+            .roster
+            .find_session(&id)
+            .and_then(|(_, act)| act.note_file.clone());
+        let note = match self.journal.reveal(&id, now()) {
+            Ok(permit) => read_note(&permit, note_file.as_deref(), embedded.as_deref()),
+            Err(_) => return,
+        };
+        let saved = self.journal.feedback(&id).ok().flatten().map(|f| f.body);
+        let was_saved = saved.is_some();
+        let draft = saved.unwrap_or_else(|| self.draft_text());
+        if let Some(o) = self.open.as_mut() {
+            o.note = Some(note);
+            if o.feedback.is_none() {
+                let mut ed = TextEditor::new(&draft);
+                ed.saved = was_saved;
+                o.feedback = Some(ed);
+            }
+        }
+    }
+
+    fn draft_text(&self) -> String {
+        let Some(o) = self.open.as_ref() else {
+            return String::new();
+        };
+        let (Some(review), Some(athlete)) = (o.review.as_ref(), self.athlete(o.athlete)) else {
+            return String::new();
+        };
+        let verdict = o
+            .state
+            .as_ref()
+            .and_then(|s| s.verdict.as_ref())
+            .map(|v| v.current.as_str());
+        crate::export::feedback::draft(review, &athlete.profile, verdict)
+    }
+
+    fn on_done(&mut self, done: Done) {
+        match done.kind {
+            JobKind::Scan => {
+                if done.generation != self.scan_generation {
+                    return;
+                }
+                self.progress.done += 1;
+            }
+            JobKind::Open => {
+                let current = self.open.as_ref().is_some_and(|o| {
+                    o.generation == done.generation && o.session_id == done.session_id
+                });
+                if !current {
+                    return;
+                }
+            }
+        }
+        match done.outcome {
+            Outcome::Unchanged => {}
+            Outcome::Failed(why) => {
+                if done.kind == JobKind::Scan {
+                    self.progress.failed += 1;
+                }
+                self.failed.insert(done.session_id.clone());
+                self.problems.push(why.clone());
+                self.lists_dirty = true;
+                if let Some(o) = self
+                    .open
+                    .as_mut()
+                    .filter(|o| o.session_id == done.session_id && o.analysed.is_none())
+                {
+                    o.load_error = Some(why);
+                }
+            }
+            Outcome::Analysed(a) => {
+                self.record(&a);
+                self.reviews.insert(a.session_id.clone(), a.review.clone());
+                self.lists_dirty = true;
+                let is_open = self
+                    .open
+                    .as_ref()
+                    .is_some_and(|o| o.session_id == a.session_id && o.analysed.is_none());
+                if is_open {
+                    self.attach(a);
+                }
+            }
+        }
+    }
+
+    fn record(&mut self, a: &Analysed) {
+        match a.record() {
+            Ok(rec) => {
+                if let Err(e) = self.journal.upsert_session(&rec, now()) {
+                    self.say(Tone::Warn, e.to_string());
+                }
+            }
+            Err(e) => self.say(Tone::Warn, e.to_string()),
+        }
+    }
+
+    /// Give the open session its analysed series.
+    fn attach(&mut self, a: Box<Analysed>) {
+        let Some(o) = self.open.as_mut() else { return };
+        let duration = a.session.duration_s();
+        match o.chart.as_mut() {
+            Some(c) if (c.duration - duration).abs() < 1e-6 => {}
+            _ => o.chart = Some(ChartView::full(duration)),
+        }
+        o.review = Some(a.review.clone());
+        let n = a.review.work().count();
+        if o.selected_work >= n {
+            o.selected_work = n.saturating_sub(1);
+        }
+        o.analysed = Some(a);
+        self.reload_grades();
+        if let Some(o) = self.open.as_mut() {
+            o.note = None;
+        }
+        self.load_revealed();
+    }
+
+    // ----- grading -----
+
+    fn open_graded(&mut self) -> Option<String> {
+        let (id, ready) = match self.open.as_ref() {
+            None => {
+                self.say(
+                    Tone::Info,
+                    "open a session first (Enter, or ] for the queue)",
+                );
+                return None;
+            }
+            Some(o) => (
+                o.session_id.clone(),
+                o.review.is_some() && o.state.is_some(),
+            ),
+        };
+        if !ready {
+            self.say(
+                Tone::Info,
+                "still analysing this session; grading opens in a moment",
+            );
+            return None;
+        }
+        Some(id)
+    }
+
+    fn score(&mut self, score: u8) {
+        let Some(id) = self.open_graded() else { return };
+        let (n, sel) = match self.open.as_ref() {
+            Some(o) => (o.work_count(), o.selected_work),
+            None => return,
+        };
+        if n == 0 {
+            self.say(
+                Tone::Info,
+                "no work intervals to score: give the purpose verdict (v)",
+            );
+            return;
+        }
+        let interval = sel.min(n - 1) as u32 + 1;
+        let revealed = self.open.as_ref().is_some_and(OpenSession::revealed);
+        match self.journal.set_score(&id, interval, score, now()) {
+            Ok(()) => {
+                self.reload_grades();
+                let advanced = match self.open.as_mut() {
+                    Some(o) if o.selected_work + 1 < n => {
+                        o.selected_work += 1;
+                        true
+                    }
+                    _ => false,
+                };
+                let what = if revealed { "revised" } else { "scored" };
+                let next = if advanced || revealed {
+                    String::new()
+                } else {
+                    format!(
+                        " · purpose verdict: {}",
+                        self.keymap.first(Action::CycleVerdict)
+                    )
+                };
+                self.say(
+                    Tone::Done,
+                    format!("interval {interval} {what} {score}{next}"),
+                );
+                self.lists_dirty = true;
+            }
+            Err(e) => self.say(Tone::Warn, short_error(&e)),
+        }
+    }
+
+    fn cycle_verdict(&mut self) {
+        let Some(id) = self.open_graded() else { return };
+        let current = self
+            .open
+            .as_ref()
+            .and_then(|o| o.state.as_ref())
+            .and_then(|s| s.verdict.as_ref())
+            .map(|v| v.current);
+        let next = match current {
+            None | Some(PurposeVerdict::Missed) => PurposeVerdict::Met,
+            Some(PurposeVerdict::Met) => PurposeVerdict::Partly,
+            Some(PurposeVerdict::Partly) => PurposeVerdict::Missed,
+        };
+        match self.journal.set_verdict(&id, next, now()) {
+            Ok(()) => {
+                self.reload_grades();
+                self.say(Tone::Done, format!("purpose verdict: {next}"));
+                self.lists_dirty = true;
+            }
+            Err(e) => self.say(Tone::Warn, short_error(&e)),
+        }
+    }
+
+    fn reveal(&mut self) {
+        let Some(id) = self.open_graded() else { return };
+        if self.open.as_ref().is_some_and(OpenSession::revealed) {
+            if let Some(Some(text)) = self.open.as_ref().and_then(|o| o.note.clone()) {
+                self.modal = Some(Modal::Notes(text));
+            } else {
+                self.say(Tone::Info, "the athlete left no notes for this session");
+            }
+            return;
+        }
+        match self.journal.reveal(&id, now()) {
+            Ok(_permit) => {
+                // The permit is used again inside load_revealed (reveal is idempotent).
+                self.reload_grades();
+                self.load_revealed();
+                self.lists_dirty = true;
+                match self.open.as_ref().and_then(|o| o.note.clone()) {
+                    Some(Some(text)) => {
+                        self.modal = Some(Modal::Notes(text));
+                        self.say(
+                            Tone::Done,
+                            "notes revealed; grades changed from now on are kept as revisions",
+                        );
+                    }
+                    _ => self.say(Tone::Done, "revealed: the athlete left no notes"),
+                }
+            }
+            Err(JournalError::NotYetGraded { missing, .. }) => {
+                self.say(
+                    Tone::Warn,
+                    format!("notes stay hidden until grading is complete: {missing}"),
+                );
+            }
+            Err(e) => self.say(Tone::Warn, short_error(&e)),
+        }
+    }
+
+    // ----- rulers -----
+
+    fn ruler(&mut self) {
+        let Some(o) = self.open.as_mut() else {
+            self.say(Tone::Info, "open a session first");
+            return;
+        };
+        let Some(cursor) = o.chart.as_ref().map(|c| c.cursor) else {
+            return;
+        };
+        match o.pending_ruler.take() {
+            None => {
+                o.pending_ruler = Some(cursor);
+                let text = format!(
+                    "ruler from {}: move the cursor and press {} again",
+                    crate::model::units::format_clock(cursor),
+                    self.keymap.first(Action::Ruler)
+                );
+                self.say(Tone::Info, text);
+            }
+            Some(first) => {
+                let (a, b) = if first <= cursor {
+                    (first, cursor)
+                } else {
+                    (cursor, first)
+                };
+                if b - a < 10.0 {
+                    self.say(Tone::Warn, "a ruler needs at least 10 s between its points");
+                    return;
+                }
+                let id = o.session_id.clone();
+                match self.journal.add_ruler(&id, a, b, now()) {
+                    Ok(r) => {
+                        if let Some(o) = self.open.as_mut() {
+                            o.rulers.push(r);
+                        }
+                        self.say(Tone::Done, "ruler kept");
+                    }
+                    Err(e) => self.say(Tone::Warn, short_error(&e)),
+                }
+            }
+        }
+    }
+
+    fn clear_rulers(&mut self) {
+        let Some(id) = self.open.as_ref().map(|o| o.session_id.clone()) else {
+            return;
+        };
+        match self.journal.clear_rulers(&id) {
+            Ok(n) => {
+                if let Some(o) = self.open.as_mut() {
+                    o.rulers.clear();
+                    o.pending_ruler = None;
+                }
+                self.say(Tone::Done, format!("{n} ruler(s) cleared"));
+            }
+            Err(e) => self.say(Tone::Warn, short_error(&e)),
+        }
+    }
+
+    // ----- feedback -----
+
+    fn feedback_ready(&mut self) -> bool {
+        if self.open.is_none() {
+            self.say(Tone::Info, "open a session first");
+            return false;
+        }
+        if !self.open.as_ref().is_some_and(OpenSession::revealed) {
+            self.say(
+                Tone::Warn,
+                format!(
+                    "feedback comes after the reveal: grade blind, then {}",
+                    self.keymap.first(Action::RevealNotes)
+                ),
+            );
+            return false;
+        }
+        if self.open.as_ref().is_some_and(|o| o.feedback.is_none()) {
+            let draft = self.draft_text();
+            if let Some(o) = self.open.as_mut() {
+                o.feedback = Some(TextEditor::new(&draft));
+            }
+        }
+        true
+    }
+
+    fn feedback_text(&self) -> Option<String> {
+        self.open
+            .as_ref()
+            .and_then(|o| o.feedback.as_ref())
+            .map(TextEditor::text)
+    }
+
+    fn save_feedback(&mut self) {
+        let Some((id, text)) = self.open.as_ref().and_then(|o| {
+            o.feedback
+                .as_ref()
+                .map(|f| (o.session_id.clone(), f.text()))
+        }) else {
+            return;
+        };
+        match self.journal.save_feedback(&id, &text, now()) {
+            Ok(()) => {
+                if let Some(ed) = self.open.as_mut().and_then(|o| o.feedback.as_mut()) {
+                    ed.dirty = false;
+                    ed.saved = true;
+                }
+                self.say(Tone::Done, "feedback saved in the journal");
+            }
+            Err(e) => self.say(Tone::Warn, short_error(&e)),
+        }
+    }
+
+    fn mark_sent(&mut self, kind: FeedbackEventKind) -> bool {
+        let Some(id) = self.open.as_ref().map(|o| o.session_id.clone()) else {
+            return false;
+        };
+        let never_saved = matches!(self.journal.feedback(&id), Ok(None));
+        if self.unsaved() || never_saved {
+            self.save_feedback();
+        }
+        match self.journal.record_feedback_event(&id, kind, now()) {
+            Ok(()) => {
+                self.reload_grades();
+                self.lists_dirty = true;
+                true
+            }
+            Err(e) => {
+                self.say(Tone::Warn, short_error(&e));
+                false
+            }
+        }
+    }
+
+    fn copy_feedback(&mut self) -> Vec<Effect> {
+        let Some(text) = self.feedback_text() else {
+            return Vec::new();
+        };
+        if self.mark_sent(FeedbackEventKind::Copied) {
+            self.say(Tone::Done, "feedback copied");
+            vec![Effect::Copy(text)]
+        } else {
+            Vec::new()
+        }
+    }
+
+    /// Where `s` writes the feedback of a session.
+    pub fn feedback_path(&self, session_id: &str) -> PathBuf {
+        let name = format!("{}.txt", session_id.replace(['/', '\\'], "__"));
+        match &self.feedback_dir {
+            Some(d) => d.join(name),
+            None => PathBuf::from(name),
+        }
+    }
+
+    fn export_feedback(&mut self) -> Vec<Effect> {
+        let (Some(text), Some(id)) = (
+            self.feedback_text(),
+            self.open.as_ref().map(|o| o.session_id.clone()),
+        ) else {
+            return Vec::new();
+        };
+        vec![Effect::WriteFile {
+            path: self.feedback_path(&id),
+            text,
+        }]
+    }
+
+    fn on_written(&mut self, r: Result<PathBuf, String>) {
+        match r {
+            Ok(path) => {
+                if self.mark_sent(FeedbackEventKind::Exported) {
+                    self.say(Tone::Done, format!("feedback saved to {}", path.display()));
+                }
+            }
+            Err(e) => self.say(Tone::Warn, format!("feedback not saved: {e}")),
+        }
+    }
+
+    fn on_editor(&mut self, r: Result<String, String>) {
+        match r {
+            Ok(text) => {
+                if let Some(o) = self.open.as_mut() {
+                    let changed = o.feedback.as_ref().map(TextEditor::text) != Some(text.clone());
+                    let mut ed = TextEditor::new(&text);
+                    ed.dirty = changed;
+                    o.feedback = Some(ed);
+                }
+                self.save_feedback();
+            }
+            Err(e) => self.say(Tone::Warn, format!("editor: {e}")),
+        }
+    }
+
+    // ----- for the panes -----
+
+    /// Title of a session for lists: the plan title, else sport and distance, else the file.
+    pub fn session_title(&self, session_id: &str) -> String {
+        let stem = session_id
+            .split_once('/')
+            .map(|(_, s)| s)
+            .unwrap_or(session_id);
+        let Some(r) = self.reviews.get(session_id) else {
+            return stem.to_string();
+        };
+        if let Some(p) = &r.plan {
+            return p.title.clone();
+        }
+        let units = self
+            .roster
+            .find_session(session_id)
+            .map(|(a, _)| a.profile.units)
+            .unwrap_or_default();
+        match r.session.distance_m {
+            Some(d) => format!("{} {}", r.session.sport, format_distance(d, units)),
+            None => r.session.sport.clone(),
+        }
+    }
+}
+
+/// A journal error without the journal path (the status line is short).
+fn short_error(e: &JournalError) -> String {
+    let s = e.to_string();
+    match s.split_once(": ") {
+        Some((head, rest)) if head.contains(".sqlite") || head.contains('/') => rest.to_string(),
+        _ => s,
+    }
+}

@@ -1,0 +1,321 @@
+//! The workstation: a keyboard-driven terminal UI over the roster and the journal.
+//!
+//! [`run`] sets up the terminal (restored on every exit path: normal quit, error, panic via
+//! a panic hook, SIGTERM/SIGHUP via a `signal-hook` flag the event loop checks), starts the
+//! background workers and runs the event loop. The loop is generic over the ratatui
+//! backend and a [`Host`] (terminal events, clipboard, editor), so the whole app can run on
+//! a `TestBackend`.
+//!
+//! State and update live in [`app`]; drawing in [`ui`] and [`panes`] (pure functions of
+//! `&App`); keys in [`keymap`] and [`action`].
+
+pub mod action;
+pub mod app;
+pub mod event;
+pub mod keymap;
+pub mod panes;
+pub mod theme;
+pub mod ui;
+
+use std::collections::VecDeque;
+use std::io::{self, IsTerminal, Write};
+use std::path::{Path, PathBuf};
+use std::sync::atomic::{AtomicBool, Ordering};
+use std::sync::Arc;
+use std::time::Duration;
+
+use crossterm::event::{DisableBracketedPaste, EnableBracketedPaste, Event};
+use crossterm::terminal::{
+    disable_raw_mode, enable_raw_mode, EnterAlternateScreen, LeaveAlternateScreen,
+};
+use crossterm::{cursor, execute};
+use ratatui::backend::{Backend, CrosstermBackend};
+use ratatui::Terminal;
+
+use crate::config::Config;
+use crate::worker::{JobKind, Worker};
+use crate::workspace::Workspace;
+
+use app::{App, Effect, Options};
+use event::AppEvent;
+use keymap::KeyMap;
+use theme::Theme;
+
+/// The message when there is no terminal to draw on.
+pub const NOT_A_TERMINAL: &str =
+    "error: the workstation needs a terminal; use the headless commands (splitdesk --help)";
+
+/// Where `s` writes feedback files: `<data dir>/feedback`, if the platform has one.
+pub fn default_feedback_dir() -> Option<PathBuf> {
+    directories::ProjectDirs::from("", "", "splitdesk").map(|d| d.data_dir().join("feedback"))
+}
+
+/// Open the workstation on a roster. Returns the process exit code (2 without a terminal).
+pub fn run(roster_dir: &Path, journal: Option<&Path>, config: &Config) -> anyhow::Result<i32> {
+    if !io::stdin().is_terminal() || !io::stdout().is_terminal() {
+        eprintln!("{NOT_A_TERMINAL}");
+        return Ok(2);
+    }
+    let keymap = KeyMap::with_overrides(&config.keys)?;
+    let journal = journal
+        .map(Path::to_path_buf)
+        .or_else(|| config.journal.clone());
+    let ws = Workspace::open(roster_dir, journal.as_deref())?;
+    let options = Options {
+        keymap,
+        theme: Theme::from_env(),
+        feedback_dir: default_feedback_dir(),
+    };
+    let mut app = App::new(ws.roster, ws.journal, options);
+
+    let term_flag = Arc::new(AtomicBool::new(false));
+    for sig in [
+        signal_hook::consts::SIGTERM,
+        signal_hook::consts::SIGHUP,
+        signal_hook::consts::SIGINT,
+    ] {
+        // Only sets a flag: async-signal-safe. The loop sees it within one poll interval.
+        signal_hook::flag::register(sig, Arc::clone(&term_flag))?;
+    }
+    install_panic_hook();
+    let guard = TerminalGuard::enter()?;
+    let mut terminal = Terminal::new(CrosstermBackend::new(io::stdout()))?;
+    terminal.clear()?;
+    let worker = Worker::for_machine();
+    let mut host = CrosstermHost;
+    let result = event_loop(&mut terminal, &mut app, &worker, &mut host, &term_flag);
+    drop(worker);
+    drop(terminal);
+    drop(guard);
+    result.map(|()| 0)
+}
+
+/// Restores the terminal when dropped.
+struct TerminalGuard;
+
+impl TerminalGuard {
+    fn enter() -> io::Result<TerminalGuard> {
+        enable_raw_mode()?;
+        let guard = TerminalGuard;
+        execute!(
+            io::stdout(),
+            EnterAlternateScreen,
+            EnableBracketedPaste,
+            cursor::Hide
+        )?;
+        Ok(guard)
+    }
+}
+
+impl Drop for TerminalGuard {
+    fn drop(&mut self) {
+        restore_terminal();
+    }
+}
+
+/// Leave raw mode and the alternate screen (safe to call more than once).
+pub fn restore_terminal() {
+    let _ = disable_raw_mode();
+    let _ = execute!(
+        io::stdout(),
+        DisableBracketedPaste,
+        LeaveAlternateScreen,
+        cursor::Show
+    );
+}
+
+fn install_panic_hook() {
+    let previous = std::panic::take_hook();
+    std::panic::set_hook(Box::new(move |info| {
+        restore_terminal();
+        previous(info);
+    }));
+}
+
+/// The outside world the event loop talks to besides the backend.
+pub trait Host {
+    /// The next terminal event, waiting at most `timeout`.
+    fn next_event(&mut self, timeout: Duration) -> io::Result<Option<Event>>;
+    /// Copy text to the clipboard; says how.
+    fn copy(&mut self, text: &str) -> String;
+    /// Let the coach edit `text` in an external editor; the edited text.
+    fn edit(&mut self, text: &str) -> Result<String, String>;
+}
+
+/// The real terminal.
+pub struct CrosstermHost;
+
+impl Host for CrosstermHost {
+    fn next_event(&mut self, timeout: Duration) -> io::Result<Option<Event>> {
+        if crossterm::event::poll(timeout)? {
+            crossterm::event::read().map(Some)
+        } else {
+            Ok(None)
+        }
+    }
+
+    fn copy(&mut self, text: &str) -> String {
+        let mut out = io::stdout();
+        crate::export::clipboard::copy(text, &mut out).to_string()
+    }
+
+    fn edit(&mut self, text: &str) -> Result<String, String> {
+        edit_in_editor(text)
+    }
+}
+
+/// Suspend the terminal, run `$VISUAL`/`$EDITOR` (else `vi`) on a temporary file holding
+/// `text`, restore the terminal and return the edited text.
+pub fn edit_in_editor(text: &str) -> Result<String, String> {
+    let editor = std::env::var("VISUAL")
+        .ok()
+        .filter(|s| !s.trim().is_empty())
+        .or_else(|| {
+            std::env::var("EDITOR")
+                .ok()
+                .filter(|s| !s.trim().is_empty())
+        })
+        .unwrap_or_else(|| "vi".to_string());
+    let path = std::env::temp_dir().join(format!("splitdesk-feedback-{}.txt", std::process::id()));
+    std::fs::write(&path, text).map_err(|e| format!("{}: {e}", path.display()))?;
+    restore_terminal();
+    let mut parts = editor.split_whitespace();
+    let status = match parts.next() {
+        Some(prog) => std::process::Command::new(prog)
+            .args(parts)
+            .arg(&path)
+            .status()
+            .map_err(|e| format!("{editor}: {e}")),
+        None => Err("no editor".to_string()),
+    };
+    let _ = enable_raw_mode();
+    let _ = execute!(
+        io::stdout(),
+        EnterAlternateScreen,
+        EnableBracketedPaste,
+        cursor::Hide
+    );
+    let result = match status {
+        Ok(s) if s.success() => {
+            std::fs::read_to_string(&path).map_err(|e| format!("{}: {e}", path.display()))
+        }
+        Ok(s) => Err(format!("{editor} exited with {s}; text unchanged")),
+        Err(e) => Err(e),
+    };
+    let _ = std::fs::remove_file(&path);
+    result
+}
+
+/// Write a feedback file, creating its folder.
+fn write_file(path: &Path, text: &str) -> Result<PathBuf, String> {
+    if let Some(dir) = path.parent().filter(|d| !d.as_os_str().is_empty()) {
+        std::fs::create_dir_all(dir).map_err(|e| format!("{}: {e}", dir.display()))?;
+    }
+    std::fs::write(path, text).map_err(|e| format!("{}: {e}", path.display()))?;
+    Ok(std::fs::canonicalize(path).unwrap_or_else(|_| path.to_path_buf()))
+}
+
+/// The event loop: draw when something changed, feed terminal events and worker results to
+/// the app, carry out its effects. Returns when the app quits or `stop` is set.
+pub fn event_loop<B: Backend, H: Host>(
+    terminal: &mut Terminal<B>,
+    app: &mut App,
+    worker: &Worker,
+    host: &mut H,
+    stop: &AtomicBool,
+) -> anyhow::Result<()>
+where
+    B::Error: Send + Sync + 'static,
+{
+    let size = terminal.size()?;
+    app.size = (size.width, size.height);
+    terminal.draw(|f| ui::draw(f, app))?;
+    let first = app.start_scan();
+    if carry_out(first, app, worker, host, terminal)? {
+        return Ok(());
+    }
+    terminal.draw(|f| ui::draw(f, app))?;
+    loop {
+        if stop.load(Ordering::SeqCst) {
+            return Ok(());
+        }
+        let mut changed = false;
+        let mut effects = Vec::new();
+        let mut drained = 0;
+        while let Some(done) = worker.try_recv() {
+            effects.extend(app.handle(AppEvent::Worker(done)));
+            changed = true;
+            drained += 1;
+            if drained >= 64 {
+                break;
+            }
+        }
+        let timeout = if app.busy() || drained > 0 {
+            Duration::from_millis(60)
+        } else {
+            Duration::from_millis(400)
+        };
+        match host.next_event(timeout)? {
+            Some(ev) => {
+                effects.extend(app.handle(AppEvent::Input(ev)));
+                changed = true;
+            }
+            None => {
+                if changed || app.busy() {
+                    effects.extend(app.handle(AppEvent::Tick));
+                }
+            }
+        }
+        if carry_out(effects, app, worker, host, terminal)? {
+            return Ok(());
+        }
+        if changed {
+            terminal.draw(|f| ui::draw(f, app))?;
+        }
+    }
+}
+
+/// Carry out effects (and the effects they lead to). `true` when the app quits.
+fn carry_out<B: Backend, H: Host>(
+    effects: Vec<Effect>,
+    app: &mut App,
+    worker: &Worker,
+    host: &mut H,
+    terminal: &mut Terminal<B>,
+) -> anyhow::Result<bool>
+where
+    B::Error: Send + Sync + 'static,
+{
+    let mut queue: VecDeque<Effect> = effects.into();
+    let mut redraw = false;
+    while let Some(e) = queue.pop_front() {
+        match e {
+            Effect::Quit => return Ok(true),
+            Effect::Submit { job, urgent } => worker.submit(job, urgent),
+            Effect::DropStaleOpens(g) => {
+                worker.retain(|j| j.kind != JobKind::Open || j.generation >= g)
+            }
+            Effect::Copy(text) => {
+                let how = host.copy(&text);
+                queue.extend(app.handle(AppEvent::Copied(how)));
+                redraw = true;
+            }
+            Effect::OpenEditor(text) => {
+                let r = host.edit(&text);
+                terminal.clear()?;
+                queue.extend(app.handle(AppEvent::EditorDone(r)));
+                redraw = true;
+            }
+            Effect::WriteFile { path, text } => {
+                let r = write_file(&path, &text);
+                queue.extend(app.handle(AppEvent::FileWritten(r)));
+                redraw = true;
+            }
+        }
+    }
+    if redraw {
+        terminal.draw(|f| ui::draw(f, app))?;
+    }
+    let _ = io::stdout().flush();
+    Ok(false)
+}

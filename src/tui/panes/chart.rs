@@ -1,0 +1,668 @@
+//! The chart pane: pace and heart rate on one time axis (Braille canvas), each with its own
+//! labelled scale, work-interval bands, flagged data, optional elevation, a cursor with a
+//! readout, and rulers (least-squares lines between two marked points).
+
+use ratatui::buffer::Buffer;
+use ratatui::layout::Rect;
+use ratatui::style::{Color, Style};
+use ratatui::symbols::Marker;
+use ratatui::text::{Line, Span};
+use ratatui::widgets::canvas::{Canvas, Context, Line as CLine};
+use ratatui::widgets::{Paragraph, Widget};
+
+use crate::analysis::decoupling::decoupling_pct;
+use crate::analysis::review::Review;
+use crate::analysis::trend::{fit, Fit};
+use crate::ingest::clean::sample_mask;
+use crate::model::units::{format_clock, format_pace};
+use crate::model::{ChannelKind, Session, Units};
+use crate::tui::app::{App, ChartView, Focus};
+use crate::tui::ui::pane_block;
+
+/// Width of the scale labels left of the plot.
+pub const GUTTER: u16 = 9;
+
+/// Below this fraction of the fastest speed shown, the pace scale stops (walking and
+/// standing are drawn at the bottom edge).
+// Our design choice: keeps an easy jog and a fast repeat on one readable scale.
+pub const PACE_FLOOR_FRACTION: f64 = 0.45;
+
+/// What the samples falling in one column did.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct ColumnRange {
+    /// Smallest value.
+    pub min: f64,
+    /// Largest value.
+    pub max: f64,
+    /// First value (in time).
+    pub first: f64,
+    /// Last value.
+    pub last: f64,
+}
+
+/// Down-sample a series to `columns` columns over `[from, to]`, keeping each column's
+/// minimum and maximum (so a one-sample spike stays visible) and its first and last values
+/// (to join columns). Missing samples, non-finite values and samples where `usable` is
+/// false are skipped; a column without samples is `None`.
+pub fn downsample(
+    t: &[f64],
+    values: &[Option<f64>],
+    usable: Option<&[bool]>,
+    from: f64,
+    to: f64,
+    columns: usize,
+) -> Vec<Option<ColumnRange>> {
+    let mut out: Vec<Option<ColumnRange>> = vec![None; columns];
+    let span = to - from;
+    if columns == 0 || !(span.is_finite() && span > 0.0) {
+        return out;
+    }
+    let start = t.partition_point(|&x| x < from);
+    for (i, &ti) in t.iter().enumerate().skip(start) {
+        if ti > to {
+            break;
+        }
+        if usable.is_some_and(|u| !u.get(i).copied().unwrap_or(false)) {
+            continue;
+        }
+        let Some(v) = values.get(i).copied().flatten().filter(|v| v.is_finite()) else {
+            continue;
+        };
+        let c = (((ti - from) / span) * columns as f64).floor();
+        let c = (c.max(0.0) as usize).min(columns - 1);
+        if let Some(slot) = out.get_mut(c) {
+            match slot {
+                Some(r) => {
+                    r.min = r.min.min(v);
+                    r.max = r.max.max(v);
+                    r.last = v;
+                }
+                None => {
+                    *slot = Some(ColumnRange {
+                        min: v,
+                        max: v,
+                        first: v,
+                        last: v,
+                    })
+                }
+            }
+        }
+    }
+    out
+}
+
+/// A ruler's numbers: the least-squares lines of speed and HR against time over the window,
+/// their slopes per 10 minutes, and the window's decoupling.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct RulerStats {
+    /// Speed (m/s) against time (s).
+    pub speed: Option<Fit>,
+    /// HR (bpm) against time (s).
+    pub hr: Option<Fit>,
+    /// Change of the fitted pace per 10 minutes, seconds per unit distance (positive: slower).
+    pub pace_per_10min: Option<f64>,
+    /// Change of the fitted HR per 10 minutes, bpm.
+    pub hr_per_10min: Option<f64>,
+    /// Decoupling of the window, percent (positive: the HR cost of the speed rose).
+    pub decoupling_pct: Option<f64>,
+}
+
+/// Compute a ruler's numbers on a session window (flagged samples left out).
+pub fn ruler_stats(session: &Session, from: f64, to: f64, units: Units) -> RulerStats {
+    let t = &session.t;
+    let n = t.len();
+    let in_window: Vec<bool> = t.iter().map(|&x| x >= from && x <= to).collect();
+    let speed_ok = sample_mask(session, &session.flags, ChannelKind::Speed);
+    let hr_ok = sample_mask(session, &session.flags, ChannelKind::Hr);
+    let empty: Vec<Option<f64>> = Vec::new();
+    let speed = session.speed.as_ref().map(|c| &c.values).unwrap_or(&empty);
+    let hr = session.hr.as_ref().map(|c| &c.values).unwrap_or(&empty);
+    let pairs = |vals: &[Option<f64>], ok: &[bool]| -> (Vec<f64>, Vec<f64>) {
+        let mut xs = Vec::new();
+        let mut ys = Vec::new();
+        for i in 0..n {
+            let good =
+                in_window.get(i).copied().unwrap_or(false) && !ok.get(i).copied().unwrap_or(false);
+            if let (true, Some(v), Some(&x)) = (good, vals.get(i).copied().flatten(), t.get(i)) {
+                xs.push(x);
+                ys.push(v);
+            }
+        }
+        (xs, ys)
+    };
+    let (sx, sy) = pairs(speed, &speed_ok);
+    let (hx, hy) = pairs(hr, &hr_ok);
+    let speed_fit = fit(&sx, &sy);
+    let hr_fit = fit(&hx, &hy);
+    let span = to - from;
+    let pace_per_10min = speed_fit.and_then(|f| {
+        let (v0, v1) = (f.predict(from), f.predict(to));
+        (v0 > 0.0 && v1 > 0.0 && span > 0.0)
+            .then(|| (units.metres() / v1 - units.metres() / v0) / span * 600.0)
+    });
+    let hr_per_10min = hr_fit.map(|f| f.slope * 600.0);
+    let usable: Vec<bool> = (0..n)
+        .map(|i| {
+            in_window.get(i).copied().unwrap_or(false)
+                && !speed_ok.get(i).copied().unwrap_or(false)
+                && !hr_ok.get(i).copied().unwrap_or(false)
+        })
+        .collect();
+    let decoupling = decoupling_pct(speed, hr, t, &usable);
+    RulerStats {
+        speed: speed_fit,
+        hr: hr_fit,
+        pace_per_10min,
+        hr_per_10min,
+        decoupling_pct: decoupling,
+    }
+}
+
+/// One line describing a ruler.
+pub fn ruler_line(k: usize, from: f64, to: f64, s: &RulerStats, units: Units) -> String {
+    let mut parts = vec![format!("R{k} {}–{}", format_clock(from), format_clock(to))];
+    if let Some(p) = s.pace_per_10min {
+        parts.push(format!("pace {p:+.1} s/{}/10min", units.label()));
+    }
+    if let Some(h) = s.hr_per_10min {
+        parts.push(format!("HR {h:+.1} bpm/10min"));
+    }
+    if let Some(d) = s.decoupling_pct {
+        parts.push(format!("decoupling {d:.1}%"));
+    }
+    parts.join("  ")
+}
+
+fn colour(style: Style) -> Color {
+    style.fg.unwrap_or(Color::Reset)
+}
+
+/// The value of a channel at the sample nearest to `at`.
+fn value_at(session: &Session, ch: Option<&crate::model::Channel>, at: f64) -> Option<f64> {
+    let ch = ch?;
+    let i = nearest(&session.t, at)?;
+    ch.get(i)
+}
+
+fn nearest(t: &[f64], at: f64) -> Option<usize> {
+    if t.is_empty() {
+        return None;
+    }
+    let i = t.partition_point(|&x| x < at);
+    if i == 0 {
+        return Some(0);
+    }
+    if i >= t.len() {
+        return Some(t.len() - 1);
+    }
+    let before = t.get(i - 1).copied().unwrap_or(f64::NAN);
+    let after = t.get(i).copied().unwrap_or(f64::NAN);
+    Some(if (at - before) <= (after - at) {
+        i - 1
+    } else {
+        i
+    })
+}
+
+/// The cursor readout: time and the exact values at the nearest sample.
+pub fn readout(session: &Session, at: f64, units: Units) -> String {
+    let mut parts = vec![format_clock(at)];
+    if let Some(v) = value_at(session, session.speed.as_ref(), at) {
+        parts.push(format!("pace {}", format_pace(v, units)));
+    }
+    if let Some(h) = value_at(session, session.hr.as_ref(), at) {
+        parts.push(format!("HR {h:.0}"));
+    }
+    if let Some(c) = value_at(session, session.cadence.as_ref(), at) {
+        parts.push(format!("cad {c:.0}"));
+    }
+    if let Some(a) = value_at(session, session.altitude.as_ref(), at) {
+        parts.push(format!("alt {a:.0} m"));
+    }
+    parts.join(" · ")
+}
+
+struct Band {
+    cols: Vec<Option<ColumnRange>>,
+    lo: f64,
+    hi: f64,
+    style: Style,
+    labels: [String; 2],
+    fits: Vec<(f64, f64, Fit)>,
+}
+
+fn band_bounds(cols: &[Option<ColumnRange>]) -> Option<(f64, f64)> {
+    let lo = cols
+        .iter()
+        .flatten()
+        .map(|c| c.min)
+        .fold(f64::INFINITY, f64::min);
+    let hi = cols
+        .iter()
+        .flatten()
+        .map(|c| c.max)
+        .fold(f64::NEG_INFINITY, f64::max);
+    (lo.is_finite() && hi.is_finite()).then_some((lo, hi))
+}
+
+fn draw_trace(ctx: &mut Context, band: &Band, view: &ChartView) {
+    let n = band.cols.len().max(1) as f64;
+    let color = colour(band.style);
+    let clamp = |v: f64| v.clamp(band.lo, band.hi);
+    let mut prev: Option<(f64, f64)> = None;
+    for (c, r) in band.cols.iter().enumerate() {
+        let x = view.from + (c as f64 + 0.5) / n * view.span();
+        match r {
+            Some(r) => {
+                if let Some((px, pv)) = prev {
+                    ctx.draw(&CLine::new(px, clamp(pv), x, clamp(r.first), color));
+                }
+                ctx.draw(&CLine::new(x, clamp(r.min), x, clamp(r.max), color));
+                prev = Some((x, r.last));
+            }
+            None => prev = None,
+        }
+    }
+}
+
+#[allow(clippy::too_many_arguments)]
+fn render_band(
+    band: &Band,
+    view: &ChartView,
+    cursor_style: Style,
+    ruler_style: Style,
+    pending: Option<f64>,
+    area: Rect,
+    buf: &mut Buffer,
+    label_style: Style,
+) {
+    if area.height == 0 || area.width <= GUTTER {
+        return;
+    }
+    let plot = Rect::new(area.x + GUTTER, area.y, area.width - GUTTER, area.height);
+    let top = Rect::new(area.x, area.y, GUTTER - 1, 1);
+    Paragraph::new(Line::styled(band.labels[0].clone(), label_style)).render(top, buf);
+    if area.height > 1 {
+        let bottom = Rect::new(area.x, area.y + area.height - 1, GUTTER - 1, 1);
+        Paragraph::new(Line::styled(band.labels[1].clone(), label_style)).render(bottom, buf);
+    }
+    let (lo, hi) = (band.lo, band.hi);
+    Canvas::default()
+        .marker(Marker::Braille)
+        .x_bounds([view.from, view.to])
+        .y_bounds([lo, hi])
+        .paint(|ctx| {
+            draw_trace(ctx, band, view);
+            ctx.layer();
+            for (a, b, f) in &band.fits {
+                let (a, b) = (a.max(view.from), b.min(view.to));
+                if b > a {
+                    ctx.draw(&CLine::new(
+                        a,
+                        f.predict(a).clamp(lo, hi),
+                        b,
+                        f.predict(b).clamp(lo, hi),
+                        colour(ruler_style),
+                    ));
+                }
+            }
+            if let Some(p) = pending {
+                ctx.draw(&CLine::new(p, lo, p, hi, colour(ruler_style)));
+            }
+            ctx.draw(&CLine::new(
+                view.cursor,
+                lo,
+                view.cursor,
+                hi,
+                colour(cursor_style),
+            ));
+        })
+        .render(plot, buf);
+}
+
+/// Draw the chart pane.
+pub fn render(app: &App, area: Rect, buf: &mut Buffer) {
+    let t = &app.theme;
+    let Some(o) = &app.open else { return };
+    let zoom = o
+        .chart
+        .filter(ChartView::zoomed)
+        .map(|c| format!(" · zoom {:.0}x ", c.duration / c.span().max(1.0)))
+        .unwrap_or_else(|| " ".to_string());
+    let block = pane_block(app, format!(" Chart{zoom}"), app.focus == Focus::Chart);
+    let inner = block.inner(area);
+    block.render(area, buf);
+    let (Some(a), Some(view)) = (o.analysed.as_ref(), o.chart) else {
+        let text = match &o.load_error {
+            Some(e) => Line::styled(e.clone(), t.warn),
+            None => Line::styled("reading the session…", t.dim),
+        };
+        Paragraph::new(text).render(inner, buf);
+        return;
+    };
+    let units = app
+        .athlete(o.athlete)
+        .map(|x| x.profile.units)
+        .unwrap_or_default();
+    let s = &a.session;
+    let h = inner.height;
+    if h < 4 || inner.width <= GUTTER + 4 {
+        return;
+    }
+    let plot_w = inner.width - GUTTER;
+    let show_axis = h >= 12;
+    let fixed = 2 + u16::from(show_axis);
+    let ruler_rows = (o.rulers.len() as u16)
+        .min(h.saturating_sub(fixed + 5))
+        .min(4);
+    let canvas_h = h - fixed - ruler_rows;
+    let mut y = inner.y;
+    // Readout.
+    let mut read = readout(s, view.cursor, units);
+    if let Some(p) = o.pending_ruler {
+        read.push_str(&format!(" · ruler from {}", format_clock(p)));
+    }
+    Paragraph::new(Line::styled(read, t.cursor)).render(Rect::new(inner.x, y, inner.width, 1), buf);
+    y += 1;
+    // Bands.
+    let cols = plot_w as usize * 2;
+    let speed_ok: Vec<bool> = sample_mask(s, &s.flags, ChannelKind::Speed)
+        .into_iter()
+        .map(|m| !m)
+        .collect();
+    let stats: Vec<(f64, f64, RulerStats)> = o
+        .rulers
+        .iter()
+        .map(|r| (r.from_s, r.to_s, ruler_stats(s, r.from_s, r.to_s, units)))
+        .collect();
+    let mut bands: Vec<Band> = Vec::new();
+    if let Some(sp) = &s.speed {
+        let c = downsample(&s.t, &sp.values, Some(&speed_ok), view.from, view.to, cols);
+        if let Some((mut lo, hi)) = band_bounds(&c) {
+            lo = lo.max(hi * PACE_FLOOR_FRACTION).max(0.3);
+            let hi = if hi - lo < 0.2 { lo + 0.2 } else { hi };
+            bands.push(Band {
+                cols: c,
+                lo,
+                hi,
+                style: t.pace,
+                labels: [format_pace(hi, units), format_pace(lo, units)],
+                fits: stats
+                    .iter()
+                    .filter_map(|(a, b, st)| st.speed.map(|f| (*a, *b, f)))
+                    .collect(),
+            });
+        }
+    }
+    if let Some(hr) = &s.hr {
+        let c = downsample(&s.t, &hr.values, None, view.from, view.to, cols);
+        if let Some((lo, hi)) = band_bounds(&c) {
+            let (lo, hi) = (lo - 1.0, hi + 1.0);
+            bands.push(Band {
+                cols: c,
+                lo,
+                hi,
+                style: t.hr,
+                labels: [format!("{hi:.0} bpm"), format!("{lo:.0} bpm")],
+                fits: stats
+                    .iter()
+                    .filter_map(|(a, b, st)| st.hr.map(|f| (*a, *b, f)))
+                    .collect(),
+            });
+        }
+    }
+    if view.elevation {
+        if let Some(alt) = &s.altitude {
+            let c = downsample(&s.t, &alt.values, None, view.from, view.to, cols);
+            if let Some((lo, hi)) = band_bounds(&c) {
+                let mid = (lo + hi) / 2.0;
+                let (lo, hi) = if hi - lo < 10.0 {
+                    (mid - 5.0, mid + 5.0)
+                } else {
+                    (lo, hi)
+                };
+                bands.push(Band {
+                    cols: c,
+                    lo,
+                    hi,
+                    style: t.elevation,
+                    labels: [format!("{hi:.0} m"), format!("{lo:.0} m")],
+                    fits: Vec::new(),
+                });
+            }
+        }
+    }
+    // Heights: pace gets the most room.
+    let weights: Vec<u16> = bands
+        .iter()
+        .enumerate()
+        .map(|(i, _)| match (i, bands.len()) {
+            (0, 1) => 10,
+            (0, 2) => 11,
+            (1, 2) => 9,
+            (0, _) => 9,
+            (1, _) => 7,
+            _ => 4,
+        })
+        .collect();
+    let total_w: u16 = weights.iter().sum::<u16>().max(1);
+    let mut left = canvas_h;
+    let plot_area = Rect::new(inner.x + GUTTER, y, plot_w, canvas_h);
+    shade_work(app, o.review.as_ref(), &view, plot_area, buf);
+    for (i, band) in bands.iter().enumerate() {
+        let bh = if i + 1 == bands.len() {
+            left
+        } else {
+            (canvas_h * weights.get(i).copied().unwrap_or(1) / total_w)
+                .max(1)
+                .min(left)
+        };
+        let r = Rect::new(inner.x, y, inner.width, bh);
+        render_band(
+            band,
+            &view,
+            t.cursor,
+            t.ruler,
+            o.pending_ruler,
+            r,
+            buf,
+            band.style,
+        );
+        y += bh;
+        left -= bh;
+    }
+    if bands.is_empty() {
+        Paragraph::new(Line::styled("no speed or heart-rate data", t.dim))
+            .render(Rect::new(inner.x, y, inner.width, 1), buf);
+    }
+    y = inner.y + 1 + canvas_h;
+    // Strip: work intervals and flagged data.
+    let strip = strip_line(s, o.review.as_ref(), &view, plot_w as usize);
+    let mut spans = vec![Span::styled(
+        format!("{:<w$}", "work/flag", w = GUTTER as usize),
+        t.dim,
+    )];
+    for (ch, kind) in strip {
+        let style = match kind {
+            StripMark::Flag => t.flagged,
+            StripMark::Work => t.work,
+            StripMark::None => t.dim,
+        };
+        spans.push(Span::styled(ch.to_string(), style));
+    }
+    Paragraph::new(Line::from(spans)).render(Rect::new(inner.x, y, inner.width, 1), buf);
+    y += 1;
+    if show_axis {
+        let axis = time_axis(&view, plot_w as usize);
+        Paragraph::new(Line::from(vec![
+            Span::styled(" ".repeat(GUTTER as usize), t.dim),
+            Span::styled(axis, t.dim),
+        ]))
+        .render(Rect::new(inner.x, y, inner.width, 1), buf);
+        y += 1;
+    }
+    let skip = stats.len().saturating_sub(ruler_rows as usize);
+    for (k, (a, b, st)) in stats.iter().enumerate().skip(skip) {
+        Paragraph::new(Line::styled(ruler_line(k + 1, *a, *b, st, units), t.ruler))
+            .render(Rect::new(inner.x, y, inner.width, 1), buf);
+        y += 1;
+    }
+}
+
+/// What one column of the strip shows.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum StripMark {
+    /// Nothing.
+    None,
+    /// Inside a work interval.
+    Work,
+    /// Flagged data.
+    Flag,
+}
+
+/// The strip under the traces: `×` where data is flagged, `━` in work intervals (with the
+/// work-interval number at its start when there is room).
+pub fn strip_line(
+    s: &Session,
+    review: Option<&Review>,
+    view: &ChartView,
+    width: usize,
+) -> Vec<(char, StripMark)> {
+    let mut out = vec![(' ', StripMark::None); width];
+    if width == 0 {
+        return out;
+    }
+    let col_t = |c: usize| view.from + (c as f64 + 0.5) / width as f64 * view.span();
+    let col_of = |t: f64| (((t - view.from) / view.span()) * width as f64).floor();
+    if let Some(r) = review {
+        for m in r.work() {
+            for (c, cell) in out.iter_mut().enumerate() {
+                let tc = col_t(c);
+                if tc >= m.start_s && tc < m.end_s {
+                    *cell = ('━', StripMark::Work);
+                }
+            }
+            if let Some(n) = m.work_number {
+                let c = col_of(m.start_s);
+                let label = n.to_string();
+                let len = label.chars().count();
+                let end = col_of(m.end_s);
+                if c >= 0.0 && end - c >= len as f64 + 1.0 {
+                    for (k, ch) in label.chars().enumerate() {
+                        if let Some(cell) = out.get_mut(c as usize + k) {
+                            *cell = (ch, StripMark::Work);
+                        }
+                    }
+                }
+            }
+        }
+    }
+    for f in &s.flags {
+        for (c, cell) in out.iter_mut().enumerate() {
+            let (a, b) = (
+                view.from + c as f64 / width as f64 * view.span(),
+                view.from + (c + 1) as f64 / width as f64 * view.span(),
+            );
+            if f.from_s <= b && f.to_s >= a {
+                *cell = ('×', StripMark::Flag);
+            }
+        }
+    }
+    out
+}
+
+/// The time axis: start, middle and end of the window.
+pub fn time_axis(view: &ChartView, width: usize) -> String {
+    let a = format_clock(view.from);
+    let m = format_clock((view.from + view.to) / 2.0);
+    let b = format_clock(view.to);
+    let mut line: Vec<char> = vec![' '; width];
+    let put = |line: &mut Vec<char>, at: usize, s: &str| {
+        for (k, ch) in s.chars().enumerate() {
+            if let Some(c) = line.get_mut(at + k) {
+                *c = ch;
+            }
+        }
+    };
+    put(&mut line, 0, &a);
+    let mid = (width / 2).saturating_sub(m.chars().count() / 2);
+    if mid > a.chars().count() + 1 {
+        put(&mut line, mid, &m);
+    }
+    let end = width.saturating_sub(b.chars().count());
+    if end > mid + m.chars().count() {
+        put(&mut line, end, &b);
+    }
+    line.into_iter().collect()
+}
+
+fn shade_work(app: &App, review: Option<&Review>, view: &ChartView, plot: Rect, buf: &mut Buffer) {
+    if app.theme.plain {
+        return;
+    }
+    let Some(r) = review else { return };
+    let Some(bg) = app.theme.work.fg.map(|_| Color::Rgb(36, 44, 58)) else {
+        return;
+    };
+    let w = plot.width as usize;
+    for c in 0..w {
+        let tc = view.from + (c as f64 + 0.5) / w as f64 * view.span();
+        if r.work().any(|m| tc >= m.start_s && tc < m.end_s) {
+            for yy in plot.y..plot.y + plot.height {
+                if let Some(cell) = buf.cell_mut((plot.x + c as u16, yy)) {
+                    cell.set_bg(bg);
+                }
+            }
+        }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn downsample_keeps_spikes_and_gaps() {
+        let t: Vec<f64> = (0..100).map(f64::from).collect();
+        let mut v: Vec<Option<f64>> = vec![Some(3.0); 100];
+        v[37] = Some(9.0); // a one-sample spike
+        v[60] = None;
+        let cols = downsample(&t, &v, None, 0.0, 99.0, 10);
+        assert_eq!(cols.len(), 10);
+        let spike = cols[3].unwrap();
+        assert_eq!(spike.max, 9.0);
+        assert_eq!(spike.min, 3.0);
+        assert!(cols.iter().flatten().filter(|c| c.max > 3.0).count() == 1);
+        // The last sample lands in the last column.
+        assert!(cols[9].is_some());
+        // A window with no samples gives empty columns.
+        let none = downsample(&t, &v, None, 200.0, 300.0, 5);
+        assert!(none.iter().all(Option::is_none));
+        // Unusable samples are skipped.
+        let mut ok = vec![true; 100];
+        ok[37] = false;
+        let cols = downsample(&t, &v, Some(&ok), 0.0, 99.0, 10);
+        assert_eq!(cols[3].unwrap().max, 3.0);
+        // Degenerate inputs.
+        assert!(downsample(&t, &v, None, 5.0, 5.0, 4)
+            .iter()
+            .all(Option::is_none));
+        assert!(downsample(&t, &v, None, 0.0, 10.0, 0).is_empty());
+    }
+
+    #[test]
+    fn downsample_first_and_last_follow_time() {
+        let t = [0.0, 1.0, 2.0, 3.0];
+        let v = [Some(1.0), Some(5.0), Some(2.0), Some(4.0)];
+        let cols = downsample(&t, &v, None, 0.0, 3.0, 1);
+        assert_eq!(
+            cols[0],
+            Some(ColumnRange {
+                min: 1.0,
+                max: 5.0,
+                first: 1.0,
+                last: 4.0
+            })
+        );
+    }
+}

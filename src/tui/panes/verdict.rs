@@ -1,0 +1,455 @@
+//! The verdict pane: the plan's purpose first, then the interval table (the objective facts),
+//! the grading cells, the findings; after the reveal, the athlete's notes and the feedback.
+
+use ratatui::buffer::Buffer;
+use ratatui::layout::Rect;
+use ratatui::style::Style;
+use ratatui::text::{Line, Span};
+use ratatui::widgets::{Paragraph, Widget, Wrap};
+
+use super::{fit, pad};
+use crate::analysis::findings::Severity;
+use crate::analysis::review::{IntervalMetrics, Review};
+use crate::journal::{ReviewState, Revision, RevisionChange};
+use crate::model::units::{format_clock, format_pace, Units};
+use crate::tui::action::Action;
+use crate::tui::app::{App, Focus, OpenSession, Tone};
+use crate::tui::theme::Theme;
+use crate::tui::ui::pane_block;
+
+/// The score cell of a work interval: `·` unscored, `3` blind, `3→4` revised after the reveal.
+pub fn score_cell(state: Option<&ReviewState>, work_number: u32) -> (String, bool) {
+    let Some(cell) = state.and_then(|s| s.scores.iter().find(|c| c.interval == work_number)) else {
+        return ("·".to_string(), false);
+    };
+    if cell.current != cell.blind {
+        (format!("{}→{}", cell.blind, cell.current), true)
+    } else {
+        (cell.blind.to_string(), false)
+    }
+}
+
+/// The verdict cell: `—` unset, `met`, or `met→partly` after a revision.
+pub fn verdict_cell(state: Option<&ReviewState>) -> (String, bool) {
+    match state.and_then(|s| s.verdict.as_ref()) {
+        None => ("—".to_string(), false),
+        Some(v) if v.current != v.blind => (format!("{}→{}", v.blind, v.current), true),
+        Some(v) => (v.blind.to_string(), false),
+    }
+}
+
+fn kind_label(kind: &str) -> &str {
+    match kind {
+        "warmup" => "warm",
+        "cooldown" => "cool",
+        "recovery" => "rec",
+        "work" => "work",
+        "steady" => "steady",
+        other => other,
+    }
+}
+
+fn opt<T>(v: Option<T>, f: impl Fn(T) -> String) -> String {
+    v.map(f).unwrap_or_else(|| "-".to_string())
+}
+
+/// Column layout of the interval table for a width.
+struct Cols {
+    /// Start time, cadence, HR max.
+    mid: bool,
+    /// Target and time in target, with this target width.
+    target: Option<usize>,
+}
+
+impl Cols {
+    fn for_width(w: usize) -> Cols {
+        Cols {
+            mid: w >= 62,
+            target: if w >= 110 {
+                Some(26)
+            } else if w >= 86 {
+                Some(16)
+            } else {
+                None
+            },
+        }
+    }
+}
+
+fn header(c: &Cols, units: Units) -> String {
+    let mut s = format!("  {:>2} {:<6}", "#", "kind");
+    if c.mid {
+        s.push_str(&format!("{:>7}", "start"));
+    }
+    s.push_str(&format!(
+        "{:>7}{:>8}{:>w$}",
+        "time",
+        format!("/{}", units.label()),
+        "HR",
+        w = if c.mid { 8 } else { 5 }
+    ));
+    if c.mid {
+        s.push_str(&format!("{:>5}", "cad"));
+    }
+    if let Some(tw) = c.target {
+        s.push_str(&format!(" {:<tw$}{:>5}", "target", "in"));
+    }
+    s.push_str(&format!(" {:>5}", "score"));
+    s
+}
+
+fn row_text(m: &IntervalMetrics, c: &Cols, units: Units, score: &str, selected: bool) -> String {
+    let pace = opt(m.avg_pace_s_per_km, |p| {
+        format_pace(1000.0 / p, units)
+            .trim_end_matches(&format!("/{}", units.label()))
+            .to_string()
+    });
+    let hr = match (m.avg_hr, m.max_hr, c.mid) {
+        (Some(a), Some(x), true) => format!("{a:.0}/{x:.0}"),
+        (Some(a), _, _) => format!("{a:.0}"),
+        _ => "-".to_string(),
+    };
+    let mark = if selected { "▶" } else { " " };
+    let num = match m.work_number {
+        Some(n) => n.to_string(),
+        None => String::new(),
+    };
+    let mut s = format!("{mark} {:>2} {:<6}", num, kind_label(&m.kind));
+    if c.mid {
+        s.push_str(&format!("{:>7}", format_clock(m.start_s)));
+    }
+    s.push_str(&format!(
+        "{:>7}{:>8}{:>w$}",
+        format_clock(m.duration_s),
+        pace,
+        hr,
+        w = if c.mid { 8 } else { 5 }
+    ));
+    if c.mid {
+        s.push_str(&format!(
+            "{:>5}",
+            opt(m.avg_cadence_spm, |x| format!("{x:.0}"))
+        ));
+    }
+    if let Some(tw) = c.target {
+        let target = m.target.clone().unwrap_or_else(|| "-".to_string());
+        let hit = opt(m.in_target_pct, |p| format!("{p:.0}%"));
+        s.push_str(&format!(" {:<tw$}{:>5}", fit(&target, tw), hit));
+    }
+    if m.kind == "work" {
+        s.push_str(&format!(" {score:>5}"));
+    }
+    s
+}
+
+fn severity_style(t: &Theme, s: Severity) -> (&'static str, Style) {
+    match s {
+        Severity::Info => ("·", t.dim),
+        Severity::Note => ("-", t.text),
+        Severity::Warning => ("!", t.warn),
+        Severity::Caution => ("‼", t.caution),
+    }
+}
+
+/// Lines of the grading block: scores, verdict, what is missing, the notes state.
+fn grading_lines<'a>(app: &App, o: &OpenSession, review: &Review) -> Vec<Line<'a>> {
+    let t = &app.theme;
+    let k = &app.keymap;
+    let state = o.state.as_ref();
+    let n = review.work().count();
+    let scored = state.map(|s| s.scores.len()).unwrap_or(0);
+    let (v, v_rev) = verdict_cell(state);
+    let mut lines = vec![Line::from(vec![
+        Span::styled("Grading  ", t.heading),
+        Span::styled(format!("scores {scored}/{n}"), t.text),
+        Span::styled("  ·  purpose verdict ", t.text),
+        Span::styled(v, if v_rev { t.revision } else { t.heading }),
+        Span::styled(format!(" ({})", k.first(Action::CycleVerdict)), t.dim),
+    ])];
+    if o.revealed() {
+        let revs = o.revisions.len();
+        let extra = if revs > 0 {
+            format!(" · {revs} revision(s) kept beside the blind grades")
+        } else {
+            String::new()
+        };
+        lines.push(Line::styled(format!("Notes revealed{extra}"), t.good));
+    } else {
+        match state {
+            Some(s) if !s.missing.is_empty() => {
+                lines.push(Line::styled(format!("Notes hidden: {}", s.missing), t.dim))
+            }
+            Some(_) => lines.push(Line::styled(
+                format!(
+                    "Blind grading complete: {} reveals the notes",
+                    k.first(Action::RevealNotes)
+                ),
+                t.good,
+            )),
+            None => lines.push(Line::styled(
+                "Notes hidden until grading is complete",
+                t.dim,
+            )),
+        }
+    }
+    if let Some(m) = app.message.as_ref().filter(|m| m.tone == Tone::Warn) {
+        lines.push(Line::styled(m.text.clone(), t.warn));
+    }
+    lines
+}
+
+/// Draw the verdict pane.
+pub fn render(app: &App, area: Rect, buf: &mut Buffer) {
+    let t = &app.theme;
+    let Some(o) = &app.open else { return };
+    let block = pane_block(app, " Verdict ", app.focus == Focus::Verdict);
+    let inner = block.inner(area);
+    block.render(area, buf);
+    if inner.height == 0 {
+        return;
+    }
+    let Some(review) = o.review.as_ref() else {
+        let text = match &o.load_error {
+            Some(e) => Line::styled(e.clone(), t.warn),
+            None => Line::styled("analysing this session…", t.dim),
+        };
+        Paragraph::new(text).render(inner, buf);
+        return;
+    };
+    let units = app
+        .athlete(o.athlete)
+        .map(|a| a.profile.units)
+        .unwrap_or_default();
+    let w = inner.width as usize;
+    let cols = Cols::for_width(w);
+    let mut y = inner.y;
+    let bottom = inner.y + inner.height;
+    let mut put = |line: Line, y: &mut u16| {
+        if *y < bottom {
+            Paragraph::new(line).render(Rect::new(inner.x, *y, inner.width, 1), buf);
+            *y += 1;
+        }
+    };
+    // Purpose first.
+    let date = review.session.start.get(..10).unwrap_or("");
+    let purpose = match &review.plan {
+        Some(p) if !p.purpose.is_empty() => Line::from(vec![
+            Span::styled("Purpose ", t.heading),
+            Span::styled(fit(&p.purpose, w.saturating_sub(8)), t.text),
+        ]),
+        Some(p) => Line::from(vec![
+            Span::styled("Plan ", t.heading),
+            Span::styled(p.title.clone(), t.text),
+        ]),
+        None => Line::styled("No plan: intervals found from the speed", t.dim),
+    };
+    put(purpose, &mut y);
+    let dist = review
+        .session
+        .distance_m
+        .map(|d| crate::model::units::format_distance(d, units))
+        .unwrap_or_default();
+    put(
+        Line::styled(
+            fit(
+                &format!(
+                    "{date} · {} · {dist} · decoupling {}",
+                    format_clock(review.session.duration_s),
+                    opt(review.decoupling_pct, |d| format!("{d:.1}%"))
+                ),
+                w,
+            ),
+            t.dim,
+        ),
+        &mut y,
+    );
+    // Lower blocks are laid out from what is left: grading (fixed), then the table, then
+    // findings or notes + feedback.
+    let grading = grading_lines(app, o, review);
+    let editing = o.feedback.as_ref().is_some_and(|e| e.editing);
+    let rows_left = bottom.saturating_sub(y) as usize;
+    let grading_h = grading.len();
+    let lower_min = if o.revealed() { 4 } else { 2 };
+    let table_rows_all = review.intervals.len() + 1;
+    let table_h = if editing {
+        0
+    } else {
+        table_rows_all.min(rows_left.saturating_sub(grading_h + lower_min).max(2))
+    };
+    // Table.
+    if table_h > 0 {
+        put(Line::styled(pad(&header(&cols, units), w), t.dim), &mut y);
+        let body = table_h.saturating_sub(1);
+        let selected_idx = review
+            .intervals
+            .iter()
+            .position(|m| m.work_number == Some(o.selected_work + 1));
+        let first = match selected_idx {
+            Some(s) if s >= body => (s + 1 - body).min(review.intervals.len().saturating_sub(body)),
+            _ => 0,
+        };
+        for (i, m) in review.intervals.iter().enumerate().skip(first).take(body) {
+            let selected = Some(i) == selected_idx;
+            let (score, revised) = m
+                .work_number
+                .map(|n| score_cell(o.state.as_ref(), n as u32))
+                .unwrap_or_default();
+            let text = row_text(m, &cols, units, &score, selected);
+            let style = if selected && app.focus == Focus::Verdict {
+                t.selected
+            } else if m.kind == "work" {
+                t.text
+            } else {
+                t.dim
+            };
+            let line = if revised && !(selected && app.focus == Focus::Verdict) {
+                // Colour the score cell apart.
+                let cut = text.chars().count().saturating_sub(score.chars().count());
+                let head: String = text.chars().take(cut).collect();
+                Line::from(vec![
+                    Span::styled(head, style),
+                    Span::styled(score.clone(), t.revision),
+                ])
+            } else {
+                Line::styled(pad(&text, w), style)
+            };
+            put(line, &mut y);
+        }
+    }
+    // Grading.
+    for l in grading {
+        put(l, &mut y);
+    }
+    // Lower: notes and feedback after the reveal, findings before.
+    let lower = Rect::new(inner.x, y, inner.width, bottom.saturating_sub(y));
+    if lower.height == 0 {
+        return;
+    }
+    if o.revealed() {
+        render_revealed(app, o, lower, buf);
+    } else {
+        render_findings(app, review, lower, buf);
+    }
+}
+
+fn render_findings(app: &App, review: &Review, area: Rect, buf: &mut Buffer) {
+    let t = &app.theme;
+    let mut lines = vec![Line::styled("Findings", t.heading)];
+    for f in &review.findings {
+        let (mark, style) = severity_style(t, f.severity);
+        lines.push(Line::from(vec![
+            Span::styled(format!("{mark} "), style),
+            Span::styled(
+                f.text.clone(),
+                if f.severity >= Severity::Warning {
+                    style
+                } else {
+                    t.text
+                },
+            ),
+        ]));
+    }
+    if review.findings.is_empty() {
+        lines.push(Line::styled("nothing to remark", t.dim));
+    }
+    Paragraph::new(lines)
+        .wrap(Wrap { trim: false })
+        .render(area, buf);
+}
+
+fn render_revealed(app: &App, o: &OpenSession, area: Rect, buf: &mut Buffer) {
+    let t = &app.theme;
+    let k = &app.keymap;
+    let editing = o.feedback.as_ref().is_some_and(|e| e.editing);
+    let mut y = area.y;
+    let bottom = area.y + area.height;
+    if !editing {
+        let note_lines: Vec<String> = match &o.note {
+            Some(Some(text)) => text.lines().map(str::to_string).collect(),
+            Some(None) => vec!["(no notes for this session)".to_string()],
+            None => vec![],
+        };
+        let room = (area.height as usize / 3).max(1);
+        let mut lines = vec![Line::from(vec![
+            Span::styled("Athlete's notes ", t.heading),
+            Span::styled(format!("({} for all)", k.first(Action::RevealNotes)), t.dim),
+        ])];
+        for l in note_lines.iter().take(room) {
+            lines.push(Line::styled(l.clone(), t.text));
+        }
+        let h = (lines.len() as u16).min(bottom.saturating_sub(y));
+        Paragraph::new(lines)
+            .wrap(Wrap { trim: false })
+            .render(Rect::new(area.x, y, area.width, h), buf);
+        y += h;
+    }
+    if y >= bottom {
+        return;
+    }
+    let Some(ed) = &o.feedback else { return };
+    let state = if ed.editing {
+        "editing · C-s saves · Esc stops"
+    } else if ed.dirty {
+        "unsaved"
+    } else if ed.saved {
+        "saved"
+    } else {
+        "draft"
+    };
+    let head = Line::from(vec![
+        Span::styled("Feedback ", t.heading),
+        Span::styled(format!("({state}) "), if ed.dirty { t.warn } else { t.dim }),
+        Span::styled(
+            format!(
+                "{} edit · {} $EDITOR · {} copy · {} file",
+                k.first(Action::EditFeedback),
+                k.first(Action::ExternalEditor),
+                k.first(Action::CopyFeedback),
+                k.first(Action::ExportFeedback)
+            ),
+            t.dim,
+        ),
+    ]);
+    Paragraph::new(head).render(Rect::new(area.x, y, area.width, 1), buf);
+    y += 1;
+    let room = bottom.saturating_sub(y) as usize;
+    if room == 0 {
+        return;
+    }
+    let first = if ed.editing && ed.row >= room {
+        ed.row + 1 - room
+    } else {
+        0
+    };
+    let w = area.width as usize;
+    for (i, line) in ed.lines.iter().enumerate().skip(first).take(room) {
+        let text = fit(line, w);
+        let l = if ed.editing && i == ed.row {
+            let chars: Vec<char> = text.chars().collect();
+            let col = ed.col.min(chars.len());
+            let before: String = chars.iter().take(col).collect();
+            let at: String = chars
+                .get(col)
+                .map(|c| c.to_string())
+                .unwrap_or_else(|| " ".to_string());
+            let after: String = chars.iter().skip(col + 1).collect();
+            Line::from(vec![
+                Span::styled(before, t.text),
+                Span::styled(at, t.selected),
+                Span::styled(after, t.text),
+            ])
+        } else {
+            Line::styled(text, t.text)
+        };
+        Paragraph::new(l).render(Rect::new(area.x, y, area.width, 1), buf);
+        y += 1;
+    }
+}
+
+/// The revisions in words, e.g. `interval 2: 3→4`.
+pub fn revision_words(r: &Revision) -> String {
+    match &r.change {
+        RevisionChange::Score { interval, old, new } => format!("interval {interval}: {old}→{new}"),
+        RevisionChange::Verdict { old, new } => format!("verdict: {old}→{new}"),
+    }
+}

@@ -1,0 +1,178 @@
+//! Render snapshots on `TestBackend` at 80x24 and 160x48, and the blind protocol on screen:
+//! the athlete's note is nowhere in the buffer before the reveal, and there after it.
+
+mod tui_support;
+
+use crossterm::event::KeyCode;
+use ratatui::backend::TestBackend;
+use ratatui::Terminal;
+use splitdesk::tui::app::{App, Focus};
+use splitdesk::tui::ui;
+use tui_support::*;
+
+const SIZES: [(u16, u16); 2] = [(80, 24), (160, 48)];
+
+/// Draw the app at a size and return the screen as text, one line per row.
+fn screen(app: &mut App, w: u16, h: u16) -> String {
+    app.size = (w, h);
+    let mut term = Terminal::new(TestBackend::new(w, h)).expect("terminal");
+    term.draw(|f| ui::draw(f, app)).expect("draw");
+    let buf = term.backend().buffer().clone();
+    let mut out = String::new();
+    for y in 0..h {
+        let mut line = String::new();
+        for x in 0..w {
+            if let Some(c) = buf.cell((x, y)) {
+                line.push_str(c.symbol());
+            }
+        }
+        out.push_str(line.trim_end());
+        out.push('\n');
+    }
+    out
+}
+
+fn snap(name: &str, app: &mut App) {
+    for (w, h) in SIZES {
+        let text = screen(app, w, h);
+        insta::assert_snapshot!(format!("{name}_{w}x{h}"), text);
+    }
+}
+
+#[test]
+fn roster() {
+    let dir = tempfile::tempdir().unwrap();
+    let mut app = app_with(dir.path());
+    key(&mut app, KeyCode::Down);
+    snap("roster", &mut app);
+}
+
+#[test]
+fn chart_with_two_rulers() {
+    let dir = tempfile::tempdir().unwrap();
+    let mut app = app_with(dir.path());
+    open_intervals(&mut app);
+    while app.focus != Focus::Chart {
+        key(&mut app, KeyCode::Tab);
+    }
+    let marks = [(10, 18), (30, 45)];
+    let mut at = 0;
+    for (a, b) in marks {
+        while at < a {
+            key(&mut app, KeyCode::Right);
+            at += 1;
+        }
+        ch(&mut app, 'r');
+        while at < b {
+            key(&mut app, KeyCode::Right);
+            at += 1;
+        }
+        ch(&mut app, 'r');
+    }
+    assert_eq!(app.open.as_ref().unwrap().rulers.len(), 2);
+    snap("chart_two_rulers", &mut app);
+}
+
+#[test]
+fn verdict_blind() {
+    let dir = tempfile::tempdir().unwrap();
+    let mut app = app_with(dir.path());
+    open_intervals(&mut app);
+    ch(&mut app, '4');
+    ch(&mut app, '3');
+    snap("verdict_blind", &mut app);
+}
+
+#[test]
+fn verdict_refused_reveal() {
+    let dir = tempfile::tempdir().unwrap();
+    let mut app = app_with(dir.path());
+    open_intervals(&mut app);
+    for c in ['4', '3', '3'] {
+        ch(&mut app, c);
+    }
+    ch(&mut app, 'o');
+    for (w, h) in SIZES {
+        let text = screen(&mut app, w, h);
+        assert!(
+            text.contains("notes stay hidden until grading is complete"),
+            "{text}"
+        );
+        assert!(
+            !text.contains("Legs felt") && !text.contains("stomach"),
+            "{text}"
+        );
+    }
+    snap("verdict_refused", &mut app);
+}
+
+#[test]
+fn verdict_revealed_with_a_revision() {
+    let dir = tempfile::tempdir().unwrap();
+    let mut app = app_with(dir.path());
+    grade_and_reveal(&mut app);
+    for _ in 0..5 {
+        key(&mut app, KeyCode::Up);
+    }
+    key(&mut app, KeyCode::Down);
+    ch(&mut app, '4');
+    key(&mut app, KeyCode::Up);
+    for (w, h) in SIZES {
+        let text = screen(&mut app, w, h);
+        assert!(text.contains("3→4"), "{text}");
+    }
+    snap("verdict_revealed_revision", &mut app);
+}
+
+#[test]
+fn help_overlay() {
+    let dir = tempfile::tempdir().unwrap();
+    let mut app = app_with(dir.path());
+    ch(&mut app, '?');
+    snap("help", &mut app);
+}
+
+#[test]
+fn the_note_is_absent_before_the_reveal_and_present_after() {
+    let dir = tempfile::tempdir().unwrap();
+    let mut app = app_with(dir.path());
+    open_intervals(&mut app);
+    let words = ["Legs felt like lead", "stomach was off", "third one"];
+    let check_absent = |app: &mut App, when: &str| {
+        for (w, h) in [(80, 24), (120, 40), (160, 48), (200, 60)] {
+            let text = screen(app, w, h);
+            for word in words {
+                assert!(
+                    !text.contains(word),
+                    "{when} at {w}x{h}: {word:?} on screen"
+                );
+            }
+        }
+    };
+    check_absent(&mut app, "opened");
+    for c in ['3', '3', '4', '4', '2'] {
+        ch(&mut app, c);
+    }
+    ch(&mut app, 'o');
+    check_absent(&mut app, "verdict missing");
+    // The note is not held in the app either.
+    assert!(app.open.as_ref().unwrap().note.is_none());
+    ch(&mut app, 'v');
+    check_absent(&mut app, "graded, not revealed");
+    ch(&mut app, 'o');
+    let popup = screen(&mut app, 160, 48);
+    assert!(popup.contains(SECRET_NOTE), "{popup}");
+    key(&mut app, KeyCode::Esc);
+    let pane = screen(&mut app, 160, 48);
+    assert!(pane.contains(SECRET_NOTE), "{pane}");
+}
+
+#[test]
+fn ascii_mode_has_no_box_drawing() {
+    let dir = tempfile::tempdir().unwrap();
+    let mut app = app_with(dir.path());
+    open_intervals(&mut app);
+    app.theme.ascii = true;
+    let text = screen(&mut app, 120, 40);
+    assert!(text.is_ascii(), "{text}");
+}

@@ -245,6 +245,20 @@ fn band_bounds(cols: &[Option<ColumnRange>]) -> Option<(f64, f64)> {
     (lo.is_finite() && hi.is_finite()).then_some((lo, hi))
 }
 
+/// Bounds that ignore the slowest few columns (a stop, a walk to the start line) so the
+/// running pace keeps the band's height: the 5th percentile of the column minima up to the
+/// highest column maximum (fast spikes stay visible).
+fn robust_bounds(cols: &[Option<ColumnRange>]) -> Option<(f64, f64)> {
+    let mut mins: Vec<f64> = cols.iter().flatten().map(|c| c.min).collect();
+    if mins.is_empty() {
+        return None;
+    }
+    mins.sort_by(f64::total_cmp);
+    let lo = mins.get(mins.len() / 20).copied()?;
+    let (_, hi) = band_bounds(cols)?;
+    Some((lo.min(hi), hi))
+}
+
 fn draw_trace(ctx: &mut Context, band: &Band, view: &ChartView) {
     let n = band.cols.len().max(1) as f64;
     let color = colour(band.style);
@@ -378,7 +392,7 @@ pub fn render(app: &App, area: Rect, buf: &mut Buffer) {
     let mut bands: Vec<Band> = Vec::new();
     if let Some(sp) = &s.speed {
         let c = downsample(&s.t, &sp.values, Some(&speed_ok), view.from, view.to, cols);
-        if let Some((mut lo, hi)) = band_bounds(&c) {
+        if let Some((mut lo, hi)) = robust_bounds(&c) {
             lo = lo.max(hi * PACE_FLOOR_FRACTION).max(0.3);
             let hi = if hi - lo < 0.2 { lo + 0.2 } else { hi };
             bands.push(Band {

@@ -1,0 +1,219 @@
+//! End to end: the real binary in tmux on a copy of part of the demo roster with a fresh
+//! journal. Open the next unreviewed session, try to reveal the notes (refused), score every
+//! work interval, set the verdict, reveal (the note appears), copy and save the feedback,
+//! quit; then the headless commands show what was done.
+//!
+//! Uses `$SPLITDESK_E2E_BIN` when set (`.ci/run` points it at the release build), else the
+//! test build of the binary. Needs tmux: skipped with a message when it is missing, except
+//! under `CI=true`, where that is a failure.
+
+use std::path::{Path, PathBuf};
+use std::process::Command;
+use std::time::{Duration, Instant};
+
+const ATHLETE: &str = "tobias-wrenfield";
+const SESSION: &str = "tobias-wrenfield/2026-10-20-hill-repeats";
+const NOTE_START: &str = "Hills: all eight done";
+
+fn binary() -> PathBuf {
+    std::env::var_os("SPLITDESK_E2E_BIN")
+        .map(PathBuf::from)
+        .unwrap_or_else(|| PathBuf::from(env!("CARGO_BIN_EXE_splitdesk")))
+}
+
+fn have_tmux() -> bool {
+    Command::new("tmux")
+        .arg("-V")
+        .output()
+        .map(|o| o.status.success())
+        .unwrap_or(false)
+}
+
+fn copy_dir(from: &Path, to: &Path) {
+    std::fs::create_dir_all(to).unwrap();
+    for e in std::fs::read_dir(from).unwrap().flatten() {
+        let p = e.path();
+        let dest = to.join(e.file_name());
+        if p.is_dir() {
+            copy_dir(&p, &dest);
+        } else {
+            std::fs::copy(&p, &dest).unwrap();
+        }
+    }
+}
+
+struct Tmux {
+    name: String,
+    socket: PathBuf,
+}
+
+impl Tmux {
+    fn cmd(&self) -> Command {
+        let mut c = Command::new("tmux");
+        c.arg("-S").arg(&self.socket);
+        c
+    }
+
+    fn keys(&self, keys: &[&str]) {
+        for k in keys {
+            let ok = self
+                .cmd()
+                .args(["send-keys", "-t", &self.name, k])
+                .status()
+                .unwrap()
+                .success();
+            assert!(ok, "send-keys {k}");
+            std::thread::sleep(Duration::from_millis(150));
+        }
+    }
+
+    fn screen(&self) -> String {
+        let out = self
+            .cmd()
+            .args(["capture-pane", "-p", "-t", &self.name])
+            .output()
+            .unwrap();
+        String::from_utf8_lossy(&out.stdout).into_owned()
+    }
+
+    /// Wait until the screen shows `text` (or fail with the screen).
+    fn wait_for(&self, text: &str) -> String {
+        let start = Instant::now();
+        loop {
+            let s = self.screen();
+            if s.contains(text) {
+                return s;
+            }
+            assert!(
+                start.elapsed() < Duration::from_secs(30),
+                "timed out waiting for {text:?}; screen:\n{s}"
+            );
+            std::thread::sleep(Duration::from_millis(100));
+        }
+    }
+}
+
+impl Drop for Tmux {
+    fn drop(&mut self) {
+        let _ = self.cmd().arg("kill-server").status();
+    }
+}
+
+#[test]
+fn coach_reviews_a_session_blind_in_the_real_binary() {
+    if !have_tmux() {
+        assert!(
+            std::env::var("CI").as_deref() != Ok("true"),
+            "tmux is missing under CI=true; .ci/run installs it"
+        );
+        eprintln!("skipped: tmux is not installed");
+        return;
+    }
+    let dir = tempfile::tempdir().unwrap();
+    let demo = Path::new(env!("CARGO_MANIFEST_DIR")).join("demo-athletes");
+    let roster = dir.path().join("roster");
+    copy_dir(&demo.join(ATHLETE), &roster.join(ATHLETE));
+    std::fs::copy(demo.join("roster.toml"), roster.join("roster.toml")).unwrap();
+    let journal = dir.path().join("coach/journal.sqlite");
+    let data = dir.path().join("data");
+    let done = dir.path().join("exit-code");
+
+    let tmux = Tmux {
+        name: "e2e".into(),
+        socket: dir.path().join("tmux.sock"),
+    };
+    let script = format!(
+        "SPLITDESK_CONFIG=/nonexistent XDG_DATA_HOME='{}' '{}' --roster '{}' --journal '{}'; echo $? > '{}'; sleep 30",
+        data.display(),
+        binary().display(),
+        roster.display(),
+        journal.display(),
+        done.display()
+    );
+    let ok = tmux
+        .cmd()
+        .args([
+            "new-session",
+            "-d",
+            "-s",
+            "e2e",
+            "-x",
+            "160",
+            "-y",
+            "48",
+            "sh",
+            "-c",
+            &script,
+        ])
+        .status()
+        .unwrap()
+        .success();
+    assert!(ok, "tmux new-session");
+
+    tmux.wait_for("to review");
+    // The daily queue: the oldest unreviewed session opens blind, verdict pane focused.
+    tmux.keys(&["]"]);
+    let s = tmux.wait_for("[blind]");
+    assert!(s.contains("Hill repeats"), "{s}");
+    tmux.wait_for("scores 0/8");
+    // Reveal before grading: refused, and the note is nowhere on screen.
+    tmux.keys(&["o"]);
+    let s = tmux.wait_for("notes stay hidden until grading is complete");
+    assert!(
+        s.contains("scores missing for work intervals 1, 2, 3"),
+        "{s}"
+    );
+    assert!(
+        !s.contains(NOTE_START),
+        "the note leaked before grading:\n{s}"
+    );
+    // Score the eight repeats (each digit moves to the next), then the verdict.
+    tmux.keys(&["4", "4", "4", "3", "4", "3", "3", "4"]);
+    let s = tmux.wait_for("scores 8/8");
+    assert!(!s.contains(NOTE_START), "{s}");
+    tmux.keys(&["v"]);
+    tmux.keys(&["o"]);
+    let s = tmux.wait_for(NOTE_START);
+    assert!(s.contains("notes revealed"), "{s}");
+    // Copy (OSC 52 inside tmux) and save the feedback draft.
+    tmux.keys(&["Escape", "y"]);
+    tmux.wait_for("feedback copied");
+    tmux.keys(&["s"]);
+    let s = tmux.wait_for("feedback saved to");
+    assert!(s.contains("feedback done") || s.contains("saved"), "{s}");
+    tmux.keys(&["q"]);
+    let start = Instant::now();
+    while !done.exists() {
+        assert!(
+            start.elapsed() < Duration::from_secs(15),
+            "the workstation did not quit"
+        );
+        std::thread::sleep(Duration::from_millis(100));
+    }
+    assert_eq!(std::fs::read_to_string(&done).unwrap().trim(), "0");
+
+    // The headless commands see what the coach did.
+    let run = |args: &[&str]| {
+        Command::new(binary())
+            .env("SPLITDESK_CONFIG", "/nonexistent")
+            .arg("--roster")
+            .arg(&roster)
+            .arg("--journal")
+            .arg(&journal)
+            .args(args)
+            .output()
+            .unwrap()
+    };
+    let notes = run(&["notes", SESSION]);
+    assert_eq!(notes.status.code(), Some(0));
+    assert!(String::from_utf8_lossy(&notes.stdout).starts_with(NOTE_START));
+    let exported = run(&["export", "feedback", "--athlete", ATHLETE]);
+    let text = String::from_utf8_lossy(&exported.stdout);
+    assert!(text.contains("Hi Tobias,"), "{text}");
+    assert_eq!(text.matches("To Tobias").count(), 1, "{text}");
+    let grades = run(&["grade", SESSION, "--json"]);
+    let v: serde_json::Value = serde_json::from_slice(&grades.stdout).unwrap();
+    assert_eq!(v["blind_scores"]["4"], 3);
+    assert_eq!(v["verdict"], "met");
+    assert_eq!(v["stage"], "feedback done");
+}

@@ -1,8 +1,6 @@
 //! Rulers: straight least-squares lines of pace and heart rate over a window the coach
 //! marks on the chart, with their slopes and the window's decoupling.
 
-use serde::{Deserialize, Serialize};
-
 use crate::model::Session;
 
 use super::decoupling::decoupling_pct;
@@ -10,16 +8,14 @@ use super::review::Series;
 use super::trend;
 
 /// The fitted lines of one ruler. Lines are over time in seconds from the session start.
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[derive(Debug, Clone, Copy, PartialEq)]
 pub struct RulerFit {
     pub from_s: f64,
     pub to_s: f64,
-    /// Speed line: m/s as `slope·t + intercept`.
-    pub speed_slope: Option<f64>,
-    pub speed_intercept: Option<f64>,
-    /// HR line: bpm as `slope·t + intercept`.
-    pub hr_slope: Option<f64>,
-    pub hr_intercept: Option<f64>,
+    /// Speed line, m/s against seconds.
+    pub speed: Option<trend::Fit>,
+    /// HR line, bpm against seconds.
+    pub hr: Option<trend::Fit>,
     /// Change of pace over 10 minutes along the line, s/km (negative = getting faster).
     pub pace_change_per_10min_s_per_km: Option<f64>,
     /// Change of HR over 10 minutes along the line, bpm.
@@ -31,12 +27,12 @@ pub struct RulerFit {
 impl RulerFit {
     /// Speed on the line at `t`, m/s.
     pub fn speed_at(&self, t: f64) -> Option<f64> {
-        Some(self.speed_slope? * t + self.speed_intercept?)
+        self.speed.map(|f| f.predict(t))
     }
 
     /// HR on the line at `t`, bpm.
     pub fn hr_at(&self, t: f64) -> Option<f64> {
-        Some(self.hr_slope? * t + self.hr_intercept?)
+        self.hr.map(|f| f.predict(t))
     }
 }
 
@@ -79,10 +75,8 @@ pub fn fit_window(session: &Session, from_s: f64, to_s: f64) -> RulerFit {
     RulerFit {
         from_s: a,
         to_s: b,
-        speed_slope: speed.map(|f| f.slope),
-        speed_intercept: speed.map(|f| f.intercept),
-        hr_slope: hr.map(|f| f.slope),
-        hr_intercept: hr.map(|f| f.intercept),
+        speed,
+        hr,
         pace_change_per_10min_s_per_km: pace_change,
         hr_change_per_10min_bpm: hr.map(|f| f.slope * 600.0),
         decoupling_pct: decoupling,
@@ -113,7 +107,7 @@ mod tests {
         ));
         let r = fit_window(&s, 1800.0, 0.0);
         assert!((r.hr_change_per_10min_bpm.unwrap() - 3.0).abs() < 1e-9);
-        assert!((r.speed_slope.unwrap() - 0.3 / 1800.0).abs() < 1e-12);
+        assert!((r.speed.unwrap().slope - 0.3 / 1800.0).abs() < 1e-12);
         // pace at 15:00 +- 5 min: speeds 3.1 and 3.2 m/s
         let want = 1000.0 / 3.2 - 1000.0 / 3.1;
         assert!((r.pace_change_per_10min_s_per_km.unwrap() - want).abs() < 1e-6);

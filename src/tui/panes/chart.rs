@@ -10,9 +10,8 @@ use ratatui::text::{Line, Span};
 use ratatui::widgets::canvas::{Canvas, Context, Line as CLine};
 use ratatui::widgets::{Paragraph, Widget};
 
-use crate::analysis::decoupling::decoupling_pct;
 use crate::analysis::review::Review;
-use crate::analysis::trend::{fit, Fit};
+use crate::analysis::trend::Fit;
 use crate::ingest::clean::sample_mask;
 use crate::model::units::{format_clock, format_pace};
 use crate::model::{ChannelKind, Session, Units};
@@ -107,54 +106,18 @@ pub struct RulerStats {
     pub decoupling_pct: Option<f64>,
 }
 
-/// Compute a ruler's numbers on a session window (flagged samples left out).
+/// A ruler's numbers on a session window (moving, unflagged samples), from
+/// [`crate::analysis::ruler::fit_window`], with the pace change in the athlete's units.
 pub fn ruler_stats(session: &Session, from: f64, to: f64, units: Units) -> RulerStats {
-    let t = &session.t;
-    let n = t.len();
-    let in_window: Vec<bool> = t.iter().map(|&x| x >= from && x <= to).collect();
-    let speed_ok = sample_mask(session, &session.flags, ChannelKind::Speed);
-    let hr_ok = sample_mask(session, &session.flags, ChannelKind::Hr);
-    let empty: Vec<Option<f64>> = Vec::new();
-    let speed = session.speed.as_ref().map(|c| &c.values).unwrap_or(&empty);
-    let hr = session.hr.as_ref().map(|c| &c.values).unwrap_or(&empty);
-    let pairs = |vals: &[Option<f64>], ok: &[bool]| -> (Vec<f64>, Vec<f64>) {
-        let mut xs = Vec::new();
-        let mut ys = Vec::new();
-        for i in 0..n {
-            let good =
-                in_window.get(i).copied().unwrap_or(false) && !ok.get(i).copied().unwrap_or(false);
-            if let (true, Some(v), Some(&x)) = (good, vals.get(i).copied().flatten(), t.get(i)) {
-                xs.push(x);
-                ys.push(v);
-            }
-        }
-        (xs, ys)
-    };
-    let (sx, sy) = pairs(speed, &speed_ok);
-    let (hx, hy) = pairs(hr, &hr_ok);
-    let speed_fit = fit(&sx, &sy);
-    let hr_fit = fit(&hx, &hy);
-    let span = to - from;
-    let pace_per_10min = speed_fit.and_then(|f| {
-        let (v0, v1) = (f.predict(from), f.predict(to));
-        (v0 > 0.0 && v1 > 0.0 && span > 0.0)
-            .then(|| (units.metres() / v1 - units.metres() / v0) / span * 600.0)
-    });
-    let hr_per_10min = hr_fit.map(|f| f.slope * 600.0);
-    let usable: Vec<bool> = (0..n)
-        .map(|i| {
-            in_window.get(i).copied().unwrap_or(false)
-                && !speed_ok.get(i).copied().unwrap_or(false)
-                && !hr_ok.get(i).copied().unwrap_or(false)
-        })
-        .collect();
-    let decoupling = decoupling_pct(speed, hr, t, &usable);
+    let r = crate::analysis::ruler::fit_window(session, from, to);
     RulerStats {
-        speed: speed_fit,
-        hr: hr_fit,
-        pace_per_10min,
-        hr_per_10min,
-        decoupling_pct: decoupling,
+        speed: r.speed,
+        hr: r.hr,
+        pace_per_10min: r
+            .pace_change_per_10min_s_per_km
+            .map(|p| p * units.metres() / 1000.0),
+        hr_per_10min: r.hr_change_per_10min_bpm,
+        decoupling_pct: r.decoupling_pct,
     }
 }
 

@@ -176,3 +176,65 @@ fn ascii_mode_has_no_box_drawing() {
     let text = screen(&mut app, 120, 40);
     assert!(text.is_ascii(), "{text}");
 }
+
+#[path = "history_support/mod.rs"]
+mod history_support;
+
+/// The history view on a planted series: four steady weeks, then a sharp rise in load, and
+/// best efforts from which critical speed can be fitted.
+#[test]
+fn history_view_with_a_load_jump() {
+    use splitdesk::analysis::history::{build, HistoryParams};
+    use splitdesk::tui::app::{HistoryView, View};
+    let dir = tempfile::tempdir().unwrap();
+    let mut app = app_with(dir.path());
+    ch(&mut app, 't');
+    assert_eq!(app.view, View::History);
+    assert!(app.history.is_some(), "built when the view opens");
+    let mut loads = vec![40.0; 28];
+    loads.extend([150.0; 7]);
+    let mut sums: Vec<_> = loads
+        .iter()
+        .enumerate()
+        .map(|(k, &l)| history_support::with_load(k as i64 + 1, l))
+        .collect();
+    sums[29].best_efforts = history_support::with_efforts(
+        30,
+        &[
+            (180.0, 1000.0),
+            (360.0, 1900.0),
+            (720.0, 3650.0),
+            (1200.0, 5900.0),
+        ],
+    )
+    .best_efforts;
+    let h = build(
+        &sums,
+        &history_support::profile(),
+        &HistoryParams::default(),
+        history_support::day(35),
+    );
+    assert_eq!(h.cautions.len(), 1);
+    app.history = Some(HistoryView {
+        athlete: app.cursor.athlete.clone().unwrap(),
+        history: h,
+        week_offset: 0,
+    });
+    for (w, hgt) in SIZES {
+        let text = screen(&mut app, w, hgt);
+        assert!(text.contains("CAUTION: Training load rose"), "{text}");
+        assert!(text.contains("critical speed"), "{text}");
+        assert!(text.contains("W14"), "latest week label: {text}");
+        assert!(text.contains("2026-W10"), "week range: {text}");
+    }
+    let big = screen(&mut app, 160, 48);
+    assert!(big.contains("not medical advice"), "{big}");
+    assert!(big.contains("Riegel"), "{big}");
+    assert!(big.contains("line 5 %"), "{big}");
+    snap("history_load_jump", &mut app);
+    // Scrolling back a week moves the bars.
+    key(&mut app, KeyCode::Left);
+    assert_eq!(app.history.as_ref().unwrap().week_offset, 1);
+    let back = screen(&mut app, 160, 48);
+    assert!(back.contains("to 2026-W13"), "{back}");
+}

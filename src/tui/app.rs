@@ -10,9 +10,10 @@ use std::collections::{BTreeMap, HashMap};
 use std::path::PathBuf;
 use std::sync::Arc;
 
-use chrono::{DateTime, Utc};
+use chrono::{DateTime, NaiveDate, Utc};
 use crossterm::event::{Event, KeyCode, KeyEvent, KeyEventKind, KeyModifiers};
 
+use crate::analysis::history::SessionSummary;
 use crate::analysis::review::{Review, ANALYSIS_VERSION};
 use crate::journal::{
     read_note, FeedbackEventKind, Journal, JournalError, PurposeVerdict, QueueEntry, ReviewStage,
@@ -490,6 +491,27 @@ pub struct App {
     lists_dirty: bool,
     /// Where feedback files go.
     pub feedback_dir: Option<PathBuf>,
+    /// The history view's data, built when the view opens.
+    pub history: Option<HistoryView>,
+}
+
+/// The built history of one athlete and how far the week bars are scrolled.
+#[derive(Debug, Clone)]
+pub struct HistoryView {
+    /// Athlete id the history belongs to.
+    pub athlete: String,
+    /// Everything the view shows.
+    pub history: crate::analysis::history::History,
+    /// Weeks scrolled back from the latest week (0: the latest week is at the right edge).
+    pub week_offset: usize,
+}
+
+impl HistoryView {
+    /// Scroll the week bars by `delta` weeks (negative: back in time).
+    pub fn scroll(&mut self, delta: i64) {
+        let max = self.history.weekly.len().saturating_sub(1) as i64;
+        self.week_offset = (self.week_offset as i64 - delta).clamp(0, max) as usize;
+    }
 }
 
 fn now() -> DateTime<Utc> {
@@ -531,6 +553,7 @@ impl App {
             open_generation: 0,
             lists_dirty: false,
             feedback_dir: options.feedback_dir,
+            history: None,
         };
         app.problems = app.roster.problems.iter().map(|p| p.to_string()).collect();
         app.refresh_lists();
@@ -651,6 +674,49 @@ impl App {
         if let Some(a) = self.cursor.athlete.clone() {
             self.ensure_reviews(&a);
         }
+        if self.view == View::History {
+            self.build_history();
+        }
+    }
+
+    /// Build the history of the athlete under the cursor from the cached reviews. The window
+    /// ends today, or on the latest session when the files are dated ahead of the clock.
+    pub fn build_history(&mut self) {
+        let Some(id) = self.cursor.athlete.clone() else {
+            self.history = None;
+            return;
+        };
+        let Some(a) = self.roster.athlete(&id) else {
+            self.history = None;
+            return;
+        };
+        let rows = self.rows.get(&id).map(Vec::as_slice).unwrap_or(&[]);
+        let sums: Vec<SessionSummary> = rows
+            .iter()
+            .filter_map(|r| {
+                let rv = self.reviews.get(&r.session_id)?;
+                SessionSummary::from_review(&r.session_id, rv)
+            })
+            .collect();
+        let latest = sums.iter().map(SessionSummary::date).max();
+        let today = now().date_naive().max(latest.unwrap_or(NaiveDate::MIN));
+        let history = crate::analysis::history::build(
+            &sums,
+            &a.profile,
+            &crate::analysis::history::HistoryParams::default(),
+            today,
+        );
+        let week_offset = self
+            .history
+            .as_ref()
+            .filter(|h| h.athlete == id)
+            .map(|h| h.week_offset.min(history.weekly.len().saturating_sub(1)))
+            .unwrap_or(0);
+        self.history = Some(HistoryView {
+            athlete: id,
+            history,
+            week_offset,
+        });
     }
 
     /// Load the cached reviews of an athlete's sessions (for titles and totals).
@@ -980,6 +1046,11 @@ impl App {
             }
             Action::Ruler => self.ruler(),
             Action::ClearRulers => self.clear_rulers(),
+            Action::PanLeft | Action::PanRight if self.view == View::History => {
+                if let Some(h) = self.history.as_mut() {
+                    h.scroll(if action == Action::PanLeft { -1 } else { 1 });
+                }
+            }
             Action::ZoomIn | Action::ZoomOut | Action::PanLeft | Action::PanRight => {
                 if let Some(c) = self.open.as_mut().and_then(|o| o.chart.as_mut()) {
                     match action {
@@ -1031,6 +1102,9 @@ impl App {
                 if let Some(a) = self.cursor.athlete.clone() {
                     self.ensure_reviews(&a);
                 }
+                if self.view == View::History {
+                    self.build_history();
+                }
             }
         }
         Vec::new()
@@ -1063,6 +1137,24 @@ impl App {
     }
 
     fn on_move(&mut self, action: Action) -> Vec<Effect> {
+        if self.view == View::History && matches!(action, Action::Left | Action::Right) {
+            if let Some(h) = self.history.as_mut() {
+                h.scroll(if action == Action::Left { -1 } else { 1 });
+            }
+            return Vec::new();
+        }
+        let before = self.cursor.athlete.clone();
+        let fx = self.on_move_inner(action);
+        if self.view == View::History && self.cursor.athlete != before {
+            if let Some(a) = self.cursor.athlete.clone() {
+                self.ensure_reviews(&a);
+            }
+            self.build_history();
+        }
+        fx
+    }
+
+    fn on_move_inner(&mut self, action: Action) -> Vec<Effect> {
         match self.focus {
             Focus::Roster => match action {
                 Action::Up => self.move_roster(-1),

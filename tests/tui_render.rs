@@ -225,7 +225,7 @@ fn history_view_with_a_load_jump() {
         assert!(text.contains("CAUTION: Training load rose"), "{text}");
         assert!(text.contains("critical speed"), "{text}");
         assert!(text.contains("W14"), "latest week label: {text}");
-        assert!(text.contains("2026-W10"), "week range: {text}");
+        assert!(text.contains("to 2026-W14"), "week range: {text}");
     }
     let big = screen(&mut app, 160, 48);
     assert!(big.contains("not medical advice"), "{big}");

@@ -105,7 +105,15 @@ pub fn render(app: &App, area: Rect, buf: &mut Buffer) {
         ),
     ])];
     for c in &h.cautions {
-        top.push(Line::styled(format!("CAUTION: {c}"), t.caution));
+        let text = if roomy {
+            c.clone()
+        } else {
+            // Small screens: the first sentence and the gist of the medical wording; the
+            // full text is in the roomy layout and in `splitdesk trends`.
+            let first = c.split(". ").next().unwrap_or(c).trim_end_matches('.');
+            format!("{first}. Coaching aid, not medical advice.")
+        };
+        top.push(Line::styled(format!("CAUTION: {text}"), t.caution));
     }
     let criticism = &h.acute_chronic_bands.criticism;
     let note = if roomy {
@@ -331,7 +339,7 @@ fn volume(t: &Theme, hv: &HistoryView, u: Units, area: Rect, buf: &mut Buffer) {
                 }
             }
         }
-        let value = format!("{:.0}", w.distance_m / u.metres());
+        let value = format!("{:.0}", (w.distance_m / u.metres()).max(0.0) + 0.0);
         let label = w.week.rsplit('-').next().unwrap_or(&w.week).to_string();
         buf.set_stringn(x, body.y + bar_rows, value, COL - 1, t.text);
         buf.set_stringn(x, body.y + bar_rows + 1, label, COL - 1, t.dim);

@@ -239,8 +239,18 @@ pub struct HillAdjustedSpeed {
 /// the raw speed is kept there and counted in `samples_without_gradient`. `None` when the
 /// session has no speed channel. O(n).
 pub fn hill_adjusted_speed(session: &Session) -> Option<HillAdjustedSpeed> {
+    session.speed.as_ref()?;
+    hill_adjusted_speed_with(session, gradients(session).as_deref())
+}
+
+/// [`hill_adjusted_speed`] with the session's gradients already computed (`grads` as
+/// returned by [`gradients`]: `None` when the session has no altitude).
+pub fn hill_adjusted_speed_with(
+    session: &Session,
+    grads: Option<&[Option<f64>]>,
+) -> Option<HillAdjustedSpeed> {
     let speed = session.speed.as_ref()?;
-    let grads = match gradients(session) {
+    let grads = match grads {
         Some(g) => g,
         None => {
             return Some(HillAdjustedSpeed {

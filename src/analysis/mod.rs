@@ -22,6 +22,8 @@ pub fn analyze(
     plan: Option<&crate::model::Plan>,
     profile: &crate::model::AthleteProfile,
 ) -> review::Review {
-    let set = intervals::find_intervals(session, plan, profile);
-    review::review(session, &set, plan, profile)
+    // The gradients feed both the interval finder and the review: compute them once.
+    let grads = gradient::gradients(session);
+    let set = intervals::find_intervals_with(session, plan, profile, grads.as_deref());
+    review::review_with(session, &set, plan, profile, grads.as_deref())
 }

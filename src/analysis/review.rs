@@ -16,7 +16,7 @@ use crate::model::{
 use super::decoupling::{decoupling_pct, hr_drift_bpm_per_h, DECOUPLING_COACHING_LINE_PCT};
 use super::elevation::{gain_loss, DEFAULT_HYSTERESIS_M};
 use super::findings::{self, Finding};
-use super::gradient::{hill_adjusted_speed, HillAdjustment};
+use super::gradient::{gradients, hill_adjusted_speed_with, HillAdjustment};
 use super::load::trimp_from_samples;
 use super::sampling::sample_dt;
 use super::summary::{moving_time_s, MOVING_SPEED_MPS};
@@ -265,6 +265,12 @@ pub(crate) struct Series<'a> {
 
 impl<'a> Series<'a> {
     pub fn new(session: &'a Session) -> Series<'a> {
+        Series::with_gradients(session, gradients(session).as_deref())
+    }
+
+    /// [`Series::new`] with the session's gradients already computed
+    /// ([`super::gradient::gradients`]; `None` without altitude).
+    pub fn with_gradients(session: &'a Session, grads: Option<&[Option<f64>]>) -> Series<'a> {
         let n = session.len();
         let paused: Vec<bool> = (0..n)
             .map(|i| {
@@ -291,7 +297,7 @@ impl<'a> Series<'a> {
                 .collect(),
             None => paused.iter().map(|p| !p).collect(),
         };
-        let hill = hill_adjusted_speed(session);
+        let hill = hill_adjusted_speed_with(session, grads);
         let hill_adjusted = hill
             .as_ref()
             .is_some_and(|h| h.adjustment == HillAdjustment::Adjusted);
@@ -366,7 +372,19 @@ pub fn review(
     plan: Option<&Plan>,
     profile: &AthleteProfile,
 ) -> Review {
-    let s = Series::new(session);
+    review_with(session, set, plan, profile, gradients(session).as_deref())
+}
+
+/// [`review`] with the session's gradients already computed
+/// ([`super::gradient::gradients`]; `None` without altitude).
+pub fn review_with(
+    session: &Session,
+    set: &IntervalSet,
+    plan: Option<&Plan>,
+    profile: &AthleteProfile,
+    grads: Option<&[Option<f64>]>,
+) -> Review {
+    let s = Series::with_gradients(session, grads);
     let expected = plan.map(Plan::expand).unwrap_or_default();
     let intervals = interval_metrics(session, &s, set, &expected, profile);
     let recoveries = recovery_metrics(session, &s, set, &intervals);

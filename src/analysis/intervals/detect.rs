@@ -195,7 +195,7 @@ pub(crate) fn detect(trace: &Trace, slowest_work: Option<f64>) -> Detection {
     let mut runs = runs_of(&class);
     merge_short(&mut runs, trace);
     let light = light_trace(trace);
-    confirm(&mut runs, trace, &light, threshold, CONFIRM * (hi - lo));
+    confirm(&mut runs, trace, light, threshold, CONFIRM * (hi - lo));
     merge_short(&mut runs, trace);
     if !runs.iter().any(|r| r.fast) || !runs.iter().any(|r| !r.fast) {
         return Detection { runs: Vec::new() };
@@ -341,12 +341,12 @@ fn flip(runs: &mut Vec<Run>, k: usize) {
 
 /// Place every boundary to the sample (see [`refine_one`]).
 fn refine(runs: &mut [Run], trace: &Trace) {
-    let light = window_mean(&trace.t, &trace.adj, &trace.w, REFINE_HALF_WINDOW_S);
+    let light = light_trace(trace);
     for k in 1..runs.len() {
         let (Some(&a), Some(&b)) = (runs.get(k - 1), runs.get(k)) else {
             continue;
         };
-        if let Some(idx) = refine_one(trace, &light, a.start, b.start, b.end) {
+        if let Some(idx) = refine_one(trace, light, a.start, b.start, b.end) {
             if let Some(r) = runs.get_mut(k - 1) {
                 r.end = idx;
             }
@@ -357,9 +357,11 @@ fn refine(runs: &mut [Run], trace: &Trace) {
     }
 }
 
-/// The light smoothing used by [`refine_one`].
-pub(crate) fn light_trace(trace: &Trace) -> Vec<f64> {
-    window_mean(&trace.t, &trace.adj, &trace.w, REFINE_HALF_WINDOW_S)
+/// The light smoothing used by [`refine_one`], computed once per trace.
+pub(crate) fn light_trace(trace: &Trace) -> &[f64] {
+    trace
+        .light
+        .get_or_init(|| window_mean(&trace.t, &trace.adj, &trace.w, REFINE_HALF_WINDOW_S))
 }
 
 /// Refine the boundary `coarse` between the stretches `a_start..=coarse` and

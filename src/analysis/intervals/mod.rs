@@ -126,6 +126,23 @@ pub fn find_intervals(
     plan: Option<&Plan>,
     profile: &AthleteProfile,
 ) -> IntervalSet {
+    find_intervals_with(
+        session,
+        plan,
+        profile,
+        crate::analysis::gradient::gradients(session).as_deref(),
+    )
+}
+
+/// [`find_intervals`] with the session's gradients already computed
+/// ([`crate::analysis::gradient::gradients`]), so a caller that also reviews the session
+/// computes them once.
+pub fn find_intervals_with(
+    session: &Session,
+    plan: Option<&Plan>,
+    profile: &AthleteProfile,
+    grads: Option<&[Option<f64>]>,
+) -> IntervalSet {
     let expected: Vec<ExpectedInterval> = plan.map(Plan::expand).unwrap_or_default();
     let n = session.len();
     let mut set = IntervalSet {
@@ -140,7 +157,7 @@ pub fn find_intervals(
         set.missing = (0..expected.len()).collect();
         return set;
     }
-    let Some(trace) = Trace::new(session) else {
+    let Some(trace) = Trace::with_gradients(session, grads) else {
         set.notes
             .push("no speed or distance: the intervals could not be found".into());
         set.missing = (0..expected.len()).collect();
@@ -457,7 +474,7 @@ fn aligned_pieces(
                 );
                 if let (Some(a), Some(b)) = speeds {
                     if (a / b - 1.0).abs() > GROUP_SPLIT_SPEED_DIFF {
-                        if let Some(r) = detect::refine_one(trace, &light, start, *cut, end) {
+                        if let Some(r) = detect::refine_one(trace, light, start, *cut, end) {
                             *cut = r;
                         }
                     }

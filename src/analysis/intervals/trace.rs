@@ -1,7 +1,7 @@
 //! The speed trace the interval finder works on: hill-adjusted speed with flagged samples
 //! removed, per-sample time weights, and segment statistics.
 
-use crate::analysis::gradient::{cost_ratio, cumulative_distance, gradients};
+use crate::analysis::gradient::{cost_ratio, cumulative_distance};
 use crate::analysis::sampling::MAX_SAMPLE_DT_S;
 use crate::ingest::clean::{sample_mask, MAX_SPEED_MPS};
 use crate::model::{ChannelKind, Session};
@@ -49,6 +49,9 @@ pub(crate) struct Trace {
     pub gap: Vec<f64>,
     /// Cumulative distance, metres (`None` where unknown).
     pub dist: Option<Vec<Option<f64>>>,
+    /// The lightly smoothed adjusted speed, computed on first use (see
+    /// `detect::light_trace`); several steps of the finder need it.
+    pub light: std::cell::OnceCell<Vec<f64>>,
 }
 
 /// Statistics of the stretch between two boundary samples.
@@ -65,8 +68,10 @@ pub(crate) struct SegStats {
 }
 
 impl Trace {
-    /// Build the trace of a session. `None` without any speed or distance.
-    pub fn new(session: &Session) -> Option<Trace> {
+    /// Build the trace of a session from its gradients
+    /// ([`crate::analysis::gradient::gradients`]; `None` without altitude). `None` without
+    /// any speed or distance.
+    pub fn with_gradients(session: &Session, grads: Option<&[Option<f64>]>) -> Option<Trace> {
         let n = session.len();
         let t = session.t.clone();
         let dist = cumulative_distance(session);
@@ -85,7 +90,7 @@ impl Trace {
                     .collect()
             }
         };
-        let adj_in: Vec<Option<f64>> = match gradients(session) {
+        let adj_in: Vec<Option<f64>> = match grads {
             Some(g) => raw_in
                 .iter()
                 .enumerate()
@@ -145,6 +150,7 @@ impl Trace {
             w,
             gap,
             dist,
+            light: std::cell::OnceCell::new(),
         })
     }
 

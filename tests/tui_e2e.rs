@@ -99,37 +99,41 @@ impl Drop for Tmux {
     }
 }
 
-#[test]
-fn coach_reviews_a_session_blind_in_the_real_binary() {
-    if !have_tmux() {
-        assert!(
-            std::env::var("CI").as_deref() != Ok("true"),
-            "tmux is missing under CI=true; .ci/run installs it"
-        );
-        eprintln!("skipped: tmux is not installed");
-        return;
+/// Skip (or, under `CI=true`, fail) without tmux.
+fn need_tmux() -> bool {
+    if have_tmux() {
+        return true;
     }
-    let dir = tempfile::tempdir().unwrap();
+    assert!(
+        std::env::var("CI").as_deref() != Ok("true"),
+        "tmux is missing under CI=true; .ci/run installs it"
+    );
+    eprintln!("skipped: tmux is not installed");
+    false
+}
+
+/// A copy of one demo athlete in `dir`, and the workstation started on it in a detached
+/// tmux session of 160x48 with a fresh journal. `wrap` gets the command line of the
+/// binary and returns the shell script tmux runs.
+fn start(dir: &Path, wrap: impl FnOnce(&str) -> String) -> (Tmux, PathBuf, PathBuf) {
     let demo = Path::new(env!("CARGO_MANIFEST_DIR")).join("demo-athletes");
-    let roster = dir.path().join("roster");
+    let roster = dir.join("roster");
     copy_dir(&demo.join(ATHLETE), &roster.join(ATHLETE));
     std::fs::copy(demo.join("roster.toml"), roster.join("roster.toml")).unwrap();
-    let journal = dir.path().join("coach/journal.sqlite");
-    let data = dir.path().join("data");
-    let done = dir.path().join("exit-code");
-
+    let journal = dir.join("coach/journal.sqlite");
+    let data = dir.join("data");
     let tmux = Tmux {
         name: "e2e".into(),
-        socket: dir.path().join("tmux.sock"),
+        socket: dir.join("tmux.sock"),
     };
-    let script = format!(
-        "SPLITDESK_CONFIG=/nonexistent XDG_DATA_HOME='{}' '{}' --roster '{}' --journal '{}'; echo $? > '{}'; sleep 30",
+    let command = format!(
+        "SPLITDESK_CONFIG=/nonexistent XDG_DATA_HOME='{}' '{}' --roster '{}' --journal '{}'",
         data.display(),
         binary().display(),
         roster.display(),
         journal.display(),
-        done.display()
     );
+    let script = wrap(&command);
     let ok = tmux
         .cmd()
         .args([
@@ -149,6 +153,60 @@ fn coach_reviews_a_session_blind_in_the_real_binary() {
         .unwrap()
         .success();
     assert!(ok, "tmux new-session");
+    (tmux, roster, journal)
+}
+
+/// Whether process `pid` is still running (a zombie left for a parent that does not reap
+/// counts as ended).
+fn running(pid: &str) -> bool {
+    match std::fs::read_to_string(format!("/proc/{pid}/stat")) {
+        Ok(stat) => !stat
+            .rsplit_once(')')
+            .is_some_and(|(_, rest)| rest.trim_start().starts_with('Z')),
+        Err(_) => false,
+    }
+}
+
+#[test]
+fn workstation_leaves_when_its_terminal_is_killed() {
+    if !need_tmux() || !Path::new("/proc/self/stat").exists() {
+        return;
+    }
+    let dir = tempfile::tempdir().unwrap();
+    let pid_file = dir.path().join("pid");
+    let (tmux, _, _) = start(dir.path(), |command| {
+        format!("echo $$ > '{}'; exec env {command}", pid_file.display())
+    });
+    tmux.wait_for("to review");
+    let pid = std::fs::read_to_string(&pid_file)
+        .unwrap()
+        .trim()
+        .to_string();
+    assert!(running(&pid), "the workstation is not running");
+    // Open a session so the chart and workers are live, then take the terminal away.
+    tmux.keys(&["]"]);
+    tmux.wait_for("[blind]");
+    let _ = tmux.cmd().arg("kill-server").status();
+    let start = Instant::now();
+    while running(&pid) {
+        assert!(
+            start.elapsed() < Duration::from_secs(10),
+            "the workstation kept running after its terminal was killed"
+        );
+        std::thread::sleep(Duration::from_millis(100));
+    }
+}
+
+#[test]
+fn coach_reviews_a_session_blind_in_the_real_binary() {
+    if !need_tmux() {
+        return;
+    }
+    let dir = tempfile::tempdir().unwrap();
+    let done = dir.path().join("exit-code");
+    let (tmux, roster, journal) = start(dir.path(), |command| {
+        format!("{command}; echo $? > '{}'; sleep 30", done.display())
+    });
 
     tmux.wait_for("to review");
     // The daily queue: the oldest unreviewed session opens blind, verdict pane focused.

@@ -1,7 +1,8 @@
 //! The workstation: a keyboard-driven terminal UI over the roster and the journal.
 //!
 //! [`run`] sets up the terminal (restored on every exit path: normal quit, error, panic via
-//! a panic hook, SIGTERM/SIGHUP via a `signal-hook` flag the event loop checks), starts the
+//! a panic hook, SIGTERM/SIGHUP via a `signal-hook` flag the event loop checks, and a hang-up
+//! of the terminal via the [`hangup`] watcher), starts the
 //! background workers and runs the event loop. The loop is generic over the ratatui
 //! backend and a [`Host`] (terminal events, clipboard, editor), so the whole app can run on
 //! a `TestBackend`.
@@ -12,6 +13,7 @@
 pub mod action;
 pub mod app;
 pub mod event;
+pub mod hangup;
 pub mod keymap;
 pub mod panes;
 pub mod theme;
@@ -78,12 +80,18 @@ pub fn run(roster_dir: &Path, journal: Option<&Path>, config: &Config) -> anyhow
         signal_hook::flag::register(sig, Arc::clone(&term_flag))?;
     }
     install_panic_hook();
+    // A terminal that goes away must not leave the process spinning (see `hangup`).
+    let watcher = hangup::Watcher::spawn(0, Arc::clone(&term_flag), || {
+        restore_terminal();
+        std::process::exit(hangup::HANGUP_EXIT);
+    })?;
     let guard = TerminalGuard::enter()?;
     let mut terminal = Terminal::new(CrosstermBackend::new(io::stdout()))?;
     terminal.clear()?;
     let worker = Worker::for_machine();
     let mut host = CrosstermHost;
     let result = event_loop(&mut terminal, &mut app, &worker, &mut host, &term_flag);
+    drop(watcher);
     drop(worker);
     drop(terminal);
     drop(guard);

@@ -113,5 +113,50 @@ fn bench_frame(c: &mut Criterion) {
     });
 }
 
-criterion_group!(benches, bench_frame);
+/// Start to the first usable frame with a warm journal on the demo roster: open the roster
+/// and the journal (every session already analysed and cached), build the app (lists,
+/// counts, the selected athlete's cached reviews) and draw the first frame at 160x48.
+/// Process start and terminal set-up are not in this figure; see BENCHMARKS.md for the
+/// whole-process measurement.
+fn bench_startup(c: &mut Criterion) {
+    let roster_dir = Path::new(env!("CARGO_MANIFEST_DIR")).join("demo-athletes");
+    let dir = tempfile::tempdir().expect("tempdir");
+    let journal_path = dir.path().join("journal.sqlite");
+    {
+        // Warm the journal the way the workstation's scan does.
+        let mut ws = splitdesk::workspace::Workspace::open(&roster_dir, Some(&journal_path))
+            .expect("workspace");
+        let ids: Vec<String> = ws
+            .roster
+            .athletes
+            .iter()
+            .flat_map(|a| a.activities.iter().map(|x| a.session_id(x)))
+            .collect();
+        for id in ids {
+            // The demo roster holds one damaged file on purpose; it stays unanalysed.
+            let _ = ws.refresh(&id, Utc::now());
+        }
+    }
+    c.bench_function("startup_warm_journal_demo_first_frame_160x48", |b| {
+        b.iter(|| {
+            let ws = splitdesk::workspace::Workspace::open(&roster_dir, Some(&journal_path))
+                .expect("workspace");
+            let mut app = App::new(
+                ws.roster,
+                ws.journal,
+                Options {
+                    keymap: KeyMap::default(),
+                    theme: Theme::colour(),
+                    feedback_dir: None,
+                },
+            );
+            app.size = (160, 48);
+            let mut term = Terminal::new(TestBackend::new(160, 48)).expect("terminal");
+            term.draw(|f| ui::draw(f, black_box(&app))).expect("draw");
+            black_box(term);
+        })
+    });
+}
+
+criterion_group!(benches, bench_frame, bench_startup);
 criterion_main!(benches);

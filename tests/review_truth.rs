@@ -240,3 +240,53 @@ fn missing_channels_give_nulls_and_findings() {
         .any(|f| f.text.starts_with("No heart rate")));
     assert!(r.findings.iter().any(|f| f.text.starts_with("No altitude")));
 }
+
+#[test]
+fn pace_targets_on_a_climb_are_left_to_the_coach() {
+    // Self-consistency with our simulator: the same set on a 6 % hill and on the flat.
+    let plan = intervals(
+        6,
+        Amount::Duration(60.0),
+        named("5k"),
+        recovery(Amount::Duration(120.0), RecoveryMode::Jog),
+    );
+    let hill = Conditions {
+        terrain: splitdesk::demo::simulate::Terrain::Hill { grade: 0.06 },
+        ..Conditions::default()
+    };
+    let (out, set) = run(&plan, hill, 3);
+    let r = review(&out.session, &set, Some(&plan), &profile());
+    assert_eq!(r.work().count(), 6);
+    for m in r.work() {
+        assert_eq!(m.target_basis.as_deref(), Some("not_judged_on_hill"));
+        assert_eq!(m.target_hit, None, "rep {:?}", m.work_number);
+        assert_eq!(m.in_target_pct, None);
+        // Altitude is smoothed, so the ends of a one-minute climb read a little flatter.
+        let g = m.grade_pct.unwrap();
+        assert!((3.5..=7.0).contains(&g), "grade {g}");
+        // Minetti: a climb costs more, so the hill-adjusted pace is faster than the pace.
+        assert!(m.hill_adjusted_pace_s_per_km.unwrap() < m.avg_pace_s_per_km.unwrap());
+    }
+    assert!(r.findings.iter().all(|f| f.code != "targets"));
+    let f = r
+        .findings
+        .iter()
+        .find(|f| f.code == "targets_on_hill")
+        .expect("a finding about the climb");
+    assert!(f.text.starts_with("Reps 1-6 ran on a climb"), "{}", f.text);
+    assert!(f.text.contains("hill-adjusted"), "{}", f.text);
+
+    let (out, set) = run(&plan, Conditions::default(), 3);
+    let r = review(&out.session, &set, Some(&plan), &profile());
+    for m in r.work() {
+        assert_eq!(m.target_basis.as_deref(), Some("pace"));
+        assert!(m.target_hit.is_some());
+        assert!(
+            m.grade_pct.is_none_or(|g| g.abs() < 0.5),
+            "{:?}",
+            m.grade_pct
+        );
+    }
+    assert!(r.findings.iter().any(|f| f.code == "targets"));
+    assert!(r.findings.iter().all(|f| f.code != "targets_on_hill"));
+}

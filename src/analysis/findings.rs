@@ -66,6 +66,28 @@ pub const UNEVEN_PACING_PCT: f64 = 4.0;
 /// threshold, NEJM 341:1351, measured in a treadmill test, not on a field run).
 pub const COLE_HRR_BPM: f64 = 12.0;
 
+/// Numbers in words, runs of consecutive ones joined: `[1, 2, 3, 5]` gives "1-3, 5".
+pub fn number_list(numbers: &[usize]) -> String {
+    let mut parts: Vec<String> = Vec::new();
+    let mut k = 0;
+    while let Some(&start) = numbers.get(k) {
+        let mut end = start;
+        while numbers.get(k + 1) == Some(&(end + 1)) {
+            end += 1;
+            k += 1;
+        }
+        parts.push(if end > start + 1 {
+            format!("{start}-{end}")
+        } else if end == start + 1 {
+            format!("{start}, {end}")
+        } else {
+            start.to_string()
+        });
+        k += 1;
+    }
+    parts.join(", ")
+}
+
 fn f(severity: Severity, code: &str, text: String, metrics: Vec<String>) -> Finding {
     Finding {
         severity,
@@ -182,6 +204,72 @@ pub(crate) fn findings(
             judged
                 .iter()
                 .map(|m| format!("intervals[{}].target_hit", m.index))
+                .collect(),
+        ));
+    }
+
+    // Pace targets on a climb or descent: both paces beside the band, no verdict.
+    let on_hill: Vec<_> = work.iter().filter(|m| m.target_on_hill()).collect();
+    if !on_hill.is_empty() {
+        let range = |vals: Vec<f64>| -> Option<String> {
+            let lo = vals.iter().copied().reduce(f64::min)?;
+            let hi = vals.iter().copied().reduce(f64::max)?;
+            // Paces in s/km, so the lowest is the fastest: "3:50-3:55/km".
+            let (a, b) = (format_pace(1000.0 / lo, u), format_pace(1000.0 / hi, u));
+            let suffix = format!("/{}", u.label());
+            Some(if a == b {
+                a
+            } else {
+                format!("{}-{b}", a.trim_end_matches(&suffix))
+            })
+        };
+        let raw = range(on_hill.iter().filter_map(|m| m.avg_pace_s_per_km).collect());
+        let adj = range(
+            on_hill
+                .iter()
+                .filter_map(|m| m.hill_adjusted_pace_s_per_km)
+                .collect(),
+        );
+        let grades: Vec<f64> = on_hill.iter().filter_map(|m| m.grade_pct).collect();
+        let mean_grade = grades.iter().sum::<f64>() / grades.len().max(1) as f64;
+        let way = if mean_grade >= 0.0 {
+            "climb"
+        } else {
+            "descent"
+        };
+        let numbers: Vec<usize> = on_hill.iter().filter_map(|m| m.work_number).collect();
+        let reps = number_list(&numbers);
+        let band = on_hill
+            .iter()
+            .find_map(|m| m.target.clone())
+            .unwrap_or_else(|| "the target".into());
+        let mut text = format!(
+            "Rep{} {} ran on a {way} (mean grade {:.1} %): the pace target is an effort there \
+             and is not judged",
+            if numbers.len() == 1 { "" } else { "s" },
+            reps,
+            mean_grade.abs()
+        );
+        match (raw, adj) {
+            (Some(raw), Some(adj)) => text.push_str(&format!(
+                "; pace {raw}, hill-adjusted {adj}, against {band}."
+            )),
+            (Some(raw), None) => text.push_str(&format!("; pace {raw} against {band}.")),
+            _ => text.push('.'),
+        }
+        out.push(f(
+            Severity::Info,
+            "targets_on_hill",
+            text,
+            on_hill
+                .iter()
+                .flat_map(|m| {
+                    [
+                        format!("intervals[{}].avg_pace_s_per_km", m.index),
+                        format!("intervals[{}].hill_adjusted_pace_s_per_km", m.index),
+                        format!("intervals[{}].grade_pct", m.index),
+                    ]
+                })
                 .collect(),
         ));
     }
@@ -480,4 +568,19 @@ pub(crate) fn findings(
     }
     out.sort_by_key(|f| std::cmp::Reverse(f.severity));
     out
+}
+
+#[cfg(test)]
+mod tests {
+    use super::number_list;
+
+    #[test]
+    fn number_lists_join_runs() {
+        assert_eq!(number_list(&[1, 2, 3, 4, 5, 6, 7, 8]), "1-8");
+        assert_eq!(number_list(&[1, 2, 3, 5]), "1-3, 5");
+        assert_eq!(number_list(&[2, 3]), "2, 3");
+        assert_eq!(number_list(&[4]), "4");
+        assert_eq!(number_list(&[1, 3, 4, 5, 9]), "1, 3-5, 9");
+        assert_eq!(number_list(&[]), "");
+    }
 }

@@ -25,7 +25,7 @@ use super::zones::{hr_zones, pace_zones, time_in_zones};
 
 /// Bumped whenever a number in the review may change; cached summaries of another version
 /// are recomputed.
-pub const ANALYSIS_VERSION: u32 = 2;
+pub const ANALYSIS_VERSION: u32 = 3;
 
 /// The JSON schema name of [`Review`].
 pub const SCHEMA: &str = "splitdesk.analysis/1";
@@ -79,6 +79,17 @@ pub const PACE_DISPLAY_SLACK_S: f64 = 0.5;
 /// Half-width of the centred window that smooths speed for time-in-target, seconds.
 // Our design choice: GPS speed jitters by several percent from second to second.
 pub const TARGET_SMOOTHING_HALF_S: f64 = 5.0;
+
+/// A work interval whose mean gradient is at least this steep (up or down, rise over run)
+/// is not judged against a pace target: "5k effort up the hill" is an effort, and 5k pace
+/// on a 6 % climb would be a sprint. The watch pace would call every such rep slow, and
+/// the full hill-adjusted pace (Minetti et al. 2002, J Appl Physiol 93:1039) calls most of
+/// them fast, because runners do not hold their metabolic power on hills (From memory:
+/// Townshend, Worringham & Stewart, Med Sci Sports Exerc 2010;42(1):160-169). So the
+/// review gives both paces beside the band and leaves the judgement to the coach.
+// Common coaching practice (no published source): sustained climbs and descents are
+// prescribed and judged by effort.
+pub const HILL_TARGET_GRADE: f64 = 0.02;
 
 /// Steady pace for HR drift: hill-adjusted speed within this fraction of the median.
 // Common coaching practice (no published source).
@@ -146,7 +157,26 @@ pub struct IntervalMetrics {
     pub target_hr: Option<(f64, f64)>,
     pub in_target_pct: Option<f64>,
     pub target_hit: Option<bool>,
+    /// Mean gradient over the interval's moving samples, percent (rise over run x 100);
+    /// `None` without altitude.
+    #[serde(default)]
+    pub grade_pct: Option<f64>,
+    /// How the target was judged: `"pace"`, `"hr"`, or `"not_judged_on_hill"` for a pace
+    /// target on a climb or descent of at least [`HILL_TARGET_GRADE`] (then
+    /// `target_hit` and `in_target_pct` are null). `None` when there is nothing to judge.
+    #[serde(default)]
+    pub target_basis: Option<String>,
 }
+
+impl IntervalMetrics {
+    /// Whether a pace target was left unjudged because the interval ran on a hill.
+    pub fn target_on_hill(&self) -> bool {
+        self.target_basis.as_deref() == Some(TARGET_NOT_JUDGED_ON_HILL)
+    }
+}
+
+/// `target_basis` of a pace target left unjudged on a hill.
+pub const TARGET_NOT_JUDGED_ON_HILL: &str = "not_judged_on_hill";
 
 /// What happened after one work interval.
 #[derive(Debug, Clone, Serialize, Deserialize, PartialEq)]
@@ -251,6 +281,8 @@ pub(crate) struct Series<'a> {
     pub speed: Option<&'a [Option<f64>]>,
     /// Hill-adjusted speed (raw speed where there is no altitude).
     pub adj: Option<Vec<Option<f64>>>,
+    /// Gradient per sample (rise over run), where the session has altitude.
+    pub grade: Option<Vec<Option<f64>>>,
     pub hill_adjusted: bool,
     pub hr: Option<&'a [Option<f64>]>,
     pub cadence: Option<&'a [Option<f64>]>,
@@ -305,6 +337,7 @@ impl<'a> Series<'a> {
             t: &session.t,
             speed: session.speed.as_ref().map(|c| c.values.as_slice()),
             adj: hill.map(|h| h.values),
+            grade: grads.map(<[Option<f64>]>::to_vec),
             hill_adjusted,
             hr: session.hr.as_ref().map(|c| c.values.as_slice()),
             cadence: session.cadence.as_ref().map(|c| c.values.as_slice()),
@@ -554,6 +587,12 @@ fn interval_metrics(
         .collect()
 }
 
+/// Time-weighted mean gradient over the moving samples `a+1..=b`.
+fn mean_grade(s: &Series<'_>, a: usize, b: usize) -> Option<f64> {
+    let g = s.grade.as_deref()?;
+    s.mean(g, |i| s.moving.get(i).copied().unwrap_or(false), a, b)
+}
+
 #[allow(clippy::too_many_arguments)]
 fn one_interval(
     session: &Session,
@@ -653,8 +692,19 @@ fn one_interval(
     };
     // Warm-ups, recoveries and cool-downs show their target but are not judged on it.
     let judged = matches!(iv.kind, SegmentKind::Work | SegmentKind::Steady);
+    let grade = mean_grade(s, a, b);
+    // A pace target on a climb or descent is an effort: left to the coach.
+    let on_hill = grade.is_some_and(|g| g.abs() >= HILL_TARGET_GRADE);
+    let target_basis = match (target_band, target_hr) {
+        _ if !judged => None,
+        (Some(_), _) if on_hill => Some(TARGET_NOT_JUDGED_ON_HILL.to_string()),
+        (Some(_), _) => Some("pace".to_string()),
+        (None, Some(_)) => Some("hr".to_string()),
+        (None, None) => None,
+    };
     let (in_target_pct, target_hit) = match (target_band, target_hr) {
         _ if !judged => (None, None),
+        (Some(_), _) if on_hill => (None, None),
         (Some((slow, fast)), _) => {
             let (mut inside, mut total) = (0.0, 0.0);
             if let Some(sm) = smoothed {
@@ -727,6 +777,8 @@ fn one_interval(
         target_hr,
         in_target_pct,
         target_hit,
+        grade_pct: grade.map(|g| g * 100.0),
+        target_basis,
     }
 }
 

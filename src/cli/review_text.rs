@@ -93,8 +93,16 @@ pub fn render(r: &Review, profile: &AthleteProfile, plan_source: Option<&str>) -
             match m.target_hit {
                 Some(true) => "yes",
                 Some(false) => "no",
+                None if m.target_on_hill() => "hill*",
                 None => "",
             }
+        );
+    }
+    if r.intervals.iter().any(|m| m.target_on_hill()) {
+        let _ = writeln!(
+            o,
+            "  * on a climb or descent (mean grade 2 % or more) a pace target is an effort: \
+             not judged; compare the hill-adjusted pace with the band"
         );
     }
     if !r.recoveries.is_empty() {

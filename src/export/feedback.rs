@@ -65,6 +65,7 @@ fn facts(findings: &[Finding]) -> Vec<String> {
                     | "decoupling_short"
                     | "inferred"
                     | "hr_drop_info"
+                    | "targets_on_hill"
             ) && f.severity != Severity::Caution
         })
         .take(3)

@@ -133,7 +133,11 @@ fn row_text(m: &IntervalMetrics, c: &Cols, units: Units, score: &str, selected: 
     }
     if let Some(tw) = c.target {
         let target = m.target.clone().unwrap_or_else(|| "-".to_string());
-        let hit = opt(m.in_target_pct, |p| format!("{p:.0}%"));
+        let hit = if m.target_on_hill() {
+            "hill".to_string()
+        } else {
+            opt(m.in_target_pct, |p| format!("{p:.0}%"))
+        };
         s.push_str(&format!(" {:<tw$}{:>5}", fit(&target, tw), hit));
     }
     if m.kind == "work" {

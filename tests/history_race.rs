@@ -51,12 +51,45 @@ fn critical_speed_from_best_efforts_of_three_sessions() {
     close(h.critical_speed_fit.r2.unwrap(), 0.99998, 0.00001);
     assert_eq!(h.critical_speed_fit.efforts_s, durs.to_vec());
     assert_eq!(h.critical_speed_fit.refusal, None);
+    // A D' in the usual range carries no caution.
+    assert_eq!(h.critical_speed_fit.caution, None);
     // The model predicts the 5 km ((5000 - 241.3)/4.386 s) but not beyond 30 minutes.
     let p5 = &h.predictions[0];
     assert_eq!(p5.race, "5 km");
     close(p5.critical_speed_s.unwrap(), (5000.0 - 241.3) / 4.386, 0.5);
     assert_eq!(h.predictions[3].critical_speed_s, None);
     assert!(h.prediction_caveat.contains("rough guides"));
+}
+
+#[test]
+fn a_fit_from_one_steady_run_is_flagged_as_rough() {
+    // Efforts that all came from one run held at 4.0 m/s: the line fits perfectly, but its
+    // D' (10 m) is far below what all-out efforts give.
+    // From memory: D' of trained runners is usually about 100-300 m (Jones & Vanhatalo
+    // 2017, Sports Med 47 Suppl 1:65-78).
+    let sessions = vec![with_efforts(
+        1,
+        &[
+            (180.0, 730.0),
+            (300.0, 1210.0),
+            (600.0, 2410.0),
+            (1200.0, 4810.0),
+        ],
+    )];
+    let h = build(&sessions, &profile(), &HistoryParams::default(), day(1));
+    close(h.critical_speed_mps.unwrap(), 4.0, 1e-9);
+    close(h.d_prime_m.unwrap(), 10.0, 1e-6);
+    let c = h.critical_speed_fit.caution.clone().expect("a caution");
+    assert!(c.starts_with("D′ 10 m is far below"), "{c}");
+    assert!(h
+        .notes
+        .iter()
+        .any(|n| n.starts_with("critical speed: D′ 10 m")));
+    // The thresholds themselves.
+    assert!(splitdesk::analysis::history::d_prime_caution(49.0).is_some());
+    assert!(splitdesk::analysis::history::d_prime_caution(150.0).is_none());
+    assert!(splitdesk::analysis::history::d_prime_caution(700.0)
+        .is_some_and(|c| c.contains("far above")));
 }
 
 #[test]

@@ -427,6 +427,36 @@ pub struct CriticalSpeedFit {
     pub r2: Option<f64>,
     /// Why no fit is given.
     pub refusal: Option<String>,
+    /// Why a fit that was given should be read with care (D′ far outside what all-out
+    /// efforts give).
+    pub caution: Option<String>,
+}
+
+/// Below this D′ (metres) the best efforts were almost surely not all-out.
+// From memory: D′ of trained runners is usually about 100-300 m (Jones & Vanhatalo 2017,
+// Sports Med 47 Suppl 1:65-78); our design choice puts the lines well outside that range.
+pub const D_PRIME_LOW_M: f64 = 50.0;
+/// Above this D′ (metres) the fit is unlikely to describe the athlete.
+// From memory: as above.
+pub const D_PRIME_HIGH_M: f64 = 600.0;
+
+/// Why a critical-speed fit with this D′ should be read with care, if it should.
+pub fn d_prime_caution(d_prime_m: f64) -> Option<String> {
+    if d_prime_m < D_PRIME_LOW_M {
+        Some(format!(
+            "D′ {d_prime_m:.0} m is far below what all-out efforts give (usually about \
+             100-300 m): the best efforts were probably not all-out, or came from one steady \
+             run, so critical speed and its predictions are rough"
+        ))
+    } else if d_prime_m > D_PRIME_HIGH_M {
+        Some(format!(
+            "D′ {d_prime_m:.0} m is far above what all-out efforts give (usually about \
+             100-300 m): the longer best efforts were probably not all-out, so critical speed \
+             and its predictions are rough"
+        ))
+    } else {
+        None
+    }
 }
 
 /// Predicted times for one race distance.
@@ -690,6 +720,9 @@ pub fn build(
     if let Some(r) = &critical_speed_fit.refusal {
         notes.push(format!("no critical speed: {r}"));
     }
+    if let Some(c) = &critical_speed_fit.caution {
+        notes.push(format!("critical speed: {c}"));
+    }
     let race_like_effort = best_efforts
         .iter()
         .filter(|b| b.duration_s >= params.race_like_min_s)
@@ -948,6 +981,7 @@ fn cs_fit(
                 efforts_s,
                 r2: Some(f.r2),
                 refusal: None,
+                caution: d_prime_caution(f.d_prime_m),
             },
         ),
         Err(e) => (
@@ -961,6 +995,7 @@ fn cs_fit(
                     params.cs_min_s / 60.0,
                     params.cs_max_s / 60.0
                 )),
+                caution: None,
             },
         ),
     }

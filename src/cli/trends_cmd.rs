@@ -203,6 +203,9 @@ pub fn render(h: &History, name: &str, u: Units) -> String {
                 opt(h.critical_speed_fit.r2, |r| format!("{r:.3}")),
                 h.critical_speed_fit.efforts_s.len()
             );
+            if let Some(c) = &h.critical_speed_fit.caution {
+                let _ = writeln!(s, "  careful: {c}");
+            }
         }
         _ => {
             let _ = writeln!(

@@ -137,6 +137,7 @@ pub fn render(app: &App, area: Rect, buf: &mut Buffer) {
     if roomy {
         let [left, right] =
             Layout::horizontal([Constraint::Percentage(55), Constraint::Percentage(45)])
+                .spacing(2)
                 .areas(rest);
         let [vol, load, fit] = Layout::vertical([
             Constraint::Ratio(1, 3),
@@ -194,6 +195,7 @@ fn section_title(t: &Theme, text: String, area: Rect, buf: &mut Buffer) -> Rect 
     if area.height == 0 {
         return area;
     }
+    let text = super::fit(&text, usize::from(area.width));
     Paragraph::new(Line::styled(text, t.heading)).render(Rect { height: 1, ..area }, buf);
     Rect {
         y: area.y + 1,
@@ -206,11 +208,11 @@ fn ratio_line(h: &History) -> String {
     let b = &h.acute_chronic_bands;
     match &h.acute_chronic_latest {
         Some(l) => format!(
-            "ratio today {:.2} ({}), usual band {:.1}-{:.1}, caution from {:.1}",
+            "ratio {:.2} today ({}), band {:.1}-{:.1}, caution {:.1}+",
             l.value, l.band, b.low, b.high, b.caution
         ),
         None => format!(
-            "no ratio today; usual band {:.1}-{:.1}, caution from {:.1}",
+            "no ratio today; band {:.1}-{:.1}, caution {:.1}+",
             b.low, b.high, b.caution
         ),
     }
@@ -242,12 +244,15 @@ fn cs_line(h: &History, u: Units) -> String {
 
 /// Every section after the week bars as a few lines (small panes).
 fn collapsed(t: &Theme, h: &History, u: Units) -> Vec<Line<'static>> {
-    let mut v = vec![
-        Line::styled(cs_line(h, u), t.text),
+    let mut v = vec![Line::styled(cs_line(h, u), t.text)];
+    if let Some(c) = &h.critical_speed_fit.caution {
+        v.push(Line::styled(format!("Careful: {c}."), t.warn));
+    }
+    v.extend([
         Line::styled(ratio_line(h), t.text),
         Line::styled(readiness_line(h), t.text),
         Line::styled(format!("Efficiency: {}", h.efficiency_trend.text), t.text),
-    ];
+    ]);
     let l = &h.long_run_decoupling;
     let above = l.runs.iter().filter(|r| r.above_line).count();
     v.push(Line::styled(
@@ -354,7 +359,7 @@ fn series_bounds<'a>(series: impl Iterator<Item = &'a f64>) -> (f64, f64) {
 
 /// Daily load (vertical strokes) under the acute/chronic ratio line with its bands.
 fn load_chart(t: &Theme, h: &History, area: Rect, buf: &mut Buffer) {
-    let body = section_title(t, format!("Load and {}", ratio_line(h)), area, buf);
+    let body = section_title(t, format!("Load · {}", ratio_line(h)), area, buf);
     if body.height < 2 || h.daily_load.is_empty() {
         return;
     }
@@ -607,6 +612,9 @@ fn predictions(t: &Theme, h: &History, area: Rect, buf: &mut Buffer) {
             ),
             t.text,
         ));
+    }
+    if let Some(c) = &h.critical_speed_fit.caution {
+        lines.push(Line::styled(format!("Careful: {c}."), t.warn));
     }
     lines.push(Line::styled(h.prediction_caveat.clone(), t.dim));
     Paragraph::new(lines)

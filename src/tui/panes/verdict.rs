@@ -59,12 +59,15 @@ struct Cols {
     mid: bool,
     /// Target and time in target, with this target width.
     target: Option<usize>,
+    /// Hill-adjusted pace beside the pace (sessions with altitude).
+    hill: bool,
 }
 
 impl Cols {
-    fn for_width(w: usize) -> Cols {
+    fn for_width(w: usize, hill_adjusted: bool) -> Cols {
         Cols {
             mid: w >= 62,
+            hill: hill_adjusted && w >= 86,
             target: if w >= 110 {
                 Some(26)
             } else if w >= 86 {
@@ -82,12 +85,14 @@ fn header(c: &Cols, units: Units) -> String {
         s.push_str(&format!("{:>7}", "start"));
     }
     s.push_str(&format!(
-        "{:>7}{:>8}{:>w$}",
+        "{:>7}{:>8}",
         "time",
-        format!("/{}", units.label()),
-        "HR",
-        w = if c.mid { 8 } else { 5 }
+        format!("/{}", units.label())
     ));
+    if c.hill {
+        s.push_str(&format!("{:>8}", "hill"));
+    }
+    s.push_str(&format!("{:>w$}", "HR", w = if c.mid { 8 } else { 5 }));
     if c.mid {
         s.push_str(&format!("{:>5}", "cad"));
     }
@@ -99,11 +104,14 @@ fn header(c: &Cols, units: Units) -> String {
 }
 
 fn row_text(m: &IntervalMetrics, c: &Cols, units: Units, score: &str, selected: bool) -> String {
-    let pace = opt(m.avg_pace_s_per_km, |p| {
-        format_pace(1000.0 / p, units)
-            .trim_end_matches(&format!("/{}", units.label()))
-            .to_string()
-    });
+    let short_pace = |v: Option<f64>| {
+        opt(v, |p| {
+            format_pace(1000.0 / p, units)
+                .trim_end_matches(&format!("/{}", units.label()))
+                .to_string()
+        })
+    };
+    let pace = short_pace(m.avg_pace_s_per_km);
     let hr = match (m.avg_hr, m.max_hr, c.mid) {
         (Some(a), Some(x), true) => format!("{a:.0}/{x:.0}"),
         (Some(a), _, _) => format!("{a:.0}"),
@@ -118,13 +126,11 @@ fn row_text(m: &IntervalMetrics, c: &Cols, units: Units, score: &str, selected: 
     if c.mid {
         s.push_str(&format!("{:>7}", format_clock(m.start_s)));
     }
-    s.push_str(&format!(
-        "{:>7}{:>8}{:>w$}",
-        format_clock(m.duration_s),
-        pace,
-        hr,
-        w = if c.mid { 8 } else { 5 }
-    ));
+    s.push_str(&format!("{:>7}{:>8}", format_clock(m.duration_s), pace));
+    if c.hill {
+        s.push_str(&format!("{:>8}", short_pace(m.hill_adjusted_pace_s_per_km)));
+    }
+    s.push_str(&format!("{:>w$}", hr, w = if c.mid { 8 } else { 5 }));
     if c.mid {
         s.push_str(&format!(
             "{:>5}",
@@ -225,7 +231,7 @@ pub fn render(app: &App, area: Rect, buf: &mut Buffer) {
         .map(|a| a.profile.units)
         .unwrap_or_default();
     let w = inner.width as usize;
-    let cols = Cols::for_width(w);
+    let cols = Cols::for_width(w, review.hill_adjusted);
     let mut y = inner.y;
     let bottom = inner.y + inner.height;
     let mut put = |line: Line, y: &mut u16| {

@@ -138,16 +138,10 @@ pub fn write(session: &Session) -> Vec<u8> {
         L_LAP,
         19,
         &[
-            (254, 2, UINT16),
-            (253, 4, UINT32),
-            (2, 4, UINT32),
-            (7, 4, UINT32),
-            (8, 4, UINT32),
-            (9, 4, UINT32),
-            (24, 1, ENUM),
-            (0, 1, ENUM),
-            (1, 1, ENUM),
-        ],
+            SPAN_FIELDS.as_slice(),
+            &[(24, 1, ENUM), (0, 1, ENUM), (1, 1, ENUM)],
+        ]
+        .concat(),
     );
     let whole = [(0.0, session.duration_s(), Some(LAP_TRIGGER_SESSION_END))];
     let laps: Vec<(f64, f64, Option<u8>)> = if session.laps.is_empty() {
@@ -168,12 +162,14 @@ pub fn write(session: &Session) -> Vec<u8> {
     for (k, &(from, to, trigger)) in laps.iter().enumerate() {
         let elapsed = (to - from).max(0.0);
         w.data(L_LAP);
-        w.u16(u16::try_from(k).unwrap_or(u16::MAX - 1));
-        w.u32(at(to));
-        w.u32(at(from));
-        w.u32_opt(scaled_u32(elapsed, 1000.0, 0.0));
-        w.u32_opt(scaled_u32(timer_s(session, from, to), 1000.0, 0.0));
-        w.u32_opt(lap_distance(session, from, to).and_then(|d| scaled_u32(d, 100.0, 0.0)));
+        w.span(&Span {
+            index: u16::try_from(k).unwrap_or(u16::MAX - 1),
+            end: at(to),
+            start: at(from),
+            elapsed_s: elapsed,
+            timer_s: timer_s(session, from, to),
+            distance_m: lap_distance(session, from, to),
+        });
         w.u8_opt(trigger);
         w.u8(EVENT_LAP);
         w.u8(TYPE_STOP);
@@ -183,27 +179,27 @@ pub fn write(session: &Session) -> Vec<u8> {
         L_SESSION,
         18,
         &[
-            (254, 2, UINT16),
-            (253, 4, UINT32),
-            (2, 4, UINT32),
-            (7, 4, UINT32),
-            (8, 4, UINT32),
-            (9, 4, UINT32),
-            (5, 1, ENUM),
-            (6, 1, ENUM),
-            (0, 1, ENUM),
-            (1, 1, ENUM),
-            (25, 2, UINT16),
-            (26, 2, UINT16),
-        ],
+            SPAN_FIELDS.as_slice(),
+            &[
+                (5, 1, ENUM),
+                (6, 1, ENUM),
+                (0, 1, ENUM),
+                (1, 1, ENUM),
+                (25, 2, UINT16),
+                (26, 2, UINT16),
+            ],
+        ]
+        .concat(),
     );
     w.data(L_SESSION);
-    w.u16(0);
-    w.u32(last);
-    w.u32(first);
-    w.u32_opt(scaled_u32(session.duration_s(), 1000.0, 0.0));
-    w.u32_opt(scaled_u32(session.timer_s(), 1000.0, 0.0));
-    w.u32_opt(session.distance_m().and_then(|d| scaled_u32(d, 100.0, 0.0)));
+    w.span(&Span {
+        index: 0,
+        end: last,
+        start: first,
+        elapsed_s: session.duration_s(),
+        timer_s: session.timer_s(),
+        distance_m: session.distance_m(),
+    });
     w.u8(sport(&session.sport));
     w.u8(0); // sub_sport: generic
     w.u8(EVENT_SESSION);
@@ -234,6 +230,28 @@ pub fn write(session: &Session) -> Vec<u8> {
     w.finish()
 }
 
+/// The fields lap and session messages start with (FIT profile): message_index (254),
+/// timestamp (253), start_time (2), total_elapsed_time (7, ms), total_timer_time (8, ms),
+/// total_distance (9, cm).
+const SPAN_FIELDS: [(u8, u8, u8); 6] = [
+    (254, 2, UINT16),
+    (253, 4, UINT32),
+    (2, 4, UINT32),
+    (7, 4, UINT32),
+    (8, 4, UINT32),
+    (9, 4, UINT32),
+];
+
+/// The values of [`SPAN_FIELDS`].
+struct Span {
+    index: u16,
+    end: u32,
+    start: u32,
+    elapsed_s: f64,
+    timer_s: f64,
+    distance_m: Option<f64>,
+}
+
 /// Message bytes plus the bookkeeping to frame them.
 #[derive(Default)]
 struct Writer {
@@ -254,6 +272,16 @@ impl Writer {
 
     fn data(&mut self, local: u8) {
         self.data.push(local);
+    }
+
+    /// The values of [`SPAN_FIELDS`], in order.
+    fn span(&mut self, s: &Span) {
+        self.u16(s.index);
+        self.u32(s.end);
+        self.u32(s.start);
+        self.u32_opt(scaled_u32(s.elapsed_s, 1000.0, 0.0));
+        self.u32_opt(scaled_u32(s.timer_s, 1000.0, 0.0));
+        self.u32_opt(s.distance_m.and_then(|d| scaled_u32(d, 100.0, 0.0)));
     }
 
     fn event(&mut self, ts: u32, kind: u8) {

@@ -21,7 +21,7 @@
 use chrono::{DateTime, Utc};
 use quick_xml::events::BytesStart;
 
-use crate::model::{Channel, FileFormat, Session, Sport};
+use crate::model::{FileFormat, Session, Sport};
 
 use super::xml::{self, Handler};
 use super::ParseError;
@@ -73,10 +73,6 @@ struct GpxHandler {
     track_points: usize,
 }
 
-fn parent<T: Copy>(stack: &[T], up: usize) -> Option<T> {
-    stack.len().checked_sub(1 + up).map(|i| stack[i])
-}
-
 impl Handler for GpxHandler {
     type Tag = Tag;
 
@@ -98,7 +94,7 @@ impl Handler for GpxHandler {
     }
 
     fn start(&mut self, stack: &[Tag], e: &BytesStart<'_>) -> Result<(), String> {
-        match parent(stack, 0) {
+        match xml::parent(stack, 0) {
             Some(Tag::Trkseg) => {
                 if let Some(last) = self.points.last() {
                     self.pending_gap = last.time;
@@ -118,10 +114,10 @@ impl Handler for GpxHandler {
     }
 
     fn end(&mut self, stack: &[Tag], text: &str) -> Result<(), String> {
-        let Some(tag) = parent(stack, 0) else {
+        let Some(tag) = xml::parent(stack, 0) else {
             return Ok(());
         };
-        let up1 = parent(stack, 1);
+        let up1 = xml::parent(stack, 1);
         match tag {
             Tag::Trkpt => self.finish_point(),
             Tag::Desc if up1 == Some(Tag::Trk) => {
@@ -188,36 +184,29 @@ impl GpxHandler {
         s.sport = self.sport.unwrap_or_default();
         s.note = self.trk_desc.or(self.meta_desc);
 
-        let n = self.points.len();
-        let mut t = Vec::with_capacity(n);
-        let mut time = Vec::with_capacity(n);
-        let mut cols: [Vec<Option<f64>>; 6] = std::array::from_fn(|_| Vec::with_capacity(n));
+        // GPX extensions count cadence per foot for foot sports.
         let factor = if xml::is_foot_sport(&s.sport) {
             2.0
         } else {
             1.0
         };
-        for p in &self.points {
-            let pt = p.time.unwrap_or(start);
-            t.push(xml::secs_between(start, pt));
-            time.push(pt);
-            let (lat, lon) = xml::valid_position(p.lat, p.lon);
-            let cad = p.cad.map(|c| c * factor);
-            for (col, v) in cols.iter_mut().zip([p.speed, p.hr, cad, p.ele, lat, lon]) {
-                col.push(v);
-            }
-        }
-        let [speed, hr, cadence, altitude, lat, lon] = cols.map(|c| Channel::new(c).into_option());
-        s.t = t;
-        s.time = time;
-        s.speed = speed;
-        s.hr = hr;
-        s.cadence = cadence;
-        s.altitude = altitude;
-        if lat.is_some() && lon.is_some() {
-            s.lat = lat;
-            s.lon = lon;
-        }
+        let samples: Vec<(DateTime<Utc>, xml::TrackSample)> = self
+            .points
+            .iter()
+            .map(|p| {
+                let sample = xml::TrackSample {
+                    lat: p.lat,
+                    lon: p.lon,
+                    altitude: p.ele,
+                    distance: None,
+                    speed: p.speed,
+                    hr: p.hr,
+                    cadence: p.cad.map(|c| c * factor),
+                };
+                (p.time.unwrap_or(start), sample)
+            })
+            .collect();
+        xml::fill_track(&mut s, &samples);
         s.pauses = xml::build_pauses(&self.pauses, start);
         Ok(s)
     }

@@ -26,7 +26,7 @@
 use chrono::{DateTime, Utc};
 use quick_xml::events::BytesStart;
 
-use crate::model::{Channel, DeviceLap, FileFormat, Session, Sport};
+use crate::model::{DeviceLap, FileFormat, Session, Sport};
 
 use super::xml::{self, Handler};
 use super::ParseError;
@@ -103,10 +103,6 @@ struct TcxHandler {
     skipped_no_time: usize,
 }
 
-fn parent<T: Copy>(stack: &[T], up: usize) -> Option<T> {
-    stack.len().checked_sub(1 + up).map(|i| stack[i])
-}
-
 impl Handler for TcxHandler {
     type Tag = Tag;
 
@@ -135,7 +131,7 @@ impl Handler for TcxHandler {
     }
 
     fn start(&mut self, stack: &[Tag], e: &BytesStart<'_>) -> Result<(), String> {
-        let Some(tag) = parent(stack, 0) else {
+        let Some(tag) = xml::parent(stack, 0) else {
             return Ok(());
         };
         if tag == Tag::Activity {
@@ -174,13 +170,13 @@ impl Handler for TcxHandler {
     }
 
     fn end(&mut self, stack: &[Tag], text: &str) -> Result<(), String> {
-        let Some(tag) = parent(stack, 0) else {
+        let Some(tag) = xml::parent(stack, 0) else {
             return Ok(());
         };
         if !self.active {
             return Ok(());
         }
-        let up1 = parent(stack, 1);
+        let up1 = xml::parent(stack, 1);
         match tag {
             Tag::Activity => self.active = false,
             Tag::Notes if up1 == Some(Tag::Activity) => self.note = xml::note(text),
@@ -216,7 +212,8 @@ impl TcxHandler {
             Tag::Lat if up1 == Some(Tag::Position) => p.lat = xml::parse_num(text),
             Tag::Lon if up1 == Some(Tag::Position) => p.lon = xml::parse_num(text),
             Tag::Value
-                if up1 == Some(Tag::HeartRate) && parent(stack, 2) == Some(Tag::Trackpoint) =>
+                if up1 == Some(Tag::HeartRate)
+                    && xml::parent(stack, 2) == Some(Tag::Trackpoint) =>
             {
                 p.hr = xml::parse_num(text)
             }
@@ -272,41 +269,30 @@ impl TcxHandler {
         s.sport = self.sport;
         s.note = self.note;
 
-        let n = self.points.len();
-        let mut t = Vec::with_capacity(n);
-        let mut time = Vec::with_capacity(n);
-        let mut cols: [Vec<Option<f64>>; 7] = std::array::from_fn(|_| Vec::with_capacity(n));
+        // RunCadence and, for foot sports, plain Cadence count one foot.
         let double_plain = xml::is_foot_sport(&s.sport);
-        for p in &self.points {
-            let pt = p.time.unwrap_or(start);
-            t.push(xml::secs_between(start, pt));
-            time.push(pt);
-            let (lat, lon) = xml::valid_position(p.lat, p.lon);
-            let cadence = match (p.run_cadence, p.cadence) {
-                (Some(rc), _) => Some(2.0 * rc),
-                (None, Some(c)) if double_plain => Some(2.0 * c),
-                (None, c) => c,
-            };
-            for (col, v) in cols
-                .iter_mut()
-                .zip([p.distance, p.speed, p.hr, cadence, p.altitude, lat, lon])
-            {
-                col.push(v);
-            }
-        }
-        let [distance, speed, hr, cadence, altitude, lat, lon] =
-            cols.map(|c| Channel::new(c).into_option());
-        s.t = t;
-        s.time = time;
-        s.distance = distance;
-        s.speed = speed;
-        s.hr = hr;
-        s.cadence = cadence;
-        s.altitude = altitude;
-        if lat.is_some() && lon.is_some() {
-            s.lat = lat;
-            s.lon = lon;
-        }
+        let samples: Vec<(DateTime<Utc>, xml::TrackSample)> = self
+            .points
+            .iter()
+            .map(|p| {
+                let cadence = match (p.run_cadence, p.cadence) {
+                    (Some(rc), _) => Some(2.0 * rc),
+                    (None, Some(c)) if double_plain => Some(2.0 * c),
+                    (None, c) => c,
+                };
+                let sample = xml::TrackSample {
+                    lat: p.lat,
+                    lon: p.lon,
+                    altitude: p.altitude,
+                    distance: p.distance,
+                    speed: p.speed,
+                    hr: p.hr,
+                    cadence,
+                };
+                (p.time.unwrap_or(start), sample)
+            })
+            .collect();
+        xml::fill_track(&mut s, &samples);
         s.laps = build_laps(&self.laps, start);
         s.pauses = xml::build_pauses(&self.pauses, start);
         Ok(s)

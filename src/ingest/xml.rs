@@ -260,6 +260,59 @@ pub(crate) fn valid_position(lat: Option<f64>, lon: Option<f64>) -> (Option<f64>
     }
 }
 
+/// One track point read from an XML file, in model units (cadence in steps per minute).
+#[derive(Debug, Clone, Copy, Default)]
+pub(crate) struct TrackSample {
+    pub lat: Option<f64>,
+    pub lon: Option<f64>,
+    pub altitude: Option<f64>,
+    pub distance: Option<f64>,
+    pub speed: Option<f64>,
+    pub hr: Option<f64>,
+    pub cadence: Option<f64>,
+}
+
+/// Fill the session's time base and channels from timed track points sorted by time, the
+/// first at `s.start`. Positions are kept only where valid, and only when the file has both
+/// latitude and longitude; a channel with no value at all stays `None`.
+pub(crate) fn fill_track(s: &mut crate::model::Session, points: &[(DateTime<Utc>, TrackSample)]) {
+    use crate::model::Channel;
+    let n = points.len();
+    let mut t = Vec::with_capacity(n);
+    let mut time = Vec::with_capacity(n);
+    let mut cols: [Vec<Option<f64>>; 7] = std::array::from_fn(|_| Vec::with_capacity(n));
+    for &(pt, p) in points {
+        t.push(secs_between(s.start, pt));
+        time.push(pt);
+        let (lat, lon) = valid_position(p.lat, p.lon);
+        let values = [p.distance, p.speed, p.hr, p.cadence, p.altitude, lat, lon];
+        for (col, v) in cols.iter_mut().zip(values) {
+            col.push(v);
+        }
+    }
+    let [distance, speed, hr, cadence, altitude, lat, lon] =
+        cols.map(|c| Channel::new(c).into_option());
+    s.t = t;
+    s.time = time;
+    s.distance = distance;
+    s.speed = speed;
+    s.hr = hr;
+    s.cadence = cadence;
+    s.altitude = altitude;
+    if lat.is_some() && lon.is_some() {
+        s.lat = lat;
+        s.lon = lon;
+    }
+}
+
+/// The element `up` levels below the top of an element stack (0: the top itself).
+pub(crate) fn parent<T: Copy>(stack: &[T], up: usize) -> Option<T> {
+    stack
+        .len()
+        .checked_sub(1 + up)
+        .and_then(|i| stack.get(i).copied())
+}
+
 /// Absolute pause ranges to seconds from the first sample, sorted, empty ones dropped.
 pub(crate) fn build_pauses(
     raw: &[(DateTime<Utc>, DateTime<Utc>)],

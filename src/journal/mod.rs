@@ -86,6 +86,18 @@ impl<T> SqlExt<T> for rusqlite::Result<T> {
     }
 }
 
+/// Run `sql` and collect its rows as `T`: any type built from a row, such as a tuple of
+/// column types (rusqlite implements `TryFrom<&Row>` for tuples of `FromSql`).
+fn query_rows<T, P>(conn: &Connection, path: &Path, sql: &str, params: P) -> Result<Vec<T>>
+where
+    T: for<'r> TryFrom<&'r rusqlite::Row<'r>, Error = rusqlite::Error>,
+    P: rusqlite::Params,
+{
+    let mut stmt = conn.prepare(sql).sq(path)?;
+    let rows = stmt.query_map(params, |r| T::try_from(r)).sq(path)?;
+    rows.collect::<rusqlite::Result<Vec<T>>>().sq(path)
+}
+
 fn ts(t: DateTime<Utc>) -> String {
     t.to_rfc3339_opts(SecondsFormat::Millis, true)
 }
@@ -851,16 +863,12 @@ impl Journal {
             let Some(rid) = row.review_id else {
                 return Ok(Vec::new());
             };
-            let mut stmt = conn
-                .prepare(
-                    "SELECT body, saved_at FROM feedback_version WHERE review_id = ?1 ORDER BY id",
-                )
-                .sq(path)?;
-            let raw: Vec<(String, String)> = stmt
-                .query_map([rid], |r| Ok((r.get(0)?, r.get(1)?)))
-                .sq(path)?
-                .collect::<rusqlite::Result<_>>()
-                .sq(path)?;
+            let raw: Vec<(String, String)> = query_rows(
+                conn,
+                path,
+                "SELECT body, saved_at FROM feedback_version WHERE review_id = ?1 ORDER BY id",
+                [rid],
+            )?;
             raw.into_iter()
                 .map(|(body, at)| {
                     Ok(FeedbackVersion {
@@ -897,14 +905,12 @@ impl Journal {
             let Some(rid) = row.review_id else {
                 return Ok(Vec::new());
             };
-            let mut stmt = conn
-                .prepare("SELECT kind, at FROM feedback_event WHERE review_id = ?1 ORDER BY id")
-                .sq(path)?;
-            let raw: Vec<(String, String)> = stmt
-                .query_map([rid], |r| Ok((r.get(0)?, r.get(1)?)))
-                .sq(path)?
-                .collect::<rusqlite::Result<_>>()
-                .sq(path)?;
+            let raw: Vec<(String, String)> = query_rows(
+                conn,
+                path,
+                "SELECT kind, at FROM feedback_event WHERE review_id = ?1 ORDER BY id",
+                [rid],
+            )?;
             raw.into_iter()
                 .map(|(kind, at)| {
                     Ok(FeedbackEvent {
@@ -1054,21 +1060,7 @@ impl Journal {
             bool,
         );
         let raw: Vec<Raw> = stmt
-            .query_map([athlete], |r| {
-                Ok((
-                    r.get(0)?,
-                    r.get(1)?,
-                    r.get(2)?,
-                    r.get(3)?,
-                    r.get(4)?,
-                    r.get(5)?,
-                    r.get(6)?,
-                    r.get(7)?,
-                    r.get(8)?,
-                    r.get(9)?,
-                    r.get(10)?,
-                ))
-            })
+            .query_map([athlete], |r| Raw::try_from(r))
             .sq(path)?
             .collect::<rusqlite::Result<_>>()
             .sq(path)?;
@@ -1112,17 +1104,7 @@ impl Journal {
                 Option<u32>,
             );
             let raw: Vec<Raw> = stmt
-                .query_map([], |r| {
-                    Ok((
-                        r.get(0)?,
-                        r.get(1)?,
-                        r.get(2)?,
-                        r.get(3)?,
-                        r.get(4)?,
-                        r.get(5)?,
-                        r.get(6)?,
-                    ))
-                })
+                .query_map([], |r| Raw::try_from(r))
                 .sq(path)?
                 .collect::<rusqlite::Result<_>>()
                 .sq(path)?;
@@ -1386,15 +1368,13 @@ fn scored_intervals(
     path: &Path,
     rid: i64,
 ) -> Result<BTreeMap<u32, (u8, String)>> {
-    let mut stmt = conn
-        .prepare("SELECT interval_no, score, given_at FROM score WHERE review_id = ?1")
-        .sq(path)?;
-    let rows = stmt
-        .query_map([rid], |r| Ok((r.get(0)?, (r.get(1)?, r.get(2)?))))
-        .sq(path)?
-        .collect::<rusqlite::Result<_>>()
-        .sq(path)?;
-    Ok(rows)
+    let rows: Vec<(u32, u8, String)> = query_rows(
+        conn,
+        path,
+        "SELECT interval_no, score, given_at FROM score WHERE review_id = ?1",
+        [rid],
+    )?;
+    Ok(rows.into_iter().map(|(i, s, at)| (i, (s, at))).collect())
 }
 
 fn current_score(conn: &Connection, path: &Path, rid: i64, interval: u32) -> Result<Option<u8>> {
@@ -1438,20 +1418,14 @@ fn current_verdict(conn: &Connection, path: &Path, rid: i64) -> Result<Option<Pu
 }
 
 fn revisions_of(conn: &Connection, path: &Path, rid: i64) -> Result<Vec<Revision>> {
-    let mut stmt = conn
-        .prepare(
-            "SELECT target, interval_no, old_value, new_value, at FROM revision
-             WHERE review_id = ?1 ORDER BY id",
-        )
-        .sq(path)?;
     type Raw = (String, Option<u32>, String, String, String);
-    let raw: Vec<Raw> = stmt
-        .query_map([rid], |r| {
-            Ok((r.get(0)?, r.get(1)?, r.get(2)?, r.get(3)?, r.get(4)?))
-        })
-        .sq(path)?
-        .collect::<rusqlite::Result<_>>()
-        .sq(path)?;
+    let raw: Vec<Raw> = query_rows(
+        conn,
+        path,
+        "SELECT target, interval_no, old_value, new_value, at FROM revision
+         WHERE review_id = ?1 ORDER BY id",
+        [rid],
+    )?;
     raw.into_iter()
         .map(|(target, interval, old, new, at)| {
             let change = match (target.as_str(), interval) {

@@ -5,22 +5,10 @@ use chrono::{DateTime, Datelike, Utc};
 
 use crate::model::{AthleteProfile, Target};
 
-/// Energy cost of running on a gradient, J/kg/m.
-///
-/// `grade` is rise over run as a fraction (0.10 = 10 %), clamped to the fitted range ±0.45.
-// Source: Minetti et al. 2002, J Appl Physiol 93:1039 (polynomial under Fig. 1).
-pub fn minetti_cr(grade: f64) -> f64 {
-    let i = grade.clamp(-0.45, 0.45);
-    ((((155.4 * i - 30.4) * i - 43.3) * i + 46.3) * i + 19.5) * i + 3.6
-}
-
-/// Cost of running at `grade` relative to the flat, `Cr(i)/Cr(0)` with `Cr(0) = 3.6`.
-/// Multiply a speed by this to get the flat-equivalent (hill-adjusted) speed.
-// Source: Minetti et al. 2002, J Appl Physiol 93:1039; flat-equivalent speed v*Cr(i)/Cr(0)
-// is derived from the paper (methods.md §1), not printed in it.
-pub fn hill_cost_ratio(grade: f64) -> f64 {
-    minetti_cr(grade) / 3.6
-}
+/// The energy cost of running on a gradient and its ratio to the flat: the same published
+/// polynomial the analysis uses (Minetti et al. 2002, J Appl Physiol 93:1039; checked
+/// against the paper's values in tests/formulas_gradient.rs).
+pub use crate::analysis::gradient::{cost_ratio as hill_cost_ratio, minetti_cr};
 
 /// Exponent of the speed loss on hills: speed = target * (Cr(0)/Cr(i))^0.7.
 ///

@@ -4,50 +4,13 @@
 //! Runs `$SPLITDESK_PYTHON tests/fitdecode_check.py FILE`. Without `SPLITDESK_PYTHON` the
 //! test is skipped with a message, except under `CI=true`, where it fails.
 
-use std::path::{Path, PathBuf};
-use std::process::Command;
+mod fitdecode_support;
 
-use serde_json::Value;
+use fitdecode_support::{at, fitdecode_file as fitdecode, python, same};
+use std::path::{Path, PathBuf};
+
 use splitdesk::demo::scenario::{PlantedKind, Scenario};
 use splitdesk::ingest::fit;
-use splitdesk::model::Channel;
-
-fn python() -> Option<String> {
-    match std::env::var("SPLITDESK_PYTHON") {
-        Ok(p) if !p.is_empty() => Some(p),
-        _ => {
-            if std::env::var("CI").is_ok_and(|v| v == "true") {
-                panic!("SPLITDESK_PYTHON is not set; CI needs the fitdecode cross-check");
-            }
-            println!("skipped: set SPLITDESK_PYTHON to a Python with fitdecode installed");
-            None
-        }
-    }
-}
-
-fn fitdecode(python: &str, path: &Path) -> Value {
-    let script = concat!(env!("CARGO_MANIFEST_DIR"), "/tests/fitdecode_check.py");
-    let out = Command::new(python).arg(script).arg(path).output().unwrap();
-    assert!(
-        out.status.success(),
-        "fitdecode failed on {}: {}",
-        path.display(),
-        String::from_utf8_lossy(&out.stderr)
-    );
-    serde_json::from_slice(&out.stdout).unwrap()
-}
-
-fn same(what: &str, ours: Option<f64>, theirs: &Value, tol: f64) {
-    match (ours, theirs.as_f64()) {
-        (Some(a), Some(b)) => assert!((a - b).abs() <= tol, "{what}: ours {a}, fitdecode {b}"),
-        (None, None) => {}
-        (a, _) => panic!("{what}: ours {a:?}, fitdecode {theirs}"),
-    }
-}
-
-fn at(c: &Option<Channel>, i: usize) -> Option<f64> {
-    c.as_ref().and_then(|c| c.get(i))
-}
 
 /// Five FIT files: smart-sampled, treadmill, the tired intervals, the downhill run, the
 /// hot long run.

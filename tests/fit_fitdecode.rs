@@ -5,56 +5,12 @@
 //! Set up: `python3 -m venv /work/venv-fit && /work/venv-fit/bin/pip install fitdecode`.
 
 mod fit_common;
+mod fitdecode_support;
 
-use std::process::Command;
-
-use serde_json::Value;
+use fitdecode_support::{at, fitdecode_bytes as fitdecode, python, same};
 use splitdesk::demo::fit_writer;
 use splitdesk::ingest::fit;
 use splitdesk::model::{Channel, Session, Sport};
-
-fn python() -> Option<String> {
-    match std::env::var("SPLITDESK_PYTHON") {
-        Ok(p) if !p.is_empty() => Some(p),
-        _ => {
-            if std::env::var("CI").is_ok_and(|v| v == "true") {
-                panic!("SPLITDESK_PYTHON is not set; CI needs the fitdecode cross-check");
-            }
-            println!("skipped: set SPLITDESK_PYTHON to a Python with fitdecode installed");
-            None
-        }
-    }
-}
-
-fn fitdecode(python: &str, bytes: &[u8]) -> Value {
-    let dir = tempfile::tempdir().unwrap();
-    let path = dir.path().join("check.fit");
-    std::fs::write(&path, bytes).unwrap();
-    let script = concat!(env!("CARGO_MANIFEST_DIR"), "/tests/fitdecode_check.py");
-    let out = Command::new(python)
-        .arg(script)
-        .arg(&path)
-        .output()
-        .unwrap();
-    assert!(
-        out.status.success(),
-        "fitdecode failed: {}",
-        String::from_utf8_lossy(&out.stderr)
-    );
-    serde_json::from_slice(&out.stdout).unwrap()
-}
-
-fn same(what: &str, ours: Option<f64>, theirs: &Value, tol: f64) {
-    match (ours, theirs.as_f64()) {
-        (Some(a), Some(b)) => assert!((a - b).abs() <= tol, "{what}: ours {a}, fitdecode {b}"),
-        (None, None) => {}
-        (a, _) => panic!("{what}: ours {a:?}, fitdecode {theirs}"),
-    }
-}
-
-fn at(c: &Option<Channel>, i: usize) -> Option<f64> {
-    c.as_ref().and_then(|c| c.get(i))
-}
 
 fn cross_check(python: &str, session: &Session) {
     let bytes = fit_writer::write(session);

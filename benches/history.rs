@@ -2,35 +2,18 @@
 //! ten durations up to 2 hours, a flagged stretch and a pause), and building a year of
 //! history from 300 session summaries.
 
+mod support;
+
 use std::hint::black_box;
 
 use chrono::{Duration, NaiveDate, TimeZone, Utc};
 use criterion::{criterion_group, criterion_main, Criterion};
 use splitdesk::analysis::best_efforts::{best_efforts, BestEffort, DURATIONS_S};
 use splitdesk::analysis::history::{build, HistoryParams, SessionSummary};
-use splitdesk::model::{
-    AthleteProfile, Channel, ChannelKind, FileFormat, Flag, FlagKind, Pause, Session, Sport,
-};
+use splitdesk::model::{AthleteProfile, ChannelKind, Flag, FlagKind, Pause, Session};
 
 fn three_hour_run() -> Session {
-    let start = Utc
-        .with_ymd_and_hms(2024, 5, 4, 6, 30, 0)
-        .single()
-        .expect("valid date");
-    let n = 3 * 3600;
-    let mut s = Session::empty(FileFormat::Fit, start);
-    s.sport = Sport::Running;
-    s.t = (0..n).map(|i| i as f64).collect();
-    s.time = (0..n)
-        .map(|i| start + Duration::seconds(i as i64))
-        .collect();
-    let speed: Vec<f64> = s.t.iter().map(|t| 3.3 + 0.6 * (t / 97.0).sin()).collect();
-    let mut d = 0.0;
-    s.distance = Some(Channel::from_values(speed.iter().map(|v| {
-        d += v;
-        d
-    })));
-    s.speed = Some(Channel::from_values(speed));
+    let mut s = support::three_hour_run();
     s.flags.push(Flag {
         from_s: 4000.0,
         to_s: 4030.0,

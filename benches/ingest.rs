@@ -1,33 +1,17 @@
 //! Ingest benchmarks: a 3-hour 1 Hz run (10,800 records, every channel) as FIT bytes,
 //! decoded by fitparser alone and by our full ingest path.
 
+mod support;
+
 use std::hint::black_box;
 
-use chrono::{Duration, TimeZone, Utc};
 use criterion::{criterion_group, criterion_main, Criterion};
 use splitdesk::demo::fit_writer;
 use splitdesk::ingest::ingest_bytes;
-use splitdesk::model::{Channel, DeviceLap, FileFormat, Session, Sport};
+use splitdesk::model::{Channel, DeviceLap, FileFormat, Session};
 
 fn three_hour_run() -> Session {
-    let start = Utc
-        .with_ymd_and_hms(2024, 5, 4, 6, 30, 0)
-        .single()
-        .expect("valid date");
-    let n = 3 * 3600;
-    let mut s = Session::empty(FileFormat::Fit, start);
-    s.sport = Sport::Running;
-    s.t = (0..n).map(|i| i as f64).collect();
-    s.time = (0..n)
-        .map(|i| start + Duration::seconds(i as i64))
-        .collect();
-    let speed: Vec<f64> = s.t.iter().map(|t| 3.3 + 0.6 * (t / 97.0).sin()).collect();
-    let mut d = 0.0;
-    s.distance = Some(Channel::from_values(speed.iter().map(|v| {
-        d += v;
-        d
-    })));
-    s.speed = Some(Channel::from_values(speed));
+    let mut s = support::three_hour_run();
     s.hr = Some(Channel::from_values(
         s.t.iter().map(|t| 130.0 + (t / 300.0).sin() * 20.0),
     ));
@@ -46,7 +30,7 @@ fn three_hour_run() -> Session {
     s.laps = (0..18)
         .map(|k| DeviceLap {
             start_s: k as f64 * 600.0,
-            end_s: ((k + 1) as f64 * 600.0).min((n - 1) as f64),
+            end_s: ((k + 1) as f64 * 600.0).min((support::SAMPLES - 1) as f64),
             trigger: Some("time".into()),
         })
         .collect();

@@ -32,6 +32,8 @@ SCANNING = b"analysing "
 def spawn(binary, roster, journal):
     pid, fd = pty.fork()
     if pid == 0:
+        # Size the terminal before the program starts, so its first frame is 160x48.
+        fcntl.ioctl(0, termios.TIOCSWINSZ, struct.pack("HHHH", ROWS, COLS, 0, 0))
         env = dict(os.environ)
         env["SPLITDESK_CONFIG"] = "/nonexistent"
         env["TERM"] = "xterm-256color"

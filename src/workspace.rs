@@ -89,7 +89,7 @@ fn analyse_bytes(
             }
         })?;
     let (plan_path, plan) =
-        match plans::plan_for_session(athlete, session.start, session.duration_s())? {
+        match plans::plan_for_session(athlete, &act.stem, session.start, session.duration_s())? {
             Some((p, plan)) => (Some(p), Some(plan)),
             None => (None, None),
         };

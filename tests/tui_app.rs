@@ -269,3 +269,61 @@ fn key_overrides_from_config() {
 fn write_test_roster() {
     write_roster_from_env();
 }
+
+/// A terminal that has gone away: every wait for input reports the hang-up.
+struct DeadTerminal;
+
+impl splitdesk::tui::Host for DeadTerminal {
+    fn next_event(
+        &mut self,
+        _timeout: std::time::Duration,
+    ) -> std::io::Result<Option<crossterm::event::Event>> {
+        Err(splitdesk::tui::hung_up_error())
+    }
+    fn copy(&mut self, _text: &str) -> String {
+        String::new()
+    }
+    fn edit(&mut self, text: &str) -> Result<String, String> {
+        Ok(text.to_string())
+    }
+}
+
+/// An app with an unsaved inline feedback edit ending in `tail`.
+fn unsaved_edit(dir: &std::path::Path, tail: &str) -> App {
+    let mut app = app_with(dir);
+    grade_and_reveal(&mut app);
+    ch(&mut app, 'f');
+    key(&mut app, KeyCode::End);
+    for c in tail.chars() {
+        ch(&mut app, c);
+    }
+    key(&mut app, KeyCode::Esc);
+    assert!(app.unsaved());
+    app
+}
+
+fn run_loop(app: &mut App, stop: bool) -> anyhow::Result<()> {
+    let mut terminal = ratatui::Terminal::new(ratatui::backend::TestBackend::new(160, 48)).unwrap();
+    let worker = splitdesk::worker::Worker::for_machine();
+    let stop = std::sync::atomic::AtomicBool::new(stop);
+    splitdesk::tui::event_loop(&mut terminal, app, &worker, &mut DeadTerminal, &stop)
+}
+
+#[test]
+fn a_hung_up_terminal_ends_the_loop_and_keeps_the_unsaved_feedback() {
+    let dir = tempfile::tempdir().unwrap();
+    let mut app = unsaved_edit(dir.path(), " Kept after the hang-up.");
+    run_loop(&mut app, false).unwrap();
+    assert!(!app.unsaved());
+    let fb = app.journal.feedback(INTERVALS).unwrap().unwrap();
+    assert!(fb.body.contains("Kept after the hang-up."), "{}", fb.body);
+}
+
+#[test]
+fn a_stop_signal_ends_the_loop_and_keeps_the_unsaved_feedback() {
+    let dir = tempfile::tempdir().unwrap();
+    let mut app = unsaved_edit(dir.path(), " Kept after SIGTERM.");
+    run_loop(&mut app, true).unwrap();
+    let fb = app.journal.feedback(INTERVALS).unwrap().unwrap();
+    assert!(fb.body.contains("Kept after SIGTERM."), "{}", fb.body);
+}

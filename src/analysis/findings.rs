@@ -4,10 +4,10 @@
 use serde::{Deserialize, Serialize};
 
 use crate::model::units::format_pace;
-use crate::model::{AthleteProfile, IntervalSet, Session};
+use crate::model::{AthleteProfile, IntervalSet, Session, Units};
 
 use super::decoupling::DECOUPLING_COACHING_LINE_PCT;
-use super::review::{Review, Whole};
+use super::review::{IntervalMetrics, Review, Whole};
 
 /// How much a finding matters. `Caution` is reserved for possible health signals.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord, Serialize, Deserialize)]
@@ -66,7 +66,96 @@ pub const UNEVEN_PACING_PCT: f64 = 4.0;
 /// threshold, NEJM 341:1351, measured in a treadmill test, not on a field run).
 pub const COLE_HRR_BPM: f64 = 12.0;
 
-/// Numbers in words, runs of consecutive ones joined: `[1, 2, 3, 5]` gives "1-3, 5".
+/// The finding for pace targets left unjudged on a climb (or a descent): which intervals,
+/// their mean grade, the pace and hill-adjusted pace ranges and the targets.
+fn hill_targets(group: &[&IntervalMetrics], climb: bool, u: Units) -> Option<Finding> {
+    if group.is_empty() {
+        return None;
+    }
+    let range = |vals: Vec<f64>| -> Option<String> {
+        let lo = vals.iter().copied().reduce(f64::min)?;
+        let hi = vals.iter().copied().reduce(f64::max)?;
+        // Paces in s/km, so the lowest is the fastest: "3:50-3:55/km".
+        let (a, b) = (format_pace(1000.0 / lo, u), format_pace(1000.0 / hi, u));
+        let suffix = format!("/{}", u.label());
+        Some(if a == b {
+            a
+        } else {
+            format!("{}-{b}", a.trim_end_matches(&suffix))
+        })
+    };
+    let raw = range(group.iter().filter_map(|m| m.avg_pace_s_per_km).collect());
+    let adj = range(
+        group
+            .iter()
+            .filter_map(|m| m.hill_adjusted_pace_s_per_km)
+            .collect(),
+    );
+    let grades: Vec<f64> = group.iter().filter_map(|m| m.grade_pct).collect();
+    let mean_grade = grades.iter().sum::<f64>() / grades.len().max(1) as f64;
+    let reps: Vec<usize> = group.iter().filter_map(|m| m.work_number).collect();
+    let others: Vec<usize> = group
+        .iter()
+        .filter(|m| m.work_number.is_none())
+        .map(|m| m.index)
+        .collect();
+    let mut names = Vec::new();
+    if !reps.is_empty() {
+        let s = if reps.len() == 1 { "" } else { "s" };
+        names.push(format!("Rep{s} {}", number_list(&reps)));
+    }
+    if !others.is_empty() {
+        let s = if others.len() == 1 { "" } else { "s" };
+        let lead = if names.is_empty() {
+            "Interval"
+        } else {
+            "interval"
+        };
+        names.push(format!("{lead}{s} {}", number_list(&others)));
+    }
+    let mut targets: Vec<String> = Vec::new();
+    for t in group.iter().filter_map(|m| m.target.clone()) {
+        if !targets.contains(&t) {
+            targets.push(t);
+        }
+    }
+    let band = if targets.is_empty() {
+        "the target".to_string()
+    } else {
+        targets.join(" / ")
+    };
+    let way = if climb { "a climb" } else { "a descent" };
+    let mut text = format!(
+        "{} ran on {way} (mean grade {:.1} %): a pace target is an effort there and is not \
+         judged",
+        names.join(" and "),
+        mean_grade.abs()
+    );
+    match (raw, adj) {
+        (Some(raw), Some(adj)) => text.push_str(&format!(
+            "; pace {raw}, hill-adjusted {adj}, against {band}."
+        )),
+        (Some(raw), None) => text.push_str(&format!("; pace {raw} against {band}.")),
+        _ => text.push('.'),
+    }
+    Some(f(
+        Severity::Info,
+        "targets_on_hill",
+        text,
+        group
+            .iter()
+            .flat_map(|m| {
+                [
+                    format!("intervals[{}].avg_pace_s_per_km", m.index),
+                    format!("intervals[{}].hill_adjusted_pace_s_per_km", m.index),
+                    format!("intervals[{}].grade_pct", m.index),
+                ]
+            })
+            .collect(),
+    ))
+}
+
+/// Numbers as text, runs of consecutive ones joined: `[1, 2, 3, 5]` gives "1-3, 5".
 pub fn number_list(numbers: &[usize]) -> String {
     let mut parts: Vec<String> = Vec::new();
     let mut k = 0;
@@ -208,70 +297,19 @@ pub(crate) fn findings(
         ));
     }
 
-    // Pace targets on a climb or descent: both paces beside the band, no verdict.
-    let on_hill: Vec<_> = work.iter().filter(|m| m.target_on_hill()).collect();
-    if !on_hill.is_empty() {
-        let range = |vals: Vec<f64>| -> Option<String> {
-            let lo = vals.iter().copied().reduce(f64::min)?;
-            let hi = vals.iter().copied().reduce(f64::max)?;
-            // Paces in s/km, so the lowest is the fastest: "3:50-3:55/km".
-            let (a, b) = (format_pace(1000.0 / lo, u), format_pace(1000.0 / hi, u));
-            let suffix = format!("/{}", u.label());
-            Some(if a == b {
-                a
-            } else {
-                format!("{}-{b}", a.trim_end_matches(&suffix))
-            })
-        };
-        let raw = range(on_hill.iter().filter_map(|m| m.avg_pace_s_per_km).collect());
-        let adj = range(
-            on_hill
-                .iter()
-                .filter_map(|m| m.hill_adjusted_pace_s_per_km)
-                .collect(),
-        );
-        let grades: Vec<f64> = on_hill.iter().filter_map(|m| m.grade_pct).collect();
-        let mean_grade = grades.iter().sum::<f64>() / grades.len().max(1) as f64;
-        let way = if mean_grade >= 0.0 {
-            "climb"
-        } else {
-            "descent"
-        };
-        let numbers: Vec<usize> = on_hill.iter().filter_map(|m| m.work_number).collect();
-        let reps = number_list(&numbers);
-        let band = on_hill
+    // Pace targets on a climb or descent: both paces beside the band, no verdict. Climbs and
+    // descents are told apart (an out-and-back set has both).
+    let on_hill: Vec<&IntervalMetrics> =
+        r.intervals.iter().filter(|m| m.target_on_hill()).collect();
+    for climb in [true, false] {
+        let group: Vec<&IntervalMetrics> = on_hill
             .iter()
-            .find_map(|m| m.target.clone())
-            .unwrap_or_else(|| "the target".into());
-        let mut text = format!(
-            "Rep{} {} ran on a {way} (mean grade {:.1} %): the pace target is an effort there \
-             and is not judged",
-            if numbers.len() == 1 { "" } else { "s" },
-            reps,
-            mean_grade.abs()
-        );
-        match (raw, adj) {
-            (Some(raw), Some(adj)) => text.push_str(&format!(
-                "; pace {raw}, hill-adjusted {adj}, against {band}."
-            )),
-            (Some(raw), None) => text.push_str(&format!("; pace {raw} against {band}.")),
-            _ => text.push('.'),
+            .copied()
+            .filter(|m| m.grade_pct.is_some_and(|g| (g >= 0.0) == climb))
+            .collect();
+        if let Some(finding) = hill_targets(&group, climb, u) {
+            out.push(finding);
         }
-        out.push(f(
-            Severity::Info,
-            "targets_on_hill",
-            text,
-            on_hill
-                .iter()
-                .flat_map(|m| {
-                    [
-                        format!("intervals[{}].avg_pace_s_per_km", m.index),
-                        format!("intervals[{}].hill_adjusted_pace_s_per_km", m.index),
-                        format!("intervals[{}].grade_pct", m.index),
-                    ]
-                })
-                .collect(),
-        ));
     }
 
     // Progression or fade across the set, and within reps.
@@ -572,7 +610,47 @@ pub(crate) fn findings(
 
 #[cfg(test)]
 mod tests {
-    use super::number_list;
+    use super::{hill_targets, number_list};
+    use crate::analysis::review::IntervalMetrics;
+    use crate::model::Units;
+
+    fn rep(index: usize, work: usize, grade: f64, pace: f64, adj: f64) -> IntervalMetrics {
+        serde_json::from_value(serde_json::json!({
+            "index": index, "work_number": work, "kind": "work", "source": "detected",
+            "start_s": 0.0, "end_s": 60.0, "duration_s": 60.0, "moving_s": 60.0,
+            "avg_pace_s_per_km": pace, "hill_adjusted_pace_s_per_km": adj,
+            "grade_pct": grade, "target": "5k (3:02-3:12/km)",
+            "target_basis": "not_judged_on_hill",
+        }))
+        .unwrap()
+    }
+
+    #[test]
+    fn hill_targets_name_climbs_and_descents_apart() {
+        // An out-and-back set: reps 1 and 3 up a 5 % hill, rep 2 down it.
+        let up = [rep(2, 1, 5.0, 230.0, 175.0), rep(6, 3, 4.0, 235.0, 180.0)];
+        let down = [rep(4, 2, -5.0, 170.0, 215.0)];
+        let f = hill_targets(&up.iter().collect::<Vec<_>>(), true, Units::Km).unwrap();
+        assert_eq!(
+            f.text,
+            "Reps 1, 3 ran on a climb (mean grade 4.5 %): a pace target is an effort there and \
+             is not judged; pace 3:50-3:55/km, hill-adjusted 2:55-3:00/km, against 5k \
+             (3:02-3:12/km)."
+        );
+        let f = hill_targets(&down.iter().collect::<Vec<_>>(), false, Units::Km).unwrap();
+        assert!(
+            f.text
+                .starts_with("Rep 2 ran on a descent (mean grade 5.0 %)"),
+            "{}",
+            f.text
+        );
+        assert!(
+            f.text.contains("pace 2:50/km, hill-adjusted 3:35/km"),
+            "{}",
+            f.text
+        );
+        assert!(hill_targets(&[], true, Units::Km).is_none());
+    }
 
     #[test]
     fn number_lists_join_runs() {

@@ -80,8 +80,8 @@ pub const PACE_DISPLAY_SLACK_S: f64 = 0.5;
 // Our design choice: GPS speed jitters by several percent from second to second.
 pub const TARGET_SMOOTHING_HALF_S: f64 = 5.0;
 
-/// A work interval whose mean gradient is at least this steep (up or down, rise over run)
-/// is not judged against a pace target: "5k effort up the hill" is an effort, and 5k pace
+/// A work or steady interval whose mean gradient is at least this steep (up or down, rise
+/// over run) is not judged against a pace target (an HR target still is): "5k effort up the hill" is an effort, and 5k pace
 /// on a 6 % climb would be a sprint. The watch pace would call every such rep slow, and
 /// the full hill-adjusted pace (Minetti et al. 2002, J Appl Physiol 93:1039) calls most of
 /// them fast, because runners do not hold their metabolic power on hills (From memory:

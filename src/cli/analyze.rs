@@ -76,8 +76,8 @@ fn context(
                 Some("--plan-line".into()),
             )
         }
-        (None, None, Some((a, _))) => {
-            match plans::plan_for_session(a, session.start, session.duration_s())
+        (None, None, Some((a, act))) => {
+            match plans::plan_for_session(a, &act.stem, session.start, session.duration_s())
                 .map_err(|e| anyhow::anyhow!("{e}"))?
             {
                 Some((path, plan)) => (Some(plan), Some(path.display().to_string())),

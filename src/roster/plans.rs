@@ -30,31 +30,58 @@ pub fn planned_seconds(plan: &Plan) -> f64 {
         .sum()
 }
 
-/// The plan files of `athlete` dated on the session's day (UTC date of its start).
-pub fn plan_files_on(athlete: &Athlete, start: DateTime<Utc>) -> Vec<PathBuf> {
-    let day = start.date_naive();
-    athlete
-        .plan_files
-        .iter()
-        .filter(|p| file_date(p) == Some(day))
-        .cloned()
-        .collect()
+/// The day a session counts for: the date its file name starts with (`YYYY-MM-DD-...`,
+/// the athlete's own calendar) when that is within a day of the UTC date of its start
+/// (an evening run west of Greenwich starts on the next UTC day); else the UTC date.
+pub fn session_day(stem: &str, start: DateTime<Utc>) -> NaiveDate {
+    let utc = start.date_naive();
+    stem.get(..10)
+        .and_then(|d| NaiveDate::parse_from_str(d, "%Y-%m-%d").ok())
+        .filter(|d| (*d - utc).num_days().abs() <= 1)
+        .unwrap_or(utc)
 }
 
-/// The plan for a session: among the athlete's plans of that day, the one whose planned
-/// length is closest to the session's duration. Plans that fail to load are returned as
-/// errors so the caller can report them.
+/// File stem (name without extension).
+fn stem_of(path: &Path) -> Option<&str> {
+    path.file_stem().and_then(|s| s.to_str())
+}
+
+/// The plan for the session of activity `stem`: a plan file with the same stem as the
+/// activity when there is one (an explicit pairing); otherwise, among the athlete's plans
+/// dated on the session's day ([`session_day`]; a plan's `date` key, else its file-name
+/// date) and not paired with another of the athlete's activities, the one whose planned
+/// length is closest to the session's duration. A plan file that fails to load is an error
+/// for the sessions of its file-name day, so the caller can report it; for other days (and
+/// when its name carries no date) it is left to `splitdesk plan check`.
 pub fn plan_for_session(
     athlete: &Athlete,
+    stem: &str,
     start: DateTime<Utc>,
     duration_s: f64,
 ) -> Result<Option<(PathBuf, Plan)>, PlanFileError> {
+    if let Some(path) = athlete.plan_files.iter().find(|p| stem_of(p) == Some(stem)) {
+        let plan = crate::plan::load(path)?;
+        return Ok(Some((path.clone(), plan)));
+    }
+    let day = session_day(stem, start);
+    let paired_elsewhere =
+        |p: &Path| stem_of(p).is_some_and(|s| athlete.activities.iter().any(|a| a.stem == s));
     let mut best: Option<(f64, PathBuf, Plan)> = None;
-    for path in plan_files_on(athlete, start) {
-        let plan = crate::plan::load(&path)?;
+    for path in &athlete.plan_files {
+        if paired_elsewhere(path) {
+            continue;
+        }
+        let plan = match crate::plan::load(path) {
+            Ok(plan) => plan,
+            Err(e) if file_date(path) == Some(day) => return Err(e),
+            Err(_) => continue,
+        };
+        if plan.date != Some(day) {
+            continue;
+        }
         let miss = (planned_seconds(&plan) - duration_s).abs();
         if best.as_ref().is_none_or(|(m, _, _)| miss < *m) {
-            best = Some((miss, path, plan));
+            best = Some((miss, path.clone(), plan));
         }
     }
     Ok(best.map(|(_, p, plan)| (p, plan)))

@@ -973,6 +973,15 @@ impl App {
         Vec::new()
     }
 
+    /// The workstation is being ended from outside (a signal, a terminal that went away):
+    /// an unsaved feedback edit is saved to the journal as a new version, so nothing typed
+    /// is lost. The journal keeps every version, so this never overwrites a saved text.
+    pub fn save_before_exit(&mut self) {
+        if self.unsaved() {
+            self.save_feedback();
+        }
+    }
+
     /// Whether any feedback edit is unsaved.
     pub fn unsaved(&self) -> bool {
         self.open

@@ -2,51 +2,74 @@
 //!
 //! When the terminal is closed under the workstation (a closed window, a dropped SSH link,
 //! `tmux kill-server`), the kernel hangs the terminal up: reads return end-of-file at once
-//! and forever. crossterm's reader then loops inside its own `poll` without returning, so
-//! the event loop never gets to see the SIGHUP flag and the process would spin on the dead
-//! terminal. A small watcher thread notices instead: either the stop flag (set by SIGHUP,
-//! SIGTERM or SIGINT) or a hang-up reported by `poll(2)` on standard input. It sets the
-//! stop flag so an event loop that is still running leaves in the normal way, then gives it
-//! [`GRACE`] to do so before it ends the process itself.
+//! and forever, and crossterm's reader then loops inside its own `poll` without returning.
+//! Two guards keep the process from spinning on the dead terminal:
 //!
-//! Ending the process from the watcher loses nothing: every grade and feedback edit is
-//! committed to the journal as it is made, and SQLite rolls back a transaction that a
-//! background worker had open (the same guarantee as a kill).
+//! - the event loop waits for input with [`wait_input`] (our own `poll(2)`) and only then
+//!   asks crossterm for the event, so a hang-up while waiting is seen by the loop, which
+//!   saves an unsaved feedback edit and leaves in the normal way;
+//! - a [`Watcher`] thread covers the short window in which the loop is already inside
+//!   crossterm: when it sees the hang-up and the loop has not left after [`GRACE`], it
+//!   ends the process. Grades are committed as they are typed and SQLite rolls back a
+//!   transaction a background worker had open (as after a kill); an inline feedback edit
+//!   not yet saved is lost only in that rare case.
+//!
+//! Signals (SIGTERM, SIGINT, SIGHUP sent by hand) only set the loop's stop flag: while
+//! `$EDITOR` runs, the loop leaves once the editor has closed.
 
 use std::sync::atomic::{AtomicBool, Ordering};
 use std::sync::Arc;
-use std::time::{Duration, Instant};
+use std::time::Duration;
 
-/// How long the event loop has to leave on its own once a stop was requested.
+/// How long the event loop has to leave on its own once the terminal hung up.
 pub const GRACE: Duration = Duration::from_millis(1500);
 
-/// How often the watcher looks, at most.
+/// How long the watcher waits in one `poll`.
 const TICK: Duration = Duration::from_millis(200);
 
 /// Exit status when the process is ended by the watcher: 128 + SIGHUP, as a shell reports a
 /// process ended by a hang-up.
 pub const HANGUP_EXIT: i32 = 129;
 
-/// Whether `fd` reports a hang-up or an error, waiting up to `timeout`. Nothing is read:
-/// the poll asks for no events, so only the conditions the kernel always reports (hang-up,
-/// error, invalid descriptor) can end it early.
-#[cfg(unix)]
-pub fn hung_up(fd: i32, timeout: Duration) -> bool {
+/// What [`wait_input`] saw.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Input {
+    /// Bytes to read.
+    Ready,
+    /// Nothing within the timeout (or a signal interrupted the wait).
+    Quiet,
+    /// The terminal hung up (or the descriptor is in error).
+    HungUp,
+}
+
+fn poll_one(fd: i32, events: i16, timeout: Duration) -> Option<i16> {
     let mut pfd = libc::pollfd {
         fd,
-        events: 0,
+        events,
         revents: 0,
     };
     let ms = i32::try_from(timeout.as_millis()).unwrap_or(i32::MAX);
     // SAFETY: `pfd` is a valid, exclusively borrowed pollfd and the count is 1.
     let n = unsafe { libc::poll(&mut pfd, 1, ms) };
-    n > 0 && pfd.revents & (libc::POLLHUP | libc::POLLERR | libc::POLLNVAL) != 0
+    (n > 0).then_some(pfd.revents)
 }
 
-#[cfg(not(unix))]
-pub fn hung_up(_fd: i32, timeout: Duration) -> bool {
-    std::thread::sleep(timeout);
-    false
+const TROUBLE: i16 = libc::POLLHUP | libc::POLLERR | libc::POLLNVAL;
+
+/// Wait up to `timeout` for input on `fd` without reading it.
+pub fn wait_input(fd: i32, timeout: Duration) -> Input {
+    match poll_one(fd, libc::POLLIN, timeout) {
+        Some(r) if r & TROUBLE != 0 => Input::HungUp,
+        Some(r) if r & libc::POLLIN != 0 => Input::Ready,
+        _ => Input::Quiet,
+    }
+}
+
+/// Whether `fd` reports a hang-up or an error, waiting up to `timeout`. Nothing is read:
+/// the poll asks for no events, so only the conditions the kernel always reports (hang-up,
+/// error, invalid descriptor) can end it early.
+pub fn hung_up(fd: i32, timeout: Duration) -> bool {
+    poll_one(fd, 0, timeout).is_some_and(|r| r & TROUBLE != 0)
 }
 
 /// The watcher thread; dropping it (after the event loop has returned) stops it. The
@@ -57,9 +80,9 @@ pub struct Watcher {
 }
 
 impl Watcher {
-    /// Watch `fd` (the terminal's input) and `stop`. On a hang-up, `stop` is set; once
-    /// `stop` has been set for [`GRACE`] without the watcher being dropped, `on_stuck` runs
-    /// (in the workstation: restore what can be restored and end the process).
+    /// Watch `fd` (the terminal's input). On a hang-up, `stop` is set; if the watcher is
+    /// still not dropped [`GRACE`] later, `on_stuck` runs (in the workstation: restore what
+    /// can be restored and end the process).
     pub fn spawn(
         fd: i32,
         stop: Arc<AtomicBool>,
@@ -70,23 +93,14 @@ impl Watcher {
         std::thread::Builder::new()
             .name("splitdesk-hangup".into())
             .spawn(move || {
-                let mut stop_seen: Option<Instant> = None;
                 while !done.load(Ordering::SeqCst) {
-                    if stop_seen.is_none() && hung_up(fd, TICK) {
+                    if hung_up(fd, TICK) {
                         stop.store(true, Ordering::SeqCst);
-                        // A hung-up descriptor reports at once: do not spin on it.
-                        std::thread::sleep(TICK);
-                    }
-                    if done.load(Ordering::SeqCst) {
-                        return;
-                    }
-                    if stop.load(Ordering::SeqCst) {
-                        let since = *stop_seen.get_or_insert_with(Instant::now);
-                        if since.elapsed() >= GRACE {
+                        std::thread::sleep(GRACE);
+                        if !done.load(Ordering::SeqCst) {
                             on_stuck();
-                            return;
                         }
-                        std::thread::sleep(TICK);
+                        return;
                     }
                 }
             })?;
@@ -104,6 +118,7 @@ impl Drop for Watcher {
 mod tests {
     use super::*;
     use std::sync::mpsc;
+    use std::time::Instant;
 
     /// A pipe whose write end is closed reports a hang-up on its read end (POSIX poll(2)).
     fn hung_pipe() -> i32 {
@@ -129,6 +144,48 @@ mod tests {
         // SAFETY: closing descriptors we own.
         unsafe {
             libc::close(fd);
+            libc::close(fds[0]);
+            libc::close(fds[1]);
+        }
+    }
+
+    #[test]
+    fn waiting_for_input_tells_ready_quiet_and_hung_up() {
+        // Source: POSIX.1-2017 poll(2), as above; a pipe stands in for the terminal.
+        let mut fds = [0i32; 2];
+        // SAFETY: `fds` has room for the two descriptors pipe(2) writes.
+        assert_eq!(unsafe { libc::pipe(fds.as_mut_ptr()) }, 0);
+        assert_eq!(wait_input(fds[0], Duration::from_millis(10)), Input::Quiet);
+        // SAFETY: writing one byte from a valid buffer to the pipe we own.
+        assert_eq!(unsafe { libc::write(fds[1], b"q".as_ptr().cast(), 1) }, 1);
+        assert_eq!(wait_input(fds[0], Duration::from_millis(10)), Input::Ready);
+        // SAFETY: closing descriptors we own.
+        unsafe {
+            libc::close(fds[1]);
+            libc::close(fds[0]);
+        }
+        let fd = hung_pipe();
+        assert_eq!(wait_input(fd, Duration::from_millis(10)), Input::HungUp);
+        // SAFETY: closing a descriptor we own.
+        unsafe { libc::close(fd) };
+    }
+
+    #[test]
+    fn a_stop_by_signal_alone_never_ends_the_process() {
+        // An open pipe never hangs up: the stop flag (as SIGTERM sets it) is left to the loop.
+        let mut fds = [0i32; 2];
+        // SAFETY: as above.
+        assert_eq!(unsafe { libc::pipe(fds.as_mut_ptr()) }, 0);
+        let stop = Arc::new(AtomicBool::new(true));
+        let (tx, rx) = mpsc::channel::<()>();
+        let w = Watcher::spawn(fds[0], Arc::clone(&stop), move || {
+            let _ = tx.send(());
+        })
+        .unwrap();
+        assert!(rx.recv_timeout(GRACE + Duration::from_millis(700)).is_err());
+        drop(w);
+        // SAFETY: closing descriptors we own.
+        unsafe {
             libc::close(fds[0]);
             libc::close(fds[1]);
         }

@@ -89,11 +89,17 @@ pub fn run(roster_dir: &Path, journal: Option<&Path>, config: &Config) -> anyhow
     let mut terminal = Terminal::new(CrosstermBackend::new(io::stdout()))?;
     terminal.clear()?;
     let worker = Worker::for_machine();
-    let mut host = CrosstermHost;
+    let mut host = CrosstermHost::default();
     let result = event_loop(&mut terminal, &mut app, &worker, &mut host, &term_flag);
     drop(watcher);
     drop(worker);
-    drop(terminal);
+    // ratatui's Terminal shows the cursor when dropped and reports a failure with
+    // `eprintln!`, which panics when stderr is a terminal that has gone away.
+    if terminal.show_cursor().is_err() {
+        std::mem::forget(terminal);
+    } else {
+        drop(terminal);
+    }
     drop(guard);
     result.map(|()| 0)
 }
@@ -151,13 +157,36 @@ pub trait Host {
 }
 
 /// The real terminal.
-pub struct CrosstermHost;
+#[derive(Debug, Default)]
+pub struct CrosstermHost {
+    /// crossterm may hold more parsed events from its last read: ask it before waiting.
+    maybe_buffered: bool,
+}
+
+/// The error [`Host::next_event`] gives when the terminal has gone away.
+pub fn hung_up_error() -> io::Error {
+    io::Error::new(io::ErrorKind::BrokenPipe, "the terminal hung up")
+}
 
 impl Host for CrosstermHost {
+    /// Waits with our own `poll(2)` on the terminal and asks crossterm only when there is
+    /// input (or a resize may be pending): crossterm's reader loops forever on a terminal
+    /// that hung up, so the hang-up must be seen before it reads (see [`hangup`]).
     fn next_event(&mut self, timeout: Duration) -> io::Result<Option<Event>> {
-        if crossterm::event::poll(timeout)? {
+        let fd = libc::STDIN_FILENO;
+        if self.maybe_buffered {
+            if hangup::hung_up(fd, Duration::ZERO) {
+                return Err(hung_up_error());
+            }
+        } else if hangup::wait_input(fd, timeout) == hangup::Input::HungUp {
+            return Err(hung_up_error());
+        }
+        // Zero timeout: returns what is buffered or readable now, and pending resizes.
+        if crossterm::event::poll(Duration::ZERO)? {
+            self.maybe_buffered = true;
             crossterm::event::read().map(Some)
         } else {
+            self.maybe_buffered = false;
             Ok(None)
         }
     }
@@ -245,6 +274,7 @@ where
     terminal.draw(|f| ui::draw(f, app))?;
     loop {
         if stop.load(Ordering::SeqCst) {
+            app.save_before_exit();
             return Ok(());
         }
         let mut changed = false;
@@ -263,7 +293,18 @@ where
         } else {
             Duration::from_millis(400)
         };
-        match host.next_event(timeout)? {
+        let event = match host.next_event(timeout) {
+            Ok(event) => event,
+            Err(e) => {
+                // The terminal is gone (or unreadable): keep what the coach typed.
+                app.save_before_exit();
+                if e.kind() == io::ErrorKind::BrokenPipe {
+                    return Ok(());
+                }
+                return Err(e.into());
+            }
+        };
+        match event {
             Some(ev) => {
                 effects.extend(app.handle(AppEvent::Input(ev)));
                 changed = true;

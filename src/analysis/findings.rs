@@ -155,6 +155,10 @@ fn hill_targets(group: &[&IntervalMetrics], climb: bool, u: Units) -> Option<Fin
     ))
 }
 
+/// HR drift above this, bpm per hour at steady pace, is worth a note.
+// Common coaching practice (no published source).
+pub const HR_DRIFT_NOTE_BPM_PER_H: f64 = 10.0;
+
 /// Numbers as text, runs of consecutive ones joined: `[1, 2, 3, 5]` gives "1-3, 5".
 pub fn number_list(numbers: &[usize]) -> String {
     let mut parts: Vec<String> = Vec::new();
@@ -510,7 +514,16 @@ pub(crate) fn findings(
             )),
         }
     }
-    if let Some(d) = r.hr_drift_bpm_per_h.filter(|d| *d > 10.0) {
+    // HR drift says the same thing as the decoupling, in another unit: a note only when the
+    // decoupling is above its line too (or could not be computed), so a run is not called
+    // steady and drifting at once.
+    let decoupling_steady = r
+        .decoupling_pct
+        .is_some_and(|d| d <= DECOUPLING_COACHING_LINE_PCT);
+    if let Some(d) = r
+        .hr_drift_bpm_per_h
+        .filter(|d| *d > HR_DRIFT_NOTE_BPM_PER_H && !decoupling_steady)
+    {
         out.push(f(
             Severity::Note,
             "hr_drift",

@@ -166,3 +166,29 @@ fn a_broken_plan_only_matters_on_its_own_day() {
             .is_none()
     );
 }
+
+#[test]
+fn the_history_counts_a_session_on_the_athletes_day() {
+    // An evening run on the 2nd, five hours west of Greenwich: 00:30 UTC on the 3rd.
+    let start = at(2026, 3, 3, 0, 30);
+    let sum = splitdesk::analysis::history::SessionSummary {
+        session_id: "ana-lind/2026-03-02-evening-run".into(),
+        start,
+        sport: "running".into(),
+        distance_m: Some(8000.0),
+        moving_s: 2400.0,
+        trimp: Some(50.0),
+        hr_zones: Vec::new(),
+        relative_intensity: None,
+        mean_speed_mps: None,
+        mean_hr: None,
+        decoupling_pct: None,
+        best_efforts: Vec::new(),
+    };
+    assert_eq!(sum.date().to_string(), "2026-03-02");
+    let other = splitdesk::analysis::history::SessionSummary {
+        session_id: "ana-lind/watch-export-1".into(),
+        ..sum
+    };
+    assert_eq!(other.date().to_string(), "2026-03-03");
+}

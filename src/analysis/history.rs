@@ -8,8 +8,9 @@
 //!
 //! # Decisions
 //!
-//! - **Dates** are the UTC calendar date of each session's start; weeks are ISO weeks
-//!   (Monday to Sunday). The display window is the last [`HistoryParams::weeks`] ISO weeks,
+//! - **Dates** are the day each session counts for: the date its file name starts with
+//!   (the athlete's calendar) when within a day of the start, else the UTC date of the
+//!   start ([`crate::model::session::session_day`]); weeks are ISO weeks (Monday to Sunday). The display window is the last [`HistoryParams::weeks`] ISO weeks,
 //!   the current (partial) week last.
 //! - **Daily load** is the sum of the day's TRIMP (Banister 1991); a day without sessions
 //!   counts 0, and a session without a load (no heart rate) counts 0 and is named in the
@@ -239,9 +240,9 @@ impl SessionSummary {
         matches!(self.sport.as_str(), "running" | "unknown")
     }
 
-    /// The UTC calendar date of the start.
+    /// The calendar day the session counts for ([`crate::model::session::session_day`]).
     pub fn date(&self) -> NaiveDate {
-        self.start.date_naive()
+        crate::model::session::session_day(&self.session_id, self.start)
     }
 
     /// Metres per heartbeat over the session: `60·mean speed / mean HR`.
@@ -736,7 +737,11 @@ pub fn build(
             params.best_effort_days
         ));
     }
-    notes.push("dates are UTC calendar dates; weeks are ISO weeks (Monday to Sunday)".to_string());
+    notes.push(
+        "a session's date is the date its file name starts with (the athlete's calendar), \
+         else the UTC date of its start; weeks are ISO weeks (Monday to Sunday)"
+            .to_string(),
+    );
 
     History {
         athlete: profile.id.clone(),

@@ -265,6 +265,23 @@ pub struct Review {
 }
 
 impl Review {
+    /// The calendar day of the session as text (`YYYY-MM-DD`): the date its file name starts
+    /// with when within a day of the start, else the UTC date
+    /// ([`crate::model::session::session_day`]).
+    pub fn day(&self) -> String {
+        let stem = std::path::Path::new(&self.file)
+            .file_stem()
+            .and_then(|s| s.to_str())
+            .unwrap_or("");
+        match chrono::DateTime::parse_from_rfc3339(&self.session.start) {
+            Ok(start) => {
+                crate::model::session::session_day(stem, start.with_timezone(&chrono::Utc))
+                    .to_string()
+            }
+            Err(_) => self.session.start.get(..10).unwrap_or("").to_string(),
+        }
+    }
+
     /// The work intervals' metrics, in order.
     pub fn work(&self) -> impl Iterator<Item = &IntervalMetrics> {
         self.intervals.iter().filter(|i| i.kind == "work")

@@ -1,6 +1,7 @@
 //! The daily review from the shell: queue, grade, notes, feedback, exports, bias check,
 //! journal maintenance. Every command works on a roster and its journal.
 
+use crate::model::session::session_day;
 use std::collections::BTreeMap;
 use std::io::Write;
 use std::path::{Path, PathBuf};
@@ -336,7 +337,7 @@ pub struct Filter {
 
 impl Filter {
     fn keeps(&self, e: &QueueEntry) -> bool {
-        let day = e.start.date_naive();
+        let day = session_day(&e.session_id, e.start);
         self.athlete.as_ref().is_none_or(|a| &e.athlete == a)
             && self.date.is_none_or(|d| day == d)
             && self.since.is_none_or(|d| day >= d)
@@ -386,7 +387,7 @@ pub fn export_feedback(ws: &mut Workspace, filter: &Filter, format: &str) -> any
             session: e.session_id.clone(),
             athlete: e.athlete.clone(),
             name,
-            date: e.start.date_naive().to_string(),
+            date: session_day(&e.session_id, e.start).to_string(),
             title: title(&review),
             feedback: text,
             saved,
@@ -471,7 +472,7 @@ pub fn export_intervals(ws: &mut Workspace, filter: &Filter) -> anyhow::Result<i
             w.write_record([
                 e.session_id.clone(),
                 e.athlete.clone(),
-                e.start.date_naive().to_string(),
+                session_day(&e.session_id, e.start).to_string(),
                 title(&review),
                 m.index.to_string(),
                 m.kind.clone(),

@@ -82,7 +82,7 @@ pub fn draft(review: &Review, profile: &AthleteProfile, verdict: Option<&str>) -
         .unwrap_or(&profile.name)
         .to_string();
     let mut out = format!("Hi {first},\n\n");
-    let date = review.session.start.get(..10).unwrap_or("");
+    let date = review.day();
     match &review.plan {
         Some(p) if !p.purpose.is_empty() => {
             out.push_str(&format!("{date} {}: {}\n", p.title, p.purpose));

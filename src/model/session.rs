@@ -5,7 +5,7 @@
 //! a single missing sample inside a present channel is `None` at that index.
 //! No sentinel number (0, -1, NaN) ever stands for "missing".
 
-use chrono::{DateTime, Utc};
+use chrono::{DateTime, NaiveDate, Utc};
 use serde::{Deserialize, Serialize};
 
 use super::flags::Flag;
@@ -362,4 +362,17 @@ impl Session {
         }
         Ok(())
     }
+}
+
+/// The calendar day a session counts for: the date its file name starts with
+/// (`YYYY-MM-DD-...`, the athlete's own calendar) when that is within a day of the UTC date
+/// of its start (an evening run west of Greenwich starts on the next UTC day); else the UTC
+/// date. `stem` is the file name without extension (or a session id `<athlete>/<stem>`).
+pub fn session_day(stem: &str, start: DateTime<Utc>) -> NaiveDate {
+    let stem = stem.rsplit('/').next().unwrap_or(stem);
+    let utc = start.date_naive();
+    stem.get(..10)
+        .and_then(|d| NaiveDate::parse_from_str(d, "%Y-%m-%d").ok())
+        .filter(|d| (*d - utc).num_days().abs() <= 1)
+        .unwrap_or(utc)
 }

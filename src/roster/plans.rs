@@ -30,16 +30,7 @@ pub fn planned_seconds(plan: &Plan) -> f64 {
         .sum()
 }
 
-/// The day a session counts for: the date its file name starts with (`YYYY-MM-DD-...`,
-/// the athlete's own calendar) when that is within a day of the UTC date of its start
-/// (an evening run west of Greenwich starts on the next UTC day); else the UTC date.
-pub fn session_day(stem: &str, start: DateTime<Utc>) -> NaiveDate {
-    let utc = start.date_naive();
-    stem.get(..10)
-        .and_then(|d| NaiveDate::parse_from_str(d, "%Y-%m-%d").ok())
-        .filter(|d| (*d - utc).num_days().abs() <= 1)
-        .unwrap_or(utc)
-}
+pub use crate::model::session::session_day;
 
 /// File stem (name without extension).
 fn stem_of(path: &Path) -> Option<&str> {

@@ -81,7 +81,10 @@ pub fn render(app: &App, area: Rect, buf: &mut Buffer) {
                 ])
             }
             RosterRow::Session(s) => {
-                let date = match s.start {
+                let day = s
+                    .start
+                    .map(|d| crate::model::session::session_day(&s.session_id, d));
+                let date = match day {
                     Some(d) if w >= 38 => d.format("%Y-%m-%d").to_string(),
                     Some(d) => d.format("%m-%d").to_string(),
                     None => "  …  ".to_string(),

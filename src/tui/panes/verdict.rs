@@ -241,7 +241,7 @@ pub fn render(app: &App, area: Rect, buf: &mut Buffer) {
         }
     };
     // Purpose first.
-    let date = review.session.start.get(..10).unwrap_or("");
+    let date = review.day();
     let purpose = match &review.plan {
         Some(p) if !p.purpose.is_empty() => Line::from(vec![
             Span::styled("Purpose ", t.heading),

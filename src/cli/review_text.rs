@@ -141,7 +141,7 @@ pub fn render(r: &Review, profile: &AthleteProfile, plan_source: Option<&str>) -
         o,
         "  Decoupling {} %{}   HR drift {} bpm/h   Load (TRIMP) {}   Elevation +{}/-{} m",
         num(r.decoupling_pct, 1),
-        if r.hill_adjusted {
+        if r.hill_adjusted && r.decoupling_pct.is_some() {
             " (hill-adjusted)"
         } else {
             ""

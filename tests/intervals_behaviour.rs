@@ -335,3 +335,56 @@ fn empty_and_tiny_sessions() {
     assert_well_formed(&set, &s);
     assert_eq!(set.intervals.len(), 1);
 }
+
+#[test]
+fn hill_repeats_without_a_plan_are_still_a_set() {
+    // Self-consistency with our simulator: up the 6 % hill at 5k effort, jog back down.
+    let line = "10:00 easy; 6 x 1:30 @ 5k / 2:30 jog; 8:00 easy";
+    let mut input = SimInput::new(profile(), plan(line), 4);
+    input.conditions.terrain = splitdesk::demo::simulate::Terrain::Hill { grade: 0.06 };
+    let mut out = simulate(&input);
+    out.session.flags = clean::flag(&out.session, Some(&profile()));
+    let s = without_laps(out.session);
+    let set = find_intervals(&s, None, &profile());
+    assert_well_formed(&set, &s);
+    assert_eq!(set.work().count(), 6, "{:?} {:?}", kinds(&set), set.notes);
+}
+
+#[test]
+fn a_trail_run_with_walked_climbs_is_not_a_set() {
+    // Invented, self-consistency: an hour at a steady effort on a trail, 2.4 m/s on the
+    // flat, power-hiking each 25 % climb at 1.5 m/s (hard work: hill-adjusted it is the
+    // fastest going of the day) and running down at 2.8 m/s. The watch shows no repeats.
+    use chrono::{TimeZone, Utc};
+    use splitdesk::model::{Channel, FileFormat};
+    let start = Utc.with_ymd_and_hms(2026, 6, 1, 7, 0, 0).single().unwrap();
+    let mut s = Session::empty(FileFormat::Gpx, start);
+    let (mut d, mut alt) = (0.0, 100.0);
+    let (mut dist, mut alts, mut speed) = (Vec::new(), Vec::new(), Vec::new());
+    for i in 0..3600 {
+        let (v, grade) = match i % 600 {
+            0..=299 => (2.4, 0.0),
+            300..=419 => (1.5, 0.25),
+            420..=539 => (2.8, -0.134),
+            _ => (2.4, 0.0),
+        };
+        d += v;
+        alt += v * grade;
+        s.t.push(i as f64);
+        s.time.push(start + chrono::Duration::seconds(i));
+        dist.push(d);
+        alts.push(alt);
+        speed.push(v);
+    }
+    s.distance = Some(Channel::from_values(dist));
+    s.altitude = Some(Channel::from_values(alts));
+    s.speed = Some(Channel::from_values(speed));
+    let set = find_intervals(&s, None, &profile());
+    assert_well_formed(&set, &s);
+    assert_eq!(kinds(&set), vec![SegmentKind::Steady], "{:?}", set.notes);
+    assert!(
+        set.notes.iter().any(|n| n.contains("climbs")),
+        "{:?}",
+        set.notes
+    );
+}

@@ -224,6 +224,20 @@ pub fn find_intervals_with(
     let runs: Vec<(usize, usize, bool)> =
         det.runs.iter().map(|r| (r.start, r.end, r.fast)).collect();
     if plan.is_none() {
+        if !runs.is_empty() && !raw_structure(&runs, &trace) {
+            // Only the hill adjustment made the climbs "fast" (a trail run): not a set.
+            set.notes.push(
+                "the faster stretches were climbs at a steady effort, not repeats: one steady \
+                 interval"
+                    .into(),
+            );
+            set.intervals = build(
+                &trace.t,
+                &[single(n, SegmentKind::Steady)],
+                IntervalSource::Detected,
+            );
+            return set;
+        }
         if runs.is_empty() {
             set.notes
                 .push("no clear change of pace: one steady interval".into());
@@ -541,4 +555,28 @@ fn aligned_pieces(
         });
     }
     pieces
+}
+
+/// Without a plan, the work stretches found must also be faster than the rest in the
+/// speed the watch recorded, by this factor. Detection runs on hill-adjusted speed, which
+/// makes a steep climb at a walk look like a rep; real repeats (on a hill too: up at effort,
+/// jog down) are clearly faster on the watch as well. Our design choice.
+pub const RAW_STRUCTURE_RATIO: f64 = 1.08;
+
+/// Whether the fast runs are faster than the slow runs in recorded speed (distance over
+/// moving time, summed over each kind) by [`RAW_STRUCTURE_RATIO`]. `true` when either side
+/// has no speed to compare.
+fn raw_structure(runs: &[(usize, usize, bool)], trace: &Trace) -> bool {
+    let (mut fast, mut slow) = ((0.0, 0.0), (0.0, 0.0));
+    for &(start, end, is_fast) in runs {
+        let st = trace.stats(start, end);
+        let Some(v) = st.raw_speed else { continue };
+        let side = if is_fast { &mut fast } else { &mut slow };
+        side.0 += v * st.duration_s;
+        side.1 += st.duration_s;
+    }
+    if fast.1 <= 0.0 || slow.1 <= 0.0 {
+        return true;
+    }
+    fast.0 / fast.1 >= RAW_STRUCTURE_RATIO * (slow.0 / slow.1)
 }

@@ -2,6 +2,8 @@
 //! counts for, plans dated by their `date` key, and double days. Self-consistency tests on
 //! invented folders.
 
+mod history_support;
+
 use std::fs;
 use std::path::Path;
 
@@ -171,20 +173,9 @@ fn a_broken_plan_only_matters_on_its_own_day() {
 fn the_history_counts_a_session_on_the_athletes_day() {
     // An evening run on the 2nd, five hours west of Greenwich: 00:30 UTC on the 3rd.
     let start = at(2026, 3, 3, 0, 30);
-    let sum = splitdesk::analysis::history::SessionSummary {
-        session_id: "ana-lind/2026-03-02-evening-run".into(),
-        start,
-        sport: "running".into(),
-        distance_m: Some(8000.0),
-        moving_s: 2400.0,
-        trimp: Some(50.0),
-        hr_zones: Vec::new(),
-        relative_intensity: None,
-        mean_speed_mps: None,
-        mean_hr: None,
-        decoupling_pct: None,
-        best_efforts: Vec::new(),
-    };
+    let mut sum = history_support::with_load(1, 50.0);
+    sum.session_id = "ana-lind/2026-03-02-evening-run".into();
+    sum.start = start;
     assert_eq!(sum.date().to_string(), "2026-03-02");
     let other = splitdesk::analysis::history::SessionSummary {
         session_id: "ana-lind/watch-export-1".into(),

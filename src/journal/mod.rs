@@ -98,6 +98,18 @@ where
     rows.collect::<rusqlite::Result<Vec<T>>>().sq(path)
 }
 
+/// Rows of `sql` (one parameter: the review id) for the session's review; none when the
+/// session has no review yet.
+fn review_rows<T>(conn: &Connection, path: &Path, session_id: &str, sql: &str) -> Result<Vec<T>>
+where
+    T: for<'r> TryFrom<&'r rusqlite::Row<'r>, Error = rusqlite::Error>,
+{
+    match require_session(conn, path, session_id)?.review_id {
+        Some(rid) => query_rows(conn, path, sql, [rid]),
+        None => Ok(Vec::new()),
+    }
+}
+
 fn ts(t: DateTime<Utc>) -> String {
     t.to_rfc3339_opts(SecondsFormat::Millis, true)
 }
@@ -859,15 +871,11 @@ impl Journal {
     /// Every saved version of the feedback, oldest first.
     pub fn feedback_history(&self, session_id: &str) -> Result<Vec<FeedbackVersion>> {
         self.read(|conn, path| {
-            let row = require_session(conn, path, session_id)?;
-            let Some(rid) = row.review_id else {
-                return Ok(Vec::new());
-            };
-            let raw: Vec<(String, String)> = query_rows(
+            let raw: Vec<(String, String)> = review_rows(
                 conn,
                 path,
+                session_id,
                 "SELECT body, saved_at FROM feedback_version WHERE review_id = ?1 ORDER BY id",
-                [rid],
             )?;
             raw.into_iter()
                 .map(|(body, at)| {
@@ -901,15 +909,11 @@ impl Journal {
     /// When and how the feedback left splitdesk, oldest first.
     pub fn feedback_events(&self, session_id: &str) -> Result<Vec<FeedbackEvent>> {
         self.read(|conn, path| {
-            let row = require_session(conn, path, session_id)?;
-            let Some(rid) = row.review_id else {
-                return Ok(Vec::new());
-            };
-            let raw: Vec<(String, String)> = query_rows(
+            let raw: Vec<(String, String)> = review_rows(
                 conn,
                 path,
+                session_id,
                 "SELECT kind, at FROM feedback_event WHERE review_id = ?1 ORDER BY id",
-                [rid],
             )?;
             raw.into_iter()
                 .map(|(kind, at)| {
@@ -963,25 +967,16 @@ impl Journal {
     /// The session's rulers, in the order added.
     pub fn rulers(&self, session_id: &str) -> Result<Vec<Ruler>> {
         self.read(|conn, path| {
-            let row = require_session(conn, path, session_id)?;
-            let Some(rid) = row.review_id else {
-                return Ok(Vec::new());
-            };
-            let mut stmt = conn
-                .prepare("SELECT id, from_s, to_s FROM ruler WHERE review_id = ?1 ORDER BY id")
-                .sq(path)?;
-            let out = stmt
-                .query_map([rid], |r| {
-                    Ok(Ruler {
-                        id: r.get(0)?,
-                        from_s: r.get(1)?,
-                        to_s: r.get(2)?,
-                    })
-                })
-                .sq(path)?
-                .collect::<rusqlite::Result<_>>()
-                .sq(path)?;
-            Ok(out)
+            let raw: Vec<(i64, f64, f64)> = review_rows(
+                conn,
+                path,
+                session_id,
+                "SELECT id, from_s, to_s FROM ruler WHERE review_id = ?1 ORDER BY id",
+            )?;
+            Ok(raw
+                .into_iter()
+                .map(|(id, from_s, to_s)| Ruler { id, from_s, to_s })
+                .collect())
         })
     }
 

@@ -1,9 +1,9 @@
 //! The workstation: a keyboard-driven terminal UI over the roster and the journal.
 //!
 //! [`run`] sets up the terminal (restored on every exit path: normal quit, error, panic via
-//! a panic hook, SIGTERM/SIGHUP via a `signal-hook` flag the event loop checks, and a hang-up
-//! of the terminal via the [`hangup`] watcher), starts the
-//! background workers and runs the event loop. The loop is generic over the ratatui
+//! a panic hook, SIGTERM/SIGHUP via a `signal-hook` flag the event loop checks, and a
+//! terminal that hangs up: see [`hangup`]), starts the background workers and runs the
+//! event loop. The loop is generic over the ratatui
 //! backend and a [`Host`] (terminal events, clipboard, editor), so the whole app can run on
 //! a `TestBackend`.
 //!
@@ -81,7 +81,7 @@ pub fn run(roster_dir: &Path, journal: Option<&Path>, config: &Config) -> anyhow
     }
     install_panic_hook();
     // A terminal that goes away must not leave the process spinning (see `hangup`).
-    let watcher = hangup::Watcher::spawn(0, Arc::clone(&term_flag), || {
+    let watcher = hangup::Watcher::spawn(libc::STDIN_FILENO, Arc::clone(&term_flag), || {
         restore_terminal();
         std::process::exit(hangup::HANGUP_EXIT);
     })?;

@@ -48,7 +48,7 @@ fn next_time(findings: &[Finding]) -> &'static str {
         };
         return advice;
     }
-    "Same again next time: keep the effort where it was."
+    "Same again: keep the effort where it was."
 }
 
 /// The facts worth telling the athlete: the top findings that are about the running

@@ -8,6 +8,7 @@ pub mod gradient;
 pub mod history;
 pub mod intervals;
 pub mod load;
+pub mod motion;
 pub mod race;
 pub mod review;
 pub mod ruler;
@@ -23,7 +24,9 @@ pub fn analyze(
     profile: &crate::model::AthleteProfile,
 ) -> review::Review {
     // The gradients feed both the interval finder and the review: compute them once.
+    // So do the motion states (running, walking, standing, stopped).
     let grads = gradient::gradients(session);
-    let set = intervals::find_intervals_with(session, plan, profile, grads.as_deref());
-    review::review_with(session, &set, plan, profile, grads.as_deref())
+    let motion = motion::classify(session);
+    let set = intervals::find_intervals_moving(session, plan, profile, grads.as_deref(), &motion);
+    review::review_moving(session, &set, plan, profile, grads.as_deref(), &motion)
 }

@@ -38,6 +38,11 @@ pub const MIN_INTERVAL_DECOUPLING_S: f64 = 120.0;
 // Common coaching practice (no published source).
 pub const MIN_DECOUPLING_S: f64 = 20.0 * 60.0;
 
+/// Slack on [`MIN_DECOUPLING_S`]: a 20-minute effort whose first sample's spacing falls
+/// outside the window still counts, seconds. Our design choice (one sample at the slowest
+/// smart-recording rhythm).
+pub const DECOUPLING_SLACK_S: f64 = 15.0;
+
 /// Without a plan, the first part of a session left out of the decoupling, seconds.
 // Common coaching practice (no published source): the warm-up.
 pub const DEFAULT_WARMUP_S: f64 = 10.0 * 60.0;
@@ -1207,7 +1212,7 @@ fn whole_session(
         ..Whole::default()
     };
     if let (Some(hr), Some(speed)) = (s.hr, s.speed) {
-        if analysed_s >= MIN_DECOUPLING_S {
+        if analysed_s + DECOUPLING_SLACK_S >= MIN_DECOUPLING_S {
             whole.decoupling_raw = decoupling_pct(speed, hr, s.t, &usable);
             whole.decoupling = match s.adj.as_deref() {
                 Some(adj) if s.hill_adjusted => decoupling_pct(adj, hr, s.t, &usable),
@@ -1233,7 +1238,7 @@ fn whole_session(
                         })
                         .collect();
                     let steady_s: f64 = (0..n).filter(|&i| steady[i]).map(|i| s.dt(i)).sum();
-                    if steady_s >= MIN_DECOUPLING_S {
+                    if steady_s + DECOUPLING_SLACK_S >= MIN_DECOUPLING_S {
                         whole.drift = hr_drift_bpm_per_h(s.t, hr, &steady);
                     }
                 }

@@ -30,13 +30,13 @@
 
 use crate::ingest::clean::gap_threshold_s;
 use crate::ingest::derive::EARTH_MEAN_RADIUS_M;
-use crate::model::{RecoveryMode, Session};
+use crate::model::{ChannelKind, RecoveryMode, Session};
 
 /// Half-span of the position means whose displacement gives the speed of motion, seconds.
 /// Our design choice: long enough to average a standing GPS's wander (a few metres,
 /// correlated over seconds) below half a metre per second, short enough to place a stop
 /// within about ten seconds.
-pub const DISPLACEMENT_HALF_S: f64 = 15.0;
+pub const DISPLACEMENT_HALF_S: f64 = 20.0;
 
 /// Half-span of the mean of a recorded speed when there are no positions, seconds. Our
 /// design choice: a device's own speed is already smoothed; a short window keeps the edges
@@ -44,9 +44,13 @@ pub const DISPLACEMENT_HALF_S: f64 = 15.0;
 pub const SPEED_HALF_S: f64 = 2.5;
 
 /// Speed of motion below which the athlete stands, m/s. Our design choice: GPS wander
-/// averaged over [`DISPLACEMENT_HALF_S`] reads a few tenths of a metre per second; the
-/// slowest walk is about 1 m/s.
-pub const STAND_BELOW_MPS: f64 = 0.5;
+/// averaged over [`DISPLACEMENT_HALF_S`] reads up to about 0.6 m/s (a receiver drifting
+/// several metres over tens of seconds); the slowest walk is about 1 m/s.
+pub const STAND_BELOW_MPS: f64 = 0.8;
+
+/// A device's own speed (averaged over [`SPEED_HALF_S`] each side) below this reads as
+/// standing, m/s. Our design choice: a device's speed does not wander like positions do.
+pub const DEVICE_STAND_BELOW_MPS: f64 = 0.5;
 
 /// Speed below which the athlete walks, m/s. Common coaching practice (no published
 /// source): brisk walking stays under 2 m/s, the slowest jog is above about 2 m/s.
@@ -170,7 +174,14 @@ pub fn classify(session: &Session) -> Motion {
     if n > 1 {
         stopped[0] = stopped[1];
     }
-    let speed = motion_speed(session, &stopped);
+    let speed = motion_speed(session, &stopped, true);
+    // A device's own speed (not derived from positions) places the edges of a stop to
+    // the second: where it reads standing, the athlete stood.
+    let device = session
+        .speed
+        .as_ref()
+        .filter(|_| !session.derived.contains(&ChannelKind::Speed))
+        .map(|_| motion_speed(session, &stopped, false));
     let cadence = session.cadence.as_ref();
     let mut state: Vec<MotionState> = (0..n)
         .map(|i| {
@@ -181,7 +192,11 @@ pub fn classify(session: &Session) -> Motion {
                 return MotionState::Run;
             };
             let cad = cadence.and_then(|c| c.get(i)).filter(|c| *c > 0.0);
-            if v < STAND_BELOW_MPS {
+            let device_stands = device
+                .as_ref()
+                .and_then(|d| d.get(i).copied().flatten())
+                .is_some_and(|d| d < DEVICE_STAND_BELOW_MPS);
+            if v < STAND_BELOW_MPS || device_stands {
                 MotionState::Stand
             } else if v < WALK_BELOW_MPS
                 || (v < WALK_CADENCE_SPEED_MPS && cad.is_some_and(|c| c < WALK_CADENCE_SPM))
@@ -218,7 +233,7 @@ fn local_positions(session: &Session) -> Option<Vec<Option<(f64, f64)>>> {
 
 /// The speed of motion per sample: displacement of windowed mean positions, else the
 /// windowed mean of the recorded speed. Windows never reach across a stopped stretch.
-fn motion_speed(session: &Session, stopped: &[bool]) -> Vec<Option<f64>> {
+fn motion_speed(session: &Session, stopped: &[bool], positions: bool) -> Vec<Option<f64>> {
     let n = session.len();
     let t = &session.t;
     // Block id: samples between stops share one; a window stays inside its block.
@@ -230,7 +245,11 @@ fn motion_speed(session: &Session, stopped: &[bool]) -> Vec<Option<f64>> {
         }
         block[i] = id;
     }
-    let pos = local_positions(session);
+    let pos = if positions {
+        local_positions(session)
+    } else {
+        None
+    };
     let usable_positions = pos
         .as_ref()
         .is_some_and(|p| p.iter().filter(|x| x.is_some()).count() * 2 >= n.max(1));

@@ -18,7 +18,7 @@
 //!    [`HR_RESPONSE_BPM`] (so a descent, or a stretch the hill adjustment over-corrects,
 //!    is not a rep). Fast stretches that fail are merged back.
 //! 4. **Stops are not recoveries.** When every slow stretch between fast ones is mostly
-//!    standing or walking and the fast stretches are long ([`STOPS_MIN_EFFORT_S`]), the
+//!    (over half its time) standing, walking or stopped and the fast stretches are long ([`STOPS_MIN_EFFORT_S`]), the
 //!    run was one effort with stops (traffic lights), not a set.
 //! 5. **Progression.** A run whose minute-by-minute hill-adjusted speed climbs in at least
 //!    [`PROGRESSION_MIN_STAGES`] stages, each faster than the one before, is a progression:
@@ -318,7 +318,7 @@ fn main_pieces(
     if !slow_between.is_empty()
         && slow_between
             .iter()
-            .all(|r| motion.running_s(r.0, r.1) < 0.3 * (trace.time(r.1) - trace.time(r.0)))
+            .all(|r| motion.running_s(r.0, r.1) < 0.5 * (trace.time(r.1) - trace.time(r.0)))
     {
         let mut lens: Vec<f64> = fast.iter().map(|r| motion.moving_s(r.0, r.1)).collect();
         lens.sort_by(f64::total_cmp);

@@ -49,6 +49,7 @@ struct Measure {
     worst_boundary_s: Option<f64>,
     dec_truth: Option<f64>,
     dec_found: Option<f64>,
+    dec_compared: bool,
     moving_truth: f64,
     moving_found: f64,
     dist_truth: f64,
@@ -60,9 +61,9 @@ impl Measure {
     fn dec_err(&self) -> Option<f64> {
         Some((self.dec_found? - self.dec_truth?).abs())
     }
-    /// Decoupling is compared (the truth has a long enough steady part); `None` = not.
+    /// Decoupling is compared: a steady run or race whose true steady part is long enough.
     fn dec_compared(&self) -> bool {
-        self.dec_truth.is_some()
+        self.dec_compared
     }
     fn moving_err_pct(&self) -> f64 {
         (self.moving_found - self.moving_truth) / self.moving_truth * 100.0
@@ -111,12 +112,11 @@ fn measure(case: &Case, r: &Run) -> Measure {
         Kind::Race => found.len().saturating_sub(1),
         _ => found.len(),
     };
-    // Decoupling is a running measure (the hill adjustment is the runner's): rides are not
-    // compared.
-    let steady = truth
-        .steady
-        .as_ref()
-        .filter(|s| s.moving_s >= MIN_STEADY_S && case.kind != Kind::NonRunning);
+    // Decoupling is compared on steady runs and races: a progression changes pace on
+    // purpose (its figures still print), and the hill adjustment is a runner's, not a
+    // rider's.
+    let steady = truth.steady.as_ref().filter(|s| s.moving_s >= MIN_STEADY_S);
+    let dec_compared = steady.is_some() && matches!(case.kind, Kind::Steady | Kind::Race);
     Measure {
         name: case.name.clone(),
         kind: case.kind,
@@ -128,6 +128,7 @@ fn measure(case: &Case, r: &Run) -> Measure {
         invented,
         worst_boundary_s: worst,
         dec_truth: steady.map(|s| s.decoupling_pct),
+        dec_compared,
         dec_found: r.review.decoupling_pct,
         moving_truth: truth.moving_s,
         moving_found: r.review.session.moving_s,
@@ -199,8 +200,12 @@ fn print_table(ms: &[Measure]) {
             m.matched,
             opt(m.worst_boundary_s, 0),
             opt(m.dec_truth, 2),
-            opt(m.dec_found.filter(|_| m.dec_compared()), 2),
-            opt(m.dec_err(), 2),
+            opt(m.dec_found.filter(|_| m.dec_truth.is_some()), 2),
+            match (m.dec_compared(), m.dec_truth) {
+                (true, _) => opt(m.dec_err(), 2),
+                (false, Some(_)) => "n/c".to_string(),
+                (false, None) => "-".to_string(),
+            },
             format!("{:+.1}", m.moving_err_pct()),
             opt(m.dist_err_pct(), 1),
             m.sport
@@ -256,7 +261,8 @@ fn print_table(ms: &[Measure]) {
     row("all", &every);
     println!(
         "(invented: work intervals on runs with none to find, beyond one on races; dec: \
-         |analysis - truth| over the true steady part; moving/dist: analysis vs truth)\n"
+         |analysis - truth| over the true steady part, compared on steady runs and races \
+         (n/c: shown, not compared); moving/dist: analysis vs truth)\n"
     );
 }
 

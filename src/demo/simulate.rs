@@ -168,6 +168,10 @@ pub struct Conditions {
     pub treadmill: bool,
     /// Timer pauses during the run.
     pub stops: Vec<Stop>,
+    /// On hills the runner holds an even effort (constant metabolic power: hill-adjusted
+    /// speed and heart rate stay flat) instead of the usual partial slowing uphill
+    /// (`(Cr(0)/Cr(i))^0.7`, see `hill_speed_factor`). Default: false.
+    pub even_hill_effort: bool,
     /// Stops the device records only as a missing stretch of samples: the runner halts as
     /// at a [`Stop`], no samples are written for `dur_s`, and no pause marker is written
     /// (`session.pauses` stays without them). The truth counts them like pauses.
@@ -203,6 +207,7 @@ impl Default for Conditions {
             sampling: Sampling::EverySecond,
             treadmill: false,
             stops: Vec::new(),
+            even_hill_effort: false,
             gaps: Vec::new(),
             gps_noise: None,
             standing_jitter: None,

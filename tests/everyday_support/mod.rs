@@ -86,6 +86,12 @@ impl Case {
         self.input.conditions.terrain = t;
         self
     }
+    /// Hills run at an even effort (flat heart rate, even hill-adjusted pace).
+    fn even_hills(mut self, t: Terrain) -> Case {
+        self.input.conditions.terrain = t;
+        self.input.conditions.even_hill_effort = true;
+        self
+    }
     fn temp(mut self, c: f64) -> Case {
         self.input.conditions.temperature_c = c;
         self
@@ -258,27 +264,33 @@ pub fn corpus() -> Vec<Case> {
             .no_speed()
             .gps(4.0, 5.0),
         // ---- Steady runs on rolling hills, even effort.
-        case("rolling 3% easy 50", Steady, "50:00 easy", 111).terrain(rolling(0.03, 1200.0)),
-        case("rolling 5% easy 50", Steady, "50:00 easy", 112).terrain(rolling(0.05, 1000.0)),
-        case("rolling 8% easy 50", Steady, "50:00 easy", 113).terrain(rolling(0.08, 800.0)),
+        case("rolling 3% easy 50", Steady, "50:00 easy", 111).even_hills(rolling(0.03, 1200.0)),
+        case("rolling 5% easy 50", Steady, "50:00 easy", 112).even_hills(rolling(0.05, 1000.0)),
+        case("rolling 8% easy 50", Steady, "50:00 easy", 113).even_hills(rolling(0.08, 800.0)),
         case("rolling 3% long 80", Steady, "80:00 easy", 114)
-            .terrain(rolling(0.03, 1600.0))
+            .even_hills(rolling(0.03, 1600.0))
             .fmt(Tcx),
         case("rolling 5% long 80", Steady, "80:00 easy", 115)
-            .terrain(rolling(0.05, 1400.0))
+            .even_hills(rolling(0.05, 1400.0))
             .fmt(Gpx),
         case("rolling 8% long 75", Steady, "75:00 easy", 116)
-            .terrain(rolling(0.08, 1000.0))
+            .even_hills(rolling(0.08, 1000.0))
             .fmt(Tcx),
         case("rolling 5% mile gpx", Steady, "55:00 easy", 117)
-            .terrain(rolling(0.05, 900.0))
+            .even_hills(rolling(0.05, 900.0))
             .mile()
             .fmt(Gpx)
             .no_speed(),
         case("rolling 8% gps noise", Steady, "60:00 easy", 118)
-            .terrain(rolling(0.08, 700.0))
+            .even_hills(rolling(0.08, 700.0))
             .gps(4.0, 6.0)
             .out_and_back(3000.0),
+        case("rolling 5% usual effort 50", Steady, "50:00 easy", 119)
+            .terrain(rolling(0.05, 1000.0))
+            .fmt(Tcx),
+        case("rolling 8% usual effort 60", Steady, "60:00 easy", 120)
+            .terrain(rolling(0.08, 800.0))
+            .fmt(Gpx),
         // ---- Standing at the start and/or end, watch recording.
         case(
             "stand 0:10 + easy 40",
@@ -346,6 +358,21 @@ pub fn corpus() -> Vec<Case> {
             129,
         )
         .mile(),
+        case(
+            "stand 1:00 + easy 45 fit jitter",
+            Steady,
+            "rec 1:00 stand; 45:00 easy",
+            130,
+        )
+        .jitter(5.0),
+        case(
+            "stand 0:40 + easy 45 + stand 1:30 mile tcx",
+            Steady,
+            "rec 0:40 stand; 45:00 easy; rec 1:30 stand",
+            136,
+        )
+        .mile()
+        .fmt(Tcx),
         // ---- Walks.
         case(
             "easy 45 + walk 5:00",
@@ -375,12 +402,21 @@ pub fn corpus() -> Vec<Case> {
             134,
         ),
         case(
+            "rolling 8% easy 40 + walk 3:00 gpx",
+            Steady,
+            "40:00 easy; rec 3:00 walk",
+            137,
+        )
+        .even_hills(rolling(0.08, 800.0))
+        .fmt(Gpx)
+        .no_speed(),
+        case(
             "rolling 5% easy 45 + walk 4:00",
             Steady,
             "45:00 easy; rec 4:00 walk",
             135,
         )
-        .terrain(rolling(0.05, 1000.0))
+        .even_hills(rolling(0.05, 1000.0))
         .mile(),
         // ---- Stops: auto-pause with markers, and gaps without.
         case("easy 50 two marked stops", Steady, "50:00 easy", 141)
@@ -395,7 +431,7 @@ pub fn corpus() -> Vec<Case> {
             .stops(&[(1800.0, 60.0)])
             .gaps(&[(3300.0, 150.0)]),
         case("rolling 5% gaps gpx", Steady, "55:00 easy", 145)
-            .terrain(rolling(0.05, 1100.0))
+            .even_hills(rolling(0.05, 1100.0))
             .gaps(&[(1200.0, 45.0), (2400.0, 45.0)])
             .fmt(Gpx)
             .no_speed(),
@@ -432,7 +468,7 @@ pub fn corpus() -> Vec<Case> {
             "steady 10:00 @ easy; steady 10:00 @ marathon; steady 10:00 @ half",
             155,
         )
-        .terrain(rolling(0.03, 1200.0)),
+        .even_hills(rolling(0.03, 1200.0)),
         // ---- Races and time trials with warm-up and cool-down.
         case("5k race", Race, "wu 15:00; work 5km @ 5k; cd 10:00", 161),
         case("10k race", Race, "wu 20:00; work 10km @ 10k; cd 10:00", 162).fmt(Tcx),
@@ -463,6 +499,14 @@ pub fn corpus() -> Vec<Case> {
             166,
         )
         .mile(),
+        case(
+            "stand + 8k race + stand mile tcx",
+            Race,
+            "rec 0:30 stand; wu 12:00; work 8km @ 10k; cd 8:00; rec 1:00 stand",
+            167,
+        )
+        .mile()
+        .fmt(Tcx),
         // ---- Fartlek.
         case(
             "fartlek 8x1min",
@@ -483,7 +527,7 @@ pub fn corpus() -> Vec<Case> {
             "15:00 easy; 10 x 0:45 @ 3k / 1:15 jog; 10:00 easy",
             173,
         )
-        .terrain(rolling(0.03, 1200.0)),
+        .even_hills(rolling(0.03, 1200.0)),
         case(
             "fartlek 5x3min gpx",
             Set,
@@ -491,6 +535,14 @@ pub fn corpus() -> Vec<Case> {
             174,
         )
         .fmt(Gpx),
+        case(
+            "fartlek 8x90s mile tcx",
+            Set,
+            "12:00 easy; 8 x 1:30 @ 5k / 1:30 jog; 10:00 easy",
+            175,
+        )
+        .mile()
+        .fmt(Tcx),
         // ---- Track reps.
         case(
             "6x800 jog",
@@ -595,7 +647,7 @@ pub fn corpus() -> Vec<Case> {
             .fmt(Gpx),
         case("ride rolling 3%", NonRunning, "75:00 easy", 214)
             .ride()
-            .terrain(rolling(0.03, 3000.0)),
+            .even_hills(rolling(0.03, 3000.0)),
     ];
     for c in &mut v {
         // The plans the simulator follows are "what happened", never the coach's plan.

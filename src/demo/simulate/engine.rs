@@ -2,7 +2,8 @@
 //! cadence, altitude, gradient.
 
 use super::physiology::{
-    cadence_for_speed, hill_cost_ratio, hill_speed_factor, hr_fraction, soft_cap, Physio,
+    cadence_for_speed, even_effort_speed_factor, hill_cost_ratio, hill_speed_factor, hr_fraction,
+    soft_cap, Physio,
 };
 use super::terrain::TerrainState;
 use super::{Pacing, SimInput, Terrain, CYCLING_SPEED_RATIO};
@@ -483,7 +484,12 @@ pub(crate) fn run(input: &SimInput, physio: &Physio) -> Track {
             let fat = 1.0 - FATIGUE_SPEED_LOSS * fatigue * (t / est_total).min(1.0);
             // On a gradient the runner holds roughly constant effort: speed scales with
             // (Cr(0)/Cr(i))^0.7. Source: Minetti et al. 2002, J Appl Physiol 93:1039
-            let nominal = seg.base_speed * style * kick * fat * hill_speed_factor(grade) * hr_adj;
+            let hill = if c.even_hill_effort {
+                even_effort_speed_factor(grade)
+            } else {
+                hill_speed_factor(grade)
+            };
+            let nominal = seg.base_speed * style * kick * fat * hill * hr_adj;
 
             // Pacing error (always drawn, so the stream does not depend on the plan).
             let sd = if seg.base_speed <= 0.0 {

@@ -26,7 +26,7 @@ pub fn analyze(
     // The gradients feed both the interval finder and the review: compute them once.
     // So do the motion states (running, walking, standing, stopped).
     let grads = gradient::gradients(session);
-    let motion = motion::classify(session);
+    let motion = motion::classify_with(session, grads.as_deref());
     let set = intervals::find_intervals_moving(session, plan, profile, grads.as_deref(), &motion);
     review::review_moving(session, &set, plan, profile, grads.as_deref(), &motion)
 }

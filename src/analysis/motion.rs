@@ -18,8 +18,10 @@
 //!    untouched; at a turn-around only the few seconds around the turn read slow. Without
 //!    positions (a treadmill, a watch without GPS) the recorded speed, averaged over
 //!    [`SPEED_HALF_S`] each side, is used.
-//! 3. **Standing** below [`STAND_BELOW_MPS`]; **walking** below [`WALK_BELOW_MPS`], or
-//!    below [`WALK_CADENCE_SPEED_MPS`] with a cadence under [`WALK_CADENCE_SPM`];
+//! 3. **Standing** below [`STAND_BELOW_MPS`] (or where a device's own speed reads under
+//!    [`DEVICE_STAND_BELOW_MPS`]); **walking** below [`WALK_BELOW_MPS`], or below
+//!    [`WALK_CADENCE_SPEED_MPS`] with a cadence under [`WALK_CADENCE_SPM`] or a speed under
+//!    [`WALK_RELATIVE`] of the session's median running speed;
 //!    otherwise **running**. Standing or walking stretches shorter than [`MIN_DWELL_S`]
 //!    join their neighbours (a turn-around or a pole dodged is not a stop).
 //!
@@ -58,6 +60,11 @@ pub const WALK_BELOW_MPS: f64 = 1.8;
 
 /// With a step rate under [`WALK_CADENCE_SPM`], speeds up to this count as walking, m/s.
 pub const WALK_CADENCE_SPEED_MPS: f64 = 2.3;
+
+/// Below this fraction of the athlete's median running speed in the session, both
+/// hill-adjusted (and under [`WALK_CADENCE_SPEED_MPS`] on the watch), the athlete walks. Our design choice: a runner's slowest
+/// jog is rarely below two thirds of their usual running speed; a walk is about half.
+pub const WALK_RELATIVE: f64 = 0.65;
 
 /// Step rate under which the athlete walks, steps/min. Common coaching practice (no
 /// published source): walking cadence is about 100-130 steps/min, running above 150.
@@ -152,6 +159,17 @@ impl Motion {
 
 /// Classify every sample of a session (see the module docs). O(n).
 pub fn classify(session: &Session) -> Motion {
+    classify_with(
+        session,
+        crate::analysis::gradient::gradients(session).as_deref(),
+    )
+}
+
+/// [`classify`] with the session's gradients already computed
+/// ([`crate::analysis::gradient::gradients`]; `None` without altitude): the walking test
+/// relative to the athlete's running compares hill-adjusted speeds, so a climb run at an
+/// even effort is not a walk and a walk down a hill is.
+pub fn classify_with(session: &Session, grads: Option<&[Option<f64>]>) -> Motion {
     let n = session.len();
     let t = &session.t;
     let gap = gap_threshold_s(t);
@@ -207,6 +225,32 @@ pub fn classify(session: &Session) -> Motion {
             }
         })
         .collect();
+    // Walking relative to this athlete's running: a stretch well under their median
+    // running speed, at a speed some run at, is a walk (a brisk walk home is faster than
+    // a slow runner's walk).
+    let adjusted = |i: usize| -> Option<f64> {
+        let v = speed.get(i).copied().flatten()?;
+        Some(match grads.and_then(|g| g.get(i).copied().flatten()) {
+            Some(g) => crate::analysis::gradient::flat_equivalent_speed(v, g),
+            None => v,
+        })
+    };
+    let mut run_speeds: Vec<f64> = (0..n)
+        .filter(|&i| state[i] == MotionState::Run)
+        .filter_map(adjusted)
+        .collect();
+    if !run_speeds.is_empty() {
+        run_speeds.sort_by(f64::total_cmp);
+        let median = run_speeds[run_speeds.len() / 2];
+        for i in 0..n {
+            if state[i] == MotionState::Run
+                && speed[i].is_some_and(|v| v < WALK_CADENCE_SPEED_MPS)
+                && adjusted(i).is_some_and(|v| v < WALK_RELATIVE * median)
+            {
+                state[i] = MotionState::Walk;
+            }
+        }
+    }
     absorb_short(&mut state, t, &dt);
     Motion { state, speed, dt }
 }

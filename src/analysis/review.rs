@@ -331,7 +331,11 @@ impl<'a> Series<'a> {
 
     /// [`Series::with_motion`] classifying the motion here.
     pub fn with_gradients(session: &'a Session, grads: Option<&[Option<f64>]>) -> Series<'a> {
-        Series::with_motion(session, grads, &super::motion::classify(session))
+        Series::with_motion(
+            session,
+            grads,
+            &super::motion::classify_with(session, grads),
+        )
     }
 
     /// [`Series::new`] with the session's gradients already computed
@@ -457,7 +461,7 @@ pub fn review_with(
     profile: &AthleteProfile,
     grads: Option<&[Option<f64>]>,
 ) -> Review {
-    let motion = super::motion::classify(session);
+    let motion = super::motion::classify_with(session, grads);
     review_moving(session, set, plan, profile, grads, &motion)
 }
 

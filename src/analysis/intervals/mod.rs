@@ -150,7 +150,13 @@ pub fn find_intervals_with(
     profile: &AthleteProfile,
     grads: Option<&[Option<f64>]>,
 ) -> IntervalSet {
-    find_intervals_moving(session, plan, profile, grads, &motion::classify(session))
+    find_intervals_moving(
+        session,
+        plan,
+        profile,
+        grads,
+        &motion::classify_with(session, grads),
+    )
 }
 
 /// [`find_intervals_with`] with the session's motion already classified

@@ -255,7 +255,10 @@ fn main_pieces(
         notes.push(text.to_string());
         vec![whole(a, b, SegmentKind::Steady)]
     };
-    if let Some(stages) = progression(trace, a, b) {
+    // Either hill adjustment may show the stages more clearly (see step 2).
+    if let Some(stages) =
+        progression(trace, a, b).or_else(|| full.and_then(|f| progression(f, a, b)))
+    {
         notes.push(format!(
             "progression: {} stages, each faster than the one before",
             stages.len() - 1

@@ -106,6 +106,33 @@ fn analyse_bytes(
     })
 }
 
+/// Summaries of an athlete's sessions for the history-side checks of one session on `day`
+/// (the load-spike caution), read and analysed afresh without a journal: every activity
+/// except `skip` (a session id the caller already has), leaving out files whose name starts
+/// with a date well after `day` (they cannot change that day's load ratio) and files that
+/// cannot be read.
+pub fn athlete_summaries_until(
+    athlete: &Athlete,
+    day: chrono::NaiveDate,
+    skip: &str,
+) -> Vec<crate::analysis::history::SessionSummary> {
+    athlete
+        .activities
+        .iter()
+        .filter(|act| athlete.session_id(act) != skip)
+        .filter(|act| {
+            act.stem
+                .get(..10)
+                .and_then(|d| chrono::NaiveDate::parse_from_str(d, "%Y-%m-%d").ok())
+                .is_none_or(|d| d <= day + chrono::Duration::days(2))
+        })
+        .filter_map(|act| analyse_activity(athlete, act).ok())
+        .filter_map(|a| {
+            crate::analysis::history::SessionSummary::from_review(&a.session_id, &a.review)
+        })
+        .collect()
+}
+
 /// What `sync` did.
 #[derive(Debug, Default)]
 pub struct SyncReport {

@@ -5,8 +5,9 @@ use anyhow::{bail, Context};
 use chrono::{NaiveDate, Utc};
 
 use crate::analysis::history::{self, History, HistoryParams, SessionSummary};
+use crate::analysis::history::{fixed, fixed_distance as format_distance};
 use crate::analysis::review::{Review, ANALYSIS_VERSION};
-use crate::model::units::{format_clock, format_distance, format_pace};
+use crate::model::units::{format_clock, format_pace};
 use crate::model::Units;
 use crate::workspace::Workspace;
 
@@ -138,10 +139,41 @@ pub fn render(h: &History, name: &str, u: Units) -> String {
     }
     let _ = writeln!(s, "{}", h.acute_chronic_bands.method);
 
+    let _ = writeln!(
+        s,
+        "\nDays the load rose sharply (acute/chronic ratio {:.1} or more)",
+        h.acute_chronic_bands.caution
+    );
+    if h.load_spikes.is_empty() {
+        let _ = writeln!(s, "none in the window");
+    }
+    for d in &h.load_spikes {
+        let _ = writeln!(
+            s,
+            "CAUTION {:<10} ratio {:.2}, load {:.0}  {}",
+            d.date.to_string(),
+            d.ratio,
+            d.load,
+            d.sessions
+                .join(", ")
+                .chars()
+                .filter(|c| !c.is_control())
+                .collect::<String>()
+        );
+    }
+    if !h.load_spikes.is_empty() {
+        let _ = writeln!(
+            s,
+            "{} {}",
+            crate::analysis::load::ACUTE_CHRONIC_CRITICISM,
+            history::LOAD_CAUTION_WORDS
+        );
+    }
+
     let e = &h.efficiency_trend;
     let _ = writeln!(
         s,
-        "\nEfficiency on easy runs (relative intensity under {:.2}): {}",
+        "\nEfficiency on easy runs (steady throughout, relative intensity under {:.2}): {}",
         e.easy_max_relative_intensity, e.text
     );
     let _ = writeln!(s, "{:<9} {:>4} {:>12}", "week", "runs", "m/beat");
@@ -162,10 +194,10 @@ pub fn render(h: &History, name: &str, u: Units) -> String {
     for r in &l.runs {
         let _ = writeln!(
             s,
-            "{:<10} {:>8} {:>6.1} %{}  {}",
+            "{:<10} {:>8} {:>6} %{}  {}",
             r.date.to_string(),
             format_clock(r.moving_s),
-            r.decoupling_pct,
+            fixed(r.decoupling_pct, 1),
             if r.above_line { " above" } else { "" },
             r.session
         );

@@ -11,8 +11,8 @@ use ratatui::text::{Line, Span};
 use ratatui::widgets::canvas::{Canvas, Line as CLine, Points};
 use ratatui::widgets::{Paragraph, Widget, Wrap};
 
-use crate::analysis::history::{DailyValue, History};
-use crate::model::units::{format_clock, format_distance, format_pace};
+use crate::analysis::history::{fixed, fixed_distance as format_distance, DailyValue, History};
+use crate::model::units::{format_clock, format_pace};
 use crate::model::Units;
 use crate::tui::action::Action;
 use crate::tui::app::{App, HistoryView};
@@ -114,6 +114,23 @@ pub fn render(app: &App, area: Rect, buf: &mut Buffer) {
             format!("{first}. Coaching aid, not medical advice.")
         };
         top.push(Line::styled(format!("CAUTION: {text}"), t.caution));
+    }
+    if !h.load_spikes.is_empty() {
+        // Every day in the window whose load took the ratio to the caution band.
+        let days: Vec<String> = h
+            .load_spikes
+            .iter()
+            .map(|d| format!("{} ({:.2})", d.date, d.ratio))
+            .collect();
+        top.push(Line::styled(
+            format!(
+                "CAUTION: load rose sharply (ratio {:.1}+) on {}. Coaching aid, not medical \
+                 advice: look at how the athlete is coping.",
+                h.acute_chronic_bands.caution,
+                days.join(", ")
+            ),
+            t.caution,
+        ));
     }
     let criticism = &h.acute_chronic_bands.criticism;
     let note = if roomy {
@@ -501,10 +518,10 @@ fn efficiency(t: &Theme, h: &History, area: Rect, buf: &mut Buffer) {
     for r in l.runs.iter().rev() {
         lines.push(Line::styled(
             format!(
-                "{} {:>8} {:>5.1} %{}",
+                "{} {:>8} {:>5} %{}",
                 r.date,
                 format_clock(r.moving_s),
-                r.decoupling_pct,
+                fixed(r.decoupling_pct, 1),
                 if r.above_line { "  above the line" } else { "" }
             ),
             if r.above_line { t.warn } else { t.text },

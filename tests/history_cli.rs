@@ -86,6 +86,9 @@ fn trends_text_shows_every_series() {
         assert!(out.contains(heading), "missing {heading}:\n{out}");
     }
     assert!(out.contains("/km"), "paces in the athlete's units:\n{out}");
+    // Empty weeks print a plain zero, never a negative one.
+    assert!(out.contains("     0    0.00 km"), "{out}");
+    assert!(!out.contains("-0.0"), "negative zero:\n{out}");
 }
 
 #[test]

@@ -187,3 +187,26 @@ fn empty_history_is_well_formed() {
         assert!(json.get(key).is_some(), "missing {key}");
     }
 }
+
+#[test]
+fn empty_weeks_and_tiny_negatives_print_no_negative_zero() {
+    use splitdesk::analysis::history::{fixed, fixed_distance};
+    use splitdesk::model::Units;
+    // One run in week 1, nothing in week 2: week 2's sums are a positive zero.
+    let h = build(
+        &[with_load(1, 40.0)],
+        &profile(),
+        &HistoryParams::default(),
+        day(8),
+    );
+    let empty = h.weekly.last().unwrap();
+    assert_eq!(empty.sessions, 0);
+    assert!(empty.distance_m == 0.0 && empty.distance_m.is_sign_positive());
+    assert!(empty.moving_s == 0.0 && empty.moving_s.is_sign_positive());
+    assert_eq!(fixed_distance(empty.distance_m, Units::Mi), "0.00 mi");
+    assert_eq!(fixed_distance(-0.0, Units::Mi), "0.00 mi");
+    assert_eq!(fixed(-0.04, 1), "0.0");
+    assert_eq!(fixed(-0.0, 0), "0");
+    assert_eq!(fixed(-0.06, 1), "-0.1");
+    assert_eq!(fixed(12.345, 2), "12.35");
+}

@@ -210,3 +210,22 @@ fn empty_weeks_and_tiny_negatives_print_no_negative_zero() {
     assert_eq!(fixed(-0.06, 1), "-0.1");
     assert_eq!(fixed(12.345, 2), "12.35");
 }
+
+#[test]
+fn zones_from_the_age_estimate_are_labelled_in_the_history() {
+    // day(1) is in 2026: born 1986, age 40, Tanaka 180 (methods.md §3).
+    let mut p = profile();
+    p.birth_year = Some(1986);
+    let h = build(&[with_load(1, 40.0)], &p, &HistoryParams::default(), day(7));
+    assert_eq!(
+        h.hr_max_estimate, None,
+        "a measured hr_max is not an estimate"
+    );
+    p.hr_max = None;
+    let h = build(&[with_load(1, 40.0)], &p, &HistoryParams::default(), day(7));
+    let e = h.hr_max_estimate.unwrap();
+    assert!(
+        e.starts_with("HR max 180 bpm estimated from age 40 (Tanaka et al. 2001, about ±10 bpm"),
+        "{e}"
+    );
+}

@@ -634,6 +634,9 @@ pub struct History {
     pub sessions: usize,
     /// Volume per ISO week.
     pub weekly: Vec<WeekVolume>,
+    /// When the HR zones (time by zone) rest on HR max estimated from age: the words that
+    /// say so ([`super::zones::hr_max_estimate_note`]).
+    pub hr_max_estimate: Option<String>,
     /// Daily TRIMP over the window.
     pub daily_load: Vec<DailyValue>,
     /// EWMA acute/chronic ratio per day over the window.
@@ -1020,6 +1023,10 @@ pub fn build(
         params: *params,
         sessions: in_window.len(),
         weekly,
+        hr_max_estimate: super::zones::hr_max_estimate_note(
+            profile,
+            super::zones::age_in_year(profile, today.year()),
+        ),
         daily_load,
         acute_chronic_ratio,
         acute_chronic_latest,

@@ -107,6 +107,10 @@ pub fn render(h: &History, name: &str, u: Units) -> String {
         );
     }
 
+    if let Some(e) = &h.hr_max_estimate {
+        let _ = writeln!(s, "time by HR zone: {e}");
+    }
+
     let _ = writeln!(
         s,
         "\nLoad (daily TRIMP), acute/chronic ratio (usual band {:.1}-{:.1}, caution from {:.1}), \

@@ -559,6 +559,10 @@ pub struct BestEffortOut {
     pub date: NaiveDate,
     /// Daniels & Gilbert equivalent VO2max of the effort, mL/kg/min.
     pub equivalent_vo2max: Option<f64>,
+    /// The effort is shorter than the equivalent-VO2max model's range (under about 11
+    /// minutes, [`race::vo2max_beyond_model`]): its value reads high and is shown with
+    /// [`race::SHORT_EFFORT_VO2MAX_CAVEAT`].
+    pub vo2max_beyond_model: bool,
 }
 
 /// The critical-speed fit, or why there is none.
@@ -1249,6 +1253,7 @@ fn best_across(sessions: &[&SessionSummary]) -> Vec<BestEffortOut> {
                         session: s.session_id.clone(),
                         date: s.date(),
                         equivalent_vo2max: race::daniels_gilbert_vo2max(e.distance_m, e.duration_s),
+                        vo2max_beyond_model: race::vo2max_beyond_model(e.duration_s),
                     },
                 );
             }

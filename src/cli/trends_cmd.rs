@@ -6,6 +6,7 @@ use chrono::{NaiveDate, Utc};
 
 use crate::analysis::history::{self, History, HistoryParams, SessionSummary};
 use crate::analysis::history::{fixed, fixed_distance as format_distance};
+use crate::analysis::race;
 use crate::analysis::review::{Review, ANALYSIS_VERSION};
 use crate::model::units::{format_clock, format_pace};
 use crate::model::Units;
@@ -63,6 +64,11 @@ pub fn run(ws: &Workspace, athlete: &str, weeks: Option<u32>, json: bool) -> any
         print!("{}", render(&h, &profile.name, profile.units));
     }
     Ok(0)
+}
+
+/// An equivalent VO2max, starred when the effort is under the model's range.
+fn vo2(v: f64, beyond: bool) -> String {
+    format!("{v:.1}{}", if beyond { "*" } else { "" })
 }
 
 fn opt(v: Option<f64>, f: impl Fn(f64) -> String) -> String {
@@ -225,10 +231,16 @@ pub fn render(h: &History, name: &str, u: Units) -> String {
             format_pace(b.speed_mps, u),
             b.speed_mps,
             format_distance(b.distance_m, u),
-            opt(b.equivalent_vo2max, |v| format!("{v:.1}")),
+            opt(b.equivalent_vo2max, |v| vo2(v, b.vo2max_beyond_model)),
             b.date.to_string(),
             b.session
         );
+    }
+    if h.best_efforts
+        .iter()
+        .any(|b| b.vo2max_beyond_model && b.equivalent_vo2max.is_some())
+    {
+        let _ = writeln!(s, "* {}", race::SHORT_EFFORT_VO2MAX_CAVEAT);
     }
     match (h.critical_speed_mps, h.d_prime_m) {
         (Some(cs), Some(dp)) => {
@@ -259,9 +271,12 @@ pub fn render(h: &History, name: &str, u: Units) -> String {
             "Riegel from the {} best effort ({}, equivalent VO2max {}) of {}",
             format_clock(r.duration_s),
             format_pace(r.speed_mps, u),
-            opt(r.equivalent_vo2max, |v| format!("{v:.1}")),
+            opt(r.equivalent_vo2max, |v| vo2(v, r.vo2max_beyond_model)),
             r.date
         );
+        if r.vo2max_beyond_model && r.equivalent_vo2max.is_some() {
+            let _ = writeln!(s, "* {}", race::SHORT_EFFORT_VO2MAX_CAVEAT);
+        }
     }
     let _ = writeln!(
         s,

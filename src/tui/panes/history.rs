@@ -115,22 +115,43 @@ pub fn render(app: &App, area: Rect, buf: &mut Buffer) {
         };
         top.push(Line::styled(format!("CAUTION: {text}"), t.caution));
     }
-    if !h.load_spikes.is_empty() {
-        // Every day in the window whose load took the ratio to the caution band.
-        let days: Vec<String> = h
-            .load_spikes
-            .iter()
-            .map(|d| format!("{} ({:.2})", d.date, d.ratio))
-            .collect();
-        top.push(Line::styled(
+    // Small screens with a caution for today already: that one says it; room goes to the bars.
+    let spikes_line = roomy || h.cautions.is_empty();
+    if let (true, Some(first), Some(last)) =
+        (spikes_line, h.load_spikes.first(), h.load_spikes.last())
+    {
+        // The days in the window whose load took the ratio to the caution band: every day on
+        // a roomy screen when there are few, else a summary (`splitdesk trends` lists all).
+        let n = h.load_spikes.len();
+        let text = if roomy && n <= 4 {
+            let days: Vec<String> = h
+                .load_spikes
+                .iter()
+                .map(|d| format!("{} ({:.2})", d.date, d.ratio))
+                .collect();
             format!(
-                "CAUTION: load rose sharply (ratio {:.1}+) on {}. Coaching aid, not medical \
-                 advice: look at how the athlete is coping.",
+                "load rose sharply (ratio {:.1}+) on {}. Coaching aid, not medical advice: look \
+                 at how the athlete is coping.",
                 h.acute_chronic_bands.caution,
                 days.join(", ")
-            ),
-            t.caution,
-        ));
+            )
+        } else if roomy {
+            let top = h
+                .load_spikes
+                .iter()
+                .max_by(|a, b| a.ratio.total_cmp(&b.ratio))
+                .unwrap_or(last);
+            format!(
+                "load rose sharply (ratio {:.1}+) on {n} days from {} to {}, highest {:.2} on \
+                 {}. Coaching aid, not medical advice: look at how the athlete is coping.",
+                h.acute_chronic_bands.caution, first.date, last.date, top.ratio, top.date
+            )
+        } else if n == 1 {
+            format!("load spike on {}.", last.date)
+        } else {
+            format!("load spikes on {n} days, last {}.", last.date)
+        };
+        top.push(Line::styled(format!("CAUTION: {text}"), t.caution));
     }
     let criticism = &h.acute_chronic_bands.criticism;
     let note = if roomy {

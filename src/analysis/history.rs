@@ -23,6 +23,11 @@
 //!   load of the first 7 days of data. The ratio is `None` for the first 27 days. Bands
 //!   0.8-1.3 and 1.5 (Gabbett 2016) are shown with the published criticism
 //!   ([`load::ACUTE_CHRONIC_CRITICISM`]); a latest ratio at or above 1.5 adds a caution.
+//!   **Load-spike days** are the days that carried a load and ended with the ratio at or
+//!   above 1.5 ([`load_spike_days`]); the history lists every one in the window, and the
+//!   session of such a day carries the caution in its findings where it is shown
+//!   ([`load_spike_finding`]: `analyze` inside a roster, the workstation), whatever today's
+//!   date, because a day's ratio depends only on the days before it.
 //! - **Fitness, fatigue, readiness**: the impulse-response model (Banister et al. 1975,
 //!   [`load::fitness_fatigue`]) with `g_t = g_{t−1}·e^(−1/τ1) + w_t`,
 //!   `h_t = h_{t−1}·e^(−1/τ2) + w_t` and **readiness = k1·fitness − k2·fatigue**

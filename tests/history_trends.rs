@@ -229,3 +229,17 @@ fn zones_from_the_age_estimate_are_labelled_in_the_history() {
         "{e}"
     );
 }
+
+#[test]
+fn readiness_that_rounds_to_zero_prints_no_sign() {
+    use splitdesk::analysis::history::fixed;
+    // Readiness k1·g − k2·h just under zero (g = 100.0, h = 50.2) must not read "-0".
+    let readiness: f64 = 100.0 - 2.0 * 50.2;
+    assert!(readiness < 0.0);
+    assert_eq!(fixed(readiness, 0), "0");
+    assert_eq!(
+        format!("{readiness:.0}"),
+        "-0",
+        "what the plain format gives"
+    );
+}

@@ -130,9 +130,8 @@ pub fn render(h: &History, name: &str, u: Units) -> String {
     );
     for (k, d) in h.daily_load.iter().enumerate() {
         let ratio = h.acute_chronic_ratio.get(k).and_then(|r| r.value);
-        let val = |series: &[history::DailyValue]| {
-            opt(series.get(k).map(|v| v.value), |v| format!("{v:.0}"))
-        };
+        let val =
+            |series: &[history::DailyValue]| opt(series.get(k).map(|v| v.value), |v| fixed(v, 0));
         let _ = writeln!(
             s,
             "{:<10} {:>6.0} {:>6} {:>8} {:>8} {:>9}",

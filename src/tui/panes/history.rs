@@ -260,9 +260,16 @@ fn readiness_line(h: &History) -> String {
     let last = |s: &[DailyValue]| s.last().map(|v| v.value);
     format!(
         "fitness {}  fatigue {}  readiness today {}",
-        opt(last(&h.fitness), |v| format!("{v:.0}")),
-        opt(last(&h.fatigue), |v| format!("{v:.0}")),
-        opt(last(&h.readiness), |v| format!("{v:+.0}")),
+        opt(last(&h.fitness), |v| fixed(v, 0)),
+        opt(last(&h.fatigue), |v| fixed(v, 0)),
+        opt(last(&h.readiness), |v| {
+            let s = fixed(v, 0);
+            if s.starts_with('-') {
+                s
+            } else {
+                format!("+{s}")
+            }
+        }),
     )
 }
 

@@ -9,13 +9,15 @@ use anyhow::Context;
 
 use crate::ingest;
 use crate::model::{AthleteProfile, Plan, Units};
-use crate::roster::{plans, Roster};
+use crate::roster::Roster;
 
 /// Where the profile and plan came from, for the human output.
 struct Context_ {
     profile: AthleteProfile,
     plan: Option<Plan>,
     plan_source: Option<String>,
+    /// The roster athlete and activity stem when the plan is to be found in the roster.
+    roster_plan: Option<(crate::roster::Athlete, String)>,
 }
 
 /// The roster a file sits in, when its path is `<roster>/<athlete>/activities/<file>`.
@@ -46,7 +48,6 @@ fn load_profile(path: &Path) -> anyhow::Result<AthleteProfile> {
 
 fn context(
     file: &Path,
-    session: &crate::model::Session,
     athlete: Option<&Path>,
     plan_file: Option<&Path>,
     plan_line: Option<&str>,
@@ -76,20 +77,22 @@ fn context(
                 Some("--plan-line".into()),
             )
         }
-        (None, None, Some((a, act))) => {
-            match plans::plan_for_session(a, &act.stem, session.start, session.duration_s())
-                .map_err(|e| anyhow::anyhow!("{e}"))?
-            {
-                Some((path, plan)) => (Some(plan), Some(path.display().to_string())),
-                None => (None, None),
-            }
-        }
+        (None, None, Some(_)) => (None, None),
         (None, None, None) => (None, None),
+    };
+    let roster_plan = match (plan_file, plan_line, located) {
+        (None, None, Some((a, act))) => {
+            let mut a = a.clone();
+            a.profile = profile.clone();
+            Some((a, act.stem.clone()))
+        }
+        _ => None,
     };
     Ok(Context_ {
         profile,
         plan,
         plan_source,
+        roster_plan,
     })
 }
 
@@ -113,7 +116,7 @@ pub fn run(
             return Ok(2);
         }
     };
-    let ctx = context(file, &session, athlete, plan_file, plan_line)?;
+    let ctx = context(file, athlete, plan_file, plan_line)?;
     // Re-flag with the roster profile (HR above its maximum) when it was found there.
     let session = if explicit.is_none() && ctx.profile.hr_max.is_some() {
         let mut s = session;
@@ -122,14 +125,24 @@ pub fn run(
     } else {
         session
     };
-    let mut review = crate::analysis::analyze(&session, ctx.plan.as_ref(), &ctx.profile);
+    // In a roster the day's plan is chosen there; a broken plan file is a note, not a failure.
+    let (mut review, plan_source) = match &ctx.roster_plan {
+        Some((athlete, stem)) => {
+            let (chosen, review) = crate::workspace::analyse_with_plan(athlete, stem, &session);
+            (review, chosen.map(|(p, _)| p.display().to_string()))
+        }
+        None => (
+            crate::analysis::analyze(&session, ctx.plan.as_ref(), &ctx.profile),
+            ctx.plan_source.clone(),
+        ),
+    };
     review.file = file.display().to_string();
     if json {
         println!("{}", serde_json::to_string_pretty(&review)?);
     } else {
         print!(
             "{}",
-            super::review_text::render(&review, &ctx.profile, ctx.plan_source.as_deref())
+            super::review_text::render(&review, &ctx.profile, plan_source.as_deref())
         );
     }
     Ok(0)

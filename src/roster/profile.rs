@@ -126,48 +126,6 @@ pub(crate) fn line_col(text: &str, offset: usize) -> (usize, usize) {
     (line, col)
 }
 
-/// Edit distance (insertions, deletions, substitutions; adjacent swaps count one).
-pub fn edit_distance(a: &str, b: &str) -> usize {
-    let a: Vec<char> = a.chars().collect();
-    let b: Vec<char> = b.chars().collect();
-    let w = b.len() + 1;
-    let mut d = vec![0usize; (a.len() + 1) * w];
-    for (i, row) in d.chunks_mut(w).enumerate() {
-        if let Some(first) = row.first_mut() {
-            *first = i;
-        }
-    }
-    for (j, cell) in d.iter_mut().take(w).enumerate() {
-        *cell = j;
-    }
-    for i in 1..=a.len() {
-        for j in 1..=b.len() {
-            let cost = usize::from(a.get(i - 1) != b.get(j - 1));
-            let mut best = (d[(i - 1) * w + j] + 1)
-                .min(d[i * w + j - 1] + 1)
-                .min(d[(i - 1) * w + j - 1] + cost);
-            if i > 1 && j > 1 && a.get(i - 1) == b.get(j - 2) && a.get(i - 2) == b.get(j - 1) {
-                best = best.min(d[(i - 2) * w + j - 2] + 1);
-            }
-            d[i * w + j] = best;
-        }
-    }
-    d[a.len() * w + b.len()]
-}
-
-/// The candidate closest to `word` when it is close enough to be a likely typo: at most two
-/// edits, and fewer than half the word's length.
-pub fn closest<'a>(word: &str, candidates: impl IntoIterator<Item = &'a str>) -> Option<&'a str> {
-    let lower = word.trim().to_ascii_lowercase();
-    let limit = 2.min(lower.chars().count().saturating_sub(1) / 2 + 1);
-    candidates
-        .into_iter()
-        .map(|c| (edit_distance(&lower, c), c))
-        .filter(|(d, _)| *d <= limit)
-        .min_by_key(|(d, _)| *d)
-        .map(|(_, c)| c)
-}
-
 /// Collects problems while reading.
 struct Reader<'t> {
     text: &'t str,
@@ -207,7 +165,7 @@ impl Reader<'_> {
     fn unknown(&mut self, k: &Spanned<std::borrow::Cow<'_, str>>, prefix: &str, known: &[&str]) {
         let name = k.get_ref().as_ref();
         let full = format!("{prefix}{name}");
-        let suggestion = closest(name, known.iter().copied()).map(str::to_string);
+        let suggestion = crate::plan::closest_name(name, known.iter().copied()).map(str::to_string);
         let message = match &suggestion {
             Some(s) => format!("unknown key {full:?}; did you mean \"{prefix}{s}\"? ignored"),
             None => format!(
@@ -627,14 +585,12 @@ easy = "9:00/mi"
 
     #[test]
     fn closest_only_suggests_likely_typos() {
-        assert_eq!(edit_distance("hr_mx", "hr_max"), 1);
-        assert_eq!(edit_distance("hr_rset", "hr_rest"), 1);
-        assert_eq!(edit_distance("", "abc"), 3);
-        assert_eq!(closest("5kk", ["5k", "10k", "easy"]), Some("5k"));
+        use crate::plan::closest_name;
         assert_eq!(
-            closest("Treshold_pace", PROFILE_KEYS),
+            closest_name("Treshold_pace", PROFILE_KEYS),
             Some("threshold_pace")
         );
-        assert_eq!(closest("weight", PROFILE_KEYS), None);
+        assert_eq!(closest_name("hr_rset", PROFILE_KEYS), Some("hr_rest"));
+        assert_eq!(closest_name("weight", PROFILE_KEYS), None);
     }
 }

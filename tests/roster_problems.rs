@@ -226,6 +226,12 @@ fn a_session_whose_plan_is_broken_is_analysed_without_it_and_says_why() {
         hr.text
     );
     assert!(!hr.text.contains("lacks"), "{}", hr.text);
+    // The athlete's feedback draft is about the running, not the coach's files.
+    let draft = splitdesk::export::feedback::draft(&a.review, &athlete.profile, None);
+    assert!(
+        !draft.contains("Plan not used") && !draft.contains("athlete.toml"),
+        "{draft}"
+    );
     // `analyze` on the file shows the same note instead of failing.
     let out = splitdesk().arg("analyze").arg(&act.path).output().unwrap();
     assert_eq!(
@@ -309,4 +315,29 @@ fn a_profile_or_plan_change_does_not_leave_a_stale_cached_review() {
         .findings
         .iter()
         .any(|f| f.code == "no_hr_profile" && f.text.contains("\"hr_rst\"")));
+}
+
+#[test]
+fn problem_lines_carry_no_control_characters() {
+    let dir = tempfile::tempdir().unwrap();
+    write_roster(dir.path());
+    // A file name with an escape sequence and a bell in it, and a broken plan inside.
+    let name = "2026-11-07-\u{1b}[2Jwipe\u{7}.toml";
+    std::fs::write(
+        dir.path().join("tova-renn/plans").join(name),
+        "title = \"x\"\nsteps = \"3 x 1:00 @ 5k\u{1b}[31m\"\n",
+    )
+    .unwrap();
+    let out = splitdesk().arg("check").arg(dir.path()).output().unwrap();
+    assert_eq!(out.status.code(), Some(1));
+    let text = String::from_utf8(out.stdout).unwrap();
+    assert!(text.contains(" [2Jwipe .toml: line 2"), "{text:?}");
+    assert!(
+        !text.chars().any(|c| c.is_control() && c != '\n'),
+        "{text:?}"
+    );
+    let roster = Roster::open(dir.path()).unwrap();
+    for p in roster.athlete("tova-renn").unwrap().problems() {
+        assert!(!p.to_string().chars().any(char::is_control), "{p}");
+    }
 }

@@ -103,3 +103,37 @@ fn a_session_with_a_broken_plan_opens_without_it_and_says_why() {
         "{text}"
     );
 }
+
+#[test]
+fn the_start_up_scan_re_analyses_sessions_after_a_plan_edit() {
+    let dir = tempfile::tempdir().unwrap();
+    let jdir = tempfile::tempdir().unwrap();
+    let journal = jdir.path().join("journal.sqlite");
+    build_roster(dir.path());
+    let scan = || {
+        let roster = Roster::open(dir.path()).expect("roster");
+        let mut app = App::new(
+            roster,
+            Journal::open_for_roster(&journal, dir.path()).expect("journal"),
+            Options {
+                keymap: KeyMap::default(),
+                theme: Theme::plain(),
+                feedback_dir: None,
+            },
+        );
+        let fx = app.start_scan();
+        run_effects(&mut app, fx);
+        app.journal
+            .cached_summary(INTERVALS, splitdesk::analysis::review::ANALYSIS_VERSION)
+            .unwrap()
+            .expect("summary")
+    };
+    assert!(scan().contains("\"title\":\"5 x 3 min\""));
+    let plan = dir
+        .path()
+        .join("ines-aldana/plans/2024-03-04-intervals.toml");
+    let text = std::fs::read_to_string(&plan).unwrap();
+    std::fs::write(&plan, text.replace("5 x 3 min", "Five threes")).unwrap();
+    let after = scan();
+    assert!(after.contains("\"title\":\"Five threes\""), "{after}");
+}

@@ -341,3 +341,34 @@ fn problem_lines_carry_no_control_characters() {
         assert!(!p.to_string().chars().any(char::is_control), "{p}");
     }
 }
+
+#[test]
+fn analyze_with_an_explicit_profile_uses_its_good_keys_and_warns_about_the_rest() {
+    let dir = tempfile::tempdir().unwrap();
+    write_roster(dir.path());
+    let profile = dir.path().join("elsewhere/athlete.toml");
+    std::fs::create_dir_all(profile.parent().unwrap()).unwrap();
+    std::fs::write(&profile, "name = \"Tova\"\nhr_max = 190\nhr_rset = 50\n").unwrap();
+    let out = splitdesk()
+        .arg("analyze")
+        .arg(dir.path().join("tova-renn/activities/2026-11-01-easy.fit"))
+        .arg("--athlete")
+        .arg(&profile)
+        .arg("--json")
+        .output()
+        .unwrap();
+    assert_eq!(out.status.code(), Some(0));
+    let err = String::from_utf8(out.stderr).unwrap();
+    assert_eq!(
+        err.trim_end(),
+        format!(
+            "warning: {}: line 3, column 1: unknown key \"hr_rset\"; did you mean \"hr_rest\"? \
+             ignored",
+            profile.display()
+        )
+    );
+    let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    // hr_max was read (HR zones exist), hr_rest was not (no load).
+    assert!(v["trimp"].is_null());
+    assert_eq!(v["zones"]["hr"][4]["to_bpm"], 190.0);
+}

@@ -42,20 +42,27 @@ fn load_profile(path: &Path) -> anyhow::Result<AthleteProfile> {
         .and_then(|p| p.file_name())
         .map(|n| n.to_string_lossy().into_owned())
         .unwrap_or_else(|| "athlete".to_string());
-    crate::roster::parse_profile(&text, &id, Units::Km)
-        .map_err(|e| anyhow::anyhow!("{}: {e}", path.display()))
+    // Every valid key is used; each bad one is one warning line.
+    let report = crate::roster::read_profile(&text, &id, Units::Km);
+    for p in &report.problems {
+        eprintln!(
+            "warning: {}",
+            crate::roster::printable(&format!("{}: {p}", path.display()))
+        );
+    }
+    Ok(report.profile)
 }
 
 fn context(
     file: &Path,
-    athlete: Option<&Path>,
+    athlete: Option<&AthleteProfile>,
     plan_file: Option<&Path>,
     plan_line: Option<&str>,
 ) -> anyhow::Result<Context_> {
     let in_roster = roster_of(file).and_then(|root| Roster::open(&root).ok());
     let located = in_roster.as_ref().and_then(|r| r.locate_file(file));
     let profile = match (athlete, located) {
-        (Some(p), _) => load_profile(p)?,
+        (Some(p), _) => p.clone(),
         (None, Some((a, _))) => a.profile.clone(),
         (None, None) => AthleteProfile::bare("athlete"),
     };
@@ -116,7 +123,7 @@ pub fn run(
             return Ok(2);
         }
     };
-    let ctx = context(file, athlete, plan_file, plan_line)?;
+    let ctx = context(file, explicit.as_ref(), plan_file, plan_line)?;
     // Re-flag with the roster profile (HR above its maximum) when it was found there.
     let session = if explicit.is_none() && ctx.profile.hr_max.is_some() {
         let mut s = session;

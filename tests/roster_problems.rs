@@ -67,8 +67,8 @@ fn check_lists_every_profile_and_plan_problem_one_line_each() {
             root.join("plans/2026-11-03-reps.toml").display()
         ),
         format!(
-            "{}: line 2, column 33: pace \"5kk\" is not in the athlete's profile; did you \
-             mean \"5k\"?; targets at that pace are not judged",
+            "{}: line 2, column 33: pace \"5kk\" is not in the athlete's profile (did you \
+             mean \"5k\"?): targets at that pace are not judged",
             root.join("plans/2026-11-05-fartlek.toml").display()
         ),
     ];
@@ -130,7 +130,7 @@ fn plan_check_fails_on_a_pace_the_roster_athlete_lacks() {
         first.starts_with("error: ")
             && first.ends_with(
                 "2026-11-05-fartlek.toml: line 2, column 33: pace \"5kk\" is not in the \
-                 athlete's profile; did you mean \"5k\"?; targets at that pace are not judged"
+                 athlete's profile (did you mean \"5k\"?): targets at that pace are not judged"
             ),
         "{err}"
     );
@@ -162,7 +162,7 @@ fn plan_check_with_an_athlete_checks_a_line_and_passes_known_paces() {
     assert_eq!(
         err.lines().next().unwrap(),
         "error: --line: line 1, column 12: pace \"tempo\" is not in the athlete's profile \
-         (it has: 10k, 5k, easy, half, marathon, threshold); targets at that pace are not judged"
+         (it has: 10k, 5k, easy, half, marathon, threshold): targets at that pace are not judged"
     );
     let ok = splitdesk()
         .args([
@@ -265,8 +265,8 @@ fn a_plan_pace_the_profile_lacks_is_a_finding_of_the_session() {
         .expect("finding");
     assert_eq!(
         f.text,
-        "Plan 2026-11-03-reps.toml: pace \"5kk\" is not in the athlete's profile; did you mean \
-         \"5k\"?; targets at that pace are not judged."
+        "Plan 2026-11-03-reps.toml: pace \"5kk\" is not in the athlete's profile (did you mean \
+         \"5k\"?): targets at that pace are not judged."
     );
     let work = a.review.work().next().unwrap();
     assert_eq!(work.target.as_deref(), Some("5kk (not in the profile)"));

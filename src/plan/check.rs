@@ -24,12 +24,12 @@ impl UnknownPace {
             known.push("threshold");
         }
         let hint = match (&self.suggestion, known.is_empty()) {
-            (Some(s), _) => format!("; did you mean {s:?}?"),
-            (None, true) => "; the profile has no named paces".to_string(),
+            (Some(s), _) => format!(" (did you mean {s:?}?)"),
+            (None, true) => " (the profile has no named paces)".to_string(),
             (None, false) => format!(" (it has: {})", known.join(", ")),
         };
         let what = format!(
-            "pace {:?} is not in the athlete's profile{hint}; targets at that pace are not judged",
+            "pace {:?} is not in the athlete's profile{hint}: targets at that pace are not judged",
             self.name
         );
         match self.position {
@@ -190,8 +190,8 @@ mod tests {
         );
         assert_eq!(
             u[0].message(&profile()),
-            "line 1, column 24: pace \"5kk\" is not in the athlete's profile; did you mean \
-             \"5k\"?; targets at that pace are not judged"
+            "line 1, column 24: pace \"5kk\" is not in the athlete's profile (did you mean \
+             \"5k\"?): targets at that pace are not judged"
         );
     }
 

@@ -7,6 +7,7 @@ use std::path::{Path, PathBuf};
 
 use chrono::{DateTime, Utc};
 
+use crate::analysis::findings::{Finding, Severity};
 use crate::analysis::review::{Review, ANALYSIS_VERSION};
 use crate::ingest::{self, IngestError};
 use crate::journal::{self, Journal, JournalError, SessionRecord, SummaryCache};
@@ -43,15 +44,40 @@ pub struct Analysed {
     pub plan: Option<Plan>,
     pub plan_path: Option<PathBuf>,
     pub review: Review,
+    /// The athlete's [`Athlete::inputs_digest`] the review was made under.
+    pub inputs_digest: String,
+}
+
+/// The key of the summary JSON that holds the inputs digest (the review itself ignores it).
+const INPUTS_KEY: &str = "analysis_inputs";
+
+/// Whether a cached summary was made under the athlete's current profile and plans.
+pub fn summary_is_current(json: &str, athlete: &Athlete) -> bool {
+    serde_json::from_str::<serde_json::Value>(json)
+        .ok()
+        .and_then(|v| {
+            v.get(INPUTS_KEY)
+                .and_then(|d| d.as_str())
+                .map(|d| d == athlete.inputs_digest)
+        })
+        .unwrap_or(false)
 }
 
 impl Analysed {
     /// The journal record of this session, with its summary.
     pub fn record(&self) -> Result<SessionRecord, WorkspaceError> {
-        let json = serde_json::to_string(&self.review).map_err(|e| WorkspaceError::BadCache {
+        let bad = |e: serde_json::Error| WorkspaceError::BadCache {
             path: self.path.clone(),
             message: e.to_string(),
-        })?;
+        };
+        let mut value = serde_json::to_value(&self.review).map_err(bad)?;
+        if let Some(map) = value.as_object_mut() {
+            map.insert(
+                INPUTS_KEY.to_string(),
+                serde_json::Value::String(self.inputs_digest.clone()),
+            );
+        }
+        let json = serde_json::to_string(&value).map_err(bad)?;
         Ok(SessionRecord {
             session_id: self.session_id.clone(),
             athlete_id: self.athlete_id.clone(),
@@ -88,12 +114,11 @@ fn analyse_bytes(
                 source,
             }
         })?;
-    let (plan_path, plan) =
-        match plans::plan_for_session(athlete, &act.stem, session.start, session.duration_s())? {
-            Some((p, plan)) => (Some(p), Some(plan)),
-            None => (None, None),
-        };
-    let mut review = crate::analysis::analyze(&session, plan.as_ref(), &athlete.profile);
+    let (chosen, mut review) = analyse_with_plan(athlete, &act.stem, &session);
+    let (plan_path, plan) = match chosen {
+        Some((p, plan)) => (Some(p), Some(plan)),
+        None => (None, None),
+    };
     review.file = act.path.display().to_string();
     Ok(Analysed {
         session_id: athlete.session_id(act),
@@ -103,6 +128,7 @@ fn analyse_bytes(
         plan,
         plan_path,
         review,
+        inputs_digest: athlete.inputs_digest.clone(),
     })
 }
 
@@ -140,6 +166,110 @@ pub fn athlete_summaries_until(
 /// How far back [`athlete_summaries_until`] reads, days: the chronic average's weight
 /// after a year is (27/29)^365, about 5e-12.
 pub const SPIKE_LOOKBACK_DAYS: i64 = 365;
+/// The note a review carries when the session's plan file could not be used; it starts the
+/// review's interval notes, and the verdict pane shows it in place of the plan.
+pub const PLAN_NOT_USED: &str = "plan not used";
+
+/// Analyse a session of a roster athlete with the plan chosen for it ([`plans::choose_plan`]).
+/// Plan and profile problems that touch this session become notes and findings instead of
+/// failures: a broken plan file leaves the session analysed without it and says why, a pace
+/// the profile lacks is named, and a missing-HR finding caused by a bad profile key says so.
+pub fn analyse_with_plan(
+    athlete: &Athlete,
+    stem: &str,
+    session: &Session,
+) -> (Option<(PathBuf, Plan)>, Review) {
+    let choice = plans::choose_plan(athlete, stem, session.start, session.duration_s());
+    let plan = choice.plan.as_ref().map(|(_, p)| p);
+    let mut review = crate::analysis::analyze(session, plan, &athlete.profile);
+    annotate(&mut review, athlete, &choice);
+    (choice.plan, review)
+}
+
+fn file_name(path: &Path) -> String {
+    crate::roster::printable(
+        &path
+            .file_name()
+            .map(|n| n.to_string_lossy().into_owned())
+            .unwrap_or_else(|| path.display().to_string()),
+    )
+}
+
+fn finding(severity: Severity, code: &str, text: String, metrics: &[&str]) -> Finding {
+    Finding {
+        severity,
+        code: code.to_string(),
+        text: crate::roster::printable(&text),
+        metrics: metrics.iter().map(|m| m.to_string()).collect(),
+    }
+}
+
+/// Add the plan and profile problems that concern this session to its review.
+fn annotate(review: &mut Review, athlete: &Athlete, choice: &plans::PlanChoice) {
+    let mut front = Vec::new();
+    for (k, e) in choice.broken.iter().enumerate() {
+        let name = file_name(e.path());
+        let reason = crate::roster::printable(&e.reason());
+        review
+            .interval_notes
+            .insert(k, format!("{PLAN_NOT_USED}: {name}: {reason}"));
+        let text = match &choice.plan {
+            None => format!(
+                "Plan not used: {name} could not be read ({reason}). The intervals were found \
+                 from the speed; fix the plan file to judge the targets."
+            ),
+            Some((used, _)) => format!(
+                "Plan file {name} could not be read ({reason}); the session was judged \
+                 against {} instead.",
+                file_name(used)
+            ),
+        };
+        front.push(finding(Severity::Warning, "plan_not_used", text, &["plan"]));
+    }
+    if let Some((path, plan)) = &choice.plan {
+        for u in crate::plan::unknown_paces(plan, &athlete.profile, "") {
+            let text = format!("Plan {}: {}.", file_name(path), u.message(&athlete.profile));
+            front.push(finding(
+                Severity::Warning,
+                "plan_pace_unknown",
+                text,
+                &["intervals.target"],
+            ));
+        }
+    }
+    let profile = &athlete.profile_problems;
+    let hr_problem = profile
+        .iter()
+        .find(|p| p.concerns("hr_max") || p.concerns("hr_rest"));
+    if let (Some(p), Some(f)) = (
+        hr_problem,
+        review
+            .findings
+            .iter_mut()
+            .find(|f| f.code == "no_hr_profile"),
+    ) {
+        f.text = crate::roster::printable(&format!(
+            "The profile's resting or maximum HR could not be read (athlete.toml {p}): load \
+             (TRIMP) is not computed."
+        ));
+    }
+    if let Some(first) = profile.first() {
+        let more = match profile.len() {
+            1 => String::new(),
+            n => format!("; {} more", n - 1),
+        };
+        front.push(finding(
+            Severity::Note,
+            "profile_problems",
+            format!(
+                "athlete.toml has a problem ({first}{more}): keys that could not be read are \
+                 left out of this review."
+            ),
+            &["profile"],
+        ));
+    }
+    review.findings.splice(0..0, front);
+}
 
 /// What `sync` did.
 #[derive(Debug, Default)]
@@ -195,7 +325,8 @@ impl Workspace {
     }
 
     /// Bring one session up to date in the journal: hash the file, record it, and analyse it
-    /// unless the journal already holds a summary of this content by this analysis version.
+    /// unless the journal already holds a summary of this content by this analysis version,
+    /// made under the athlete's current profile and plans.
     /// Returns the review.
     pub fn refresh(
         &mut self,
@@ -218,7 +349,10 @@ impl Workspace {
             source,
         })?;
         let hash = ingest::hash::sha256_hex(&bytes);
-        if let Some(json) = self.cached(session_id, &hash)? {
+        if let Some(json) = self
+            .cached(session_id, &hash)?
+            .filter(|json| summary_is_current(json, &athlete))
+        {
             let review = serde_json::from_str(&json).map_err(|e| WorkspaceError::BadCache {
                 path: act.path.clone(),
                 message: e.to_string(),

@@ -309,17 +309,18 @@ fn listing_resolves_named_paces_against_the_profile() {
 #[test]
 fn plan_check_exit_codes() {
     use splitdesk::cli::plan_cmd::run_check;
-    let ok = run_check(None, Some(BASE), false).unwrap_or_else(|e| panic!("{e}"));
+    let ok = run_check(None, Some(BASE), None, false).unwrap_or_else(|e| panic!("{e}"));
     assert_eq!(ok, 0);
-    let ok = run_check(None, Some(BASE), true).unwrap_or_else(|e| panic!("{e}"));
+    let ok = run_check(None, Some(BASE), None, true).unwrap_or_else(|e| panic!("{e}"));
     assert_eq!(ok, 0);
-    let bad = run_check(None, Some("12:00 easy; 5 x x"), false).unwrap_or_else(|e| panic!("{e}"));
+    let bad =
+        run_check(None, Some("12:00 easy; 5 x x"), None, false).unwrap_or_else(|e| panic!("{e}"));
     assert_eq!(bad, 2);
-    let neither = run_check(None, None, false).unwrap_or_else(|e| panic!("{e}"));
+    let neither = run_check(None, None, None, false).unwrap_or_else(|e| panic!("{e}"));
     assert_eq!(neither, 2);
     let path = std::path::Path::new(env!("CARGO_MANIFEST_DIR"))
         .join("assets/plans/2026-10-16-progression-repeats.toml");
-    assert_eq!(run_check(Some(&path), None, false).ok(), Some(0));
+    assert_eq!(run_check(Some(&path), None, None, false).ok(), Some(0));
     let missing = std::path::Path::new("/nonexistent/plan.toml");
-    assert_eq!(run_check(Some(missing), None, false).ok(), Some(2));
+    assert_eq!(run_check(Some(missing), None, None, false).ok(), Some(2));
 }

@@ -63,8 +63,15 @@ fn discovers_athletes_activities_notes_and_plans() {
     assert!(r.find_session("cy-ode/b").is_none());
 
     let msgs: Vec<String> = r.problems.iter().map(|p| p.to_string()).collect();
-    assert_eq!(msgs.len(), 2, "{msgs:?}");
+    assert_eq!(msgs.len(), 3, "{msgs:?}");
     assert!(msgs.iter().any(|m| m.contains("photo.jpg")));
+    // A plan file that is not a plan is listed too (and kept on the athlete).
+    assert!(msgs.iter().any(|m| m.ends_with(
+        "2026-10-02-reps.toml: line 1, column 12: missing steps: add steps = \"...\" \
+         (shorthand) or [[step]] tables"
+    )));
+    assert_eq!(bo.plan_problems.len(), 1);
+    assert_eq!(r.athlete("di-vo").unwrap().profile_problems.len(), 1);
     assert!(msgs
         .iter()
         .any(|m| m.contains("di-vo") && m.contains("athlete.toml") && m.contains("line 1")));

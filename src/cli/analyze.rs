@@ -9,7 +9,7 @@ use anyhow::Context;
 
 use crate::ingest;
 use crate::model::{AthleteProfile, Plan, Units};
-use crate::roster::{plans, Roster};
+use crate::roster::Roster;
 
 /// Where the profile and plan came from, for the human output.
 struct Context_ {
@@ -18,6 +18,8 @@ struct Context_ {
     plan_source: Option<String>,
     /// The roster's athlete and the session id, when the file is inside a roster.
     roster_athlete: Option<(crate::roster::Athlete, String)>,
+    /// The roster athlete and activity stem when the plan is to be found in the roster.
+    roster_plan: Option<(crate::roster::Athlete, String)>,
 }
 
 /// The roster a file sits in, when its path is `<roster>/<athlete>/activities/<file>`.
@@ -42,21 +44,27 @@ fn load_profile(path: &Path) -> anyhow::Result<AthleteProfile> {
         .and_then(|p| p.file_name())
         .map(|n| n.to_string_lossy().into_owned())
         .unwrap_or_else(|| "athlete".to_string());
-    crate::roster::parse_profile(&text, &id, Units::Km)
-        .map_err(|e| anyhow::anyhow!("{}: {e}", path.display()))
+    // Every valid key is used; each bad one is one warning line.
+    let report = crate::roster::read_profile(&text, &id, Units::Km);
+    for p in &report.problems {
+        eprintln!(
+            "warning: {}",
+            crate::roster::printable(&format!("{}: {p}", path.display()))
+        );
+    }
+    Ok(report.profile)
 }
 
 fn context(
     file: &Path,
-    session: &crate::model::Session,
-    athlete: Option<&Path>,
+    athlete: Option<&AthleteProfile>,
     plan_file: Option<&Path>,
     plan_line: Option<&str>,
 ) -> anyhow::Result<Context_> {
     let in_roster = roster_of(file).and_then(|root| Roster::open(&root).ok());
     let located = in_roster.as_ref().and_then(|r| r.locate_file(file));
     let profile = match (athlete, located) {
-        (Some(p), _) => load_profile(p)?,
+        (Some(p), _) => p.clone(),
         (None, Some((a, _))) => a.profile.clone(),
         (None, None) => AthleteProfile::bare("athlete"),
     };
@@ -78,22 +86,24 @@ fn context(
                 Some("--plan-line".into()),
             )
         }
-        (None, None, Some((a, act))) => {
-            match plans::plan_for_session(a, &act.stem, session.start, session.duration_s())
-                .map_err(|e| anyhow::anyhow!("{e}"))?
-            {
-                Some((path, plan)) => (Some(plan), Some(path.display().to_string())),
-                None => (None, None),
-            }
-        }
+        (None, None, Some(_)) => (None, None),
         (None, None, None) => (None, None),
     };
     let roster_athlete = located.map(|(a, act)| (a.clone(), a.session_id(act)));
+    let roster_plan = match (plan_file, plan_line, located) {
+        (None, None, Some((a, act))) => {
+            let mut a = a.clone();
+            a.profile = profile.clone();
+            Some((a, act.stem.clone()))
+        }
+        _ => None,
+    };
     Ok(Context_ {
         profile,
         plan,
         plan_source,
         roster_athlete,
+        roster_plan,
     })
 }
 
@@ -117,7 +127,7 @@ pub fn run(
             return Ok(2);
         }
     };
-    let ctx = context(file, &session, athlete, plan_file, plan_line)?;
+    let ctx = context(file, explicit.as_ref(), plan_file, plan_line)?;
     // Re-flag with the roster profile (HR above its maximum) when it was found there.
     let session = if explicit.is_none() && ctx.profile.hr_max.is_some() {
         let mut s = session;
@@ -126,7 +136,17 @@ pub fn run(
     } else {
         session
     };
-    let mut review = crate::analysis::analyze(&session, ctx.plan.as_ref(), &ctx.profile);
+    // In a roster the day's plan is chosen there; a broken plan file is a note, not a failure.
+    let (mut review, plan_source) = match &ctx.roster_plan {
+        Some((athlete, stem)) => {
+            let (chosen, review) = crate::workspace::analyse_with_plan(athlete, stem, &session);
+            (review, chosen.map(|(p, _)| p.display().to_string()))
+        }
+        None => (
+            crate::analysis::analyze(&session, ctx.plan.as_ref(), &ctx.profile),
+            ctx.plan_source.clone(),
+        ),
+    };
     review.file = file.display().to_string();
     // Inside a roster: the load-spike caution, from the athlete's other sessions.
     if let Some((athlete, id)) = &ctx.roster_athlete {
@@ -143,7 +163,7 @@ pub fn run(
     } else {
         print!(
             "{}",
-            super::review_text::render(&review, &ctx.profile, ctx.plan_source.as_deref())
+            super::review_text::render(&review, &ctx.profile, plan_source.as_deref())
         );
     }
     Ok(0)

@@ -1,11 +1,12 @@
-//! `splitdesk check ROSTER`: read every file of a roster and list each problem.
+//! `splitdesk check ROSTER`: read every file of a roster and list each problem: activity files
+//! that cannot be read, and every profile and plan problem (`PATH: line L, column C: what`).
 
 use std::path::Path;
 
 use serde::Serialize;
 
 use crate::ingest;
-use crate::roster::Roster;
+use crate::roster::{printable, Roster};
 
 #[derive(Debug, Serialize)]
 struct ProblemOut {
@@ -13,6 +14,8 @@ struct ProblemOut {
     problem: String,
     /// True when the file could not be read at all.
     unreadable: bool,
+    /// True for a problem in an athlete's profile or plan files.
+    profile_or_plan: bool,
 }
 
 #[derive(Debug, Serialize)]
@@ -24,16 +27,20 @@ struct CheckOut {
     problems: Vec<ProblemOut>,
 }
 
-/// Exit 1 when any activity file is unreadable, 0 otherwise (other problems are listed).
+/// Exit 1 when any activity file is unreadable or a profile or plan has a problem, 0
+/// otherwise (other problems, such as a stray file, are listed).
 pub fn run(root: &Path, json: bool) -> anyhow::Result<i32> {
     let roster = Roster::open(root)?;
+    let athlete_problems: Vec<crate::roster::Problem> =
+        roster.athletes.iter().flat_map(|a| a.problems()).collect();
     let mut problems: Vec<ProblemOut> = roster
         .problems
         .iter()
         .map(|p| ProblemOut {
-            path: p.path.display().to_string(),
-            problem: p.message.clone(),
+            path: printable(&p.path.display().to_string()),
+            problem: printable(&p.message),
             unreadable: false,
+            profile_or_plan: athlete_problems.contains(p),
         })
         .collect();
     let total = roster.activities().count();
@@ -43,18 +50,19 @@ pub fn run(root: &Path, json: bool) -> anyhow::Result<i32> {
         match ingest::ingest_file(&act.path, Some(&athlete.profile)) {
             Ok(_) => readable += 1,
             Err(e) => problems.push(ProblemOut {
-                path: act.path.display().to_string(),
-                problem: match &e {
+                path: printable(&act.path.display().to_string()),
+                problem: printable(&match &e {
                     ingest::IngestError::Io { source, .. } => source.to_string(),
                     ingest::IngestError::Parse { source, .. } => source.to_string(),
-                },
+                }),
                 unreadable: true,
+                profile_or_plan: false,
             }),
         }
         bar.inc(1);
     }
     bar.finish_and_clear();
-    let unreadable = problems.iter().any(|p| p.unreadable);
+    let failing = problems.iter().any(|p| p.unreadable || p.profile_or_plan);
     let out = CheckOut {
         roster: roster.root.display().to_string(),
         athletes: roster.athletes.len(),
@@ -78,5 +86,5 @@ pub fn run(root: &Path, json: bool) -> anyhow::Result<i32> {
             if out.problems.len() == 1 { "" } else { "s" }
         );
     }
-    Ok(if unreadable { 1 } else { 0 })
+    Ok(if failing { 1 } else { 0 })
 }

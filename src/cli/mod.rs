@@ -217,6 +217,10 @@ pub enum PlanCommand {
         /// A one-line plan in shorthand, e.g. "12:00 easy; 5 x 3:00 @ half / 2:00 jog; 8:00 easy".
         #[arg(long, value_name = "TEXT")]
         line: Option<String>,
+        /// Check pace names against this athlete (an athlete folder or its athlete.toml).
+        /// A plan file inside a roster athlete folder is checked against its athlete anyway.
+        #[arg(long, value_name = "PATH")]
+        athlete: Option<PathBuf>,
         /// Print JSON instead of text.
         #[arg(long)]
         json: bool,
@@ -251,9 +255,12 @@ pub fn run(cli: Cli) -> anyhow::Result<i32> {
             plan_line.as_deref(),
             json,
         ),
-        Some(Command::Plan(PlanCommand::Check { file, line, json })) => {
-            plan_cmd::run_check(file.as_deref(), line.as_deref(), json)
-        }
+        Some(Command::Plan(PlanCommand::Check {
+            file,
+            line,
+            athlete,
+            json,
+        })) => plan_cmd::run_check(file.as_deref(), line.as_deref(), athlete.as_deref(), json),
         Some(Command::Completions { shell }) => {
             let mut cmd = <Cli as clap::CommandFactory>::command();
             clap_complete::generate(shell, &mut cmd, "splitdesk", &mut std::io::stdout());

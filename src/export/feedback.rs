@@ -66,6 +66,10 @@ fn facts(findings: &[Finding]) -> Vec<String> {
                     | "inferred"
                     | "hr_drop_info"
                     | "targets_on_hill"
+                    // Problems in the coach's own files, not about the running.
+                    | "plan_not_used"
+                    | "plan_pace_unknown"
+                    | "profile_problems"
             ) && f.severity != Severity::Caution
         })
         .take(3)

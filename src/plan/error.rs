@@ -48,6 +48,16 @@ impl fmt::Display for PlanError {
 }
 
 impl PlanError {
+    /// One line for listings: `line L, column C: what` (with the TOML key first when the
+    /// position is relative to that key's string).
+    pub fn located(&self) -> String {
+        let at = format!("line {}, column {}: {}", self.line, self.column, self.kind);
+        match &self.context {
+            Some(ctx) => format!("{ctx}: {at}"),
+            None => at,
+        }
+    }
+
     /// An error at byte `offset` of `text` (clamped to the text).
     pub(crate) fn at(text: &str, offset: usize, kind: PlanErrorKind) -> PlanError {
         let (line, column) = line_col(text, offset);
@@ -109,6 +119,23 @@ pub enum PlanFileError {
         #[source]
         source: PlanError,
     },
+}
+
+impl PlanFileError {
+    /// The file.
+    pub fn path(&self) -> &std::path::Path {
+        match self {
+            PlanFileError::Io { path, .. } | PlanFileError::Parse { path, .. } => path,
+        }
+    }
+
+    /// What is wrong without the path: `line L, column C: ...` or the I/O error.
+    pub fn reason(&self) -> String {
+        match self {
+            PlanFileError::Io { source, .. } => source.to_string(),
+            PlanFileError::Parse { source, .. } => source.located(),
+        }
+    }
 }
 
 #[cfg(test)]

@@ -9,6 +9,7 @@
 //!
 //! Everything here is pure except [`load`], a thin `read_to_string` wrapper.
 
+mod check;
 mod error;
 mod format;
 mod lexer;
@@ -17,6 +18,7 @@ mod toml_file;
 
 use std::path::Path;
 
+pub use check::{closest_name, edit_distance, unknown_paces, UnknownPace};
 pub use error::{PlanError, PlanErrorKind, PlanFileError};
 pub use format::format_expanded;
 pub use shorthand::describe_line;

@@ -22,7 +22,7 @@ use serde::Deserialize;
 
 use crate::model::{AthleteProfile, FileFormat, Units};
 
-pub use profile::{parse_profile, ProfileError};
+pub use profile::{parse_profile, read_profile, ProfileError, ProfileProblem, ProfileReport};
 
 /// The roster root itself could not be read.
 #[derive(Debug, thiserror::Error)]
@@ -46,8 +46,22 @@ pub struct Problem {
 
 impl std::fmt::Display for Problem {
     fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
-        write!(f, "{}: {}", self.path.display(), self.message)
+        write!(
+            f,
+            "{}: {}",
+            printable(&self.path.display().to_string()),
+            printable(&self.message)
+        )
     }
+}
+
+/// Text from the roster made safe for a terminal: control characters (escape sequences,
+/// carriage returns, bells...) become spaces, so a file name or a file's contents cannot
+/// move the cursor or restyle the screen.
+pub fn printable(s: &str) -> String {
+    s.chars()
+        .map(|c| if c.is_control() { ' ' } else { c })
+        .collect()
 }
 
 /// One recorded-session file of an athlete.
@@ -71,9 +85,40 @@ pub struct Athlete {
     pub activities: Vec<Activity>,
     /// Plan files (`plans/*.toml`), sorted by file name.
     pub plan_files: Vec<PathBuf>,
+    /// What is wrong in `athlete.toml`; `profile` holds every key that could be read.
+    pub profile_problems: Vec<ProfileProblem>,
+    /// Plan files that cannot be read, or that name paces the profile does not have.
+    pub plan_problems: Vec<Problem>,
+    /// A digest of everything besides the activity file that a review of this athlete's
+    /// sessions depends on (the profile file and every plan file, names and contents): a
+    /// cached review made under another digest is stale.
+    pub inputs_digest: String,
 }
 
 impl Athlete {
+    /// The athlete's `athlete.toml`.
+    pub fn profile_path(&self) -> PathBuf {
+        self.dir.join("athlete.toml")
+    }
+
+    /// Every profile and plan problem of this athlete, one line each, profile first.
+    pub fn problems(&self) -> Vec<Problem> {
+        let profile = self.profile_path();
+        self.profile_problems
+            .iter()
+            .map(|p| Problem {
+                path: profile.clone(),
+                message: p.to_string(),
+            })
+            .chain(self.plan_problems.iter().cloned())
+            .collect()
+    }
+
+    /// Whether the profile or a plan has a problem.
+    pub fn has_problems(&self) -> bool {
+        !self.profile_problems.is_empty() || !self.plan_problems.is_empty()
+    }
+
     /// The stable session id of an activity: `<athlete-id>/<file-stem>`.
     pub fn session_id(&self, activity: &Activity) -> String {
         format!("{}/{}", self.id, activity.stem)
@@ -184,19 +229,15 @@ impl Roster {
                 // Not an athlete folder (e.g. a stray folder in a synced roster).
                 continue;
             }
+            let mut profile_problems = Vec::new();
+            let mut inputs = Vec::new();
             let profile = match std::fs::read_to_string(&profile_path) {
-                Ok(text) => match parse_profile(&text, &id, units) {
-                    Ok(p) => p,
-                    Err(e) => {
-                        problems.push(Problem {
-                            path: profile_path.clone(),
-                            message: e.to_string(),
-                        });
-                        let mut p = AthleteProfile::bare(&id);
-                        p.units = units;
-                        p
-                    }
-                },
+                Ok(text) => {
+                    inputs.extend_from_slice(text.as_bytes());
+                    let report = read_profile(&text, &id, units);
+                    profile_problems = report.problems;
+                    report.profile
+                }
                 Err(e) => {
                     problems.push(Problem {
                         path: profile_path.clone(),
@@ -212,14 +253,29 @@ impl Roster {
                     p.extension()
                         .is_some_and(|e| e.eq_ignore_ascii_case("toml"))
                 })
+                .collect::<Vec<_>>();
+            let plan_problems: Vec<Problem> = plan_files
+                .iter()
+                .flat_map(|p| plans::check_plan_file(p, &profile))
                 .collect();
-            athletes.push(Athlete {
+            for p in &plan_files {
+                inputs.extend_from_slice(b"\0plan\0");
+                inputs.extend_from_slice(p.to_string_lossy().as_bytes());
+                inputs.push(0);
+                inputs.extend_from_slice(&std::fs::read(p).unwrap_or_default());
+            }
+            let athlete = Athlete {
                 id,
                 dir,
                 profile,
                 activities,
                 plan_files,
-            });
+                profile_problems,
+                plan_problems,
+                inputs_digest: crate::ingest::hash::sha256_hex(&inputs),
+            };
+            problems.extend(athlete.problems());
+            athletes.push(athlete);
         }
         Ok(Roster {
             root: root.to_path_buf(),

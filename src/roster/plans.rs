@@ -4,10 +4,10 @@ use std::path::{Path, PathBuf};
 
 use chrono::{DateTime, NaiveDate, Utc};
 
-use crate::model::{Amount, Plan};
+use crate::model::{Amount, AthleteProfile, Plan};
 use crate::plan::PlanFileError;
 
-use super::Athlete;
+use super::{Athlete, Problem};
 
 /// Speed used to turn a distance step into a time when comparing plans, m/s.
 /// Our design choice: only used to rank two plans of the same day.
@@ -37,22 +37,35 @@ fn stem_of(path: &Path) -> Option<&str> {
     path.file_stem().and_then(|s| s.to_str())
 }
 
+/// The plan chosen for a session, and the plan files of its day that could not be used.
+#[derive(Debug, Default)]
+pub struct PlanChoice {
+    pub plan: Option<(PathBuf, Plan)>,
+    /// Plan files meant for this session (same stem, or dated on its day) that failed to load.
+    pub broken: Vec<PlanFileError>,
+}
+
 /// The plan for the session of activity `stem`: a plan file with the same stem as the
 /// activity when there is one (an explicit pairing); otherwise, among the athlete's plans
 /// dated on the session's day ([`session_day`]; a plan's `date` key, else its file-name
 /// date) and not paired with another of the athlete's activities, the one whose planned
-/// length is closest to the session's duration. A plan file that fails to load is an error
-/// for the sessions of its file-name day, so the caller can report it; for other days (and
-/// when its name carries no date) it is left to `splitdesk plan check`.
-pub fn plan_for_session(
+/// length is closest to the session's duration. A plan file meant for the session (its
+/// pairing, or dated by its file name on the session's day) that fails to load is listed in
+/// `broken`, so the session can be analysed without it and say why; other broken files are
+/// left to `splitdesk check` and `splitdesk plan check`.
+pub fn choose_plan(
     athlete: &Athlete,
     stem: &str,
     start: DateTime<Utc>,
     duration_s: f64,
-) -> Result<Option<(PathBuf, Plan)>, PlanFileError> {
+) -> PlanChoice {
+    let mut choice = PlanChoice::default();
     if let Some(path) = athlete.plan_files.iter().find(|p| stem_of(p) == Some(stem)) {
-        let plan = crate::plan::load(path)?;
-        return Ok(Some((path.clone(), plan)));
+        match crate::plan::load(path) {
+            Ok(plan) => choice.plan = Some((path.clone(), plan)),
+            Err(e) => choice.broken.push(e),
+        }
+        return choice;
     }
     let day = session_day(stem, start);
     let paired_elsewhere =
@@ -64,8 +77,12 @@ pub fn plan_for_session(
         }
         let plan = match crate::plan::load(path) {
             Ok(plan) => plan,
-            Err(e) if file_date(path) == Some(day) => return Err(e),
-            Err(_) => continue,
+            Err(e) => {
+                if file_date(path) == Some(day) {
+                    choice.broken.push(e);
+                }
+                continue;
+            }
         };
         if plan.date != Some(day) {
             continue;
@@ -75,5 +92,42 @@ pub fn plan_for_session(
             best = Some((miss, path.clone(), plan));
         }
     }
-    Ok(best.map(|(_, p, plan)| (p, plan)))
+    choice.plan = best.map(|(_, p, plan)| (p, plan));
+    choice
+}
+
+/// [`choose_plan`] as a result: the first broken plan file of the session is an error.
+pub fn plan_for_session(
+    athlete: &Athlete,
+    stem: &str,
+    start: DateTime<Utc>,
+    duration_s: f64,
+) -> Result<Option<(PathBuf, Plan)>, PlanFileError> {
+    let mut choice = choose_plan(athlete, stem, start, duration_s);
+    if choice.broken.is_empty() {
+        Ok(choice.plan)
+    } else {
+        Err(choice.broken.remove(0))
+    }
+}
+
+/// The problems of one plan file for an athlete, one line each: the file cannot be read, is
+/// not a valid plan (`line L, column C: ...`), or names paces the profile does not have.
+pub fn check_plan_file(path: &Path, profile: &AthleteProfile) -> Vec<Problem> {
+    let problem = |message: String| Problem {
+        path: path.to_path_buf(),
+        message,
+    };
+    let text = match std::fs::read_to_string(path) {
+        Ok(t) => t,
+        Err(e) => return vec![problem(e.to_string())],
+    };
+    let name = path.file_name().and_then(|n| n.to_str());
+    match crate::plan::parse_toml(&text, name) {
+        Err(e) => vec![problem(e.located())],
+        Ok(plan) => crate::plan::unknown_paces(&plan, profile, &text)
+            .iter()
+            .map(|u| problem(u.message(profile)))
+            .collect(),
+    }
 }

@@ -572,9 +572,10 @@ impl App {
         for athlete in &self.athletes {
             for act in &athlete.activities {
                 let id = athlete.session_id(act);
+                // A summary made under another profile or other plans is stale.
                 let cached = matches!(
                     self.journal.cached_summary(&id, ANALYSIS_VERSION),
-                    Ok(Some(_))
+                    Ok(Some(json)) if crate::workspace::summary_is_current(&json, athlete)
                 );
                 let cached_hash = if cached {
                     self.journal.session_hash(&id).ok().flatten()

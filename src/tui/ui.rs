@@ -188,6 +188,8 @@ fn draw_welcome(app: &App, area: Rect, buf: &mut Buffer) {
             t.dim,
         ),
     ];
+    let mut lines = lines;
+    lines.extend(panes::roster::athlete_problems(app));
     Paragraph::new(lines)
         .wrap(Wrap { trim: false })
         .render(inner, buf);

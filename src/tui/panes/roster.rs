@@ -6,6 +6,7 @@ use ratatui::text::{Line, Span};
 use ratatui::widgets::{Paragraph, Widget};
 
 use super::{fit, pad};
+use crate::roster::printable;
 use crate::tui::app::{App, Focus, RosterRow};
 use crate::tui::ui::pane_block;
 
@@ -45,7 +46,11 @@ pub fn render(app: &App, area: Rect, buf: &mut Buffer) {
             t.dim,
         ));
     }
-    let visible = (inner.height as usize).saturating_sub(header_rows).max(1);
+    // The profile and plan problems of the athlete under the cursor, at the foot of the pane.
+    let footer = problem_lines(app, w, inner.height as usize);
+    let visible = (inner.height as usize)
+        .saturating_sub(header_rows + footer.len())
+        .max(1);
     let cur = app.cursor_index(&rows).unwrap_or(0);
     let first = cur.saturating_sub(visible.saturating_sub(1).min(visible / 2 + visible / 4));
     let first = first.min(rows.len().saturating_sub(visible));
@@ -63,11 +68,13 @@ pub fn render(app: &App, area: Rect, buf: &mut Buffer) {
                 };
                 let expanded = app.cursor.athlete.as_deref() == Some(a.id.as_str());
                 let mark = if expanded { "▾ " } else { "▸ " };
-                let name_w = w.saturating_sub(2 + 4);
+                let flag = if a.has_problems() { " !" } else { "" };
+                let name_w = w.saturating_sub(2 + 4 + flag.len());
                 let style = if selected { t.selected } else { t.heading };
                 Line::from(vec![
                     Span::styled(mark, style),
-                    Span::styled(pad(&a.profile.name, name_w), style),
+                    Span::styled(pad(&printable(&a.profile.name), name_w), style),
+                    Span::styled(flag, if selected { t.selected } else { t.warn }),
                     Span::styled(
                         format!(" {count}"),
                         if selected {
@@ -126,4 +133,110 @@ pub fn render(app: &App, area: Rect, buf: &mut Buffer) {
         lines.push(line);
     }
     Paragraph::new(lines).render(inner, buf);
+    if !footer.is_empty() {
+        let h = footer.len() as u16;
+        let area = Rect::new(inner.x, inner.y + inner.height - h, inner.width, h);
+        Paragraph::new(footer).render(area, buf);
+    }
+}
+
+/// The foot of the roster pane when the athlete under the cursor has profile or plan
+/// problems: a heading and the first problems, one line each (file name, not the full path).
+fn problem_lines(app: &App, w: usize, height: usize) -> Vec<Line<'static>> {
+    let t = &app.theme;
+    let Some(a) = app
+        .cursor
+        .athlete
+        .as_deref()
+        .and_then(|id| app.roster.athlete(id))
+    else {
+        return Vec::new();
+    };
+    let problems = a.problems();
+    // Leave the roster itself at least half the pane.
+    let room = (height / 2).min(4);
+    if problems.is_empty() || room < 2 {
+        return Vec::new();
+    }
+    let mut out = vec![Line::styled(
+        fit(
+            &format!(
+                "! {} file problem{}:",
+                problems.len(),
+                if problems.len() == 1 { "" } else { "s" },
+            ),
+            w,
+        ),
+        t.warn,
+    )];
+    let shown = if problems.len() < room {
+        problems.len()
+    } else {
+        room - 2
+    };
+    for p in problems.iter().take(shown) {
+        let file = p
+            .path
+            .file_name()
+            .map(|n| n.to_string_lossy().into_owned())
+            .unwrap_or_default();
+        out.push(Line::styled(
+            fit(&printable(&format!("{file}: {}", p.message)), w),
+            t.text,
+        ));
+    }
+    if shown < problems.len() {
+        out.push(Line::styled(
+            fit(
+                &format!(
+                    "… {} more: splitdesk check lists them all",
+                    problems.len() - shown
+                ),
+                w,
+            ),
+            t.dim,
+        ));
+    }
+    out
+}
+
+/// The profile and plan problems of the athlete under the roster cursor in full, for the
+/// pane beside the roster while no session is open (wrapped there): a heading and one line
+/// per problem. Empty when the athlete has none.
+pub fn athlete_problems(app: &App) -> Vec<Line<'static>> {
+    let t = &app.theme;
+    let Some(a) = app
+        .cursor
+        .athlete
+        .as_deref()
+        .and_then(|id| app.roster.athlete(id))
+    else {
+        return Vec::new();
+    };
+    let problems = a.problems();
+    if problems.is_empty() {
+        return Vec::new();
+    }
+    let mut out = vec![
+        Line::raw(""),
+        Line::styled(
+            format!(
+                "! Problems in {}'s files (keys and plans that cannot be read are not used):",
+                printable(&a.profile.name)
+            ),
+            t.warn,
+        ),
+    ];
+    for p in problems {
+        let file = p
+            .path
+            .file_name()
+            .map(|n| n.to_string_lossy().into_owned())
+            .unwrap_or_default();
+        out.push(Line::styled(
+            printable(&format!("{file}: {}", p.message)),
+            t.text,
+        ));
+    }
+    out
 }

@@ -12,6 +12,7 @@ use crate::analysis::findings::Severity;
 use crate::analysis::review::{IntervalMetrics, Review};
 use crate::journal::{ReviewState, Revision, RevisionChange};
 use crate::model::units::{format_clock, format_pace, Units};
+use crate::roster::printable;
 use crate::tui::action::Action;
 use crate::tui::app::{App, Focus, OpenSession, Tone};
 use crate::tui::theme::Theme;
@@ -208,6 +209,24 @@ fn grading_lines<'a>(app: &App, o: &OpenSession, review: &Review) -> Vec<Line<'a
     lines
 }
 
+/// `text` cut into rows of at most `w` characters, at most `max_rows` of them (the last one
+/// marked with `…` when the text goes on).
+fn rows_of(text: &str, w: usize, max_rows: usize) -> Vec<String> {
+    let chars: Vec<char> = text.chars().collect();
+    let mut rows = Vec::new();
+    let mut at = 0;
+    while at < chars.len() && rows.len() < max_rows && w > 0 {
+        let rest: String = chars.iter().skip(at).collect();
+        if rows.len() + 1 == max_rows {
+            rows.push(fit(&rest, w));
+            break;
+        }
+        rows.push(chars.iter().skip(at).take(w).collect());
+        at += w;
+    }
+    rows
+}
+
 /// Draw the verdict pane.
 pub fn render(app: &App, area: Rect, buf: &mut Buffer) {
     let t = &app.theme;
@@ -240,8 +259,26 @@ pub fn render(app: &App, area: Rect, buf: &mut Buffer) {
             *y += 1;
         }
     };
+    // Profile problems of the athlete first: numbers below may be missing because of them.
+    let problems = app
+        .athlete(o.athlete)
+        .map(|a| a.profile_problems.as_slice())
+        .unwrap_or_default();
+    if let Some(first) = problems.first() {
+        let more = match problems.len() {
+            1 => String::new(),
+            n => format!(" (+{} more)", n - 1),
+        };
+        for row in rows_of(&printable(&format!("! athlete.toml {first}{more}")), w, 2) {
+            put(Line::styled(row, t.warn), &mut y);
+        }
+    }
     // Purpose first.
     let date = review.day();
+    let plan_not_used = review
+        .interval_notes
+        .iter()
+        .find(|n| n.starts_with(crate::workspace::PLAN_NOT_USED));
     let purpose = match &review.plan {
         Some(p) if !p.purpose.is_empty() => Line::from(vec![
             Span::styled("Purpose ", t.heading),
@@ -251,7 +288,17 @@ pub fn render(app: &App, area: Rect, buf: &mut Buffer) {
             Span::styled("Plan ", t.heading),
             Span::styled(p.title.clone(), t.text),
         ]),
-        None => Line::styled("No plan: intervals found from the speed", t.dim),
+        None => match plan_not_used {
+            Some(note) => {
+                let mut rows = rows_of(&printable(note), w, 2);
+                let last = rows.pop().unwrap_or_default();
+                for row in rows {
+                    put(Line::styled(row, t.warn), &mut y);
+                }
+                Line::styled(last, t.warn)
+            }
+            None => Line::styled("No plan: intervals found from the speed", t.dim),
+        },
     };
     put(purpose, &mut y);
     let dist = review

@@ -24,6 +24,12 @@ pub fn analyze(
 ) -> review::Review {
     // The gradients feed both the interval finder and the review: compute them once.
     let grads = gradient::gradients(session);
-    let set = intervals::find_intervals_with(session, plan, profile, grads.as_deref());
+    // Another sport (a ride, a walk) has no intervals to find: the review shows it as what
+    // it is (`review::Review::running`).
+    let set = if session.sport.analysed_as_running() {
+        intervals::find_intervals_with(session, plan, profile, grads.as_deref())
+    } else {
+        crate::model::IntervalSet::default()
+    };
     review::review_with(session, &set, plan, profile, grads.as_deref())
 }

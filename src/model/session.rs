@@ -72,6 +72,29 @@ impl Sport {
         }
     }
 
+    /// Whether the session gets the running analysis (intervals, pace, running findings).
+    /// Runs do, and so do files that name no sport (most of them are runs); a ride, a walk
+    /// or hike, or any other named sport does not.
+    pub fn analysed_as_running(&self) -> bool {
+        matches!(self, Sport::Running | Sport::Unknown)
+    }
+
+    /// The sport as a capitalised word for headings ("Cycling"); control characters from
+    /// the file are left out.
+    pub fn title(&self) -> String {
+        let label: String = self
+            .label()
+            .chars()
+            .filter(|c| !c.is_control())
+            .map(|c| if c == '_' { ' ' } else { c })
+            .collect();
+        let mut chars = label.chars();
+        match chars.next() {
+            Some(c) => c.to_uppercase().chain(chars).collect(),
+            None => String::new(),
+        }
+    }
+
     pub fn label(&self) -> &str {
         match self {
             Sport::Running => "running",
@@ -272,10 +295,13 @@ impl Session {
         (self.duration_s() - paused).max(0.0)
     }
 
-    /// Total distance (last present cumulative distance), metres.
+    /// Total distance: the last present cumulative distance minus the first, metres (a
+    /// file may start its cumulative distance above zero, e.g. a recording resumed).
     pub fn distance_m(&self) -> Option<f64> {
         let d = self.distance.as_ref()?;
-        d.values.iter().rev().find_map(|v| *v)
+        let first = d.values.iter().find_map(|v| *v)?;
+        let last = d.values.iter().rev().find_map(|v| *v)?;
+        Some((last - first).max(0.0))
     }
 
     /// The channel of that kind, if present. `Position` returns latitude.

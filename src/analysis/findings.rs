@@ -815,3 +815,16 @@ mod tests {
         assert_eq!(number_list(&[]), "");
     }
 }
+
+#[cfg(test)]
+mod wording_tests {
+    use super::minutes_short_of;
+
+    #[test]
+    fn time_short_of_a_requirement_never_rounds_up_to_it() {
+        assert_eq!(minutes_short_of(19.96 * 60.0, 1200.0), "19.9 min");
+        assert_eq!(minutes_short_of(19.6 * 60.0, 1200.0), "19.6 min");
+        assert_eq!(minutes_short_of(12.2 * 60.0, 1200.0), "12 min");
+        assert_eq!(minutes_short_of(0.0, 1200.0), "0 min");
+    }
+}

@@ -1335,8 +1335,9 @@ fn trend_text(
                 )
             };
             let (per_u, total_u) = (per * scale, total * scale);
-            // Under a second per repeat shows a decimal ("0.4 s/km each repeat").
-            let per_text = if format!("{per_u:.0}") == "0" {
+            // A small change per repeat shows a decimal ("0.4 s/km each repeat"), so it is
+            // never "by 0" and its rounding does not disagree with the change over the set.
+            let per_text = if per_u < 1.95 {
                 format!("{per_u:.1}")
             } else {
                 format!("{per_u:.0}")
@@ -1552,4 +1553,46 @@ fn zones(session: &Session, s: &Series<'_>, profile: &AthleteProfile) -> Zones {
 /// Whether the decoupling is above the usual coaching line.
 pub fn decoupling_above_line(d: f64) -> bool {
     d > DECOUPLING_COACHING_LINE_PCT
+}
+
+#[cfg(test)]
+mod tests {
+    use super::{trend, trend_text};
+    use crate::model::{AthleteProfile, Units};
+
+    fn text(ys: &[f64], units: Units) -> String {
+        let xs: Vec<f64> = (1..=ys.len()).map(|x| x as f64).collect();
+        let f = trend::fit(&xs, ys).unwrap();
+        let mut p = AthleteProfile::bare("t");
+        p.units = units;
+        trend_text(
+            "avg_pace_s_per_km",
+            &f,
+            f.direction(super::FLAT_PACE_S_PER_KM),
+            &p,
+        )
+    }
+
+    #[test]
+    fn pace_trends_never_say_by_0() {
+        // 0.4 s/km slower each of 8 repeats: 2.8 s/km over the set.
+        let ys: Vec<f64> = (0..8).map(|k| 240.0 + 0.4 * k as f64).collect();
+        assert_eq!(
+            text(&ys, Units::Km),
+            "pace slower by 0.4 s/km each repeat (3 s/km over the set)"
+        );
+        // 0.4 s/km is 0.64 s/mi per repeat, 4.5 s/mi over the set: one unit throughout.
+        assert_eq!(
+            text(&ys, Units::Mi),
+            "pace slower by 0.6 s/mi each repeat (5 s/mi over the set)"
+        );
+        assert_eq!(
+            text(&[240.0, 240.5, 240.2, 240.4], Units::Mi),
+            "pace steady across the set (within 3 s/mi)"
+        );
+        assert_eq!(
+            text(&[240.0, 236.0, 232.0], Units::Km),
+            "pace faster by 4 s/km each repeat (8 s/km over the set)"
+        );
+    }
 }

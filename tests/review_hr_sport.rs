@@ -55,7 +55,11 @@ fn analyze_text(s: &Session, format: FileFormat) -> String {
         .arg(&athlete)
         .output()
         .unwrap();
-    assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
     String::from_utf8(out.stdout).unwrap()
 }
 
@@ -92,7 +96,10 @@ fn hr_above_a_stale_profile_maximum_is_kept_and_named() {
     let fresh = analyze(&out.session, Some(&hard_set()), &truth_profile);
     // The real peak is reported, and rep averages do not change with the profile.
     let top = r.work().filter_map(|m| m.max_hr).fold(0.0, f64::max);
-    assert!((top - reached).abs() < 0.5, "reported {top}, reached {reached}");
+    assert!(
+        (top - reached).abs() < 0.5,
+        "reported {top}, reached {reached}"
+    );
     for (a, b) in r.work().zip(fresh.work()) {
         assert_eq!(a.avg_hr, b.avg_hr, "rep {:?}", a.work_number);
     }
@@ -101,10 +108,7 @@ fn hr_above_a_stale_profile_maximum_is_kept_and_named() {
         .iter()
         .find(|f| f.code == "hr_max_stale")
         .unwrap_or_else(|| panic!("{:#?}", r.findings));
-    assert_eq!(
-        f.severity,
-        splitdesk::analysis::findings::Severity::Warning
-    );
+    assert_eq!(f.severity, splitdesk::analysis::findings::Severity::Warning);
     assert!(
         f.text.starts_with(&format!(
             "Heart rate reached {reached:.0} bpm, above the profile's maximum of {:.0} bpm",
@@ -140,7 +144,9 @@ fn hr_far_above_the_maximum_while_jogging_keeps_the_medical_caution() {
         .find(|f| f.code == "hr_above_max")
         .unwrap_or_else(|| panic!("{:#?}", r.findings));
     assert_eq!(f.severity, splitdesk::analysis::findings::Severity::Caution);
-    assert!(f.text.contains(splitdesk::analysis::findings::MEDICAL_CAUTION));
+    assert!(f
+        .text
+        .contains(splitdesk::analysis::findings::MEDICAL_CAUTION));
     assert!(f.text.contains("far above"), "{}", f.text);
     assert!(!codes(&r).contains(&"hr_max_stale"));
 }
@@ -184,13 +190,17 @@ fn hr_drop_outs_lower_the_coverage_and_mark_the_load() {
         .unwrap_or_else(|| panic!("{:#?}", r.findings));
     assert!(
         f.text.starts_with(&format!(
-            "Heart rate missing for {:.0} % of the moving time",
+            "No usable heart rate for {:.0} % of the moving time",
             (1.0 - cov) * 100.0
         )),
         "{}",
         f.text
     );
-    assert!(f.text.contains("load (TRIMP) is a lower bound"), "{}", f.text);
+    assert!(
+        f.text.contains("load (TRIMP) is a lower bound"),
+        "{}",
+        f.text
+    );
     assert!(r
         .intervals
         .iter()
@@ -295,7 +305,11 @@ fn a_ride_is_not_analysed_as_a_run() {
     let r = analyze(&out.session, None, &p);
     assert_not_run(&r, "cycling");
     let f = r.findings.iter().find(|f| f.code == "not_running").unwrap();
-    assert!(f.text.starts_with("Cycling session, not a run"), "{}", f.text);
+    assert!(
+        f.text.starts_with("Cycling session, not a run"),
+        "{}",
+        f.text
+    );
     let text = analyze_text(&out.session, FileFormat::Gpx);
     assert!(text.contains("Cycling: not a run"), "{text}");
     assert!(text.contains("km/h"), "{text}");
@@ -351,7 +365,9 @@ fn a_recovery_peak_does_not_take_the_reps_last_beat() {
     let hr = s.hr.as_mut().unwrap();
     for m in first.intervals.iter().filter(|m| m.kind == "recovery") {
         let k = s.t.iter().position(|&t| t == m.start_s).unwrap();
-        let after = (k + 1..k + 60).filter_map(|i| hr.get(i)).fold(0.0, f64::max);
+        let after = (k + 1..k + 60)
+            .filter_map(|i| hr.get(i))
+            .fold(0.0, f64::max);
         hr.values[k] = Some(after + 3.0);
     }
     let r = analyze(&out.session, Some(&hard_set()), &p);
@@ -360,13 +376,12 @@ fn a_recovery_peak_does_not_take_the_reps_last_beat() {
     let mut checked = 0;
     for m in r.intervals.iter().filter(|m| m.kind == "recovery") {
         // The recovery's own samples: after its first (shared) sample, up to its end.
-        let own = s
-            .t
-            .iter()
-            .enumerate()
-            .filter(|(_, &t)| t > m.start_s && t <= m.end_s)
-            .filter_map(|(i, _)| hr.get(i))
-            .fold(0.0, f64::max);
+        let own =
+            s.t.iter()
+                .enumerate()
+                .filter(|(_, &t)| t > m.start_s && t <= m.end_s)
+                .filter_map(|(i, _)| hr.get(i))
+                .fold(0.0, f64::max);
         assert_eq!(m.max_hr, Some(own), "interval {}", m.index);
         checked += 1;
     }

@@ -716,15 +716,16 @@ fn coverage_finding(r: &Review, hr: &HrChecks) -> Option<Finding> {
     if coverage < HR_COVERAGE_MIN {
         let longest = hr.dropouts.iter().map(|d| d.1).fold(0.0, f64::max);
         let n = hr.dropouts.len();
+        // Missing samples and masked ones (cadence lock, bad values) alike.
         let mut text = format!(
-            "Heart rate missing for {:.0} % of the moving time",
+            "No usable heart rate for {:.0} % of the moving time",
             (1.0 - coverage) * 100.0
         );
         if n > 0 {
             text.push_str(&format!(
-                " ({n} drop-out{}, the longest {:.0} s)",
-                if n == 1 { "" } else { "s" },
-                longest
+                " ({n} stretch{}, the longest {})",
+                if n == 1 { "" } else { "es" },
+                crate::model::units::format_clock(longest)
             ));
         }
         if r.trimp.is_some() {

@@ -1205,9 +1205,12 @@ fn recovery_metrics(
         });
         // Partial HR: the recovery and the minute after the rep (the lag and drop windows),
         // time with usable HR against time not paused.
-        let span_end = rec_end
-            .unwrap_or(end_i)
-            .max(((end_i + 1)..n).take_while(|&i| s.t[i] <= end_t + 65.0).last().unwrap_or(end_i));
+        let span_end = rec_end.unwrap_or(end_i).max(
+            ((end_i + 1)..n)
+                .take_while(|&i| s.t[i] <= end_t + 65.0)
+                .last()
+                .unwrap_or(end_i),
+        );
         let (mut covered, mut total) = (0.0, 0.0);
         for i in (end_i + 1)..=span_end.min(n.saturating_sub(1)) {
             let dt = s.dt(i);

@@ -33,7 +33,12 @@ pub fn open_synced(roster: &Path, journal: Option<&Path>) -> anyhow::Result<Work
 /// The plan title, or sport and distance, of a reviewed session. A session that is not a
 /// run names its sport beside the plan title ("Easy spin (cycling)").
 pub fn title(r: &Review) -> String {
-    let sport: String = r.session.sport.chars().filter(|c| !c.is_control()).collect();
+    let sport: String = r
+        .session
+        .sport
+        .chars()
+        .filter(|c| !c.is_control())
+        .collect();
     match &r.plan {
         Some(p) if !r.running => format!("{} ({sport})", p.title),
         Some(p) => p.title.clone(),
@@ -66,7 +71,13 @@ fn queue_out(ws: &mut Workspace, e: &QueueEntry) -> QueueOut {
     let title = review.as_ref().map(title).unwrap_or_default();
     let sport = review
         .as_ref()
-        .map(|r| r.session.sport.chars().filter(|c| !c.is_control()).collect())
+        .map(|r| {
+            r.session
+                .sport
+                .chars()
+                .filter(|c| !c.is_control())
+                .collect()
+        })
         .unwrap_or_default();
     let work_intervals = review.as_ref().map_or(0, |r| r.work().count());
     QueueOut {

@@ -33,7 +33,10 @@ pub fn render(r: &Review, profile: &AthleteProfile, plan_source: Option<&str>) -
         "  {}  {} {}  {} elapsed, {} moving, {}",
         s.start,
         s.format,
-        s.sport.chars().filter(|c| !c.is_control()).collect::<String>(),
+        s.sport
+            .chars()
+            .filter(|c| !c.is_control())
+            .collect::<String>(),
         format_clock(s.duration_s),
         format_clock(s.moving_s),
         s.distance_m

@@ -179,6 +179,19 @@ pub fn speed_words(v: f64, units: Units, running: bool) -> String {
     }
 }
 
+/// A label of the speed scale: a pace for a run, whole km/h (mph) otherwise, so it fits
+/// the [`GUTTER`].
+fn scale_label(v: f64, units: Units, running: bool) -> String {
+    if running {
+        return format_pace(v, units);
+    }
+    let per_h = v * 3600.0 / units.metres();
+    match units {
+        Units::Km => format!("{per_h:.0} km/h"),
+        Units::Mi => format!("{per_h:.0} mph"),
+    }
+}
+
 /// The cursor readout: time and the exact values at the nearest sample.
 pub fn readout(session: &Session, at: f64, units: Units) -> String {
     let mut parts = vec![format_clock(at)];
@@ -392,10 +405,7 @@ pub fn render(app: &App, area: Rect, buf: &mut Buffer) {
                 lo,
                 hi,
                 style: t.pace,
-                labels: [
-                    speed_words(hi, units, s.sport.analysed_as_running()),
-                    speed_words(lo, units, s.sport.analysed_as_running()),
-                ],
+                labels: [hi, lo].map(|v| scale_label(v, units, s.sport.analysed_as_running())),
                 fits: stats
                     .iter()
                     .filter_map(|(a, b, st)| st.speed.map(|f| (*a, *b, f)))

@@ -388,3 +388,28 @@ fn a_recovery_peak_does_not_take_the_reps_last_beat() {
     // Five recoveries: the sixth rep runs into the cool-down.
     assert_eq!(checked, 5);
 }
+
+#[test]
+fn a_review_cached_before_these_fields_still_reads() {
+    let p = profile();
+    let out = sim(&long_run(25.0), Faults::default(), 51, &p);
+    let r = analyze(&out.session, None, &p);
+    let mut v = serde_json::to_value(&r).unwrap();
+    let obj = v.as_object_mut().unwrap();
+    for key in [
+        "running",
+        "hr_coverage",
+        "trimp_lower_bound",
+        "avg_hr",
+        "max_hr",
+    ] {
+        assert!(obj.remove(key).is_some(), "{key}");
+    }
+    for m in obj["intervals"].as_array_mut().unwrap() {
+        m.as_object_mut().unwrap().remove("hr_coverage").unwrap();
+    }
+    let old: Review = serde_json::from_value(v).unwrap();
+    assert!(old.running && !old.trimp_lower_bound);
+    assert_eq!(old.hr_coverage, None);
+    assert!(old.intervals.iter().all(|m| m.hr_coverage.is_none()));
+}

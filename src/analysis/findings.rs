@@ -714,18 +714,24 @@ fn coverage_finding(r: &Review, hr: &HrChecks) -> Option<Finding> {
     }
     let mut parts = Vec::new();
     if coverage < HR_COVERAGE_MIN {
-        let longest = hr.dropouts.iter().map(|d| d.1).fold(0.0, f64::max);
+        let longest = hr
+            .dropouts
+            .iter()
+            .copied()
+            .reduce(|a, b| if b.1 > a.1 { b } else { a });
         let n = hr.dropouts.len();
         // Missing samples and masked ones (cadence lock, bad values) alike.
         let mut text = format!(
             "No usable heart rate for {:.0} % of the moving time",
             (1.0 - coverage) * 100.0
         );
-        if n > 0 {
+        if let Some((at, secs)) = longest {
+            let clock = crate::model::units::format_clock;
             text.push_str(&format!(
-                " ({n} stretch{}, the longest {})",
+                " ({n} stretch{}, the longest {} from {})",
                 if n == 1 { "" } else { "es" },
-                crate::model::units::format_clock(longest)
+                clock(secs),
+                clock(at)
             ));
         }
         if r.trimp.is_some() {

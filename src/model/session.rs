@@ -68,6 +68,15 @@ impl Sport {
             "walking" | "walk" | "hiking" => Sport::Walking,
             "cycling" | "biking" | "ride" => Sport::Cycling,
             "" | "unknown" | "generic" => Sport::Unknown,
+            // Exporters name variants freely ("virtualrun", "road_biking", "e_bike_ride",
+            // "hike"): the family word decides. Since a session that is not a run loses the
+            // running analysis, only clear words move a session out of running.
+            _ if n.contains("run") || n == "treadmill" => Sport::Running,
+            _ if ["bik", "cycl", "ride"].iter().any(|w| n.contains(w)) => Sport::Cycling,
+            _ if ["walk", "hik"].iter().any(|w| n.contains(w)) => Sport::Walking,
+            // From memory: some GPX exporters write a numeric activity code in `type`; no
+            // code table is standard, so a number says nothing about the sport.
+            _ if n.chars().all(|c| c.is_ascii_digit()) => Sport::Unknown,
             _ => Sport::Other(n),
         }
     }
@@ -401,4 +410,41 @@ pub fn session_day(stem: &str, start: DateTime<Utc>) -> NaiveDate {
         .and_then(|d| NaiveDate::parse_from_str(d, "%Y-%m-%d").ok())
         .filter(|d| (*d - utc).num_days().abs() <= 1)
         .unwrap_or(utc)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::Sport;
+
+    #[test]
+    fn sport_names_map_to_their_family() {
+        for (name, sport) in [
+            ("Running", Sport::Running),
+            ("VirtualRun", Sport::Running),
+            ("trail_run", Sport::Running),
+            ("Biking", Sport::Cycling),
+            ("road_biking", Sport::Cycling),
+            ("E_Bike_Ride", Sport::Cycling),
+            ("indoor_cycling", Sport::Cycling),
+            ("Hike", Sport::Walking),
+            ("walking", Sport::Walking),
+            ("9", Sport::Unknown),
+            ("", Sport::Unknown),
+            ("Swimming", Sport::Other("swimming".into())),
+        ] {
+            assert_eq!(Sport::from_name(name), sport, "{name}");
+        }
+        assert!(Sport::Unknown.analysed_as_running() && Sport::Running.analysed_as_running());
+        assert!(!Sport::Cycling.analysed_as_running() && !Sport::Walking.analysed_as_running());
+        assert!(!Sport::Other("swimming".into()).analysed_as_running());
+    }
+
+    #[test]
+    fn sport_titles_are_capitalised_and_clean() {
+        assert_eq!(Sport::Cycling.title(), "Cycling");
+        assert_eq!(
+            Sport::Other("open_water\u{1b}[2J".into()).title(),
+            "Open water[2J"
+        );
+    }
 }

@@ -7,7 +7,7 @@ use sim_support::{intervals, long_run, named, profile, recovery};
 use splitdesk::analysis::analyze;
 use splitdesk::analysis::review::{Review, HR_COVERAGE_MIN};
 use splitdesk::demo::simulate::{simulate, Faults, SimInput, SimOutput};
-use splitdesk::demo::{gpx_writer, tcx_writer};
+use splitdesk::demo::{fit_writer, gpx_writer, tcx_writer};
 use splitdesk::ingest::{clean, derive, ingest_bytes};
 use splitdesk::model::{
     Amount, AthleteProfile, FileFormat, FlagKind, Plan, RecoveryMode, Session, Sport,
@@ -323,7 +323,7 @@ fn a_ride_is_not_analysed_as_a_run() {
 }
 
 #[test]
-fn a_ride_read_from_tcx_and_gpx_files_is_not_a_run() {
+fn a_ride_read_from_tcx_gpx_and_fit_files_is_not_a_run() {
     let p = profile();
     let mut out = sim(&long_run(35.0), Faults::default(), 32, &p);
     out.session.sport = Sport::Cycling;
@@ -332,6 +332,7 @@ fn a_ride_read_from_tcx_and_gpx_files_is_not_a_run() {
     for (format, bytes) in [
         (FileFormat::Tcx, tcx),
         (FileFormat::Gpx, gpx_writer::write(&out.session)),
+        (FileFormat::Fit, fit_writer::write(&out.session)),
     ] {
         let s = ingest_bytes(&bytes, format, Some(&p)).unwrap();
         assert_eq!(s.sport, Sport::Cycling, "{format}");

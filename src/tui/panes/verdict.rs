@@ -267,9 +267,10 @@ pub fn render(app: &App, area: Rect, buf: &mut Buffer) {
         .unwrap_or_default();
     let summary = if review.running {
         format!(
-            "{date} · {} · {dist} · decoupling {}",
+            "{date} · {} · {dist} · decoupling {} · load {}",
             format_clock(review.session.duration_s),
-            opt(review.decoupling_pct, |d| format!("{d:.1}%"))
+            opt(review.decoupling_pct, |d| format!("{d:.1}%")),
+            review.load_text()
         )
     } else {
         format!(

@@ -54,6 +54,9 @@ fn year_of_summaries() -> Vec<SessionSummary> {
                         start_s: 0.0,
                     })
                     .collect(),
+                work_intervals: 0,
+                effort_spread_pct: Some(1.0),
+                steady: k % 4 != 3,
             }
         })
         .collect()

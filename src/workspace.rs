@@ -106,6 +106,41 @@ fn analyse_bytes(
     })
 }
 
+/// Summaries of an athlete's sessions for the history-side checks of one session on `day`
+/// (the load-spike caution), read and analysed afresh without a journal: every activity
+/// except `skip` (a session id the caller already has), leaving out files that cannot be read
+/// and files whose name starts with a date after `day` (they cannot change that day's load
+/// ratio) or more than [`SPIKE_LOOKBACK_DAYS`] before it (their weight in the ratio is
+/// below 1e-11).
+pub fn athlete_summaries_until(
+    athlete: &Athlete,
+    day: chrono::NaiveDate,
+    skip: &str,
+) -> Vec<crate::analysis::history::SessionSummary> {
+    athlete
+        .activities
+        .iter()
+        .filter(|act| athlete.session_id(act) != skip)
+        .filter(|act| {
+            act.stem
+                .get(..10)
+                .and_then(|d| chrono::NaiveDate::parse_from_str(d, "%Y-%m-%d").ok())
+                .is_none_or(|d| {
+                    d <= day + chrono::Duration::days(2)
+                        && d >= day - chrono::Duration::days(SPIKE_LOOKBACK_DAYS)
+                })
+        })
+        .filter_map(|act| analyse_activity(athlete, act).ok())
+        .filter_map(|a| {
+            crate::analysis::history::SessionSummary::from_review(&a.session_id, &a.review)
+        })
+        .collect()
+}
+
+/// How far back [`athlete_summaries_until`] reads, days: the chronic average's weight
+/// after a year is (27/29)^365, about 5e-12.
+pub const SPIKE_LOOKBACK_DAYS: i64 = 365;
+
 /// What `sync` did.
 #[derive(Debug, Default)]
 pub struct SyncReport {

@@ -248,3 +248,66 @@ fn hill_adjusted_speed_on_a_climb_and_without_altitude() {
         None
     );
 }
+
+/// A 40-minute run over a profile of constant-gradient legs, at the speed that holds the
+/// hill-adjusted speed at `v_eq` on each (raw speed `v_eq / (Cr(i)/Cr(0))`), heart rate flat.
+fn even_effort_over(grades: &[f64], leg_s: usize, v_eq: f64) -> Session {
+    let n = 2400usize;
+    let t: Vec<f64> = (0..=n).map(|x| x as f64).collect();
+    let (mut d, mut a) = (vec![0.0], vec![100.0]);
+    for i in 1..=n {
+        let g = grades[(i / leg_s) % grades.len()];
+        let v = v_eq / cost_ratio(g);
+        d.push(d[i - 1] + v);
+        a.push(a[i - 1] + v * g);
+    }
+    let mut s = session(t, Some(d), Some(a));
+    s.hr = Some(Channel::from_values(
+        (0..=n).map(|i| 150.0 + (i % 7) as f64 * 0.3),
+    ));
+    s
+}
+
+#[test]
+fn the_table_and_the_finder_share_the_minetti_hill_adjustment() {
+    // Source: Minetti et al. 2002, J Appl Physiol 93:1039 (Cr(i)/Cr(0) computed from the
+    // published polynomial, methods.md §1): -0.10 → 0.5977, +0.10 → 1.658, +0.20 → 2.502.
+    for (g, ratio) in [(-0.10, 0.5977), (0.0, 1.0), (0.10, 1.658), (0.20, 2.502)] {
+        let t: Vec<f64> = (0..=1800).map(f64::from).collect();
+        let d: Vec<f64> = t.iter().map(|x| 3.0 * x).collect();
+        let a: Vec<f64> = d.iter().map(|x| 100.0 + g * x).collect();
+        let s = session(t, Some(d), Some(a));
+        let r =
+            splitdesk::analysis::analyze(&s, None, &splitdesk::model::AthleteProfile::bare("x"));
+        assert_eq!(
+            r.work().count(),
+            0,
+            "grade {g}: a constant run is not a set"
+        );
+        let iv = r
+            .intervals
+            .iter()
+            .find(|i| i.kind == "steady")
+            .expect("one steady interval");
+        // Hill-adjusted pace in the table: 1000 / (3.0 · Cr(i)/Cr(0)) s/km.
+        close(
+            iv.hill_adjusted_pace_s_per_km.unwrap(),
+            1000.0 / (3.0 * ratio),
+            1000.0 / (3.0 * ratio) * 0.01,
+        );
+    }
+    // The finder holds the same correction: rolling legs of ±6 % run at an even
+    // hill-adjusted pace (the descents 1.3 times faster on the watch) with a flat heart
+    // rate are one steady run, not descents taken for reps.
+    let s = even_effort_over(&[0.0, 0.06, 0.0, -0.06], 150, 3.2);
+    let r = splitdesk::analysis::analyze(&s, None, &splitdesk::model::AthleteProfile::bare("x"));
+    assert_eq!(
+        r.work().count(),
+        0,
+        "{:?}",
+        r.intervals
+            .iter()
+            .map(|i| (&i.kind, i.start_s))
+            .collect::<Vec<_>>()
+    );
+}

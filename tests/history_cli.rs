@@ -86,6 +86,19 @@ fn trends_text_shows_every_series() {
         assert!(out.contains(heading), "missing {heading}:\n{out}");
     }
     assert!(out.contains("/km"), "paces in the athlete's units:\n{out}");
+    // Empty weeks print a plain zero, never a negative one.
+    assert!(out.contains("     0    0.00 km"), "{out}");
+    assert!(!out.contains("-0.0"), "negative zero:\n{out}");
+    // Best efforts under about 11 minutes: equivalent VO2max starred, with the caveat.
+    assert!(
+        out.contains("* equivalent VO2max of efforts under 11 minutes reads high"),
+        "{out}"
+    );
+    let one_minute = out
+        .lines()
+        .find(|l| l.trim_start().starts_with("1:00 "))
+        .unwrap_or_else(|| panic!("no 1:00 best effort:\n{out}"));
+    assert!(one_minute.contains('*'), "{one_minute}");
 }
 
 #[test]

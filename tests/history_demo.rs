@@ -7,7 +7,13 @@
 use std::path::PathBuf;
 
 use chrono::NaiveDate;
-use splitdesk::analysis::history::{build, History, HistoryParams, SessionSummary};
+use splitdesk::analysis::findings::Severity;
+use splitdesk::analysis::history::{
+    build, load_spike_finding, session_load_spike, History, HistoryParams, SessionSummary,
+    LOAD_CAUTION_WORDS,
+};
+use splitdesk::analysis::load::ACUTE_CHRONIC_CRITICISM;
+use splitdesk::model::AthleteProfile;
 use splitdesk::roster::Roster;
 use splitdesk::workspace::analyse_activity;
 
@@ -18,8 +24,8 @@ fn demo_roster() -> Option<PathBuf> {
     dir.join("roster.toml").exists().then_some(dir)
 }
 
-/// The history of one demo athlete on `today`, from freshly analysed sessions.
-fn history(athlete: &str, today: NaiveDate) -> Option<History> {
+/// The summaries of one demo athlete's freshly analysed sessions, with the profile.
+fn summaries(athlete: &str) -> Option<(Vec<SessionSummary>, AthleteProfile)> {
     let Some(dir) = demo_roster() else {
         eprintln!("skipped: no demo-athletes/ roster in the tree");
         return None;
@@ -32,7 +38,65 @@ fn history(athlete: &str, today: NaiveDate) -> Option<History> {
         .filter_map(|act| analyse_activity(a, act).ok())
         .filter_map(|x| SessionSummary::from_review(&x.session_id, &x.review))
         .collect();
-    Some(build(&sums, &a.profile, &HistoryParams::default(), today))
+    Some((sums, a.profile.clone()))
+}
+
+/// The history of one demo athlete on `today`, from freshly analysed sessions.
+fn history(athlete: &str, today: NaiveDate) -> Option<History> {
+    let (sums, profile) = summaries(athlete)?;
+    Some(build(&sums, &profile, &HistoryParams::default(), today))
+}
+
+#[test]
+fn the_load_spike_session_carries_the_caution_whatever_today() {
+    // Planted: oren-falkner's load jumps in week 5; Thursday 11-19's tempo took the EWMA
+    // ratio to about 1.59 (see load_jump_athlete_shows_the_caution).
+    let Some((sums, profile)) = summaries("oren-falkner") else {
+        return;
+    };
+    let f = load_spike_finding(&sums, "oren-falkner/2026-11-19-tempo").unwrap();
+    assert_eq!(f.severity, Severity::Caution);
+    assert_eq!(f.code, "load_spike");
+    assert!(f.text.contains("on 2026-11-19"), "{}", f.text);
+    assert!(f.text.contains("ratio to 1.59"), "{}", f.text);
+    assert!(f.text.contains(ACUTE_CHRONIC_CRITICISM), "{}", f.text);
+    assert!(f.text.contains(LOAD_CAUTION_WORDS), "{}", f.text);
+    assert!(f.text.contains("not medical advice"), "{}", f.text);
+    let (day, ratio) = session_load_spike(&sums, "oren-falkner/2026-11-19-tempo").unwrap();
+    assert_eq!(day, NaiveDate::from_ymd_opt(2026, 11, 19).unwrap());
+    assert!((1.5..1.7).contains(&ratio), "{ratio}");
+    // Ordinary days carry none: the easy run the day before the tempo (ratio about 1.44)
+    // and an easy run of week 2.
+    for id in [
+        "oren-falkner/2026-11-18-easy-run",
+        "oren-falkner/2026-10-26-easy-run",
+    ] {
+        assert!(load_spike_finding(&sums, id).is_none(), "{id}");
+    }
+    // `trends` lists the day on the last day of the scenario and weeks later alike, and
+    // lists no day before the jump.
+    for today in [
+        NaiveDate::from_ymd_opt(2026, 11, 29).unwrap(),
+        NaiveDate::from_ymd_opt(2027, 1, 10).unwrap(),
+    ] {
+        let h = build(&sums, &profile, &HistoryParams::default(), today);
+        let spike = h
+            .load_spikes
+            .iter()
+            .find(|d| d.date == day)
+            .unwrap_or_else(|| panic!("{today}: {:?}", h.load_spikes));
+        assert!((spike.ratio - ratio).abs() < 1e-12);
+        assert_eq!(
+            spike.sessions,
+            vec!["oren-falkner/2026-11-19-tempo".to_string()]
+        );
+        assert!(h
+            .load_spikes
+            .iter()
+            .all(|d| d.date >= NaiveDate::from_ymd_opt(2026, 11, 16).unwrap()));
+        // Today's ratio has long settled: the spike is not "today's" caution.
+        assert!(h.cautions.is_empty(), "{:?}", h.cautions);
+    }
 }
 
 #[test]

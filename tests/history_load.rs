@@ -195,3 +195,35 @@ fn sessions_without_load_count_as_zero_and_are_named() {
         .iter()
         .any(|n| n.starts_with("1 session(s) without a load")));
 }
+
+#[test]
+fn load_spike_days_are_the_days_that_reach_the_caution_band() {
+    use splitdesk::analysis::history::{load_spike_days, DailyValue};
+    let series = |last: f64| -> Vec<DailyValue> {
+        (1..=29)
+            .map(|n| DailyValue {
+                date: history_support::day(n),
+                value: match n {
+                    28 => last,
+                    29 => 0.0,
+                    _ => 50.0,
+                },
+            })
+            .collect()
+    };
+    // Source: methods.md §9 check (computed from Williams et al. 2017's EWMA): 27 days at 50,
+    // then 200 on day 28 gives 87.5/60.34 = 1.450 with both averages seeded at 50 (our seed
+    // rule: the mean of the first 7 days). Under the line: no spike.
+    assert!(load_spike_days(&series(200.0)).is_empty());
+    // 250 on day 28 (computed here with the same formula): acute 0.25·250 + 0.75·50 = 100,
+    // chronic (2/29)·250 + (27/29)·50 = 63.79, ratio 1.568. The rest day after is not listed.
+    let spikes = load_spike_days(&series(250.0));
+    assert_eq!(spikes.len(), 1, "{spikes:?}");
+    assert_eq!(spikes[0].0, history_support::day(28));
+    close(
+        spikes[0].1,
+        100.0 / (2.0 / 29.0 * 250.0 + 27.0 / 29.0 * 50.0),
+        1e-9,
+    );
+    close(spikes[0].1, 1.568, 0.001);
+}

@@ -210,3 +210,35 @@ fn best_efforts_window_and_fastest_wins() {
     let h = build(&sessions, &profile(), &params, day(101));
     assert_eq!(h.best_efforts[0].session, sessions[0].session_id);
 }
+
+#[test]
+fn equivalent_vo2max_of_short_efforts_is_marked_beyond_the_model() {
+    use splitdesk::analysis::race::{
+        daniels_gilbert_fraction, vo2max_beyond_model, DANIELS_GILBERT_MIN_S,
+    };
+    // Source: Daniels & Gilbert 1979, F(t) = 0.8 + 0.1894393e^(−0.012778t) +
+    // 0.2989558e^(−0.1932605t); methods.md §4 (computed): F(t) > 1 for t < 11.03 min, and
+    // F = 1.069 for a 6:00 mile.
+    close(daniels_gilbert_fraction(6.0), 1.069, 0.0005);
+    close(DANIELS_GILBERT_MIN_S / 60.0, 11.03, 0.005);
+    close(
+        daniels_gilbert_fraction(DANIELS_GILBERT_MIN_S / 60.0),
+        1.0,
+        1e-5,
+    );
+    assert!(vo2max_beyond_model(360.0));
+    assert!(vo2max_beyond_model(600.0));
+    assert!(!vo2max_beyond_model(700.0));
+    assert!(!vo2max_beyond_model(f64::NAN));
+    // Through the history: the 5- and 10-minute bests are marked, the 20-minute one is not.
+    let durs = [300.0, 600.0, 1200.0];
+    let s = effort_session(1, 1200.0, 4800.0, &durs);
+    let h = build(&[s], &profile(), &HistoryParams::default(), day(2));
+    let marks: Vec<(f64, bool)> = h
+        .best_efforts
+        .iter()
+        .map(|b| (b.duration_s, b.vo2max_beyond_model))
+        .collect();
+    assert_eq!(marks, vec![(300.0, true), (600.0, true), (1200.0, false)]);
+    assert!(h.best_efforts.iter().all(|b| b.equivalent_vo2max.is_some()));
+}

@@ -187,3 +187,59 @@ fn empty_history_is_well_formed() {
         assert!(json.get(key).is_some(), "missing {key}");
     }
 }
+
+#[test]
+fn empty_weeks_and_tiny_negatives_print_no_negative_zero() {
+    use splitdesk::analysis::history::{fixed, fixed_distance};
+    use splitdesk::model::Units;
+    // One run in week 1, nothing in week 2: week 2's sums are a positive zero.
+    let h = build(
+        &[with_load(1, 40.0)],
+        &profile(),
+        &HistoryParams::default(),
+        day(8),
+    );
+    let empty = h.weekly.last().unwrap();
+    assert_eq!(empty.sessions, 0);
+    assert!(empty.distance_m == 0.0 && empty.distance_m.is_sign_positive());
+    assert!(empty.moving_s == 0.0 && empty.moving_s.is_sign_positive());
+    assert_eq!(fixed_distance(empty.distance_m, Units::Mi), "0.00 mi");
+    assert_eq!(fixed_distance(-0.0, Units::Mi), "0.00 mi");
+    assert_eq!(fixed(-0.04, 1), "0.0");
+    assert_eq!(fixed(-0.0, 0), "0");
+    assert_eq!(fixed(-0.06, 1), "-0.1");
+    assert_eq!(fixed(12.345, 2), "12.35");
+}
+
+#[test]
+fn zones_from_the_age_estimate_are_labelled_in_the_history() {
+    // day(1) is in 2026: born 1986, age 40, Tanaka 180 (methods.md §3).
+    let mut p = profile();
+    p.birth_year = Some(1986);
+    let h = build(&[with_load(1, 40.0)], &p, &HistoryParams::default(), day(7));
+    assert_eq!(
+        h.hr_max_estimate, None,
+        "a measured hr_max is not an estimate"
+    );
+    p.hr_max = None;
+    let h = build(&[with_load(1, 40.0)], &p, &HistoryParams::default(), day(7));
+    let e = h.hr_max_estimate.unwrap();
+    assert!(
+        e.starts_with("HR max 180 bpm estimated from age 40 (Tanaka et al. 2001, about ±10 bpm"),
+        "{e}"
+    );
+}
+
+#[test]
+fn readiness_that_rounds_to_zero_prints_no_sign() {
+    use splitdesk::analysis::history::fixed;
+    // Readiness k1·g − k2·h just under zero (g = 100.0, h = 50.2) must not read "-0".
+    let readiness: f64 = 100.0 - 2.0 * 50.2;
+    assert!(readiness < 0.0);
+    assert_eq!(fixed(readiness, 0), "0");
+    assert_eq!(
+        format!("{readiness:.0}"),
+        "-0",
+        "what the plain format gives"
+    );
+}

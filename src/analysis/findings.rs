@@ -53,6 +53,12 @@ pub const FLAGGED_NOTE_FRACTION: f64 = 0.05;
 // Common coaching practice (no published source).
 pub const LONG_HR_LAG_S: f64 = 20.0;
 
+/// A decoupling between minus this and the 5 % line reads as steady; below it, the
+/// negative decoupling gets its own note, percent.
+// Common coaching practice (no published source): GPS and HR noise move a steady run's
+// decoupling by a percentage point or two either way.
+pub const NEGATIVE_DECOUPLING_NOTE_PCT: f64 = 2.0;
+
 /// Extra descent in the second half that explains a negative decoupling, metres.
 // Common coaching practice (no published source): our threshold for "clearly more downhill".
 pub const DOWNHILL_EXPLAINS_M: f64 = 15.0;
@@ -440,8 +446,13 @@ pub(crate) fn findings(
         ));
     }
 
-    // Whole-session efficiency: meaningful for steady running, not across a set of repeats.
-    let steady_session = work.is_empty();
+    // Whole-session efficiency: meaningful for steady running and for one sustained effort
+    // (a race or tempo: the decoupling window is the effort), not across a set of repeats.
+    let steady_session = work.is_empty()
+        || (work.len() == 1
+            && work
+                .first()
+                .is_some_and(|w| w.duration_s >= super::review::MIN_DECOUPLING_S));
     if let Some(d) = r.decoupling_pct.filter(|_| steady_session) {
         let kind = if r.hill_adjusted {
             "hill-adjusted "
@@ -459,26 +470,30 @@ pub(crate) fn findings(
                 ),
                 vec!["decoupling_pct".into()],
             ));
-        } else if d >= 0.0 {
+        } else if d >= -NEGATIVE_DECOUPLING_NOTE_PCT {
             out.push(f(
                 Severity::Info,
                 "decoupling_ok",
                 format!(
-                    "Decoupling {d:.1} %: heart-rate cost held steady (under the usual 5 % line)."
+                    "Decoupling {d:.1} %: heart-rate cost held steady (within the usual 5 % line)."
                 ),
                 vec!["decoupling_pct".into()],
             ));
         }
     }
-    let negative = steady_session
-        && [r.decoupling_pct, r.decoupling_raw_pct]
-            .into_iter()
-            .flatten()
-            .any(|d| d < 0.0);
-    if negative {
+    // A negative decoupling is worth a note only beyond the noise band, and the note names
+    // the number it is about: the raw one when downhill running explains it, otherwise the
+    // reported (hill-adjusted where there is altitude) one.
+    let below = |d: &f64| *d < -NEGATIVE_DECOUPLING_NOTE_PCT;
+    let raw_negative = r.decoupling_raw_pct.filter(below);
+    let reported_negative = r.decoupling_pct.filter(below);
+    let downhill = whole
+        .extra_descent_second_half_m
+        .filter(|m| *m >= DOWNHILL_EXPLAINS_M);
+    if steady_session && (raw_negative.is_some() || reported_negative.is_some()) {
         let raw = r.decoupling_raw_pct.unwrap_or(0.0);
-        match whole.extra_descent_second_half_m {
-            Some(m) if m >= DOWNHILL_EXPLAINS_M => out.push(f(
+        match downhill.filter(|_| raw_negative.is_some()) {
+            Some(m) => out.push(f(
                 Severity::Note,
                 "decoupling_negative_downhill",
                 format!(
@@ -495,16 +510,20 @@ pub(crate) fn findings(
                     "elevation_loss_m".into(),
                 ],
             )),
-            _ => out.push(f(
-                Severity::Note,
-                "decoupling_negative",
-                format!(
-                    "Negative decoupling ({:.1} %): HR cost fell in the second half. The elevation profile does \
-                     not explain it; a slow warm-up, a cooler second half or an HR sensor settling in can.",
-                    r.decoupling_pct.unwrap_or(raw)
-                ),
-                vec!["decoupling_pct".into()],
-            )),
+            None => {
+                if let Some(d) = reported_negative {
+                    out.push(f(
+                        Severity::Note,
+                        "decoupling_negative",
+                        format!(
+                            "Negative decoupling ({d:.1} %): HR cost fell in the second half. The elevation \
+                             profile does not explain it; a slow warm-up, a cooler second half or an HR sensor \
+                             settling in can."
+                        ),
+                        vec!["decoupling_pct".into()],
+                    ));
+                }
+            }
         }
     }
     // HR drift says the same thing as the decoupling, in another unit: a note only when the

@@ -23,14 +23,22 @@
 //!   load of the first 7 days of data. The ratio is `None` for the first 27 days. Bands
 //!   0.8-1.3 and 1.5 (Gabbett 2016) are shown with the published criticism
 //!   ([`load::ACUTE_CHRONIC_CRITICISM`]); a latest ratio at or above 1.5 adds a caution.
+//!   **Load-spike days** are the days that carried a load and ended with the ratio at or
+//!   above 1.5 ([`load_spike_days`]); the history lists every one in the window, and the
+//!   session of such a day carries the caution in its findings where it is shown
+//!   ([`load_spike_finding`]: `analyze` inside a roster, the workstation), whatever today's
+//!   date, because a day's ratio depends only on the days before it.
 //! - **Fitness, fatigue, readiness**: the impulse-response model (Banister et al. 1975,
 //!   [`load::fitness_fatigue`]) with `g_t = g_{t−1}·e^(−1/τ1) + w_t`,
 //!   `h_t = h_{t−1}·e^(−1/τ2) + w_t` and **readiness = k1·fitness − k2·fatigue**
 //!   (the model's performance with p0 = 0). Defaults τ1 = 42, τ2 = 7 days, k1 = 1, k2 = 2.
-//! - **Easy runs** are runs whose mean relative intensity (speed / threshold speed,
+//! - **Easy runs** are runs at one effort throughout ([`steady_throughout`]: no work
+//!   intervals or recoveries found or planned, hill-adjusted speed even across the session,
+//!   no surge well above the mean) whose mean relative intensity (speed / threshold speed,
 //!   time-weighted over the session's intervals; else the session's mean moving speed over
 //!   the profile's threshold) is under [`HistoryParams::easy_max_relative_intensity`]
 //!   (default 0.85, our choice: the slow edge of the steady pace zone, 0.87, less a margin).
+//!   An interval session whose average is easy is not an easy run.
 //!   Efficiency = 60·mean speed / mean HR, metres per heartbeat; the trend is a
 //!   least-squares line through the weekly means against the week number.
 //! - **Long runs** last at least 75 minutes of moving time; their whole-session decoupling
@@ -46,7 +54,7 @@
 use std::collections::BTreeMap;
 
 use chrono::{DateTime, Datelike, Duration, NaiveDate, Utc};
-use serde::Serialize;
+use serde::{Deserialize, Serialize};
 
 use crate::model::AthleteProfile;
 
@@ -137,7 +145,7 @@ impl Default for HistoryParams {
 }
 
 /// Seconds spent in one HR zone.
-#[derive(Debug, Clone, PartialEq, Serialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct ZoneTime {
     /// Zone name as the review gives it.
     pub name: String,
@@ -146,7 +154,11 @@ pub struct ZoneTime {
 }
 
 /// What the history needs of one session: a cut of its cached [`Review`].
-#[derive(Debug, Clone, PartialEq, Serialize)]
+///
+/// Fields added after the first version carry serde defaults, so a summary stored by an
+/// older build still reads (as not steady: it is left out of the easy-run trend until its
+/// review is cut again).
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct SessionSummary {
     /// `<athlete-id>/<file-stem>`.
     pub session_id: String,
@@ -172,6 +184,129 @@ pub struct SessionSummary {
     pub decoupling_pct: Option<f64>,
     /// The session's best efforts.
     pub best_efforts: Vec<BestEffort>,
+    /// Work intervals found (detected or aligned to the plan) plus planned intervals that
+    /// were not found.
+    #[serde(default)]
+    pub work_intervals: usize,
+    /// Spread of effort across the session's intervals: the time-weighted coefficient of
+    /// variation of their hill-adjusted speeds, percent (short standing or walking pieces
+    /// at either end left out). `None` without speeds.
+    #[serde(default)]
+    pub effort_spread_pct: Option<f64>,
+    /// Run at one effort throughout ([`steady_throughout`]); only such runs enter the
+    /// easy-run efficiency trend.
+    #[serde(default)]
+    pub steady: bool,
+}
+
+/// Most spread of hill-adjusted speed across a session's intervals for it to count as
+/// steady throughout, percent.
+// Our choice (no published source): the intervals of an even easy run sit within 1-3 % of
+// each other; a progression in 5 % steps or an easy run with a tempo block inside it spreads
+// wider.
+pub const STEADY_MAX_SPREAD_PCT: f64 = 6.0;
+
+/// Most the best 3-minute speed may exceed the session's mean moving speed for the session
+/// to count as steady throughout (a ratio). Catches surges the interval finder did not split
+/// out. Raw speed, so it is loose enough for descents at an even effort.
+// Our choice (no published source): even easy runs on the demo roster and in the simulator
+// stay under 1.08; a 3-minute rep at 5 km pace in an easy session is about 1.3.
+pub const STEADY_MAX_BURST_RATIO: f64 = 1.20;
+
+/// Window of the best effort compared with the mean speed for [`STEADY_MAX_BURST_RATIO`], s.
+pub const STEADY_BURST_WINDOW_S: f64 = 180.0;
+
+/// Pieces at the start or end of a session shorter than this (standing at the start, a walk
+/// at the end) are not counted in the spread of effort, seconds.
+// Our choice (no published source): a standing start or a walk home is not a change of
+// effort within the run.
+pub const STEADY_END_PIECE_S: f64 = 120.0;
+
+/// Share of the session's time one lone work interval must cover for the session to still
+/// count as one effort (a standing start cut off as a seconds-long "warm-up").
+// Our choice (no published source).
+pub const STEADY_LONE_WORK_SHARE: f64 = 0.9;
+
+fn interval_weight(i: &super::review::IntervalMetrics) -> f64 {
+    if i.moving_s > 0.0 {
+        i.moving_s
+    } else {
+        i.duration_s
+    }
+}
+
+/// Time-weighted coefficient of variation of the intervals' hill-adjusted speeds (raw pace
+/// where there is none), percent; pieces under [`STEADY_END_PIECE_S`] at either end that
+/// are not work are left out. `None` when no interval has a pace.
+pub fn effort_spread_pct(intervals: &[super::review::IntervalMetrics]) -> Option<f64> {
+    let last = intervals.len().checked_sub(1)?;
+    let pairs: Vec<(f64, f64)> = intervals
+        .iter()
+        .enumerate()
+        .filter(|(k, i)| {
+            let end = *k == 0 || *k == last;
+            !(end && i.kind != "work" && i.duration_s < STEADY_END_PIECE_S)
+        })
+        .filter_map(|(_, i)| {
+            let pace = i
+                .hill_adjusted_pace_s_per_km
+                .or(i.avg_pace_s_per_km)
+                .filter(|p| p.is_finite() && *p > 0.0)?;
+            let w = interval_weight(i);
+            (w.is_finite() && w > 0.0).then(|| (1000.0 / pace, w))
+        })
+        .collect();
+    let w: f64 = pairs.iter().map(|p| p.1).sum();
+    if w <= 0.0 {
+        return None;
+    }
+    let mean = pairs.iter().map(|(v, w)| v * w).sum::<f64>() / w;
+    let var = pairs
+        .iter()
+        .map(|(v, w)| w * (v - mean).powi(2))
+        .sum::<f64>()
+        / w;
+    (mean > 0.0).then(|| var.sqrt() / mean * 100.0)
+}
+
+/// Whether a session was run at one effort throughout, the test for the easy-run
+/// efficiency trend: no recovery intervals and no planned interval missing; no work
+/// interval, or one that covers at least [`STEADY_LONE_WORK_SHARE`] of the time (the whole
+/// run, with a standing start cut off); the spread of hill-adjusted speed across the
+/// intervals at most [`STEADY_MAX_SPREAD_PCT`]; and the best 3-minute speed at most
+/// [`STEADY_MAX_BURST_RATIO`] times the mean moving speed.
+pub fn steady_throughout(review: &Review) -> bool {
+    let work: Vec<&super::review::IntervalMetrics> = review.work().collect();
+    if review.intervals.iter().any(|i| i.kind == "recovery") || !review.missing_planned.is_empty() {
+        return false;
+    }
+    let total: f64 = review.intervals.iter().map(interval_weight).sum();
+    let one_effort = match work.as_slice() {
+        [] => true,
+        [only] => total > 0.0 && interval_weight(only) >= STEADY_LONE_WORK_SHARE * total,
+        _ => false,
+    };
+    if !one_effort {
+        return false;
+    }
+    if !effort_spread_pct(&review.intervals).is_some_and(|s| s <= STEADY_MAX_SPREAD_PCT) {
+        return false;
+    }
+    let moving = review.session.moving_s;
+    let mean = review
+        .session
+        .distance_m
+        .filter(|d| d.is_finite() && *d > 0.0 && moving > 0.0)
+        .map(|d| d / moving);
+    let burst = review
+        .best_efforts
+        .iter()
+        .find(|b| (b.duration_s - STEADY_BURST_WINDOW_S).abs() < 0.5)
+        .map(|b| b.speed_mps);
+    match (burst, mean) {
+        (Some(b), Some(m)) => b <= STEADY_MAX_BURST_RATIO * m,
+        _ => true,
+    }
 }
 
 fn weighted_mean(pairs: impl Iterator<Item = (Option<f64>, f64)>) -> Option<f64> {
@@ -193,13 +328,7 @@ impl SessionSummary {
         let start = DateTime::parse_from_rfc3339(&review.session.start)
             .ok()?
             .with_timezone(&Utc);
-        let weight = |i: &super::review::IntervalMetrics| {
-            if i.moving_s > 0.0 {
-                i.moving_s
-            } else {
-                i.duration_s
-            }
-        };
+        let weight = interval_weight;
         let moving_s = review.session.moving_s;
         let mean_speed_mps = review
             .session
@@ -232,6 +361,9 @@ impl SessionSummary {
             mean_hr: weighted_mean(review.intervals.iter().map(|i| (i.avg_hr, weight(i)))),
             decoupling_pct: review.decoupling_pct,
             best_efforts: review.best_efforts.clone(),
+            work_intervals: review.work().count() + review.missing_planned.len(),
+            effort_spread_pct: effort_spread_pct(&review.intervals),
+            steady: steady_throughout(review),
         })
     }
 
@@ -310,6 +442,21 @@ pub struct LatestRatio {
     pub value: f64,
     /// `below`, `within`, `above` or `caution` (Gabbett 2016 bands).
     pub band: String,
+}
+
+/// A day whose load took the acute/chronic ratio to [`ACUTE_CHRONIC_CAUTION`] or more.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct LoadSpike {
+    /// The day.
+    pub date: NaiveDate,
+    /// The ratio at the end of that day.
+    pub ratio: f64,
+    /// The day's load (TRIMP).
+    pub load: f64,
+    /// The sessions of that day.
+    pub sessions: Vec<String>,
+    /// The caution in words, with the criticism of the ratio and the usual wording.
+    pub text: String,
 }
 
 /// The bands drawn with the ratio and how it is computed.
@@ -417,6 +564,10 @@ pub struct BestEffortOut {
     pub date: NaiveDate,
     /// Daniels & Gilbert equivalent VO2max of the effort, mL/kg/min.
     pub equivalent_vo2max: Option<f64>,
+    /// The effort is shorter than the equivalent-VO2max model's range (under about 11
+    /// minutes, [`race::vo2max_beyond_model`]): its value reads high and is shown with
+    /// [`race::SHORT_EFFORT_VO2MAX_CAVEAT`].
+    pub vo2max_beyond_model: bool,
 }
 
 /// The critical-speed fit, or why there is none.
@@ -492,12 +643,18 @@ pub struct History {
     pub sessions: usize,
     /// Volume per ISO week.
     pub weekly: Vec<WeekVolume>,
+    /// When the HR zones (time by zone) rest on HR max estimated from age: the words that
+    /// say so ([`super::zones::hr_max_estimate_note`]).
+    pub hr_max_estimate: Option<String>,
     /// Daily TRIMP over the window.
     pub daily_load: Vec<DailyValue>,
     /// EWMA acute/chronic ratio per day over the window.
     pub acute_chronic_ratio: Vec<DailyRatio>,
     /// Today's ratio and its band.
     pub acute_chronic_latest: Option<LatestRatio>,
+    /// Every day in the window whose load took the ratio to the caution band, oldest first
+    /// ([`load_spike_days`]).
+    pub load_spikes: Vec<LoadSpike>,
     /// Bands, method and criticism.
     pub acute_chronic_bands: RatioBands,
     /// Fitness g per day.
@@ -528,6 +685,110 @@ pub struct History {
     pub cautions: Vec<String>,
     /// How things were computed and what is missing.
     pub notes: Vec<String>,
+}
+
+/// Daily load (summed TRIMP) of every calendar day from the first session's day to `to`,
+/// rest days and sessions without a load as 0: the series the acute/chronic ratio and the
+/// impulse-response model run on. Sessions after `to` are ignored; empty without sessions.
+pub fn daily_loads(summaries: &[SessionSummary], to: NaiveDate) -> Vec<DailyValue> {
+    let mut by_day: BTreeMap<NaiveDate, f64> = BTreeMap::new();
+    for s in summaries.iter().filter(|s| s.date() <= to) {
+        let l = s
+            .trimp
+            .filter(|l| l.is_finite() && *l >= 0.0)
+            .unwrap_or(0.0);
+        *by_day.entry(s.date()).or_insert(0.0) += l;
+    }
+    let Some(&first) = by_day.keys().next() else {
+        return Vec::new();
+    };
+    days_between(first, to)
+        .map(|date| DailyValue {
+            date,
+            value: by_day.get(&date).copied().unwrap_or(0.0),
+        })
+        .collect()
+}
+
+/// The days whose load took the acute/chronic ratio ([`load::acute_chronic_ewma`], the
+/// history's seed rule) to [`ACUTE_CHRONIC_CAUTION`] or more, with that ratio, oldest first.
+/// A day counts when it carried a load and ended at or above the line; rest days after a
+/// spike only lower the ratio. `daily` is one entry per calendar day from the start of the
+/// athlete's data ([`daily_loads`]); the ratio of a day depends only on the days before it,
+/// never on today's date.
+pub fn load_spike_days(daily: &[DailyValue]) -> Vec<(NaiveDate, f64)> {
+    let loads: Vec<f64> = daily.iter().map(|d| d.value).collect();
+    let ratios = load::acute_chronic_ewma(&loads);
+    daily
+        .iter()
+        .zip(ratios)
+        .filter_map(|(d, r)| {
+            let r = r.filter(|r| r.is_finite())?;
+            (d.value > 0.0 && r >= ACUTE_CHRONIC_CAUTION).then_some((d.date, r))
+        })
+        .collect()
+}
+
+/// The caution for a day whose load took the ratio to `ratio`, in words: what happened,
+/// the published criticism of the ratio and the usual "coaching aid, not medical advice".
+pub fn load_spike_text(date: NaiveDate, ratio: f64) -> String {
+    format!(
+        "Training load rose sharply on {date}: that day took the acute/chronic ratio to \
+         {ratio:.2}, at or above {ACUTE_CHRONIC_CAUTION:.1}, the band usually marked for caution \
+         (Gabbett 2016). {ACUTE_CHRONIC_CRITICISM} {LOAD_CAUTION_WORDS}"
+    )
+}
+
+/// `code` of the load-spike finding a session carries at the view edge.
+pub const LOAD_SPIKE_CODE: &str = "load_spike";
+
+/// Whether the day of session `session_id` took the athlete's acute/chronic ratio to the
+/// caution band, computed from all of `summaries` (the athlete's sessions, this one
+/// included) up to that day: `(day, ratio)`. `None` when it did not, or the session is not
+/// among the summaries.
+pub fn session_load_spike(
+    summaries: &[SessionSummary],
+    session_id: &str,
+) -> Option<(NaiveDate, f64)> {
+    let day = summaries
+        .iter()
+        .find(|s| s.session_id == session_id)?
+        .date();
+    load_spike_days(&daily_loads(summaries, day))
+        .into_iter()
+        .find(|(d, _)| *d == day)
+}
+
+/// The finding a session carries when its day took the ratio to the caution band
+/// ([`session_load_spike`]). Added where the session is shown (it needs the athlete's other
+/// sessions, which the per-file review does not see); the feedback draft leaves it out.
+pub fn load_spike_finding(
+    summaries: &[SessionSummary],
+    session_id: &str,
+) -> Option<super::findings::Finding> {
+    let (date, ratio) = session_load_spike(summaries, session_id)?;
+    Some(super::findings::Finding {
+        severity: super::findings::Severity::Caution,
+        code: LOAD_SPIKE_CODE.to_string(),
+        text: load_spike_text(date, ratio),
+        metrics: vec!["acute_chronic_ratio".to_string()],
+    })
+}
+
+/// `v` with `decimals` decimals, never a negative zero: a value that rounds to zero prints
+/// as `0.0`, not `-0.0` (an empty sum of floats is `-0.0`, and a tiny negative decoupling
+/// rounds to it).
+pub fn fixed(v: f64, decimals: usize) -> String {
+    let s = format!("{v:.decimals$}");
+    match s.strip_prefix('-') {
+        Some(rest) if rest.chars().all(|c| c == '0' || c == '.') => rest.to_string(),
+        _ => s,
+    }
+}
+
+/// A distance in the athlete's units with two decimals, never `-0.00`.
+pub fn fixed_distance(metres: f64, units: crate::model::Units) -> String {
+    format!("{} {}", fixed(metres / units.metres(), 2), units.label())
 }
 
 /// ISO week label, e.g. `2026-W05`.
@@ -658,6 +919,26 @@ pub fn build(
             value,
             band: band_name(band).to_string(),
         });
+    let daily_model: Vec<DailyValue> = model_days
+        .iter()
+        .zip(&loads)
+        .map(|(&date, &value)| DailyValue { date, value })
+        .collect();
+    let load_spikes: Vec<LoadSpike> = load_spike_days(&daily_model)
+        .into_iter()
+        .filter(|(d, _)| *d >= from)
+        .map(|(date, ratio)| LoadSpike {
+            date,
+            ratio,
+            load: by_day.get(&date).copied().unwrap_or(0.0),
+            sessions: sessions
+                .iter()
+                .filter(|s| s.date() == date)
+                .map(|s| s.session_id.clone())
+                .collect(),
+            text: load_spike_text(date, ratio),
+        })
+        .collect();
     // The highest ratio of the last 7 days: a spike on Tuesday still matters on Thursday,
     // when rest days have pulled the ratio back under the line.
     let week_peak = acute_chronic_ratio
@@ -751,9 +1032,14 @@ pub fn build(
         params: *params,
         sessions: in_window.len(),
         weekly,
+        hr_max_estimate: super::zones::hr_max_estimate_note(
+            profile,
+            super::zones::age_in_year(profile, today.year()),
+        ),
         daily_load,
         acute_chronic_ratio,
         acute_chronic_latest,
+        load_spikes,
         acute_chronic_bands: RatioBands {
             low: ACUTE_CHRONIC_BAND_LOW,
             high: ACUTE_CHRONIC_BAND_HIGH,
@@ -809,19 +1095,20 @@ fn weekly_volume(runs: &[&SessionSummary], from: NaiveDate, today: NaiveDate) ->
                 }
             }
         }
-        let total: f64 = zones.iter().map(|z| z.1).sum();
+        let total: f64 = zones.iter().fold(0.0, |a, z| a + z.1);
         out.push(WeekVolume {
             week: iso_week_label(monday),
             week_start: monday,
+            // Folded from +0.0: `sum()` of no floats is -0.0, printed "-0.00".
             distance_m: week
                 .iter()
                 .filter_map(|s| s.distance_m.filter(|d| d.is_finite()))
-                .sum(),
+                .fold(0.0, |a, d| a + d),
             moving_s: week
                 .iter()
                 .map(|s| s.moving_s)
                 .filter(|m| m.is_finite())
-                .sum(),
+                .fold(0.0, |a, m| a + m),
             sessions: week.len(),
             longest_run_m: longest.map(|l| l.1),
             longest_run_session: longest.map(|l| l.0.session_id.clone()),
@@ -849,6 +1136,7 @@ fn efficiency_trend(
     let threshold = profile
         .threshold_speed_mps
         .filter(|v| v.is_finite() && *v > 0.0);
+    let mut not_steady = 0usize;
     let easy: Vec<EfficiencyRun> = runs
         .iter()
         .filter_map(|s| {
@@ -857,6 +1145,10 @@ fn efficiency_trend(
                 .or_else(|| Some(s.mean_speed_mps? / threshold?))
                 .filter(|r| r.is_finite())?;
             if ri >= params.easy_max_relative_intensity {
+                return None;
+            }
+            if !s.steady {
+                not_steady += 1;
                 return None;
             }
             Some(EfficiencyRun {
@@ -873,6 +1165,12 @@ fn efficiency_trend(
              efficiency trend"
                 .to_string(),
         );
+    }
+    if not_steady > 0 {
+        notes.push(format!(
+            "{not_steady} run(s) with an easy average left out of the efficiency trend: not \
+             steady throughout (work intervals, recoveries or changes of pace)"
+        ));
     }
     let mut weeks: BTreeMap<NaiveDate, (f64, usize)> = BTreeMap::new();
     for r in &easy {
@@ -960,6 +1258,7 @@ fn best_across(sessions: &[&SessionSummary]) -> Vec<BestEffortOut> {
                         session: s.session_id.clone(),
                         date: s.date(),
                         equivalent_vo2max: race::daniels_gilbert_vo2max(e.distance_m, e.duration_s),
+                        vo2max_beyond_model: race::vo2max_beyond_model(e.duration_s),
                     },
                 );
             }

@@ -8,6 +8,7 @@ pub mod gradient;
 pub mod history;
 pub mod intervals;
 pub mod load;
+pub mod motion;
 pub mod race;
 pub mod review;
 pub mod ruler;
@@ -23,13 +24,15 @@ pub fn analyze(
     profile: &crate::model::AthleteProfile,
 ) -> review::Review {
     // The gradients feed both the interval finder and the review: compute them once.
+    // So do the motion states (running, walking, standing, stopped).
     let grads = gradient::gradients(session);
+    let motion = motion::classify_with(session, grads.as_deref());
     // Another sport (a ride, a walk) has no intervals to find: the review shows it as what
     // it is (`review::Review::running`).
     let set = if session.sport.analysed_as_running() {
-        intervals::find_intervals_with(session, plan, profile, grads.as_deref())
+        intervals::find_intervals_moving(session, plan, profile, grads.as_deref(), &motion)
     } else {
         crate::model::IntervalSet::default()
     };
-    review::review_with(session, &set, plan, profile, grads.as_deref())
+    review::review_moving(session, &set, plan, profile, grads.as_deref(), &motion)
 }

@@ -31,6 +31,24 @@ pub fn daniels_gilbert_fraction(t_min: f64) -> f64 {
     0.8 + 0.1894393 * (-0.012778 * t_min).exp() + 0.2989558 * (-0.1932605 * t_min).exp()
 }
 
+/// Shortest effort, seconds, for which the Daniels & Gilbert fraction F(t) is at most 1:
+/// 661.8 s (11.03 min; computed from the formula, methods.md §4). Below it the model says
+/// more than 100 % of VO2max can be held, so the equivalent VO2max of shorter efforts reads
+/// high.
+pub const DANIELS_GILBERT_MIN_S: f64 = 661.8;
+
+/// The caveat shown with an equivalent VO2max from an effort shorter than
+/// [`DANIELS_GILBERT_MIN_S`].
+pub const SHORT_EFFORT_VO2MAX_CAVEAT: &str = "equivalent VO2max of efforts under 11 minutes \
+reads high: the Daniels & Gilbert (1979) model lets more than all of VO2max be held for them \
+(F(t) > 1), so take it as a rough guide only";
+
+/// Whether an effort of `time_s` is shorter than the equivalent-VO2max model's range
+/// (F(t) > 1, under about 11 minutes; [`DANIELS_GILBERT_MIN_S`]).
+pub fn vo2max_beyond_model(time_s: f64) -> bool {
+    time_s.is_finite() && time_s > 0.0 && daniels_gilbert_fraction(time_s / 60.0) > 1.0
+}
+
 /// "Equivalent VO2max" from a race: `VO2(d/t) / F(t)`, mL·kg⁻¹·min⁻¹
 /// (Daniels J, Gilbert J, *Oxygen Power: Performance Tables for Distance Runners*, 1979).
 ///

@@ -18,8 +18,8 @@ use super::elevation::{gain_loss, DEFAULT_HYSTERESIS_M};
 use super::findings::{self, Finding};
 use super::gradient::{gradients, hill_adjusted_speed_with, HillAdjustment};
 use super::load::trimp_from_samples;
+use super::motion::Motion;
 use super::sampling::sample_dt;
-use super::summary::{moving_time_s, MOVING_SPEED_MPS};
 use super::trend;
 use super::zones::{hr_zones, pace_zones, time_in_zones};
 
@@ -38,9 +38,18 @@ pub const MIN_INTERVAL_DECOUPLING_S: f64 = 120.0;
 // Common coaching practice (no published source).
 pub const MIN_DECOUPLING_S: f64 = 20.0 * 60.0;
 
+/// Slack on [`MIN_DECOUPLING_S`]: a 20-minute effort whose first sample's spacing falls
+/// outside the window still counts, seconds. Our design choice (one sample at the slowest
+/// smart-recording rhythm).
+pub const DECOUPLING_SLACK_S: f64 = 15.0;
+
 /// Without a plan, the first part of a session left out of the decoupling, seconds.
 // Common coaching practice (no published source): the warm-up.
 pub const DEFAULT_WARMUP_S: f64 = 10.0 * 60.0;
+
+/// A warm-up left out of the steady part with less running than this is no warm-up: the
+/// first [`DEFAULT_WARMUP_S`] of running are left out as well, seconds. Our design choice.
+pub const MIN_WARMUP_RUNNING_S: f64 = 5.0 * 60.0;
 
 /// Trends across a set are "flat" when the fitted change over the set is under this, s/km.
 // Common coaching practice (no published source).
@@ -385,8 +394,11 @@ pub(crate) struct Series<'a> {
     pub speed_ok: Vec<bool>,
     pub hr_ok: Vec<bool>,
     pub cadence_ok: Vec<bool>,
-    /// Moving: speed usable and at least `MOVING_SPEED_MPS` (without speed: not paused).
+    /// Moving: running or walking ([`super::motion`]) with a usable speed (without speed:
+    /// moving and not paused).
     pub moving: Vec<bool>,
+    /// Moving and running (not walking).
+    pub running: Vec<bool>,
 }
 
 impl<'a> Series<'a> {
@@ -394,9 +406,22 @@ impl<'a> Series<'a> {
         Series::with_gradients(session, gradients(session).as_deref())
     }
 
+    /// [`Series::with_motion`] classifying the motion here.
+    pub fn with_gradients(session: &'a Session, grads: Option<&[Option<f64>]>) -> Series<'a> {
+        Series::with_motion(
+            session,
+            grads,
+            &super::motion::classify_with(session, grads),
+        )
+    }
+
     /// [`Series::new`] with the session's gradients already computed
     /// ([`super::gradient::gradients`]; `None` without altitude).
-    pub fn with_gradients(session: &'a Session, grads: Option<&[Option<f64>]>) -> Series<'a> {
+    pub fn with_motion(
+        session: &'a Session,
+        grads: Option<&[Option<f64>]>,
+        motion: &Motion,
+    ) -> Series<'a> {
         let n = session.len();
         let paused: Vec<bool> = (0..n)
             .map(|i| {
@@ -417,12 +442,13 @@ impl<'a> Series<'a> {
         let speed_ok = ok(ChannelKind::Speed, session.speed.as_ref());
         let hr_ok = ok(ChannelKind::Hr, session.hr.as_ref());
         let cadence_ok = ok(ChannelKind::Cadence, session.cadence.as_ref());
-        let moving = match &session.speed {
-            Some(sp) => (0..n)
-                .map(|i| speed_ok[i] && sp.get(i).is_some_and(|v| v >= MOVING_SPEED_MPS))
-                .collect(),
-            None => paused.iter().map(|p| !p).collect(),
+        // Moving: running or walking by the motion classification (standing with a
+        // wandering GPS, pauses and recording gaps left out), with a usable speed.
+        let moving: Vec<bool> = match &session.speed {
+            Some(_) => (0..n).map(|i| speed_ok[i] && motion.moving(i)).collect(),
+            None => (0..n).map(|i| !paused[i] && motion.moving(i)).collect(),
         };
+        let running: Vec<bool> = (0..n).map(|i| moving[i] && motion.running(i)).collect();
         let hill = hill_adjusted_speed_with(session, grads);
         let hill_adjusted = hill
             .as_ref()
@@ -440,6 +466,7 @@ impl<'a> Series<'a> {
             hr_ok,
             cadence_ok,
             moving,
+            running,
         }
     }
 
@@ -511,7 +538,21 @@ pub fn review_with(
     profile: &AthleteProfile,
     grads: Option<&[Option<f64>]>,
 ) -> Review {
-    let s = Series::with_gradients(session, grads);
+    let motion = super::motion::classify_with(session, grads);
+    review_moving(session, set, plan, profile, grads, &motion)
+}
+
+/// [`review_with`] with the session's motion already classified
+/// ([`super::motion::classify`]).
+pub fn review_moving(
+    session: &Session,
+    set: &IntervalSet,
+    plan: Option<&Plan>,
+    profile: &AthleteProfile,
+    grads: Option<&[Option<f64>]>,
+    motion: &Motion,
+) -> Review {
+    let s = Series::with_motion(session, grads, motion);
     // A ride, a walk or any other sport gets no running analysis: no intervals to score,
     // whatever set the caller found.
     let running = session.sport.analysed_as_running();
@@ -521,7 +562,7 @@ pub fn review_with(
     let intervals = interval_metrics(session, &s, set, &expected, profile);
     let recoveries = recovery_metrics(session, &s, set, &intervals);
     let trends = trends(&intervals, &recoveries, profile);
-    let analysed = analysed_range(session, set, plan.is_some());
+    let analysed = analysed_range(session, set, plan, motion);
     let mut whole = whole_session(session, &s, analysed, profile);
     if !running {
         // Decoupling and drift are read on running speed: not for another sport.
@@ -565,8 +606,8 @@ pub fn review_with(
                 .start
                 .to_rfc3339_opts(chrono::SecondsFormat::Secs, true),
             duration_s: session.duration_s(),
-            moving_s: moving_time_s(session),
-            distance_m: session.distance_m(),
+            moving_s: motion.moving_total_s(),
+            distance_m: super::motion::moving_distance_m(session, motion),
             samples: session.len(),
             channels: session
                 .channels_present()
@@ -1379,39 +1420,69 @@ fn trend_text(
     }
 }
 
-/// The sample range of the analysed part for the whole-session decoupling: without a plan,
-/// the session minus its first 10 minutes; with a plan, minus the warm-up and cool-down.
-fn analysed_range(session: &Session, set: &IntervalSet, has_plan: bool) -> (usize, usize) {
+/// The sample range of the steady part for the whole-session decoupling and HR drift:
+/// the warm-up and cool-down left out (for a plan with work, everything before the first
+/// planned work segment and after the last; otherwise the warm-up and cool-down pieces,
+/// planned or detected, including standing and walking at the ends). When what was left
+/// out at the start holds less than [`MIN_WARMUP_RUNNING_S`] of running, the first
+/// [`DEFAULT_WARMUP_S`] of running of the rest are left out too (heart rate settles).
+/// Standing, walking and stopped samples inside the range are left out by the caller.
+fn analysed_range(
+    session: &Session,
+    set: &IntervalSet,
+    plan: Option<&Plan>,
+    motion: &Motion,
+) -> (usize, usize) {
     let n = session.len();
     if n == 0 {
         return (0, 0);
     }
     let last = n - 1;
-    if has_plan {
-        let start = set
-            .intervals
-            .iter()
-            .take_while(|i| i.kind == SegmentKind::Warmup)
-            .map(|i| i.end)
-            .last()
-            .unwrap_or(0);
-        let end = set
-            .intervals
-            .iter()
-            .rev()
-            .take_while(|i| i.kind == SegmentKind::Cooldown)
-            .map(|i| i.start)
-            .last()
-            .unwrap_or(last);
-        (start.min(last), end.min(last))
-    } else {
-        let start = session
-            .t
-            .iter()
-            .position(|&t| t >= DEFAULT_WARMUP_S)
-            .unwrap_or(last);
-        (start, last)
+    let plan_has_work =
+        plan.is_some_and(|p| p.expand().iter().any(|e| e.kind == SegmentKind::Work));
+    let lead = |i: &&crate::model::Interval| {
+        if plan_has_work {
+            i.kind != SegmentKind::Work
+        } else {
+            i.kind == SegmentKind::Warmup
+        }
+    };
+    let trail = |i: &&crate::model::Interval| {
+        if plan_has_work {
+            i.kind != SegmentKind::Work
+        } else {
+            i.kind == SegmentKind::Cooldown
+        }
+    };
+    let mut start = set
+        .intervals
+        .iter()
+        .take_while(lead)
+        .map(|i| i.end)
+        .last()
+        .unwrap_or(0)
+        .min(last);
+    let end = set
+        .intervals
+        .iter()
+        .rev()
+        .take_while(trail)
+        .map(|i| i.start)
+        .last()
+        .unwrap_or(last)
+        .min(last);
+    if motion.running_s(0, start) < MIN_WARMUP_RUNNING_S {
+        let mut acc = 0.0;
+        let mut k = start;
+        while k < end && acc < DEFAULT_WARMUP_S {
+            k += 1;
+            if motion.running(k) {
+                acc += motion.dt.get(k).copied().unwrap_or(0.0);
+            }
+        }
+        start = k;
     }
+    (start.min(end), end)
 }
 
 /// Whole-session numbers shared with the findings.
@@ -1436,7 +1507,7 @@ fn whole_session(
 ) -> Whole {
     let n = session.len();
     let usable: Vec<bool> = (0..n)
-        .map(|i| i > a && i <= b && s.moving.get(i).copied().unwrap_or(false) && s.hr_ok(i))
+        .map(|i| i > a && i <= b && s.running.get(i).copied().unwrap_or(false) && s.hr_ok(i))
         .collect();
     let analysed_s: f64 = (0..n).filter(|&i| usable[i]).map(|i| s.dt(i)).sum();
     let mut whole = Whole {
@@ -1444,7 +1515,7 @@ fn whole_session(
         ..Whole::default()
     };
     if let (Some(hr), Some(speed)) = (s.hr, s.speed) {
-        if analysed_s >= MIN_DECOUPLING_S {
+        if analysed_s + DECOUPLING_SLACK_S >= MIN_DECOUPLING_S {
             whole.decoupling_raw = decoupling_pct(speed, hr, s.t, &usable);
             whole.decoupling = match s.adj.as_deref() {
                 Some(adj) if s.hill_adjusted => decoupling_pct(adj, hr, s.t, &usable),
@@ -1470,7 +1541,7 @@ fn whole_session(
                         })
                         .collect();
                     let steady_s: f64 = (0..n).filter(|&i| steady[i]).map(|i| s.dt(i)).sum();
-                    if steady_s >= MIN_DECOUPLING_S {
+                    if steady_s + DECOUPLING_SLACK_S >= MIN_DECOUPLING_S {
                         whole.drift = hr_drift_bpm_per_h(s.t, hr, &steady);
                     }
                 }

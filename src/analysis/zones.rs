@@ -36,6 +36,42 @@ pub const PACE_ZONE_TOP_MPS: f64 = 12.5;
 /// 5(2):1–10). Show a measured maximum whenever the profile has one.
 pub const AGE_FORMULA_ERROR_BPM: (f64, f64) = (7.0, 11.0);
 
+/// Standard error of the Tanaka estimate of HR max, bpm, shown beside every estimate.
+// From memory: Tanaka, Monahan & Seals 2001 (J Am Coll Cardiol 37:153) give the spread of
+// individual maxima around 208 − 0.7·age as about ±10 bpm; not checked against the paper.
+// The published bound we rely on: age-based formulas have prediction errors of 7–11 bpm
+// (Robergs & Landwehr 2002, JEPonline 5(2):1–10; methods.md §3, S), and 10 lies inside it.
+pub const TANAKA_SE_BPM: f64 = 10.0;
+
+/// The words shown beside HR zones, or numbers derived from them, when HR max is estimated
+/// from age: `HR max 180 bpm estimated from age 40 (Tanaka et al. 2001, about ±10 bpm) ...`.
+pub fn estimated_hr_max_words(hr_max: f64, age_years: f64) -> String {
+    format!(
+        "HR max {hr_max:.0} bpm estimated from age {age_years:.0} (Tanaka et al. 2001, about \
+         ±{TANAKA_SE_BPM:.0} bpm; age formulas err by {:.0}-{:.0} bpm, Robergs & Landwehr 2002): \
+         the HR zones are estimates too; a measured hr_max in athlete.toml replaces it",
+        AGE_FORMULA_ERROR_BPM.0, AGE_FORMULA_ERROR_BPM.1
+    )
+}
+
+/// [`estimated_hr_max_words`] when the HR zones of `profile` rest on the age estimate (no
+/// `hr_max` and no `hr_zones` override, an age known); `None` otherwise.
+pub fn hr_max_estimate_note(profile: &AthleteProfile, age_years: Option<f64>) -> Option<String> {
+    match hr_zones(profile, age_years)?.basis {
+        HrZoneBasis::HeartRateReserve(HrMaxSource::Tanaka { age_years })
+        | HrZoneBasis::FractionOfMax(HrMaxSource::Tanaka { age_years }) => {
+            Some(estimated_hr_max_words(tanaka_hr_max(age_years)?, age_years))
+        }
+        _ => None,
+    }
+}
+
+/// The athlete's age in years on a date's year, from the profile's `birth_year`, as the
+/// review computes it for the zones.
+pub fn age_in_year(profile: &AthleteProfile, year: i32) -> Option<f64> {
+    profile.birth_year.map(|y| f64::from(year - y))
+}
+
 /// Karvonen target heart rate: `rest + k·(max − rest)`, bpm (Karvonen et al. 1957).
 /// `None` when `max <= rest` or an input is not finite. `k` is not clamped.
 pub fn karvonen(rest: f64, max: f64, k: f64) -> Option<f64> {
@@ -46,7 +82,9 @@ pub fn karvonen(rest: f64, max: f64, k: f64) -> Option<f64> {
 }
 
 /// Age-predicted HR max `208 − 0.7·age` (Tanaka H, Monahan KD, Seals DR, J Am Coll Cardiol
-/// 2001;37(1):153–156). Errs by 7–11 bpm for an individual (Robergs & Landwehr 2002).
+/// 2001;37(1):153–156), about ±[`TANAKA_SE_BPM`]; errs by 7–11 bpm for an individual
+/// (Robergs & Landwehr 2002). Every view that shows it, or zones from it, says it is an
+/// estimate ([`hr_max_estimate_note`]).
 /// `None` for a negative or non-finite age.
 pub fn tanaka_hr_max(age_years: f64) -> Option<f64> {
     (age_years.is_finite() && age_years >= 0.0).then_some(208.0 - 0.7 * age_years)

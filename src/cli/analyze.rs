@@ -16,6 +16,8 @@ struct Context_ {
     profile: AthleteProfile,
     plan: Option<Plan>,
     plan_source: Option<String>,
+    /// The roster's athlete and the session id, when the file is inside a roster.
+    roster_athlete: Option<(crate::roster::Athlete, String)>,
 }
 
 /// The roster a file sits in, when its path is `<roster>/<athlete>/activities/<file>`.
@@ -86,10 +88,12 @@ fn context(
         }
         (None, None, None) => (None, None),
     };
+    let roster_athlete = located.map(|(a, act)| (a.clone(), a.session_id(act)));
     Ok(Context_ {
         profile,
         plan,
         plan_source,
+        roster_athlete,
     })
 }
 
@@ -125,6 +129,16 @@ pub fn run(
     };
     let mut review = crate::analysis::analyze(&session, ctx.plan.as_ref(), &ctx.profile);
     review.file = file.display().to_string();
+    // Inside a roster: the load-spike caution, from the athlete's other sessions.
+    if let Some((athlete, id)) = &ctx.roster_athlete {
+        if let Some(me) = crate::analysis::history::SessionSummary::from_review(id, &review) {
+            let mut sums = crate::workspace::athlete_summaries_until(athlete, me.date(), id);
+            sums.push(me);
+            if let Some(f) = crate::analysis::history::load_spike_finding(&sums, id) {
+                review.findings.insert(0, f);
+            }
+        }
+    }
     if json {
         println!("{}", serde_json::to_string_pretty(&review)?);
     } else {

@@ -182,6 +182,16 @@ pub fn render(r: &Review, profile: &AthleteProfile, plan_source: Option<&str>) -
             .map(|z| format!("{} {}", z.name, format_clock(z.seconds)))
             .collect();
         let _ = writeln!(o, "  HR zones: {}", z.join(", "));
+        // Zones from the age formula say so (Tanaka et al. 2001, with its error).
+        let year = r.session.start.get(..4).and_then(|y| y.parse::<i32>().ok());
+        if let Some(note) = year.and_then(|y| {
+            crate::analysis::zones::hr_max_estimate_note(
+                profile,
+                crate::analysis::zones::age_in_year(profile, y),
+            )
+        }) {
+            let _ = writeln!(o, "  ({note})");
+        }
     }
     if !r.zones.pace.is_empty() {
         let z: Vec<String> = r

@@ -5,8 +5,10 @@ use anyhow::{bail, Context};
 use chrono::{NaiveDate, Utc};
 
 use crate::analysis::history::{self, History, HistoryParams, SessionSummary};
+use crate::analysis::history::{fixed, fixed_distance as format_distance};
+use crate::analysis::race;
 use crate::analysis::review::{Review, ANALYSIS_VERSION};
-use crate::model::units::{format_clock, format_distance, format_pace};
+use crate::model::units::{format_clock, format_pace};
 use crate::model::Units;
 use crate::workspace::Workspace;
 
@@ -64,6 +66,11 @@ pub fn run(ws: &Workspace, athlete: &str, weeks: Option<u32>, json: bool) -> any
     Ok(0)
 }
 
+/// An equivalent VO2max, starred when the effort is under the model's range.
+fn vo2(v: f64, beyond: bool) -> String {
+    format!("{v:.1}{}", if beyond { "*" } else { "" })
+}
+
 fn opt(v: Option<f64>, f: impl Fn(f64) -> String) -> String {
     v.map(f).unwrap_or_else(|| "-".to_string())
 }
@@ -106,6 +113,10 @@ pub fn render(h: &History, name: &str, u: Units) -> String {
         );
     }
 
+    if let Some(e) = &h.hr_max_estimate {
+        let _ = writeln!(s, "time by HR zone: {e}");
+    }
+
     let _ = writeln!(
         s,
         "\nLoad (daily TRIMP), acute/chronic ratio (usual band {:.1}-{:.1}, caution from {:.1}), \
@@ -119,9 +130,8 @@ pub fn render(h: &History, name: &str, u: Units) -> String {
     );
     for (k, d) in h.daily_load.iter().enumerate() {
         let ratio = h.acute_chronic_ratio.get(k).and_then(|r| r.value);
-        let val = |series: &[history::DailyValue]| {
-            opt(series.get(k).map(|v| v.value), |v| format!("{v:.0}"))
-        };
+        let val =
+            |series: &[history::DailyValue]| opt(series.get(k).map(|v| v.value), |v| fixed(v, 0));
         let _ = writeln!(
             s,
             "{:<10} {:>6.0} {:>6} {:>8} {:>8} {:>9}",
@@ -138,10 +148,41 @@ pub fn render(h: &History, name: &str, u: Units) -> String {
     }
     let _ = writeln!(s, "{}", h.acute_chronic_bands.method);
 
+    let _ = writeln!(
+        s,
+        "\nDays the load rose sharply (acute/chronic ratio {:.1} or more)",
+        h.acute_chronic_bands.caution
+    );
+    if h.load_spikes.is_empty() {
+        let _ = writeln!(s, "none in the window");
+    }
+    for d in &h.load_spikes {
+        let _ = writeln!(
+            s,
+            "CAUTION {:<10} ratio {:.2}, load {:.0}  {}",
+            d.date.to_string(),
+            d.ratio,
+            d.load,
+            d.sessions
+                .join(", ")
+                .chars()
+                .filter(|c| !c.is_control())
+                .collect::<String>()
+        );
+    }
+    if !h.load_spikes.is_empty() {
+        let _ = writeln!(
+            s,
+            "{} {}",
+            crate::analysis::load::ACUTE_CHRONIC_CRITICISM,
+            history::LOAD_CAUTION_WORDS
+        );
+    }
+
     let e = &h.efficiency_trend;
     let _ = writeln!(
         s,
-        "\nEfficiency on easy runs (relative intensity under {:.2}): {}",
+        "\nEfficiency on easy runs (steady throughout, relative intensity under {:.2}): {}",
         e.easy_max_relative_intensity, e.text
     );
     let _ = writeln!(s, "{:<9} {:>4} {:>12}", "week", "runs", "m/beat");
@@ -162,10 +203,10 @@ pub fn render(h: &History, name: &str, u: Units) -> String {
     for r in &l.runs {
         let _ = writeln!(
             s,
-            "{:<10} {:>8} {:>6.1} %{}  {}",
+            "{:<10} {:>8} {:>6} %{}  {}",
             r.date.to_string(),
             format_clock(r.moving_s),
-            r.decoupling_pct,
+            fixed(r.decoupling_pct, 1),
             if r.above_line { " above" } else { "" },
             r.session
         );
@@ -189,10 +230,16 @@ pub fn render(h: &History, name: &str, u: Units) -> String {
             format_pace(b.speed_mps, u),
             b.speed_mps,
             format_distance(b.distance_m, u),
-            opt(b.equivalent_vo2max, |v| format!("{v:.1}")),
+            opt(b.equivalent_vo2max, |v| vo2(v, b.vo2max_beyond_model)),
             b.date.to_string(),
             b.session
         );
+    }
+    if h.best_efforts
+        .iter()
+        .any(|b| b.vo2max_beyond_model && b.equivalent_vo2max.is_some())
+    {
+        let _ = writeln!(s, "* {}", race::SHORT_EFFORT_VO2MAX_CAVEAT);
     }
     match (h.critical_speed_mps, h.d_prime_m) {
         (Some(cs), Some(dp)) => {
@@ -223,9 +270,12 @@ pub fn render(h: &History, name: &str, u: Units) -> String {
             "Riegel from the {} best effort ({}, equivalent VO2max {}) of {}",
             format_clock(r.duration_s),
             format_pace(r.speed_mps, u),
-            opt(r.equivalent_vo2max, |v| format!("{v:.1}")),
+            opt(r.equivalent_vo2max, |v| vo2(v, r.vo2max_beyond_model)),
             r.date
         );
+        if r.vo2max_beyond_model && r.equivalent_vo2max.is_some() {
+            let _ = writeln!(s, "* {}", race::SHORT_EFFORT_VO2MAX_CAVEAT);
+        }
     }
     let _ = writeln!(
         s,

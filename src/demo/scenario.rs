@@ -626,6 +626,7 @@ impl Builder {
                 sampling: d.sampling,
                 treadmill: false,
                 stops: Vec::new(),
+                ..Conditions::default()
             },
             faults: Faults::default(),
             fitness: 1.0 + d.fitness_per_week * f64::from(week.max(1) - 1),

@@ -29,7 +29,8 @@ mod terrain;
 use chrono::{DateTime, TimeZone, Utc};
 
 use crate::model::{
-    Amount, AthleteProfile, FileFormat, Plan, RecoveryMode, SegmentKind, Session, Step, Target,
+    Amount, AthleteProfile, FileFormat, Plan, RecoveryMode, SegmentKind, Session, Sport, Step,
+    Target,
 };
 
 pub use physiology::{cadence_for_speed, hill_cost_ratio, hill_speed_factor, minetti_cr};
@@ -131,6 +132,20 @@ pub struct Stop {
     pub dur_s: f64,
 }
 
+/// Parameters of a GPS position error process, per axis: a unit AR(1) of correlation time
+/// `corr_s` through a first-order filter of time constant `smooth_s`, scaled to `sd_m`.
+/// Short smoothing makes the error jump from second to second (fake movement when the
+/// positions are differentiated); long smoothing makes it wander slowly.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct GpsNoise {
+    /// Standard deviation per axis, metres.
+    pub sd_m: f64,
+    /// Correlation time of the underlying AR(1), seconds.
+    pub corr_s: f64,
+    /// Time constant of the smoothing filter, seconds.
+    pub smooth_s: f64,
+}
+
 /// The day's conditions and how the athlete runs.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Conditions {
@@ -153,7 +168,32 @@ pub struct Conditions {
     pub treadmill: bool,
     /// Timer pauses during the run.
     pub stops: Vec<Stop>,
+    /// On hills the runner holds an even effort (constant metabolic power: hill-adjusted
+    /// speed and heart rate stay flat) instead of the usual partial slowing uphill
+    /// (`(Cr(0)/Cr(i))^0.7`, see `hill_speed_factor`). Default: false.
+    pub even_hill_effort: bool,
+    /// Stops the device records only as a missing stretch of samples: the runner halts as
+    /// at a [`Stop`], no samples are written for `dur_s`, and no pause marker is written
+    /// (`session.pauses` stays without them). The truth counts them like pauses.
+    pub gaps: Vec<Stop>,
+    /// Position error of the whole run; `None` is the default process (2.5 m, 30 s
+    /// correlation, 10 s smoothing; see `record.rs`).
+    pub gps_noise: Option<GpsNoise>,
+    /// Extra position error while the runner stands still (true speed under 0.3 m/s,
+    /// faded in and out over about 5 s), from its own random stream: the jitter a receiver
+    /// shows at rest. `None`: no extra error.
+    pub standing_jitter: Option<GpsNoise>,
+    /// The sport written into the file. Cycling scales every running speed by
+    /// [`CYCLING_SPEED_RATIO`] (an easy ride at about 7.5 m/s for an easy runner at 3.2 m/s),
+    /// divides the effort by the same ratio and pedals at about 85 rpm; other sports only
+    /// change the label. Default: running.
+    pub sport: Sport,
 }
+
+/// Speed on the bike over speed on foot at the same effort, for [`Conditions::sport`]
+/// cycling. Our own choice (no published source): sized so an easy ride on the flat lands
+/// at 7-9 m/s.
+pub const CYCLING_SPEED_RATIO: f64 = 2.4;
 
 impl Default for Conditions {
     fn default() -> Conditions {
@@ -167,6 +207,11 @@ impl Default for Conditions {
             sampling: Sampling::EverySecond,
             treadmill: false,
             stops: Vec::new(),
+            even_hill_effort: false,
+            gaps: Vec::new(),
+            gps_noise: None,
+            standing_jitter: None,
+            sport: Sport::Running,
         }
     }
 }
@@ -278,6 +323,43 @@ pub struct TrueInterval {
     pub trough_at_s: Option<f64>,
 }
 
+/// The true steady part of a run and the true decoupling over it.
+///
+/// Definitions (the everyday-run test set measures the analysis against these):
+/// - **Main part**: the plan's segments after any leading warm-up or recovery segments
+///   (standing, walking, jogging before the run) and before any trailing cool-down or
+///   recovery segments (a walk, standing with the watch running). A run has a steady part
+///   only when its main part holds no recovery: steady segments and at most one work
+///   segment (a race or time trial is one effort). Sets have none.
+/// - **Steady part**: the main part, less its first 10 minutes of moving time when the
+///   run has no warm-up segment (heart rate settles; the README's rule). Pauses and gaps
+///   inside it are not part of its moving time.
+/// - **Moving**: a 1-s step counts as moving when the runner's true mean speed over it is
+///   at least [`MOVING_SPEED_MPS`] (walking counts as moving, standing and pauses do not).
+/// - **Decoupling**: the steady part's moving seconds split into two halves of equal
+///   moving time; per half EF = time-weighted mean hill-adjusted speed (true speed times
+///   `Cr(i)/Cr(0)` at the true gradient, [`crate::analysis::gradient::flat_equivalent_speed`])
+///   over time-weighted mean true HR; decoupling = `(EF1 - EF2) / EF1 * 100`
+///   (methods.md section 7, first version).
+#[derive(Debug, Clone, PartialEq)]
+pub struct SteadyPart {
+    /// Elapsed seconds where the steady part starts.
+    pub start_s: f64,
+    /// Elapsed seconds where it ends.
+    pub end_s: f64,
+    /// Its moving time, seconds.
+    pub moving_s: f64,
+    /// Efficiency (hill-adjusted m/s per bpm) of the first and second half.
+    pub ef_first: f64,
+    pub ef_second: f64,
+    /// `(EF1 - EF2) / EF1 * 100`.
+    pub decoupling_pct: f64,
+}
+
+/// A 1-s step of the true run counts as moving at or above this mean speed, m/s. Our own
+/// choice: well under walking (about 1.4 m/s), well over the jitter of standing still.
+pub const MOVING_SPEED_MPS: f64 = 0.5;
+
 /// What really happened, for checking analysis against.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Truth {
@@ -295,6 +377,14 @@ pub struct Truth {
     pub hr_bpm: Vec<f64>,
     /// True gradient underfoot at each recorded sample (0 on a treadmill).
     pub grade: Vec<f64>,
+    /// True moving time, seconds: the 1-s steps at or above [`MOVING_SPEED_MPS`]. Walking
+    /// counts as moving (the athlete moved); standing, pauses and gaps do not.
+    pub moving_s: f64,
+    /// True distance covered from the first to the last sample, metres (the integral of the
+    /// true speed).
+    pub distance_m: f64,
+    /// The true steady part and its decoupling; `None` for sets (see [`SteadyPart`]).
+    pub steady: Option<SteadyPart>,
 }
 
 impl Truth {

@@ -415,6 +415,10 @@ pub struct OpenSession {
     pub note: Option<Option<String>>,
     /// The feedback text (after the reveal).
     pub feedback: Option<TextEditor>,
+    /// The load-spike caution when this session's day took the athlete's acute/chronic
+    /// ratio to the caution band (from the athlete's cached reviews; shown with the
+    /// findings, kept out of the review and so out of the feedback draft).
+    pub load_spike: Option<crate::analysis::findings::Finding>,
 }
 
 impl OpenSession {
@@ -717,6 +721,33 @@ impl App {
             history,
             week_offset,
         });
+    }
+
+    /// Work out whether the open session's day took the athlete's acute/chronic ratio to
+    /// the caution band, from the reviews the workstation holds for that athlete.
+    fn update_load_spike(&mut self) {
+        let Some(o) = self.open.as_ref() else { return };
+        let Some(athlete) = self.athlete(o.athlete).map(|a| a.id.clone()) else {
+            return;
+        };
+        let rows = self.rows.get(&athlete).map(Vec::as_slice).unwrap_or(&[]);
+        let mut sums: Vec<SessionSummary> = rows
+            .iter()
+            .filter(|r| r.session_id != o.session_id)
+            .filter_map(|r| {
+                let rv = self.reviews.get(&r.session_id)?;
+                SessionSummary::from_review(&r.session_id, rv)
+            })
+            .collect();
+        sums.extend(
+            o.review
+                .as_ref()
+                .and_then(|rv| SessionSummary::from_review(&o.session_id, rv)),
+        );
+        let spike = crate::analysis::history::load_spike_finding(&sums, &o.session_id);
+        if let Some(o) = self.open.as_mut() {
+            o.load_spike = spike;
+        }
     }
 
     /// Load the cached reviews of an athlete's sessions (for titles and totals).
@@ -1266,7 +1297,9 @@ impl App {
             selected_work: 0,
             note: None,
             feedback: None,
+            load_spike: None,
         });
+        self.update_load_spike();
         self.reload_grades();
         self.load_revealed();
         self.view = View::Review;
@@ -1484,6 +1517,7 @@ impl App {
             o.selected_work = n.saturating_sub(1);
         }
         o.analysed = Some(a);
+        self.update_load_spike();
         self.reload_grades();
         if let Some(o) = self.open.as_mut() {
             o.note = None;

@@ -32,6 +32,9 @@ pub fn with_load(n: i64, trimp: f64) -> SessionSummary {
         mean_hr: None,
         decoupling_pct: None,
         best_efforts: Vec::new(),
+        work_intervals: 0,
+        effort_spread_pct: Some(0.0),
+        steady: true,
     }
 }
 

@@ -57,6 +57,7 @@ mod align;
 mod detect;
 mod laps;
 mod trace;
+mod unplanned;
 
 pub use align::{
     AMOUNT_WEIGHT, GAP_WEIGHT, MAX_GROUP, SKIP_DETECTED_COST, SKIP_EXPECTED_COST, SPEED_WEIGHT,
@@ -76,6 +77,12 @@ use crate::model::{
     RecoveryMode, SegmentKind, Session,
 };
 pub use trace::{hill_factor, DOWNHILL_FACTOR_FLOOR, HILL_EXPONENT};
+pub use unplanned::{
+    HR_RESPONSE_BPM, MIN_END_S, MIN_MAIN_RUN_S, ONE_EFFORT_MIN_INTENSITY, ONE_EFFORT_MIN_SLOW_S,
+    PROGRESSION_STEP, STEADY_NOTE, STOPS_MIN_EFFORT_S,
+};
+
+use crate::analysis::motion::{self, Motion};
 
 use align::Fast;
 use trace::Trace;
@@ -143,6 +150,24 @@ pub fn find_intervals_with(
     profile: &AthleteProfile,
     grads: Option<&[Option<f64>]>,
 ) -> IntervalSet {
+    find_intervals_moving(
+        session,
+        plan,
+        profile,
+        grads,
+        &motion::classify_with(session, grads),
+    )
+}
+
+/// [`find_intervals_with`] with the session's motion already classified
+/// ([`crate::analysis::motion::classify`]).
+pub fn find_intervals_moving(
+    session: &Session,
+    plan: Option<&Plan>,
+    profile: &AthleteProfile,
+    grads: Option<&[Option<f64>]>,
+    motion: &Motion,
+) -> IntervalSet {
     let expected: Vec<ExpectedInterval> = plan.map(Plan::expand).unwrap_or_default();
     let n = session.len();
     let mut set = IntervalSet {
@@ -157,7 +182,7 @@ pub fn find_intervals_with(
         set.missing = (0..expected.len()).collect();
         return set;
     }
-    let Some(trace) = Trace::with_gradients(session, grads) else {
+    let Some(trace) = Trace::with_gradients(session, grads, motion) else {
         set.notes
             .push("no speed or distance: the intervals could not be found".into());
         set.missing = (0..expected.len()).collect();
@@ -213,7 +238,15 @@ pub fn find_intervals_with(
         }
     }
 
-    // 2. Detection from the speed.
+    // 2. Without a plan: what kind of run it was, then its pieces.
+    if plan.is_none() {
+        let (intervals, notes) = unplanned::find(session, &trace, grads, motion, profile);
+        set.intervals = intervals;
+        set.notes.extend(notes);
+        return set;
+    }
+
+    // 3. Detection from the speed, aligned to the plan.
     let slowest_work = expected
         .iter()
         .filter(|e| e.kind == SegmentKind::Work)
@@ -223,38 +256,6 @@ pub fn find_intervals_with(
     let det = detect::detect(&trace, slowest_work);
     let runs: Vec<(usize, usize, bool)> =
         det.runs.iter().map(|r| (r.start, r.end, r.fast)).collect();
-    if plan.is_none() {
-        if !runs.is_empty() && !raw_structure(&runs, &trace) {
-            // Only the hill adjustment made the climbs "fast" (a trail run): not a set.
-            set.notes.push(
-                "the faster stretches were climbs at a steady effort, not repeats: one steady \
-                 interval"
-                    .into(),
-            );
-            set.intervals = build(
-                &trace.t,
-                &[single(n, SegmentKind::Steady)],
-                IntervalSource::Detected,
-            );
-            return set;
-        }
-        if runs.is_empty() {
-            set.notes
-                .push("no clear change of pace: one steady interval".into());
-            set.intervals = build(
-                &trace.t,
-                &[single(n, SegmentKind::Steady)],
-                IntervalSource::Detected,
-            );
-        } else {
-            set.intervals = build(
-                &trace.t,
-                &label_inferred(&runs, &trace),
-                IntervalSource::Detected,
-            );
-        }
-        return set;
-    }
     if !expected.iter().any(|e| e.kind == SegmentKind::Work) {
         let pieces = proportional(&expected, &trace);
         set.notes

@@ -2,6 +2,7 @@
 //! removed, per-sample time weights, and segment statistics.
 
 use crate::analysis::gradient::{cost_ratio, cumulative_distance};
+use crate::analysis::motion::{Motion, MotionState};
 use crate::analysis::sampling::MAX_SAMPLE_DT_S;
 use crate::ingest::clean::{sample_mask, MAX_SPEED_MPS};
 use crate::model::{ChannelKind, Session};
@@ -71,7 +72,31 @@ impl Trace {
     /// Build the trace of a session from its gradients
     /// ([`crate::analysis::gradient::gradients`]; `None` without altitude). `None` without
     /// any speed or distance.
-    pub fn with_gradients(session: &Session, grads: Option<&[Option<f64>]>) -> Option<Trace> {
+    pub fn with_gradients(
+        session: &Session,
+        grads: Option<&[Option<f64>]>,
+        motion: &Motion,
+    ) -> Option<Trace> {
+        Trace::build(session, grads, motion, hill_factor)
+    }
+
+    /// [`Trace::with_gradients`] with the full flat-equivalent correction of the interval
+    /// table's hill-adjusted pace ([`crate::analysis::gradient::flat_equivalent_speed`],
+    /// Minetti et al. 2002) instead of the damped [`hill_factor`].
+    pub fn with_full_hill(
+        session: &Session,
+        grads: Option<&[Option<f64>]>,
+        motion: &Motion,
+    ) -> Option<Trace> {
+        Trace::build(session, grads, motion, cost_ratio)
+    }
+
+    fn build(
+        session: &Session,
+        grads: Option<&[Option<f64>]>,
+        motion: &Motion,
+        factor: fn(f64) -> f64,
+    ) -> Option<Trace> {
         let n = session.len();
         let t = session.t.clone();
         let dist = cumulative_distance(session);
@@ -97,7 +122,7 @@ impl Trace {
                 .map(|(i, v)| {
                     let v = (*v)?;
                     Some(match g.get(i).copied().flatten() {
-                        Some(gr) => v * hill_factor(gr),
+                        Some(gr) => v * factor(gr),
                         None => v,
                     })
                 })
@@ -112,13 +137,21 @@ impl Trace {
             }
             Some(v.clamp(0.0, MAX_SPEED_MPS))
         };
+        // Standing (GPS wander) reads as a standstill.
+        let standing = |i: usize| motion.at(i) == MotionState::Stand;
         let raw: Vec<Option<f64>> = (0..n)
-            .map(|i| ok(i, raw_in.get(i).copied().flatten()))
+            .map(|i| {
+                let v = ok(i, raw_in.get(i).copied().flatten())?;
+                Some(if standing(i) { 0.0 } else { v })
+            })
             .collect();
         let adj: Vec<Option<f64>> = (0..n)
             .map(|i| {
                 // A flagged raw speed also invalidates the adjusted one.
                 raw.get(i).copied().flatten()?;
+                if standing(i) {
+                    return Some(0.0);
+                }
                 ok(i, adj_in.get(i).copied().flatten())
             })
             .collect();
@@ -132,7 +165,8 @@ impl Trace {
                 .pauses
                 .iter()
                 .any(|p| a >= p.from_s - 1e-9 && b <= p.to_s + 1e-9 && p.to_s > p.from_s);
-            if dt.is_finite() && dt > 0.0 && !paused {
+            let stopped = motion.at(i) == MotionState::Stopped;
+            if dt.is_finite() && dt > 0.0 && !paused && !stopped {
                 *g = dt.min(MAX_SAMPLE_DT_S);
             }
         }
@@ -156,6 +190,33 @@ impl Trace {
 
     pub fn len(&self) -> usize {
         self.t.len()
+    }
+
+    /// The samples `a..=b` as a trace of their own (indices shift by `a`).
+    pub fn slice(&self, a: usize, b: usize) -> Trace {
+        let n = self.len();
+        let b = b.min(n.saturating_sub(1));
+        let a = a.min(b);
+        let take = |v: &[Option<f64>]| v.get(a..=b).map(<[_]>::to_vec).unwrap_or_default();
+        let t: Vec<f64> = self.t.get(a..=b).map(<[_]>::to_vec).unwrap_or_default();
+        let mut gap: Vec<f64> = self.gap.get(a..=b).map(<[_]>::to_vec).unwrap_or_default();
+        if let Some(g) = gap.first_mut() {
+            *g = 0.0;
+        }
+        let w = (0..gap.len())
+            .map(|i| {
+                0.5 * (gap.get(i).copied().unwrap_or(0.0) + gap.get(i + 1).copied().unwrap_or(0.0))
+            })
+            .collect();
+        Trace {
+            t,
+            adj: take(&self.adj),
+            raw: take(&self.raw),
+            w,
+            gap,
+            dist: self.dist.as_ref().map(|d| take(d)),
+            light: std::cell::OnceCell::new(),
+        }
     }
 
     /// Elapsed time of sample `i` (0 past the end).

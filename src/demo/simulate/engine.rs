@@ -2,12 +2,13 @@
 //! cadence, altitude, gradient.
 
 use super::physiology::{
-    cadence_for_speed, hill_cost_ratio, hill_speed_factor, hr_fraction, soft_cap, Physio,
+    cadence_for_speed, even_effort_speed_factor, hill_cost_ratio, hill_speed_factor, hr_fraction,
+    soft_cap, Physio,
 };
 use super::terrain::TerrainState;
-use super::{Pacing, SimInput, Terrain};
+use super::{Pacing, SimInput, Terrain, CYCLING_SPEED_RATIO};
 use crate::demo::rng::Rng;
-use crate::model::{Amount, RecoveryMode, SegmentKind, Target};
+use crate::model::{Amount, RecoveryMode, SegmentKind, Sport, Target};
 
 /// Random-stream numbers: every part of the model draws from its own stream.
 pub(crate) mod stream {
@@ -20,6 +21,7 @@ pub(crate) mod stream {
     pub const GPS_NOISE: u64 = 7;
     pub const CADENCE_NOISE: u64 = 8;
     pub const FAULTS: u64 = 9;
+    pub const STANDING_JITTER: u64 = 10;
 }
 
 /// Integration step, seconds.
@@ -138,7 +140,15 @@ pub(crate) struct Track {
     pub bounds: Vec<(usize, usize)>,
     /// Timer pauses: (first second, last second), no samples strictly inside.
     pub pauses: Vec<(usize, usize)>,
+    /// Per pause: whether the device writes a pause marker (false for
+    /// [`super::Conditions::gaps`]).
+    pub pause_marked: Vec<bool>,
+    /// Cycling: pedalling cadence instead of step rate.
+    pub cycling: bool,
 }
+
+/// Pedalling cadence while riding, rpm. Our own choice: a typical recreational cadence.
+const CYCLING_CADENCE_RPM: f64 = 85.0;
 
 impl Track {
     pub fn len(&self) -> usize {
@@ -149,7 +159,13 @@ impl Track {
         self.speed.push(v);
         self.dist.push(d);
         self.hr.push(hr);
-        self.cadence.push(cadence_for_speed(v));
+        self.cadence.push(if !self.cycling {
+            cadence_for_speed(v)
+        } else if v < 1.0 {
+            0.0
+        } else {
+            CYCLING_CADENCE_RPM
+        });
         self.altitude.push(alt);
         self.grade.push(grade);
     }
@@ -157,6 +173,7 @@ impl Track {
 
 /// Resolve the plan's expanded sequence into segments with speeds.
 fn resolve(input: &SimInput, physio: &Physio) -> Vec<SimSeg> {
+    let sport_scale = sport_speed_ratio(&input.conditions.sport);
     let expanded = input.plan.expand();
     let n_work = expanded
         .iter()
@@ -188,7 +205,11 @@ fn resolve(input: &SimInput, physio: &Physio) -> Vec<SimSeg> {
                 mode: e.mode,
                 repeat: e.repeat,
                 amount: e.amount,
-                base_speed: base_speed.max(0.0),
+                base_speed: if sport_scale == 1.0 {
+                    base_speed.max(0.0)
+                } else {
+                    base_speed.max(0.0) * sport_scale
+                },
                 hr_band: match e.target {
                     Target::HrRange { low_bpm, high_bpm } => Some((low_bpm, high_bpm)),
                     _ => None,
@@ -201,6 +222,14 @@ fn resolve(input: &SimInput, physio: &Physio) -> Vec<SimSeg> {
             }
         })
         .collect()
+}
+
+/// Speed over running speed at the same effort for a sport.
+fn sport_speed_ratio(sport: &Sport) -> f64 {
+    match sport {
+        Sport::Cycling => CYCLING_SPEED_RATIO,
+        _ => 1.0,
+    }
 }
 
 /// Surge state for the surging pacing style.
@@ -329,13 +358,17 @@ pub(crate) fn run(input: &SimInput, physio: &Physio) -> Track {
     });
     let mut pace_rng = Rng::with_stream(input.seed, stream::PACING);
     let mut surge_rng = Rng::with_stream(input.seed, stream::SURGE);
+    // Stops with a pause marker and gaps without one, in time order (stable: a stop
+    // before a gap at the same second).
     let mut stops: Vec<_> = c
         .stops
         .iter()
-        .filter(|s| s.at_s.is_finite() && s.dur_s >= 1.0)
-        .copied()
+        .map(|s| (*s, true))
+        .chain(c.gaps.iter().map(|s| (*s, false)))
+        .filter(|(s, _)| s.at_s.is_finite() && s.dur_s >= 1.0)
         .collect();
-    stops.sort_by(|a, b| a.at_s.total_cmp(&b.at_s));
+    stops.sort_by(|a, b| a.0.at_s.total_cmp(&b.0.at_s));
+    let sport_scale = sport_speed_ratio(&c.sport);
     let mut next_stop = 0;
     let mut stop = StopPhase::Idle;
 
@@ -359,6 +392,7 @@ pub(crate) fn run(input: &SimInput, physio: &Physio) -> Track {
         cadence: Vec::with_capacity(cap_guess),
         altitude: Vec::with_capacity(cap_guess),
         grade: Vec::with_capacity(cap_guess),
+        cycling: c.sport == Sport::Cycling,
         ..Track::default()
     };
     let mut effort_hist: Vec<f64> = Vec::with_capacity(cap_guess);
@@ -410,13 +444,14 @@ pub(crate) fn run(input: &SimInput, physio: &Physio) -> Track {
             if let StopPhase::Paused { from, until } = stop {
                 if k >= until {
                     tr.pauses.push((from, k));
+                    tr.pause_marked.push(stops[next_stop].1);
                     stop = StopPhase::Idle;
                     next_stop += 1;
                 }
             }
             if matches!(stop, StopPhase::Idle)
                 && next_stop < stops.len()
-                && t >= stops[next_stop].at_s
+                && t >= stops[next_stop].0.at_s
             {
                 stop = StopPhase::Slowing { since: k };
             }
@@ -449,7 +484,12 @@ pub(crate) fn run(input: &SimInput, physio: &Physio) -> Track {
             let fat = 1.0 - FATIGUE_SPEED_LOSS * fatigue * (t / est_total).min(1.0);
             // On a gradient the runner holds roughly constant effort: speed scales with
             // (Cr(0)/Cr(i))^0.7. Source: Minetti et al. 2002, J Appl Physiol 93:1039
-            let nominal = seg.base_speed * style * kick * fat * hill_speed_factor(grade) * hr_adj;
+            let hill = if c.even_hill_effort {
+                even_effort_speed_factor(grade)
+            } else {
+                hill_speed_factor(grade)
+            };
+            let nominal = seg.base_speed * style * kick * fat * hill * hr_adj;
 
             // Pacing error (always drawn, so the stream does not depend on the plan).
             let sd = if seg.base_speed <= 0.0 {
@@ -488,7 +528,7 @@ pub(crate) fn run(input: &SimInput, physio: &Physio) -> Track {
                 if v_new < 0.2 || k - since >= STOP_MAX_SLOWING_S {
                     // The last steps to a halt; the timer pauses at the next second.
                     v_new = 0.0;
-                    let dur = stops[next_stop].dur_s.round().max(1.0) as usize;
+                    let dur = stops[next_stop].0.dur_s.round().max(1.0) as usize;
                     stop = StopPhase::Paused {
                         from: k + 1,
                         until: k + 1 + dur,
@@ -504,7 +544,11 @@ pub(crate) fn run(input: &SimInput, physio: &Physio) -> Track {
 
             // Heart rate. Effort = hill-adjusted speed / threshold speed.
             // Source: Minetti et al. 2002, J Appl Physiol 93:1039 (hill cost Cr(i)/Cr(0)).
-            let effort = v_new * hill_cost_ratio(grade) / physio.v_threshold;
+            let effort = if sport_scale == 1.0 {
+                v_new * hill_cost_ratio(grade) / physio.v_threshold
+            } else {
+                v_new * hill_cost_ratio(grade) / (physio.v_threshold * sport_scale)
+            };
             effort_hist.push(effort);
             let delayed = if effort_hist.len() > HR_DELAY_S {
                 effort_hist[effort_hist.len() - 1 - HR_DELAY_S]
@@ -545,6 +589,8 @@ pub(crate) fn run(input: &SimInput, physio: &Physio) -> Track {
     if let StopPhase::Paused { from, .. } = stop {
         if from < k {
             tr.pauses.push((from, k));
+            tr.pause_marked
+                .push(stops.get(next_stop).is_none_or(|s| s.1));
         }
     }
     tr.segs = segs;

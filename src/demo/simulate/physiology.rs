@@ -28,6 +28,19 @@ pub fn hill_speed_factor(grade: f64) -> f64 {
         .min(MAX_DOWNHILL_SPEEDUP)
 }
 
+/// Largest downhill speed-up of a runner holding an even effort on hills. Our own choice:
+/// above the constant-power speed-up on an 8 % descent (about 1.53), so such descents are
+/// run at even effort; steeper ones are braked.
+pub const EVEN_EFFORT_MAX_SPEEDUP: f64 = 1.6;
+
+/// The speed multiplier of a runner holding an even effort on hills (constant metabolic
+/// power: speed times `Cr(i)/Cr(0)` stays at the flat speed), for
+/// [`super::Conditions::even_hill_effort`]. Source: Minetti et al. 2002, J Appl Physiol
+/// 93:1039 (the cost polynomial).
+pub fn even_effort_speed_factor(grade: f64) -> f64 {
+    (1.0 / hill_cost_ratio(grade)).min(EVEN_EFFORT_MAX_SPEEDUP)
+}
+
 /// Steady-state heart rate as a fraction of heart-rate reserve for a relative intensity
 /// (hill-adjusted speed / threshold speed), before the soft cap.
 ///

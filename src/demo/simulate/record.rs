@@ -6,7 +6,10 @@ use chrono::Duration;
 use super::engine::{stream, Track};
 use super::physiology::Physio;
 use super::terrain::RoutePath;
-use super::{Sampling, SimInput, SimOutput, TrueInterval, Truth};
+use super::{
+    GpsNoise, Sampling, SimInput, SimOutput, SteadyPart, TrueInterval, Truth, MOVING_SPEED_MPS,
+};
+use crate::analysis::gradient::flat_equivalent_speed;
 use crate::demo::rng::Rng;
 use crate::model::{Amount, Channel, DeviceLap, Pause, SegmentKind, Session, Sport};
 
@@ -30,6 +33,9 @@ const ALT_NOISE_SMOOTH_S: f64 = 20.0;
 const GPS_NOISE_SD: f64 = 2.5;
 const GPS_NOISE_CORR_S: f64 = 30.0;
 const GPS_NOISE_SMOOTH_S: f64 = 10.0;
+/// Standing jitter: applies below this true speed, m/s, faded with this time constant, s.
+const STAND_SPEED: f64 = 0.3;
+const STAND_FADE_S: f64 = 5.0;
 /// Cadence noise, steps/min.
 const CADENCE_NOISE_SD: f64 = 1.0;
 /// Smart recording: a sample when speed moved by this much (m/s) or HR by this much (bpm)
@@ -206,20 +212,27 @@ pub(crate) fn record(input: &SimInput, physio: &Physio, tr: &Track) -> SimOutput
                 .collect(),
         );
         let mut r = Rng::with_stream(seed, stream::GPS_NOISE);
-        let ge = smooth_noise(
-            &mut r,
-            n,
-            GPS_NOISE_SD,
-            GPS_NOISE_CORR_S,
-            GPS_NOISE_SMOOTH_S,
-        );
-        let gn = smooth_noise(
-            &mut r,
-            n,
-            GPS_NOISE_SD,
-            GPS_NOISE_CORR_S,
-            GPS_NOISE_SMOOTH_S,
-        );
+        let g = c.gps_noise.unwrap_or(GpsNoise {
+            sd_m: GPS_NOISE_SD,
+            corr_s: GPS_NOISE_CORR_S,
+            smooth_s: GPS_NOISE_SMOOTH_S,
+        });
+        let mut ge = smooth_noise(&mut r, n, g.sd_m, g.corr_s, g.smooth_s);
+        let mut gn = smooth_noise(&mut r, n, g.sd_m, g.corr_s, g.smooth_s);
+        if let Some(j) = c.standing_jitter {
+            let mut r = Rng::with_stream(seed, stream::STANDING_JITTER);
+            let je = smooth_noise(&mut r, n, j.sd_m, j.corr_s, j.smooth_s);
+            let jn = smooth_noise(&mut r, n, j.sd_m, j.corr_s, j.smooth_s);
+            // Weight 1 while standing, faded in and out with a 5 s time constant both ways.
+            let alpha = 1.0 - (-1.0f64 / STAND_FADE_S).exp();
+            let mut w = if tr.speed[0] < STAND_SPEED { 1.0 } else { 0.0 };
+            for k in 0..n {
+                let goal = if tr.speed[k] < STAND_SPEED { 1.0 } else { 0.0 };
+                w += (goal - w) * alpha;
+                ge[k] += w * je[k];
+                gn[k] += w * jn[k];
+            }
+        }
         local = Some(
             idx.iter()
                 .map(|&k| {
@@ -325,7 +338,9 @@ pub(crate) fn record(input: &SimInput, physio: &Physio, tr: &Track) -> SimOutput
     session.pauses = tr
         .pauses
         .iter()
-        .map(|&(a, b)| Pause {
+        .zip(&tr.pause_marked)
+        .filter(|(_, &marked)| marked)
+        .map(|(&(a, b), _)| Pause {
             from_s: a as f64,
             to_s: b as f64,
         })
@@ -432,8 +447,96 @@ pub(crate) fn record(input: &SimInput, physio: &Physio, tr: &Track) -> SimOutput
             speed_mps: true_speed,
             hr_bpm: true_hr,
             grade: true_grade,
+            moving_s: moving_steps(tr).iter().filter(|&&m| m).count() as f64,
+            distance_m: tr.dist[n - 1] - tr.dist[0],
+            steady: steady_part(tr),
         },
     }
+}
+
+/// Per 1-s step `k -> k+1`: whether the runner moved (mean true speed at least
+/// [`MOVING_SPEED_MPS`] and not inside a pause or gap).
+fn moving_steps(tr: &Track) -> Vec<bool> {
+    let n = tr.len();
+    let mut paused = vec![false; n.saturating_sub(1)];
+    for &(a, b) in &tr.pauses {
+        for p in paused.iter_mut().take(b).skip(a) {
+            *p = true;
+        }
+    }
+    (0..n.saturating_sub(1))
+        .map(|k| !paused[k] && 0.5 * (tr.speed[k] + tr.speed[k + 1]) >= MOVING_SPEED_MPS)
+        .collect()
+}
+
+/// Moving time the steady part leaves out at its start when the run has no warm-up, s.
+/// The README's rule: heart rate settles over the first 10 minutes.
+const STEADY_SKIP_S: f64 = 600.0;
+
+/// The true steady part (see [`SteadyPart`] for the definitions).
+fn steady_part(tr: &Track) -> Option<SteadyPart> {
+    let segs = &tr.segs;
+    let lead_or_trail = |k: SegmentKind| matches!(k, SegmentKind::Recovery);
+    let mut first = 0;
+    let mut warmup = false;
+    while first < segs.len()
+        && (segs[first].kind == SegmentKind::Warmup || lead_or_trail(segs[first].kind))
+    {
+        warmup |= segs[first].kind == SegmentKind::Warmup;
+        first += 1;
+    }
+    let mut last = segs.len();
+    while last > first
+        && (segs[last - 1].kind == SegmentKind::Cooldown || lead_or_trail(segs[last - 1].kind))
+    {
+        last -= 1;
+    }
+    if last <= first {
+        return None;
+    }
+    let main = &segs[first..last];
+    let works = main.iter().filter(|s| s.kind == SegmentKind::Work).count();
+    if works > 1
+        || main
+            .iter()
+            .any(|s| !matches!(s.kind, SegmentKind::Work | SegmentKind::Steady))
+    {
+        return None;
+    }
+    let (a, b) = (tr.bounds[first].0, tr.bounds[last - 1].1);
+    let moving = moving_steps(tr);
+    let mut steps: Vec<usize> = (a..b).filter(|&k| moving[k]).collect();
+    let mut start = a;
+    if !warmup {
+        let skip = STEADY_SKIP_S as usize;
+        if steps.len() <= skip {
+            return None;
+        }
+        start = steps[skip];
+        steps.drain(..skip);
+    }
+    if steps.len() < 2 {
+        return None;
+    }
+    let half = steps.len() / 2;
+    let ef = |ks: &[usize]| {
+        let (mut v, mut h) = (0.0, 0.0);
+        for &k in ks {
+            let vm = 0.5 * (tr.speed[k] + tr.speed[k + 1]);
+            v += flat_equivalent_speed(vm, tr.grade[k + 1]);
+            h += 0.5 * (tr.hr[k] + tr.hr[k + 1]);
+        }
+        v / h
+    };
+    let (ef_first, ef_second) = (ef(&steps[..half]), ef(&steps[half..]));
+    Some(SteadyPart {
+        start_s: start as f64,
+        end_s: b as f64,
+        moving_s: steps.len() as f64,
+        ef_first,
+        ef_second,
+        decoupling_pct: (ef_first - ef_second) / ef_first * 100.0,
+    })
 }
 
 #[cfg(test)]

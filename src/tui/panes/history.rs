@@ -11,8 +11,8 @@ use ratatui::text::{Line, Span};
 use ratatui::widgets::canvas::{Canvas, Line as CLine, Points};
 use ratatui::widgets::{Paragraph, Widget, Wrap};
 
-use crate::analysis::history::{DailyValue, History};
-use crate::model::units::{format_clock, format_distance, format_pace};
+use crate::analysis::history::{fixed, fixed_distance as format_distance, DailyValue, History};
+use crate::model::units::{format_clock, format_pace};
 use crate::model::Units;
 use crate::tui::action::Action;
 use crate::tui::app::{App, HistoryView};
@@ -112,6 +112,44 @@ pub fn render(app: &App, area: Rect, buf: &mut Buffer) {
             // full text is in the roomy layout and in `splitdesk trends`.
             let first = c.split(". ").next().unwrap_or(c).trim_end_matches('.');
             format!("{first}. Coaching aid, not medical advice.")
+        };
+        top.push(Line::styled(format!("CAUTION: {text}"), t.caution));
+    }
+    // Small screens with a caution for today already: that one says it; room goes to the bars.
+    let spikes_line = roomy || h.cautions.is_empty();
+    if let (true, Some(first), Some(last)) =
+        (spikes_line, h.load_spikes.first(), h.load_spikes.last())
+    {
+        // The days in the window whose load took the ratio to the caution band: every day on
+        // a roomy screen when there are few, else a summary (`splitdesk trends` lists all).
+        let n = h.load_spikes.len();
+        let text = if roomy && n <= 4 {
+            let days: Vec<String> = h
+                .load_spikes
+                .iter()
+                .map(|d| format!("{} ({:.2})", d.date, d.ratio))
+                .collect();
+            format!(
+                "load rose sharply (ratio {:.1}+) on {}. Coaching aid, not medical advice: look \
+                 at how the athlete is coping.",
+                h.acute_chronic_bands.caution,
+                days.join(", ")
+            )
+        } else if roomy {
+            let top = h
+                .load_spikes
+                .iter()
+                .max_by(|a, b| a.ratio.total_cmp(&b.ratio))
+                .unwrap_or(last);
+            format!(
+                "load rose sharply (ratio {:.1}+) on {n} days from {} to {}, highest {:.2} on \
+                 {}. Coaching aid, not medical advice: look at how the athlete is coping.",
+                h.acute_chronic_bands.caution, first.date, last.date, top.ratio, top.date
+            )
+        } else if n == 1 {
+            format!("load spike on {}.", last.date)
+        } else {
+            format!("load spikes on {n} days, last {}.", last.date)
         };
         top.push(Line::styled(format!("CAUTION: {text}"), t.caution));
     }
@@ -222,9 +260,16 @@ fn readiness_line(h: &History) -> String {
     let last = |s: &[DailyValue]| s.last().map(|v| v.value);
     format!(
         "fitness {}  fatigue {}  readiness today {}",
-        opt(last(&h.fitness), |v| format!("{v:.0}")),
-        opt(last(&h.fatigue), |v| format!("{v:.0}")),
-        opt(last(&h.readiness), |v| format!("{v:+.0}")),
+        opt(last(&h.fitness), |v| fixed(v, 0)),
+        opt(last(&h.fatigue), |v| fixed(v, 0)),
+        opt(last(&h.readiness), |v| {
+            let s = fixed(v, 0);
+            if s.starts_with('-') {
+                s
+            } else {
+                format!("+{s}")
+            }
+        }),
     )
 }
 
@@ -501,10 +546,10 @@ fn efficiency(t: &Theme, h: &History, area: Rect, buf: &mut Buffer) {
     for r in l.runs.iter().rev() {
         lines.push(Line::styled(
             format!(
-                "{} {:>8} {:>5.1} %{}",
+                "{} {:>8} {:>5} %{}",
                 r.date,
                 format_clock(r.moving_s),
-                r.decoupling_pct,
+                fixed(r.decoupling_pct, 1),
                 if r.above_line { "  above the line" } else { "" }
             ),
             if r.above_line { t.warn } else { t.text },

@@ -360,14 +360,22 @@ pub fn render(app: &App, area: Rect, buf: &mut Buffer) {
     if o.revealed() {
         render_revealed(app, o, lower, buf);
     } else {
-        render_findings(app, review, lower, buf);
+        render_findings(app, review, o.load_spike.as_ref(), lower, buf);
     }
 }
 
-fn render_findings(app: &App, review: &Review, area: Rect, buf: &mut Buffer) {
+fn render_findings(
+    app: &App,
+    review: &Review,
+    load_spike: Option<&crate::analysis::findings::Finding>,
+    area: Rect,
+    buf: &mut Buffer,
+) {
     let t = &app.theme;
     let mut lines = vec![Line::styled("Findings", t.heading)];
-    for f in &review.findings {
+    // The load-spike caution needs the athlete's other sessions, so it is not in the
+    // per-file review; it leads, as cautions do.
+    for f in load_spike.into_iter().chain(&review.findings) {
         let (mark, style) = severity_style(t, f.severity);
         lines.push(Line::from(vec![
             Span::styled(format!("{mark} "), style),
@@ -381,7 +389,7 @@ fn render_findings(app: &App, review: &Review, area: Rect, buf: &mut Buffer) {
             ),
         ]));
     }
-    if review.findings.is_empty() {
+    if review.findings.is_empty() && load_spike.is_none() {
         lines.push(Line::styled("nothing to remark", t.dim));
     }
     Paragraph::new(lines)

@@ -7,7 +7,7 @@ use crate::model::units::format_pace;
 use crate::model::{AthleteProfile, IntervalSet, Session, Units};
 
 use super::decoupling::DECOUPLING_COACHING_LINE_PCT;
-use super::review::{IntervalMetrics, Review, Whole};
+use super::review::{AboveMax, HrChecks, IntervalMetrics, Review, Whole, HR_COVERAGE_MIN};
 
 /// How much a finding matters. `Caution` is reserved for possible health signals.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord, Serialize, Deserialize)]
@@ -202,21 +202,14 @@ pub(crate) fn findings(
     set: &IntervalSet,
     profile: &AthleteProfile,
     whole: &Whole,
+    hr: &HrChecks,
 ) -> Vec<Finding> {
     let u = profile.units;
     let mut out = Vec::new();
 
-    // Health cautions first.
-    if let (Some((secs, top)), Some(max)) = (whole.above_max, profile.hr_max) {
-        out.push(f(
-            Severity::Caution,
-            "hr_above_max",
-            format!(
-                "Heart rate reached {top:.0} bpm, above the profile maximum of {max:.0} bpm, for {secs:.0} s. \
-                 Check the sensor and the profile first. {MEDICAL_CAUTION}"
-            ),
-            vec!["intervals[].max_hr".into()],
-        ));
+    // Health cautions first; HR above a stale profile maximum is a profile matter.
+    if let Some(a) = &hr.above_max {
+        out.push(above_max_finding(a));
     }
     let hr_rate_flags = session
         .flags
@@ -622,8 +615,9 @@ pub(crate) fn findings(
             Severity::Info,
             "decoupling_short",
             format!(
-                "Decoupling needs 20 minutes of steady running after the warm-up; this session had {:.0}.",
-                whole.analysed_s / 60.0
+                "Decoupling needs {:.0} minutes of steady running after the warm-up; this session had {}.",
+                super::review::MIN_DECOUPLING_S / 60.0,
+                minutes_short_of(whole.analysed_s, super::review::MIN_DECOUPLING_S)
             ),
             vec!["decoupling_pct".into()],
         ));
@@ -636,8 +630,161 @@ pub(crate) fn findings(
             vec!["inferred".into()],
         ));
     }
+    if let Some(finding) = coverage_finding(r, hr) {
+        out.push(finding);
+    }
+    if !r.running {
+        // Another sport: only what does not assume running stays (health, data, load).
+        out.retain(|f| NOT_RUNNING_KEEPS.contains(&f.code.as_str()));
+        out.push(f(
+            Severity::Info,
+            "not_running",
+            format!(
+                "{} session, not a run: no running analysis (no intervals to score, no pace or \
+                 decoupling); duration, distance, heart rate and load are shown.",
+                session.sport.title()
+            ),
+            vec!["running".into(), "session.sport".into()],
+        ));
+    }
     out.sort_by_key(|f| std::cmp::Reverse(f.severity));
     out
+}
+
+/// Finding codes that still hold for a session that is not a run.
+const NOT_RUNNING_KEEPS: &[&str] = &[
+    "hr_above_max",
+    "hr_max_stale",
+    "hr_rate",
+    "hr_coverage",
+    "flagged",
+    "cadence_lock",
+    "no_hr",
+    "no_hr_profile",
+];
+
+/// Time that fell short of `needed_s`, in minutes, never shown as the requirement itself:
+/// 19.96 min is "19.9 min", not "20".
+fn minutes_short_of(had_s: f64, needed_s: f64) -> String {
+    let had = had_s.max(0.0) / 60.0;
+    if format!("{had:.0}") != format!("{:.0}", needed_s / 60.0) {
+        return format!("{had:.0} min");
+    }
+    // One decimal, rounded down so it stays under the requirement.
+    format!("{:.1} min", (had * 10.0).floor() / 10.0)
+}
+
+/// The finding for HR above the profile's maximum: a stale profile when the pattern is
+/// that of a real heart (sustained, climbing with the effort, not far above), else the
+/// medical caution (methods.md §12).
+fn above_max_finding(a: &AboveMax) -> Finding {
+    let (top, max) = (a.top, a.max);
+    let how_long = crate::model::units::format_clock(a.secs);
+    if !a.implausible.is_empty() {
+        return f(
+            Severity::Caution,
+            "hr_above_max",
+            format!(
+                "Heart rate reached {top:.0} bpm, above the profile's maximum of {max:.0} bpm, for \
+                 {how_long} ({}). Check the sensor first. {MEDICAL_CAUTION}",
+                a.implausible.join(", ")
+            ),
+            vec!["max_hr".into(), "intervals[].max_hr".into()],
+        );
+    }
+    let (severity, text) = if a.sustained {
+        (
+            Severity::Warning,
+            format!(
+                "Heart rate reached {top:.0} bpm, above the profile's maximum of {max:.0} bpm, \
+                 for {how_long} in total, climbing with the effort: the profile's maximum looks \
+                 out of date; consider updating it (zones and load rest on it)."
+            ),
+        )
+    } else {
+        (
+            Severity::Note,
+            format!(
+                "Heart rate reached {top:.0} bpm for {how_long}, above the profile's maximum of \
+                 {max:.0} bpm: if it happens again, the profile's maximum is likely out of date."
+            ),
+        )
+    };
+    f(
+        severity,
+        "hr_max_stale",
+        text,
+        vec!["max_hr".into(), "intervals[].max_hr".into()],
+    )
+}
+
+/// The finding for HR drop-outs: coverage under [`HR_COVERAGE_MIN`] of the moving time, or
+/// a recovery resting on partial HR.
+fn coverage_finding(r: &Review, hr: &HrChecks) -> Option<Finding> {
+    let coverage = r.hr_coverage?;
+    let partial: Vec<usize> = r
+        .recoveries
+        .iter()
+        .filter(|x| x.hr_partial)
+        .map(|x| x.work_number)
+        .collect();
+    if coverage >= HR_COVERAGE_MIN && partial.is_empty() {
+        return None;
+    }
+    let mut parts = Vec::new();
+    if coverage < HR_COVERAGE_MIN {
+        let longest = hr
+            .dropouts
+            .iter()
+            .copied()
+            .reduce(|a, b| if b.1 > a.1 { b } else { a });
+        let n = hr.dropouts.len();
+        // Missing samples and masked ones (cadence lock, bad values) alike.
+        let mut text = format!(
+            "No usable heart rate for {:.0} % of the moving time",
+            (1.0 - coverage) * 100.0
+        );
+        if let Some((at, secs)) = longest {
+            let clock = crate::model::units::format_clock;
+            text.push_str(&format!(
+                " ({n} stretch{}, the longest {} from {})",
+                if n == 1 { "" } else { "es" },
+                clock(secs),
+                clock(at)
+            ));
+        }
+        if r.trimp.is_some() {
+            text.push_str(": load (TRIMP) is a lower bound");
+        }
+        parts.push(text);
+    }
+    if !partial.is_empty() {
+        let s = if partial.len() == 1 { "" } else { "s" };
+        parts.push(format!(
+            "the recovery figures after rep{s} {} rest on partial heart rate",
+            number_list(&partial)
+        ));
+    }
+    let joined = parts.join("; ");
+    let mut chars = joined.chars();
+    let mut text: String = match chars.next() {
+        Some(c) => c.to_uppercase().chain(chars).collect(),
+        None => joined,
+    };
+    text.push('.');
+    let severity = if coverage < 0.75 {
+        Severity::Warning
+    } else {
+        Severity::Note
+    };
+    let mut metrics = vec!["hr_coverage".to_string(), "intervals[].hr_coverage".into()];
+    if r.trimp_lower_bound {
+        metrics.push("trimp_lower_bound".into());
+    }
+    if !partial.is_empty() {
+        metrics.push("recoveries[].hr_partial".into());
+    }
+    Some(f(severity, "hr_coverage", text, metrics))
 }
 
 #[cfg(test)]
@@ -692,5 +839,18 @@ mod tests {
         assert_eq!(number_list(&[4]), "4");
         assert_eq!(number_list(&[1, 3, 4, 5, 9]), "1, 3-5, 9");
         assert_eq!(number_list(&[]), "");
+    }
+}
+
+#[cfg(test)]
+mod wording_tests {
+    use super::minutes_short_of;
+
+    #[test]
+    fn time_short_of_a_requirement_never_rounds_up_to_it() {
+        assert_eq!(minutes_short_of(19.96 * 60.0, 1200.0), "19.9 min");
+        assert_eq!(minutes_short_of(19.6 * 60.0, 1200.0), "19.6 min");
+        assert_eq!(minutes_short_of(12.2 * 60.0, 1200.0), "12 min");
+        assert_eq!(minutes_short_of(0.0, 1200.0), "0 min");
     }
 }

@@ -27,6 +27,12 @@ pub fn analyze(
     // So do the motion states (running, walking, standing, stopped).
     let grads = gradient::gradients(session);
     let motion = motion::classify_with(session, grads.as_deref());
-    let set = intervals::find_intervals_moving(session, plan, profile, grads.as_deref(), &motion);
+    // Another sport (a ride, a walk) has no intervals to find: the review shows it as what
+    // it is (`review::Review::running`).
+    let set = if session.sport.analysed_as_running() {
+        intervals::find_intervals_moving(session, plan, profile, grads.as_deref(), &motion)
+    } else {
+        crate::model::IntervalSet::default()
+    };
     review::review_moving(session, &set, plan, profile, grads.as_deref(), &motion)
 }

@@ -25,7 +25,7 @@ use super::zones::{hr_zones, pace_zones, time_in_zones};
 
 /// Bumped whenever a number in the review may change; cached summaries of another version
 /// are recomputed.
-pub const ANALYSIS_VERSION: u32 = 3;
+pub const ANALYSIS_VERSION: u32 = 4;
 
 /// The JSON schema name of [`Review`].
 pub const SCHEMA: &str = "splitdesk.analysis/1";
@@ -99,6 +99,42 @@ pub const TARGET_SMOOTHING_HALF_S: f64 = 5.0;
 // Common coaching practice (no published source): sustained climbs and descents are
 // prescribed and judged by effort.
 pub const HILL_TARGET_GRADE: f64 = 0.02;
+
+/// Share of moving time with a usable HR sample below which HR figures rest on partial
+/// data: load (TRIMP) is then a lower bound and a finding names the drop-outs.
+// Common coaching practice (no published source): the same 5 % the flagged-data note uses
+// (a few seconds lost here and there are normal for chest straps and optical sensors).
+pub const HR_COVERAGE_MIN: f64 = 0.95;
+
+/// HR missing at the very start of a session (the sensor pairing with the watch) is left
+/// out of the coverage when the first HR sample comes within this many seconds.
+// Common coaching practice (no published source): pairing takes a few seconds up to about
+// half a minute; one minute leaves room and is too short to matter for load.
+pub const HR_PAIRING_GRACE_S: f64 = 60.0;
+
+/// HR above the profile's maximum for at least this long in total counts as sustained.
+// Common coaching practice (no published source): longer than any single-beat artefact
+// and than an optical sensor's brief misreads; a short hard rep at a new maximum lasts
+// longer than this.
+pub const ABOVE_MAX_SUSTAINED_S: f64 = 20.0;
+
+/// HR more than this far above the profile's maximum is not taken for a stale profile.
+// From memory: the age-predicted maximum has a standard error of about 7-11 bpm (Tanaka
+// et al. 2001; methods.md §3, §12), so about two standard errors; a measured maximum is
+// closer than that. Common coaching practice (no published source) beyond it.
+pub const ABOVE_MAX_STALE_RANGE_BPM: f64 = 20.0;
+
+/// Fastest mean rise of HR over the 10 s before it goes above the profile's maximum that
+/// still reads as a heart following effort, bpm per second.
+// Common coaching practice (no published source): near maximum, HR climbs by a beat or
+// two per second at most; a sensor jumping onto noise moves much faster.
+pub const ABOVE_MAX_RISE_BPM_PER_S: f64 = 3.0;
+
+/// HR above the profile's maximum "matches the effort" when the speed over the minute up
+/// to and through it is at least this fraction of the session's median moving speed.
+// Common coaching practice (no published source): a maximal HR comes with a hard effort,
+// never while standing or jogging slower than usual.
+pub const ABOVE_MAX_EFFORT_FRACTION: f64 = 0.95;
 
 /// Steady pace for HR drift: hill-adjusted speed within this fraction of the median.
 // Common coaching practice (no published source).
@@ -175,6 +211,10 @@ pub struct IntervalMetrics {
     /// `target_hit` and `in_target_pct` are null). `None` when there is nothing to judge.
     #[serde(default)]
     pub target_basis: Option<String>,
+    /// Share (0..1) of the interval's moving time with a usable HR sample (present, not
+    /// flagged, not paused); `None` without an HR channel or without moving time.
+    #[serde(default)]
+    pub hr_coverage: Option<f64>,
 }
 
 impl IntervalMetrics {
@@ -199,6 +239,10 @@ pub struct RecoveryMetrics {
     pub hr_lag_s: Option<f64>,
     pub hr_lag_bpm: Option<f64>,
     pub hr_drop_60s_bpm: Option<f64>,
+    /// True when HR was missing for more than [`HR_COVERAGE_MIN`] of the recovery and the
+    /// minute after the work interval: trough, lag and drop rest on partial data.
+    #[serde(default)]
+    pub hr_partial: bool,
 }
 
 /// A least-squares trend of one per-interval metric against repeat number.
@@ -269,8 +313,32 @@ pub struct Review {
     pub zones: Zones,
     pub findings: Vec<Finding>,
     /// Fastest unflagged window per duration (`analysis::best_efforts`), for the history.
+    /// Empty for a session that is not a run.
     #[serde(default)]
     pub best_efforts: Vec<super::best_efforts::BestEffort>,
+    /// False when the file says the session is not a run (a ride, a walk or a hike, any
+    /// other sport): no intervals, no pace, no running findings; duration, distance, HR
+    /// and load only. Runs and files that name no sport are analysed as runs.
+    #[serde(default = "yes")]
+    pub running: bool,
+    /// Share (0..1) of the session's moving time with a usable HR sample (HR missing in
+    /// the first [`HR_PAIRING_GRACE_S`] while the sensor pairs is left out); `None`
+    /// without an HR channel.
+    #[serde(default)]
+    pub hr_coverage: Option<f64>,
+    /// True when `trimp` rests on partial HR (coverage under [`HR_COVERAGE_MIN`]): the
+    /// true load is higher.
+    #[serde(default)]
+    pub trimp_lower_bound: bool,
+    /// Time-weighted mean and highest usable HR over the whole session, bpm.
+    #[serde(default)]
+    pub avg_hr: Option<f64>,
+    #[serde(default)]
+    pub max_hr: Option<f64>,
+}
+
+fn yes() -> bool {
+    true
 }
 
 impl Review {
@@ -298,6 +366,15 @@ impl Review {
 
     pub fn trend(&self, metric: &str) -> Option<&TrendOut> {
         self.trends.iter().find(|t| t.metric == metric)
+    }
+
+    /// The load in words: `85`, `85 or more` when it rests on partial HR, `-` without it.
+    pub fn load_text(&self) -> String {
+        match self.trimp {
+            Some(v) if self.trimp_lower_bound => format!("{v:.0} or more"),
+            Some(v) => format!("{v:.0}"),
+            None => "-".to_string(),
+        }
     }
 }
 
@@ -476,13 +553,28 @@ pub fn review_moving(
     motion: &Motion,
 ) -> Review {
     let s = Series::with_motion(session, grads, motion);
+    // A ride, a walk or any other sport gets no running analysis: no intervals to score,
+    // whatever set the caller found.
+    let running = session.sport.analysed_as_running();
+    let no_set = IntervalSet::default();
+    let set = if running { set } else { &no_set };
     let expected = plan.map(Plan::expand).unwrap_or_default();
     let intervals = interval_metrics(session, &s, set, &expected, profile);
     let recoveries = recovery_metrics(session, &s, set, &intervals);
     let trends = trends(&intervals, &recoveries, profile);
     let analysed = analysed_range(session, set, plan, motion);
-    let whole = whole_session(session, &s, analysed, profile);
-    let zones = zones(session, &s, profile);
+    let mut whole = whole_session(session, &s, analysed, profile);
+    if !running {
+        // Decoupling and drift are read on running speed: not for another sport.
+        (whole.decoupling, whole.decoupling_raw, whole.drift) = (None, None, None);
+        whole.extra_descent_second_half_m = None;
+    }
+    let mut zones = zones(session, &s, profile);
+    if !running {
+        zones.pace.clear();
+    }
+    let hr_checks = hr_checks(session, &s, profile);
+    let hr_coverage = hr_coverage(&s, 0, session.len().saturating_sub(1), hr_counted_from(&s));
     let (gain, loss) = match &session.altitude {
         Some(a) => {
             let (g, l) = gain_loss(a, DEFAULT_HYSTERESIS_M);
@@ -544,9 +636,26 @@ pub fn review_moving(
         elevation_loss_m: loss,
         zones,
         findings: Vec::new(),
-        best_efforts: super::best_efforts::best_efforts(session),
+        best_efforts: if running {
+            super::best_efforts::best_efforts(session)
+        } else {
+            Vec::new()
+        },
+        running,
+        hr_coverage,
+        trimp_lower_bound: whole.trimp.is_some()
+            && hr_coverage.is_some_and(|c| c < HR_COVERAGE_MIN),
+        avg_hr: s
+            .hr
+            .and_then(|h| s.mean(h, |i| s.hr_ok(i), 0, session.len().saturating_sub(1))),
+        max_hr: s.hr.and_then(|h| {
+            (0..session.len())
+                .filter(|&i| s.hr_ok(i))
+                .filter_map(|i| h.get(i).copied().flatten())
+                .reduce(f64::max)
+        }),
     };
-    review.findings = findings::findings(&review, session, set, profile, &whole);
+    review.findings = findings::findings(&review, session, set, profile, &whole, &hr_checks);
     review
 }
 
@@ -569,6 +678,159 @@ fn target_words(target: &Target, profile: &AthleteProfile) -> String {
         },
         Target::HrRange { low_bpm, high_bpm } => format!("HR {low_bpm:.0}-{high_bpm:.0}"),
     }
+}
+
+/// Samples before this index are left out of the HR coverage: HR missing at the very start
+/// while the sensor pairs (first HR sample within [`HR_PAIRING_GRACE_S`]).
+fn hr_counted_from(s: &Series<'_>) -> usize {
+    let Some(hr) = s.hr else { return 0 };
+    match hr.iter().position(Option::is_some) {
+        Some(i) if s.t.get(i).is_some_and(|&t| t <= HR_PAIRING_GRACE_S) => i,
+        _ => 0,
+    }
+}
+
+/// Share of the moving time over samples `a+1..=b` (not before `from`) with a usable HR
+/// sample. `None` without an HR channel or without moving time.
+fn hr_coverage(s: &Series<'_>, a: usize, b: usize, from: usize) -> Option<f64> {
+    s.hr?;
+    let (mut covered, mut total) = (0.0, 0.0);
+    for i in (a + 1).max(from)..=b.min(s.t.len().saturating_sub(1)) {
+        if !s.moving.get(i).copied().unwrap_or(false) {
+            continue;
+        }
+        let dt = s.dt(i);
+        total += dt;
+        if s.hr_ok(i) {
+            covered += dt;
+        }
+    }
+    (total > 0.0).then(|| (covered / total).clamp(0.0, 1.0))
+}
+
+/// Heart rate above the profile's maximum: how much, and whether it looks like a real
+/// heart rate the profile has not caught up with.
+#[derive(Debug, Clone, PartialEq)]
+pub(crate) struct AboveMax {
+    /// The profile's maximum, bpm.
+    pub max: f64,
+    /// Seconds of usable HR above it, and the highest usable HR, bpm.
+    pub secs: f64,
+    pub top: f64,
+    /// At least [`ABOVE_MAX_SUSTAINED_S`] in total.
+    pub sustained: bool,
+    /// Why it does not look like a stale profile (empty when it does).
+    pub implausible: Vec<&'static str>,
+}
+
+/// HR stretches the findings name: above the maximum, and drop-outs while moving.
+#[derive(Debug, Clone, Default)]
+pub(crate) struct HrChecks {
+    pub above_max: Option<AboveMax>,
+    /// Stretches of moving time without usable HR (after sensor pairing): (start s, seconds).
+    pub dropouts: Vec<(f64, f64)>,
+}
+
+fn hr_checks(session: &Session, s: &Series<'_>, profile: &AthleteProfile) -> HrChecks {
+    let n = session.len();
+    let mut out = HrChecks::default();
+    let Some(hr) = s.hr else { return out };
+    let at = |i: usize| -> Option<f64> { hr.get(i).copied().flatten().filter(|_| s.hr_ok(i)) };
+    // Drop-outs: runs of moving samples without usable HR.
+    let from = hr_counted_from(s);
+    let mut open: Option<(f64, f64)> = None;
+    for i in from.max(1)..n {
+        if !s.moving.get(i).copied().unwrap_or(false) {
+            continue;
+        }
+        if at(i).is_some() {
+            out.dropouts.extend(open.take());
+        } else {
+            let dt = s.dt(i);
+            open = match open {
+                Some((t0, d)) => Some((t0, d + dt)),
+                None => Some((s.t[i - 1], dt)),
+            };
+        }
+    }
+    out.dropouts.extend(open);
+    // Above the maximum: episodes of usable samples above it (gaps of up to 5 s joined).
+    let Some(max) = profile.hr_max else {
+        return out;
+    };
+    let above: Vec<usize> = (0..n).filter(|&i| at(i).is_some_and(|h| h > max)).collect();
+    let (Some(&first), Some(_)) = (above.first(), above.last()) else {
+        return out;
+    };
+    let mut episodes: Vec<(usize, usize)> = vec![(first, first)];
+    for &i in &above[1..] {
+        match episodes.last_mut() {
+            Some(e) if s.t[i] - s.t[e.1] <= 5.0 => e.1 = i,
+            _ => episodes.push((i, i)),
+        }
+    }
+    let secs: f64 = above.iter().map(|&i| s.dt(i).max(1.0)).sum();
+    let top = above.iter().filter_map(|&i| at(i)).fold(max, f64::max);
+    let mut implausible = Vec::new();
+    if top > max + ABOVE_MAX_STALE_RANGE_BPM {
+        implausible.push("far above the profile's maximum");
+    }
+    // Smooth: HR climbs into each stretch no faster than a heart does.
+    let steep = episodes.iter().any(|&(a, _)| {
+        let (Some(h1), ta) = (at(a), s.t[a]) else {
+            return false;
+        };
+        (0..a)
+            .rev()
+            .take_while(|&j| ta - s.t[j] <= 10.0)
+            .filter_map(|j| at(j).map(|h| (h, ta - s.t[j])))
+            .last()
+            .is_some_and(|(h0, dt)| dt >= 1.0 && (h1 - h0) / dt > ABOVE_MAX_RISE_BPM_PER_S)
+    });
+    let rate_flagged = session.flags.iter().any(|f| {
+        matches!(
+            f.kind,
+            crate::model::FlagKind::HrRate | crate::model::FlagKind::CadenceLock
+        ) && episodes
+            .iter()
+            .any(|&(a, b)| f.from_s <= s.t[b] + 10.0 && f.to_s >= s.t[a] - 10.0)
+    });
+    if steep || rate_flagged {
+        implausible.push("jumping rather than climbing");
+    }
+    // Matching effort: the speed over the minute up to and through each stretch.
+    if let Some(sp) = s.speed {
+        let mut moving: Vec<f64> = (0..n)
+            .filter(|&i| s.moving.get(i).copied().unwrap_or(false))
+            .filter_map(|i| sp.get(i).copied().flatten())
+            .collect();
+        if !moving.is_empty() {
+            moving.sort_by(f64::total_cmp);
+            let median = moving[moving.len() / 2];
+            let (mut dist, mut time) = (0.0, 0.0);
+            for &(a, b) in &episodes {
+                let lo = s.t[a] - 60.0;
+                for i in (0..=b).rev().take_while(|&i| s.t[i] >= lo) {
+                    let dt = s.dt(i);
+                    time += dt;
+                    if s.speed_ok.get(i).copied().unwrap_or(false) {
+                        dist += sp.get(i).copied().flatten().unwrap_or(0.0) * dt;
+                    }
+                }
+            }
+            if time > 0.0 && dist / time < ABOVE_MAX_EFFORT_FRACTION * median {
+                implausible.push("not matched by the effort");
+            }
+        }
+    }
+    out.above_max = Some(AboveMax {
+        max,
+        secs,
+        top,
+        sustained: secs >= ABOVE_MAX_SUSTAINED_S,
+        implausible,
+    });
+    out
 }
 
 /// Centred moving average of `values` over `±half_s` seconds, only over `ok` samples. O(n).
@@ -686,14 +948,17 @@ fn one_interval(
     let adj_speed = s.adj.as_deref().and_then(|v| s.moving_speed(v, a, b));
     let hr = s.hr;
     let avg_hr = hr.and_then(|h| s.mean(h, |i| s.hr_ok(i), a, b));
+    // The boundary sample `a` is the previous interval's last: it belongs to that interval
+    // (a recovery's peak is not the rep's last beat). The first interval keeps sample 0.
+    let own = if a == 0 { 0 } else { a + 1 };
     let max_hr = hr.and_then(|h| {
-        (a..=b)
+        (own..=b)
             .filter(|&i| s.hr_ok(i))
             .filter_map(|i| h.get(i).copied().flatten())
             .reduce(f64::max)
     });
     let end_hr = hr.and_then(|h| {
-        (a..=b)
+        (own..=b)
             .rev()
             .filter(|&i| s.hr_ok(i))
             .find_map(|i| h.get(i).copied().flatten())
@@ -837,6 +1102,7 @@ fn one_interval(
         target_hit,
         grade_pct: grade.map(|g| g * 100.0),
         target_basis,
+        hr_coverage: hr_coverage(s, a, b, hr_counted_from(s)),
     }
 }
 
@@ -896,6 +1162,7 @@ fn recovery_metrics(
                 hr_lag_s: None,
                 hr_lag_bpm: None,
                 hr_drop_60s_bpm: None,
+                hr_partial: false,
             })
             .collect();
     };
@@ -919,8 +1186,9 @@ fn recovery_metrics(
             .filter(|x| x.kind == SegmentKind::Recovery)
             .map(|x| x.end)
             .last();
+        // The boundary sample `iv.end` is the rep's last: the recovery starts after it.
         let (trough, trough_at) = match rec_end {
-            Some(e) => (iv.end..=e.min(n.saturating_sub(1)))
+            Some(e) => ((iv.end + 1)..=e.min(n.saturating_sub(1)))
                 .filter_map(|i| hr_at(i).map(|h| (h, s.t[i])))
                 .fold((None, None), |(best, at), (h, ti)| match best {
                     Some(b) if b <= h => (Some(b), at),
@@ -976,6 +1244,25 @@ fn recovery_metrics(
                 .min_by(|x, y| x.0.total_cmp(&y.0))
                 .map(|(_, h)| e - h)
         });
+        // Partial HR: the recovery and the minute after the rep (the lag and drop windows),
+        // time with usable HR against time not paused.
+        let span_end = rec_end.unwrap_or(end_i).max(
+            ((end_i + 1)..n)
+                .take_while(|&i| s.t[i] <= end_t + 65.0)
+                .last()
+                .unwrap_or(end_i),
+        );
+        let (mut covered, mut total) = (0.0, 0.0);
+        for i in (end_i + 1)..=span_end.min(n.saturating_sub(1)) {
+            let dt = s.dt(i);
+            if session.is_paused_at(s.t[i] - 0.5 * dt) {
+                continue;
+            }
+            total += dt;
+            if s.hr_ok(i) {
+                covered += dt;
+            }
+        }
         out.push(RecoveryMetrics {
             after_work: m.index,
             work_number: m.work_number.unwrap_or(0),
@@ -984,6 +1271,7 @@ fn recovery_metrics(
             hr_lag_s: lag_s,
             hr_lag_bpm: lag_bpm,
             hr_drop_60s_bpm: drop,
+            hr_partial: total > 0.0 && covered < HR_COVERAGE_MIN * total,
         });
     }
     out
@@ -1083,20 +1371,31 @@ fn trend_text(
             } else {
                 "hill-adjusted pace"
             };
+            // Every number in the athlete's unit; a change that shows as 0 is no change.
+            let flat_text = || {
+                format!(
+                    "{what} steady across the set (within {:.0} s/{u})",
+                    FLAT_PACE_S_PER_KM * scale
+                )
+            };
+            let (per_u, total_u) = (per * scale, total * scale);
+            // A small change per repeat shows a decimal ("0.4 s/km each repeat"), so it is
+            // never "by 0" and its rounding does not disagree with the change over the set.
+            let per_text = if per_u < 1.95 {
+                format!("{per_u:.1}")
+            } else {
+                format!("{per_u:.0}")
+            };
+            let shows_zero = format!("{total_u:.0}") == "0" || per_text == "0.0";
             match direction {
+                _ if shows_zero => flat_text(),
                 Falling => format!(
-                    "{what} faster by {:.0} s/{u} each repeat ({:.0} s/{u} over the set)",
-                    per * scale,
-                    total * scale
+                    "{what} faster by {per_text} s/{u} each repeat ({total_u:.0} s/{u} over the set)"
                 ),
                 Rising => format!(
-                    "{what} slower by {:.0} s/{u} each repeat ({:.0} s/{u} over the set)",
-                    per * scale,
-                    total * scale
+                    "{what} slower by {per_text} s/{u} each repeat ({total_u:.0} s/{u} over the set)"
                 ),
-                Flat => {
-                    format!("{what} steady across the set (within {FLAT_PACE_S_PER_KM:.0} s/km)")
-                }
+                Flat => flat_text(),
             }
         }
         _ => {
@@ -1328,4 +1627,46 @@ fn zones(session: &Session, s: &Series<'_>, profile: &AthleteProfile) -> Zones {
 /// Whether the decoupling is above the usual coaching line.
 pub fn decoupling_above_line(d: f64) -> bool {
     d > DECOUPLING_COACHING_LINE_PCT
+}
+
+#[cfg(test)]
+mod tests {
+    use super::{trend, trend_text};
+    use crate::model::{AthleteProfile, Units};
+
+    fn text(ys: &[f64], units: Units) -> String {
+        let xs: Vec<f64> = (1..=ys.len()).map(|x| x as f64).collect();
+        let f = trend::fit(&xs, ys).unwrap();
+        let mut p = AthleteProfile::bare("t");
+        p.units = units;
+        trend_text(
+            "avg_pace_s_per_km",
+            &f,
+            f.direction(super::FLAT_PACE_S_PER_KM),
+            &p,
+        )
+    }
+
+    #[test]
+    fn pace_trends_never_say_by_0() {
+        // 0.4 s/km slower each of 8 repeats: 2.8 s/km over the set.
+        let ys: Vec<f64> = (0..8).map(|k| 240.0 + 0.4 * k as f64).collect();
+        assert_eq!(
+            text(&ys, Units::Km),
+            "pace slower by 0.4 s/km each repeat (3 s/km over the set)"
+        );
+        // 0.4 s/km is 0.64 s/mi per repeat, 4.5 s/mi over the set: one unit throughout.
+        assert_eq!(
+            text(&ys, Units::Mi),
+            "pace slower by 0.6 s/mi each repeat (5 s/mi over the set)"
+        );
+        assert_eq!(
+            text(&[240.0, 240.5, 240.2, 240.4], Units::Mi),
+            "pace steady across the set (within 3 s/mi)"
+        );
+        assert_eq!(
+            text(&[240.0, 236.0, 232.0], Units::Km),
+            "pace faster by 4 s/km each repeat (8 s/km over the set)"
+        );
+    }
 }

@@ -128,7 +128,8 @@ pub fn run(
         }
     };
     let ctx = context(file, explicit.as_ref(), plan_file, plan_line)?;
-    // Re-flag with the roster profile (HR above its maximum) when it was found there.
+    // Re-flag with the roster profile when it was found there (no rule needs it today: HR
+    // above the profile's maximum is kept; this keeps `analyze` equal to the workstation).
     let session = if explicit.is_none() && ctx.profile.hr_max.is_some() {
         let mut s = session;
         s.flags = ingest::clean::flag(&s, Some(&ctx.profile));

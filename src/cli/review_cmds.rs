@@ -30,15 +30,23 @@ pub fn open_synced(roster: &Path, journal: Option<&Path>) -> anyhow::Result<Work
     Ok(ws)
 }
 
-/// The plan title, or sport and distance, of a reviewed session.
+/// The plan title, or sport and distance, of a reviewed session. A session that is not a
+/// run names its sport beside the plan title ("Easy spin (cycling)").
 pub fn title(r: &Review) -> String {
+    let sport: String = r
+        .session
+        .sport
+        .chars()
+        .filter(|c| !c.is_control())
+        .collect();
     match &r.plan {
+        Some(p) if !r.running => format!("{} ({sport})", p.title),
         Some(p) => p.title.clone(),
         None => {
             let u = crate::model::Units::parse(&r.units).unwrap_or_default();
             match r.session.distance_m {
-                Some(d) => format!("{} {:.1} {}", r.session.sport, d / u.metres(), u.label()),
-                None => r.session.sport.clone(),
+                Some(d) => format!("{sport} {:.1} {}", d / u.metres(), u.label()),
+                None => sport,
             }
         }
     }
@@ -52,14 +60,29 @@ struct QueueOut {
     title: String,
     stage: &'static str,
     content_changed: bool,
+    /// The sport the file names (`running`, `cycling`, `unknown`, ...).
+    sport: String,
+    /// Work intervals to score (0 for another sport: the purpose verdict is the grade).
+    work_intervals: usize,
 }
 
 fn queue_out(ws: &mut Workspace, e: &QueueEntry) -> QueueOut {
-    let title = ws
-        .refresh(&e.session_id, Utc::now())
-        .map(|r| title(&r))
+    let review = ws.refresh(&e.session_id, Utc::now()).ok();
+    let title = review.as_ref().map(title).unwrap_or_default();
+    let sport = review
+        .as_ref()
+        .map(|r| {
+            r.session
+                .sport
+                .chars()
+                .filter(|c| !c.is_control())
+                .collect()
+        })
         .unwrap_or_default();
+    let work_intervals = review.as_ref().map_or(0, |r| r.work().count());
     QueueOut {
+        sport,
+        work_intervals,
         session: e.session_id.clone(),
         athlete: e.athlete.clone(),
         start: e.start.to_rfc3339_opts(chrono::SecondsFormat::Secs, true),
@@ -81,8 +104,13 @@ pub fn queue(ws: &mut Workspace, athlete: Option<&str>, json: bool) -> anyhow::R
         println!("nothing to review");
     }
     for r in &rows {
+        let grade = if r.work_intervals == 0 {
+            "  [verdict only]"
+        } else {
+            ""
+        };
         println!(
-            "{:<40} {}  {:<8} {}",
+            "{:<40} {}  {:<8} {}{grade}",
             r.session,
             r.start.get(..10).unwrap_or(""),
             r.stage,

@@ -3,7 +3,7 @@
 
 use std::fmt::Write;
 
-use crate::analysis::review::Review;
+use crate::analysis::review::{Review, HR_COVERAGE_MIN};
 use crate::model::units::{format_clock, format_pace};
 use crate::model::{AthleteProfile, Units};
 
@@ -33,7 +33,10 @@ pub fn render(r: &Review, profile: &AthleteProfile, plan_source: Option<&str>) -
         "  {}  {} {}  {} elapsed, {} moving, {}",
         s.start,
         s.format,
-        s.sport,
+        s.sport
+            .chars()
+            .filter(|c| !c.is_control())
+            .collect::<String>(),
         format_clock(s.duration_s),
         format_clock(s.moving_s),
         s.distance_m
@@ -58,6 +61,10 @@ pub fn render(r: &Review, profile: &AthleteProfile, plan_source: Option<&str>) -
     }
     for note in &r.interval_notes {
         let _ = writeln!(o, "  ({note})");
+    }
+    if !r.running {
+        render_other_sport(&mut o, r, profile);
+        return o;
     }
     let _ = writeln!(o);
     let _ = writeln!(
@@ -98,6 +105,21 @@ pub fn render(r: &Review, profile: &AthleteProfile, plan_source: Option<&str>) -
             }
         );
     }
+    let thin: Vec<String> = r
+        .intervals
+        .iter()
+        .filter_map(|m| {
+            let c = m.hr_coverage.filter(|c| *c < HR_COVERAGE_MIN)?;
+            Some(format!("#{} {:.0} %", m.index, c * 100.0))
+        })
+        .collect();
+    if !thin.is_empty() {
+        let _ = writeln!(
+            o,
+            "  HR present for only part of the moving time: {} (HR figures there rest on partial data)",
+            thin.join(", ")
+        );
+    }
     if r.intervals.iter().any(|m| m.target_on_hill()) {
         let _ = writeln!(
             o,
@@ -115,13 +137,14 @@ pub fn render(r: &Review, profile: &AthleteProfile, plan_source: Option<&str>) -
             let _ =
                 writeln!(
                 o,
-                "    work {:<3}                {:>4} bpm ({:>6})  {:>3} s, +{:>3} bpm   {:>3} bpm",
+                "    work {:<3}                {:>4} bpm ({:>6})  {:>3} s, +{:>3} bpm   {:>3} bpm{}",
                 x.work_number,
                 num(x.recovery_trough_bpm, 0),
                 x.trough_at_s.map(format_clock).unwrap_or_else(|| "-".into()),
                 num(x.hr_lag_s, 0),
                 num(x.hr_lag_bpm, 1),
                 num(x.hr_drop_60s_bpm, 0),
+                if x.hr_partial { "  (partial HR)" } else { "" },
             );
         }
     }
@@ -147,7 +170,7 @@ pub fn render(r: &Review, profile: &AthleteProfile, plan_source: Option<&str>) -
             ""
         },
         num(r.hr_drift_bpm_per_h, 1),
-        num(r.trimp, 0),
+        r.load_text(),
         num(r.elevation_gain_m, 0),
         num(r.elevation_loss_m, 0),
     );
@@ -179,6 +202,24 @@ pub fn render(r: &Review, profile: &AthleteProfile, plan_source: Option<&str>) -
             .collect();
         let _ = writeln!(o, "  Pace zones: {}", z.join(", "));
     }
+    tail(&mut o, r);
+    o
+}
+
+/// HR coverage (when short), flagged data and the findings: the end of every review text.
+fn tail(o: &mut String, r: &Review) {
+    if let Some(c) = r.hr_coverage.filter(|c| *c < HR_COVERAGE_MIN) {
+        let _ = writeln!(
+            o,
+            "  Heart rate present for {:.0} % of the moving time{}",
+            c * 100.0,
+            if r.trimp_lower_bound {
+                ": load is a lower bound"
+            } else {
+                ""
+            }
+        );
+    }
     let _ = writeln!(
         o,
         "  Flagged data: {} stretch{} ({:.1} % of the session)",
@@ -193,5 +234,47 @@ pub fn render(r: &Review, profile: &AthleteProfile, plan_source: Option<&str>) -
             let _ = writeln!(o, "    [{}] {}", f.severity.as_str(), f.text);
         }
     }
-    o
+}
+
+/// A session of another sport (a ride, a walk): no interval table, no pace; the totals,
+/// heart rate and load, with speed in km/h or mph.
+fn render_other_sport(o: &mut String, r: &Review, profile: &AthleteProfile) {
+    let u = profile.units;
+    let s = &r.session;
+    let sport = crate::model::Sport::from_name(&s.sport).title();
+    let _ = writeln!(o);
+    let _ = writeln!(
+        o,
+        "  {sport}: not a run, so no running analysis (no intervals to score, no pace, no decoupling)."
+    );
+    let speed = match (s.distance_m, s.moving_s) {
+        (Some(d), m) if m > 0.0 => {
+            let per_h = d / m * 3600.0 / u.metres();
+            let label = match u {
+                Units::Km => "km/h",
+                Units::Mi => "mph",
+            };
+            format!("{per_h:.1} {label}")
+        }
+        _ => "-".into(),
+    };
+    let _ = writeln!(
+        o,
+        "  Average speed {speed}   HR avg/max {}/{}   Load (TRIMP) {}   Elevation +{}/-{} m",
+        num(r.avg_hr, 0),
+        num(r.max_hr, 0),
+        r.load_text(),
+        num(r.elevation_gain_m, 0),
+        num(r.elevation_loss_m, 0),
+    );
+    if !r.zones.hr.is_empty() {
+        let z: Vec<String> = r
+            .zones
+            .hr
+            .iter()
+            .map(|z| format!("{} {}", z.name, format_clock(z.seconds)))
+            .collect();
+        let _ = writeln!(o, "  HR zones: {}", z.join(", "));
+    }
+    tail(o, r);
 }

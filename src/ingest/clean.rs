@@ -11,11 +11,16 @@
 //! | `Acceleration` | speed | \|Δspeed / Δt\| above [`MAX_ACCEL_MPS2`] (Δt at least 1 s) |
 //! | `PositionJump` | position | fixes that jump away and come back (implied speed out and back above [`MAX_SPEED_MPS`], the skip step plausible): only those fixes are flagged; a fast step that never comes back flags just that step |
 //! | `HrRange` | hr | outside [`HR_MIN_BPM`]..[`HR_MAX_BPM`] |
-//! | `HrAboveMax` | hr | above the profile `hr_max` + [`HR_ABOVE_MAX_MARGIN_BPM`] |
 //! | `HrRate` | hr | \|Δhr / Δt\| above [`HR_MAX_RATE_BPM_PER_S`] (Δt at least 1 s) |
 //! | `CadenceLock` | hr | HR within ±[`CADENCE_LOCK_TOLERANCE_BPM`] of cadence (or half of it) for [`CADENCE_LOCK_MIN_S`] or more, entered or left by a jump of [`CADENCE_LOCK_JUMP_BPM`] within [`CADENCE_LOCK_JUMP_WINDOW_S`] |
 //! | `FlatLine` | hr, cadence, speed | exactly the same value for [`FLAT_LINE_MIN_S`] or more while moving |
 //! | `Gap` | first present of speed, hr, cadence, position, altitude | no samples for longer than [`gap_threshold_s`], not explained by a timer pause |
+//!
+//! Heart rate above the profile's maximum is *not* a flag: a real heart rate above the
+//! profile's `hr_max` is far more often a stale profile than bad data (methods.md §12), so
+//! those samples are kept and the review says the maximum looks out of date
+//! (`analysis::findings`). Only values outside [`HR_MIN_BPM`]..[`HR_MAX_BPM`] and
+//! implausible patterns (rate, cadence lock, flat line) are flagged.
 //!
 //! Adjacent or overlapping flags of the same kind and channel are merged; the result is
 //! sorted by `from_s`.
@@ -62,10 +67,6 @@ pub const HR_MIN_BPM: f64 = 30.0;
 /// Highest plausible heart rate, bpm.
 // Common coaching practice (no published source), methods.md §12: keep 30-230 bpm.
 pub const HR_MAX_BPM: f64 = 230.0;
-
-/// Margin above the athlete's measured maximum before HR is flagged, bpm.
-// Common coaching practice (no published source), methods.md §12: measured max + 5 bpm.
-pub const HR_ABOVE_MAX_MARGIN_BPM: f64 = 5.0;
 
 /// Fastest plausible change of heart rate, bpm per second.
 // Common coaching practice (no published source), methods.md §12: about 10-15 bpm/s.
@@ -295,9 +296,10 @@ impl Ctx<'_> {
 
 /// Flag the bad stretches of a session (see the module docs for every rule).
 ///
-/// Pure; O(n) per rule plus an O(n) median selection. `profile` supplies `hr_max` for
-/// the above-maximum rule; without it that rule is skipped.
-pub fn flag(session: &Session, profile: Option<&AthleteProfile>) -> Vec<Flag> {
+/// Pure; O(n) per rule plus an O(n) median selection. No rule depends on the profile
+/// today (HR above the profile's maximum is kept, see the module docs); the parameter
+/// stays so callers need not change when a profile-dependent rule returns.
+pub fn flag(session: &Session, _profile: Option<&AthleteProfile>) -> Vec<Flag> {
     let t = session.t.as_slice();
     let n = t.len();
     let moving = moving_mask(session);
@@ -320,8 +322,7 @@ pub fn flag(session: &Session, profile: Option<&AthleteProfile>) -> Vec<Flag> {
         position_rule(&ctx, lat, lon, &mut out);
     }
     if let Some(hr) = &session.hr {
-        let hr_max = profile.and_then(|p| p.hr_max);
-        hr_rules(&ctx, hr, hr_max, &mut out);
+        hr_rules(&ctx, hr, &mut out);
         flat_line(&ctx, hr, ChannelKind::Hr, ("bpm", 0), None, &mut out);
         if let Some(cad) = &session.cadence {
             cadence_lock(&ctx, hr, cad, false, &mut out);
@@ -526,7 +527,7 @@ fn position_rule(ctx: &Ctx<'_>, lat: &Channel, lon: &Channel, out: &mut Vec<Flag
     }
 }
 
-fn hr_rules(ctx: &Ctx<'_>, hr: &Channel, hr_max: Option<f64>, out: &mut Vec<Flag>) {
+fn hr_rules(ctx: &Ctx<'_>, hr: &Channel, out: &mut Vec<Flag>) {
     // Common coaching practice (no published source), methods.md §12: 30-230 bpm.
     let out_of_range = |v: f64| !(HR_MIN_BPM..=HR_MAX_BPM).contains(&v);
     sample_runs(hr, out_of_range, |a, b| {
@@ -540,27 +541,6 @@ fn hr_rules(ctx: &Ctx<'_>, hr: &Channel, hr_max: Option<f64>, out: &mut Vec<Flag
             reason: format!("heart rate {shown:.0} bpm outside {HR_MIN_BPM}-{HR_MAX_BPM} bpm"),
         });
     });
-    // Common coaching practice (no published source), methods.md §12: measured max + 5.
-    if let Some(max) = hr_max {
-        let limit = max + HR_ABOVE_MAX_MARGIN_BPM;
-        sample_runs(
-            hr,
-            |v| v > limit && !out_of_range(v),
-            |a, b| {
-                let (_, hi) = min_max(hr, a, b);
-                out.push(Flag {
-                    from_s: ctx.time(a),
-                    to_s: ctx.time(b),
-                    channel: ChannelKind::Hr,
-                    kind: FlagKind::HrAboveMax,
-                    reason: format!(
-                        "heart rate up to {hi:.0} bpm, above the profile maximum {max:.0} + \
-                         {HR_ABOVE_MAX_MARGIN_BPM} bpm"
-                    ),
-                });
-            },
-        );
-    }
     // Common coaching practice (no published source), methods.md §12: 10-15 bpm/s.
     let mut runs = EdgeRuns::default();
     let emit = |(from_s, to_s, worst): (f64, f64, f64), out: &mut Vec<Flag>| {

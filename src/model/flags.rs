@@ -16,7 +16,9 @@ pub enum FlagKind {
     PositionJump,
     /// Heart rate outside the plausible range for running.
     HrRange,
-    /// Heart rate above the profile maximum plus a margin.
+    /// Heart rate above the profile maximum plus a margin. No longer produced (a stale
+    /// profile is far likelier than bad data, methods.md §12); kept so older flag lists
+    /// still read.
     HrAboveMax,
     /// Heart rate changing faster than a heart can.
     HrRate,

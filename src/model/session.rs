@@ -68,7 +68,39 @@ impl Sport {
             "walking" | "walk" | "hiking" => Sport::Walking,
             "cycling" | "biking" | "ride" => Sport::Cycling,
             "" | "unknown" | "generic" => Sport::Unknown,
+            // Exporters name variants freely ("virtualrun", "road_biking", "e_bike_ride",
+            // "hike"): the family word decides. Since a session that is not a run loses the
+            // running analysis, only clear words move a session out of running.
+            _ if n.contains("run") || n == "treadmill" => Sport::Running,
+            _ if ["bik", "cycl", "ride"].iter().any(|w| n.contains(w)) => Sport::Cycling,
+            _ if ["walk", "hik"].iter().any(|w| n.contains(w)) => Sport::Walking,
+            // From memory: some GPX exporters write a numeric activity code in `type`; no
+            // code table is standard, so a number says nothing about the sport.
+            _ if n.chars().all(|c| c.is_ascii_digit()) => Sport::Unknown,
             _ => Sport::Other(n),
+        }
+    }
+
+    /// Whether the session gets the running analysis (intervals, pace, running findings).
+    /// Runs do, and so do files that name no sport (most of them are runs); a ride, a walk
+    /// or hike, or any other named sport does not.
+    pub fn analysed_as_running(&self) -> bool {
+        matches!(self, Sport::Running | Sport::Unknown)
+    }
+
+    /// The sport as a capitalised word for headings ("Cycling"); control characters from
+    /// the file are left out.
+    pub fn title(&self) -> String {
+        let label: String = self
+            .label()
+            .chars()
+            .filter(|c| !c.is_control())
+            .map(|c| if c == '_' { ' ' } else { c })
+            .collect();
+        let mut chars = label.chars();
+        match chars.next() {
+            Some(c) => c.to_uppercase().chain(chars).collect(),
+            None => String::new(),
         }
     }
 
@@ -272,10 +304,13 @@ impl Session {
         (self.duration_s() - paused).max(0.0)
     }
 
-    /// Total distance (last present cumulative distance), metres.
+    /// Total distance: the last present cumulative distance minus the first, metres (a
+    /// file may start its cumulative distance above zero, e.g. a recording resumed).
     pub fn distance_m(&self) -> Option<f64> {
         let d = self.distance.as_ref()?;
-        d.values.iter().rev().find_map(|v| *v)
+        let first = d.values.iter().find_map(|v| *v)?;
+        let last = d.values.iter().rev().find_map(|v| *v)?;
+        Some((last - first).max(0.0))
     }
 
     /// The channel of that kind, if present. `Position` returns latitude.
@@ -375,4 +410,41 @@ pub fn session_day(stem: &str, start: DateTime<Utc>) -> NaiveDate {
         .and_then(|d| NaiveDate::parse_from_str(d, "%Y-%m-%d").ok())
         .filter(|d| (*d - utc).num_days().abs() <= 1)
         .unwrap_or(utc)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::Sport;
+
+    #[test]
+    fn sport_names_map_to_their_family() {
+        for (name, sport) in [
+            ("Running", Sport::Running),
+            ("VirtualRun", Sport::Running),
+            ("trail_run", Sport::Running),
+            ("Biking", Sport::Cycling),
+            ("road_biking", Sport::Cycling),
+            ("E_Bike_Ride", Sport::Cycling),
+            ("indoor_cycling", Sport::Cycling),
+            ("Hike", Sport::Walking),
+            ("walking", Sport::Walking),
+            ("9", Sport::Unknown),
+            ("", Sport::Unknown),
+            ("Swimming", Sport::Other("swimming".into())),
+        ] {
+            assert_eq!(Sport::from_name(name), sport, "{name}");
+        }
+        assert!(Sport::Unknown.analysed_as_running() && Sport::Running.analysed_as_running());
+        assert!(!Sport::Cycling.analysed_as_running() && !Sport::Walking.analysed_as_running());
+        assert!(!Sport::Other("swimming".into()).analysed_as_running());
+    }
+
+    #[test]
+    fn sport_titles_are_capitalised_and_clean() {
+        assert_eq!(Sport::Cycling.title(), "Cycling");
+        assert_eq!(
+            Sport::Other("open_water\u{1b}[2J".into()).title(),
+            "Open water[2J"
+        );
+    }
 }

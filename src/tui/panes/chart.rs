@@ -167,11 +167,41 @@ fn nearest(t: &[f64], at: f64) -> Option<usize> {
     })
 }
 
+/// A speed as the session's sport reads it: a pace for a run, km/h (mph) otherwise.
+pub fn speed_words(v: f64, units: Units, running: bool) -> String {
+    if running {
+        return format_pace(v, units);
+    }
+    let per_h = v * 3600.0 / units.metres();
+    match units {
+        Units::Km => format!("{per_h:.1} km/h"),
+        Units::Mi => format!("{per_h:.1} mph"),
+    }
+}
+
+/// A label of the speed scale: a pace for a run, whole km/h (mph) otherwise, so it fits
+/// the [`GUTTER`].
+fn scale_label(v: f64, units: Units, running: bool) -> String {
+    if running {
+        return format_pace(v, units);
+    }
+    let per_h = v * 3600.0 / units.metres();
+    match units {
+        Units::Km => format!("{per_h:.0} km/h"),
+        Units::Mi => format!("{per_h:.0} mph"),
+    }
+}
+
 /// The cursor readout: time and the exact values at the nearest sample.
 pub fn readout(session: &Session, at: f64, units: Units) -> String {
     let mut parts = vec![format_clock(at)];
+    let running = session.sport.analysed_as_running();
     if let Some(v) = value_at(session, session.speed.as_ref(), at) {
-        parts.push(format!("pace {}", format_pace(v, units)));
+        if running {
+            parts.push(format!("pace {}", format_pace(v, units)));
+        } else {
+            parts.push(format!("speed {}", speed_words(v, units, false)));
+        }
     }
     if let Some(h) = value_at(session, session.hr.as_ref(), at) {
         parts.push(format!("HR {h:.0}"));
@@ -306,7 +336,19 @@ pub fn render(app: &App, area: Rect, buf: &mut Buffer) {
         .filter(ChartView::zoomed)
         .map(|c| format!(" · zoom {:.0}x ", c.duration / c.span().max(1.0)))
         .unwrap_or_else(|| " ".to_string());
-    let block = pane_block(app, format!(" Chart{zoom}"), app.focus == Focus::Chart);
+    // Another sport says so in the title (its speed scale reads km/h or mph, not pace).
+    let sport = o
+        .analysed
+        .as_ref()
+        .map(|a| &a.session.sport)
+        .filter(|s| !s.analysed_as_running())
+        .map(|s| format!(" · {}", s.title()))
+        .unwrap_or_default();
+    let block = pane_block(
+        app,
+        format!(" Chart{sport}{zoom}"),
+        app.focus == Focus::Chart,
+    );
     let inner = block.inner(area);
     block.render(area, buf);
     let (Some(a), Some(view)) = (o.analysed.as_ref(), o.chart) else {
@@ -363,7 +405,7 @@ pub fn render(app: &App, area: Rect, buf: &mut Buffer) {
                 lo,
                 hi,
                 style: t.pace,
-                labels: [format_pace(hi, units), format_pace(lo, units)],
+                labels: [hi, lo].map(|v| scale_label(v, units, s.sport.analysed_as_running())),
                 fits: stats
                     .iter()
                     .filter_map(|(a, b, st)| st.speed.map(|f| (*a, *b, f)))

@@ -170,9 +170,14 @@ fn grading_lines<'a>(app: &App, o: &OpenSession, review: &Review) -> Vec<Line<'a
     let n = review.work().count();
     let scored = state.map(|s| s.scores.len()).unwrap_or(0);
     let (v, v_rev) = verdict_cell(state);
+    let scores = if n == 0 {
+        "no intervals to score".to_string()
+    } else {
+        format!("scores {scored}/{n}")
+    };
     let mut lines = vec![Line::from(vec![
         Span::styled("Grading  ", t.heading),
-        Span::styled(format!("scores {scored}/{n}"), t.text),
+        Span::styled(scores, t.text),
         Span::styled("  ·  purpose verdict ", t.text),
         Span::styled(v, if v_rev { t.revision } else { t.heading }),
         Span::styled(format!(" ({})", k.first(Action::CycleVerdict)), t.dim),
@@ -297,6 +302,7 @@ pub fn render(app: &App, area: Rect, buf: &mut Buffer) {
                 }
                 Line::styled(last, t.warn)
             }
+            None if !review.running => Line::styled("No plan", t.dim),
             None => Line::styled("No plan: intervals found from the speed", t.dim),
         },
     };
@@ -306,20 +312,36 @@ pub fn render(app: &App, area: Rect, buf: &mut Buffer) {
         .distance_m
         .map(|d| crate::model::units::format_distance(d, units))
         .unwrap_or_default();
-    put(
-        Line::styled(
-            fit(
-                &format!(
-                    "{date} · {} · {dist} · decoupling {}",
-                    format_clock(review.session.duration_s),
-                    opt(review.decoupling_pct, |d| format!("{d:.1}%"))
+    let summary = if review.running {
+        format!(
+            "{date} · {} · {dist} · decoupling {} · load {}",
+            format_clock(review.session.duration_s),
+            opt(review.decoupling_pct, |d| format!("{d:.1}%")),
+            review.load_text()
+        )
+    } else {
+        format!(
+            "{date} · {} · {} · {dist} · HR {} · load {}",
+            crate::model::Sport::from_name(&review.session.sport).title(),
+            format_clock(review.session.duration_s),
+            opt(review.avg_hr, |h| format!("{h:.0}")),
+            review.load_text()
+        )
+    };
+    put(Line::styled(fit(&summary, w), t.dim), &mut y);
+    if !review.running {
+        put(
+            Line::styled(
+                fit(
+                    "Not a run: no running analysis, no intervals to score; \
+                     the purpose verdict is the grade",
+                    w,
                 ),
-                w,
+                t.text,
             ),
-            t.dim,
-        ),
-        &mut y,
-    );
+            &mut y,
+        );
+    }
     // Lower blocks are laid out from what is left: grading (fixed), then the table, then
     // findings or notes + feedback.
     let grading = grading_lines(app, o, review);
@@ -328,7 +350,7 @@ pub fn render(app: &App, area: Rect, buf: &mut Buffer) {
     let grading_h = grading.len();
     let lower_min = if o.revealed() { 4 } else { 2 };
     let table_rows_all = review.intervals.len() + 1;
-    let table_h = if editing {
+    let table_h = if editing || review.intervals.is_empty() {
         0
     } else {
         table_rows_all.min(rows_left.saturating_sub(grading_h + lower_min).max(2))

@@ -945,7 +945,16 @@ fn one_interval(
         Some(d) if s.distance.is_some() && moving_s > 0.0 => Some(d / moving_s),
         _ => s.speed.and_then(|sp| s.moving_speed(sp, a, b)),
     };
-    let adj_speed = s.adj.as_deref().and_then(|v| s.moving_speed(v, a, b));
+    // Hill-adjusted speed on the same footing as the pace: the average pace scaled by the
+    // ratio of the mean hill-adjusted to the mean recorded speed over the same samples, so
+    // on flat ground the two columns agree exactly (the speed channel's own mean can differ
+    // from distance over time by a few seconds per km).
+    let adj_mean = s.adj.as_deref().and_then(|v| s.moving_speed(v, a, b));
+    let raw_mean = s.speed.and_then(|sp| s.moving_speed(sp, a, b));
+    let adj_speed = match (avg_speed, adj_mean, raw_mean) {
+        (Some(avg), Some(adj), Some(raw)) if raw > 0.0 => Some(avg * adj / raw),
+        _ => adj_mean,
+    };
     let hr = s.hr;
     let avg_hr = hr.and_then(|h| s.mean(h, |i| s.hr_ok(i), a, b));
     // The boundary sample `a` is the previous interval's last: it belongs to that interval

@@ -168,22 +168,13 @@ fn opt(v: Option<f64>, decimals: usize) -> String {
 }
 
 fn print_table(ms: &[Measure]) {
+    let h = [
+        "case", "kind", "fmt", "u", "work", "found", "match", "worst", "dec_t", "dec_a", "dec_e",
+        "move%", "dist%", "sport",
+    ];
     println!(
         "\n{:<40} {:<11} {:<3} {:<2} {:>5} {:>5} {:>5} {:>6} {:>6} {:>6} {:>6} {:>7} {:>7} {}",
-        "case",
-        "kind",
-        "fmt",
-        "u",
-        "work",
-        "found",
-        "match",
-        "worst",
-        "dec_t",
-        "dec_a",
-        "dec_e",
-        "move%",
-        "dist%",
-        "sport"
+        h[0], h[1], h[2], h[3], h[4], h[5], h[6], h[7], h[8], h[9], h[10], h[11], h[12], h[13]
     );
     for m in ms {
         println!(
@@ -216,9 +207,19 @@ fn print_table(ms: &[Measure]) {
     for m in ms {
         by_kind.entry(m.kind).or_default().push(m);
     }
+    let h2 = [
+        "kind",
+        "cases",
+        "invented",
+        "recall",
+        "dec n",
+        "dec <=1pp",
+        "moving <=2%",
+        "dist <=2%",
+    ];
     println!(
         "\n{:<12} {:>5} {:>9} {:>13} {:>10} {:>14} {:>14} {:>14}",
-        "kind", "cases", "invented", "recall", "dec n", "dec <=1pp", "moving <=2%", "dist <=2%"
+        h2[0], h2[1], h2[2], h2[3], h2[4], h2[5], h2[6], h2[7]
     );
     let row = |label: &str, ms: &[&Measure]| {
         let invented: usize = ms.iter().map(|m| m.invented).sum();

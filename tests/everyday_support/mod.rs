@@ -675,7 +675,6 @@ pub struct Run {
 /// The recorded session as the file will hold it (laps, channels).
 pub fn recorded(case: &Case, out: &SimOutput) -> Session {
     let mut s = out.session.clone();
-    s.sport = case.input.conditions.sport.clone();
     s.laps = match case.laps {
         Laps::None => Vec::new(),
         Laps::Auto { metres } => auto_laps(&s, metres),

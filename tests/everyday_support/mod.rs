@@ -747,6 +747,7 @@ impl Case {
 
 /// One case run through the whole path.
 pub struct Run {
+    pub name: String,
     pub out: SimOutput,
     /// The session as ingest read it back from the bytes.
     pub session: Session,
@@ -818,6 +819,7 @@ pub fn run(case: &Case) -> Run {
     let review =
         splitdesk::analysis::analyze(&session, case.analysis_plan.as_ref(), &case.input.profile);
     Run {
+        name: case.name.clone(),
         out,
         session,
         review,

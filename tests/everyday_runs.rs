@@ -14,7 +14,8 @@
 //!   the start and end errors against the detected work interval overlapping it most;
 //! - decoupling: |analysis `decoupling_pct` - true decoupling| in percentage points, where
 //!   the true steady part has at least [`MIN_STEADY_S`] of moving time;
-//! - moving time and distance: analysis vs truth, percent of the truth.
+//! - moving time and distance: analysis vs truth, percent of the truth;
+//! - hr%: the true share of samples with heart rate (drop-outs), for the HR-coverage figures.
 
 mod everyday_support;
 
@@ -55,6 +56,8 @@ struct Measure {
     dist_truth: f64,
     dist_found: Option<f64>,
     sport: String,
+    /// True share of samples with HR (drop-outs), 0..1.
+    hr_coverage: f64,
 }
 
 impl Measure {
@@ -137,6 +140,7 @@ fn measure(case: &Case, r: &Run) -> Measure {
         dist_truth: truth.distance_m,
         dist_found: r.review.session.distance_m,
         sport: r.review.session.sport.clone(),
+        hr_coverage: truth.hr_coverage,
     }
 }
 
@@ -172,15 +176,16 @@ fn opt(v: Option<f64>, decimals: usize) -> String {
 fn print_table(ms: &[Measure]) {
     let h = [
         "case", "kind", "fmt", "u", "work", "found", "match", "worst", "dec_t", "dec_a", "dec_e",
-        "move%", "dist%", "sport",
+        "move%", "dist%", "hr%", "sport",
     ];
     println!(
-        "\n{:<40} {:<11} {:<3} {:<2} {:>5} {:>5} {:>5} {:>6} {:>6} {:>6} {:>6} {:>7} {:>7} {}",
-        h[0], h[1], h[2], h[3], h[4], h[5], h[6], h[7], h[8], h[9], h[10], h[11], h[12], h[13]
+        "\n{:<40} {:<11} {:<3} {:<2} {:>5} {:>5} {:>5} {:>6} {:>6} {:>6} {:>6} {:>7} {:>7} {:>5} {}",
+        h[0], h[1], h[2], h[3], h[4], h[5], h[6], h[7], h[8], h[9], h[10], h[11], h[12], h[13],
+        h[14]
     );
     for m in ms {
         println!(
-            "{:<40} {:<11} {:<3} {:<2} {:>5} {:>5} {:>5} {:>6} {:>6} {:>6} {:>6} {:>7} {:>7} {}",
+            "{:<40} {:<11} {:<3} {:<2} {:>5} {:>5} {:>5} {:>6} {:>6} {:>6} {:>6} {:>7} {:>7} {:>5} {}",
             m.name,
             m.kind.label(),
             m.format.as_str(),
@@ -201,6 +206,7 @@ fn print_table(ms: &[Measure]) {
             },
             format!("{:+.1}", m.moving_err_pct()),
             opt(m.dist_err_pct(), 1),
+            format!("{:.0}", m.hr_coverage * 100.0),
             m.sport
         );
     }
@@ -430,6 +436,12 @@ fn corpus_is_large_and_its_truth_is_consistent() {
                 c.name,
                 g.at_s
             );
+        }
+        // HR coverage: whole without drop-outs, short of whole with them.
+        if c.input.faults.hr_dropouts == 0 {
+            assert_eq!(tr.hr_coverage, 1.0, "{}", c.name);
+        } else {
+            assert!(tr.hr_coverage < 1.0 && tr.hr_coverage > 0.9, "{}", c.name);
         }
         if c.input.conditions.sport == Sport::Cycling {
             let v = tr.distance_m / tr.moving_s;

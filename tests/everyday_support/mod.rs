@@ -684,6 +684,9 @@ pub fn corpus() -> Vec<Case> {
         case("long 80 hr dropouts", Steady, "80:00 easy", 202)
             .dropouts(6)
             .fmt(Tcx),
+        case("long 90 many hr dropouts", Steady, "90:00 easy", 205)
+            .dropouts(20)
+            .fmt(Gpx),
         case(
             "6x800 hr dropouts",
             Set,

@@ -385,9 +385,6 @@ pub struct Truth {
     pub distance_m: f64,
     /// The true steady part and its decoupling; `None` for sets (see [`SteadyPart`]).
     pub steady: Option<SteadyPart>,
-    /// Share of the recorded samples that carry a heart rate after faults (drop-outs), 0..1.
-    /// (A fact of the recording rather than of the run, for checking HR coverage figures.)
-    pub hr_coverage: f64,
 }
 
 impl Truth {

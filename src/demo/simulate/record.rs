@@ -290,12 +290,6 @@ pub(crate) fn record(input: &SimInput, physio: &Physio, tr: &Track) -> SimOutput
         }
     }
 
-    let hr_coverage = if m > 0 {
-        hr.iter().filter(|h| h.is_some()).count() as f64 / m as f64
-    } else {
-        0.0
-    };
-
     // Session.
     let mut session = Session::empty(input.format, input.start);
     session.sport = c.sport.clone();
@@ -456,7 +450,6 @@ pub(crate) fn record(input: &SimInput, physio: &Physio, tr: &Track) -> SimOutput
             moving_s: moving_steps(tr).iter().filter(|&&m| m).count() as f64,
             distance_m: tr.dist[n - 1] - tr.dist[0],
             steady: steady_part(tr),
-            hr_coverage,
         },
     }
 }

@@ -291,6 +291,16 @@ pub fn corpus() -> Vec<Case> {
         case("rolling 8% usual effort 60", Steady, "60:00 easy", 120)
             .terrain(rolling(0.08, 800.0))
             .fmt(Gpx),
+        case("long 70 surging", Steady, "70:00 easy", 138)
+            .pacing(Pacing::Surging)
+            .fmt(Tcx),
+        case("long 80 fading", Steady, "80:00 easy", 139).pacing(Pacing::Fading),
+        case("long 60 downhill 3%", Steady, "60:00 easy", 140)
+            .terrain(Terrain::Downhill {
+                grade: 0.03,
+                flat_m: 2000.0,
+            })
+            .out_and_back(20_000.0),
         // ---- Standing at the start and/or end, watch recording.
         case(
             "stand 0:10 + easy 40",
@@ -507,6 +517,21 @@ pub fn corpus() -> Vec<Case> {
         )
         .mile()
         .fmt(Tcx),
+        case("parkrun no warm-up", Race, "work 5km @ 5k", 168).fmt(Gpx),
+        case(
+            "stand + 5k + walk",
+            Race,
+            "rec 1:00 stand; work 5km @ 5k; rec 5:00 walk",
+            169,
+        ),
+        case(
+            "10k race rolling 3%",
+            Race,
+            "wu 15:00; work 10km @ 10k; cd 10:00",
+            170,
+        )
+        .even_hills(rolling(0.03, 1500.0))
+        .fmt(Tcx),
         // ---- Fartlek.
         case(
             "fartlek 8x1min",
@@ -607,6 +632,29 @@ pub fn corpus() -> Vec<Case> {
         )
         .route_track()
         .mile(),
+        case(
+            "6x400 walk mile",
+            Set,
+            "15:00 easy; 6 x 400m @ 3k / 1:30 walk; 10:00 easy",
+            189,
+        )
+        .route_track()
+        .mile(),
+        case(
+            "hill repeats 8x1min 6%",
+            Set,
+            "15:00 easy; 8 x 1:00 @ 5k / 1:30 jog; 10:00 easy",
+            190,
+        )
+        .terrain(Terrain::Hill { grade: 0.06 }),
+        case(
+            "hill repeats 6x90s 8% gpx",
+            Set,
+            "15:00 easy; 6 x 1:30 @ 5k / 2:00 jog; 10:00 easy",
+            194,
+        )
+        .terrain(Terrain::Hill { grade: 0.08 })
+        .fmt(Gpx),
         // ---- Treadmill.
         case("treadmill easy 40", Steady, "40:00 easy", 191).treadmill(),
         case(
@@ -624,11 +672,21 @@ pub fn corpus() -> Vec<Case> {
         )
         .treadmill()
         .fmt(Tcx),
+        case(
+            "treadmill easy 30 + stand 2:00",
+            Steady,
+            "30:00 easy; rec 2:00 stand",
+            195,
+        )
+        .treadmill(),
         // ---- Heart-rate drop-outs.
         case("easy 50 hr dropouts", Steady, "50:00 easy", 201).dropouts(4),
         case("long 80 hr dropouts", Steady, "80:00 easy", 202)
             .dropouts(6)
             .fmt(Tcx),
+        case("long 90 many hr dropouts", Steady, "90:00 easy", 205)
+            .dropouts(20)
+            .fmt(Gpx),
         case(
             "6x800 hr dropouts",
             Set,
@@ -637,6 +695,16 @@ pub fn corpus() -> Vec<Case> {
         )
         .route_track()
         .dropouts(3),
+        case(
+            "stand 1:00 + easy 45 smart gpx",
+            Steady,
+            "rec 1:00 stand; 45:00 easy; rec 1:00 stand",
+            204,
+        )
+        .smart()
+        .fmt(Gpx)
+        .no_speed()
+        .jitter(5.0),
         // ---- Not running.
         case("ride 60 flat", NonRunning, "60:00 easy", 211).ride(),
         case("ride 90 tcx", NonRunning, "90:00 easy", 212)
@@ -645,6 +713,22 @@ pub fn corpus() -> Vec<Case> {
         case("ride 45 gpx", NonRunning, "45:00 easy", 213)
             .ride()
             .fmt(Gpx),
+        case(
+            "ride 60 rolling 5% usual effort",
+            NonRunning,
+            "60:00 easy",
+            215,
+        )
+        .ride()
+        .terrain(rolling(0.05, 2000.0))
+        .fmt(Tcx),
+        case(
+            "ride intervals",
+            NonRunning,
+            "15:00 easy; 5 x 4:00 @ threshold / 3:00 jog; 10:00 easy",
+            216,
+        )
+        .ride(),
         case("ride rolling 3%", NonRunning, "75:00 easy", 214)
             .ride()
             .even_hills(rolling(0.03, 3000.0)),
@@ -666,6 +750,7 @@ impl Case {
 
 /// One case run through the whole path.
 pub struct Run {
+    pub name: String,
     pub out: SimOutput,
     /// The session as ingest read it back from the bytes.
     pub session: Session,
@@ -675,7 +760,6 @@ pub struct Run {
 /// The recorded session as the file will hold it (laps, channels).
 pub fn recorded(case: &Case, out: &SimOutput) -> Session {
     let mut s = out.session.clone();
-    s.sport = case.input.conditions.sport.clone();
     s.laps = match case.laps {
         Laps::None => Vec::new(),
         Laps::Auto { metres } => auto_laps(&s, metres),
@@ -738,6 +822,7 @@ pub fn run(case: &Case) -> Run {
     let review =
         splitdesk::analysis::analyze(&session, case.analysis_plan.as_ref(), &case.input.profile);
     Run {
+        name: case.name.clone(),
         out,
         session,
         review,

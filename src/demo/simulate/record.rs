@@ -11,7 +11,7 @@ use super::{
 };
 use crate::analysis::gradient::flat_equivalent_speed;
 use crate::demo::rng::Rng;
-use crate::model::{Amount, Channel, DeviceLap, Pause, SegmentKind, Session, Sport};
+use crate::model::{Amount, Channel, DeviceLap, Pause, SegmentKind, Session};
 
 // Sensor noise. Our own choices, sized like consumer devices (From memory).
 /// Speed noise, standard deviation as a fraction of speed (independent per second). Zero
@@ -292,7 +292,7 @@ pub(crate) fn record(input: &SimInput, physio: &Physio, tr: &Track) -> SimOutput
 
     // Session.
     let mut session = Session::empty(input.format, input.start);
-    session.sport = Sport::Running;
+    session.sport = c.sport.clone();
     session.time = idx
         .iter()
         .map(|&k| input.start + Duration::seconds(k as i64))

@@ -38,6 +38,12 @@ pub const MIN_INTERVAL_DECOUPLING_S: f64 = 120.0;
 // Common coaching practice (no published source).
 pub const MIN_DECOUPLING_S: f64 = 20.0 * 60.0;
 
+/// The HR drift is fitted from this long after the start of the steady window, seconds:
+/// heart rate rises for two to three minutes after a change of effort (the start of a race
+/// after its warm-up) before the slow drift shows. Common coaching practice (no published
+/// source).
+pub const HR_SETTLE_S: f64 = 180.0;
+
 /// Slack on [`MIN_DECOUPLING_S`]: a 20-minute effort whose first sample's spacing falls
 /// outside the window still counts, seconds. Our design choice (one sample at the slowest
 /// smart-recording rhythm).
@@ -1539,9 +1545,15 @@ fn whole_session(
                 if !vals.is_empty() {
                     vals.sort_by(f64::total_cmp);
                     let med = vals[vals.len() / 2];
+                    // Heart rate takes a few minutes to settle at a new effort: the
+                    // drift is fitted from HR_SETTLE_S into the window.
+                    let settle_from = (0..n)
+                        .find(|&i| usable[i])
+                        .map_or(f64::INFINITY, |i| s.t[i] + HR_SETTLE_S);
                     let steady: Vec<bool> = (0..n)
                         .map(|i| {
                             usable[i]
+                                && s.t[i] >= settle_from
                                 && adj
                                     .get(i)
                                     .copied()

@@ -12,11 +12,12 @@
 //!    correction of the table's hill-adjusted pace (Minetti et al. 2002, for runners who
 //!    hold an even hill-adjusted pace). Unless both show two clear levels, the run is
 //!    steady, or a progression (step 5).
-//! 3. **Effort rises.** A fast stretch is work only when the effort really rose: it is
-//!    faster in recorded speed too ([`super::RAW_STRUCTURE_RATIO`], so a walked climb is
-//!    not a rep), and, where heart rate was recorded, heart rate responded by at least
-//!    [`HR_RESPONSE_BPM`] (so a descent, or a stretch the hill adjustment over-corrects,
-//!    is not a rep). Fast stretches that fail are merged back.
+//! 3. **Effort rises.** A fast stretch is work only when the effort really rose: it was
+//!    run, not mostly walked (a walked climb on a trail is not a rep), and heart rate
+//!    responded by at least [`HR_RESPONSE_BPM`] (so a descent, or a stretch the hill
+//!    adjustment over-corrects, is not a rep); without heart rate, it must be faster in
+//!    recorded speed too ([`super::RAW_STRUCTURE_RATIO`]). Fast stretches that fail are
+//!    merged back.
 //! 4. **Stops are not recoveries.** When every slow stretch between fast ones is mostly
 //!    (over half its time) standing, walking or stopped and the fast stretches are long ([`STOPS_MIN_EFFORT_S`]), the
 //!    run was one effort with stops (traffic lights), not a set.
@@ -281,14 +282,32 @@ fn main_pieces(
              interval",
         );
     }
-    if !super::raw_structure(&runs, trace) {
+    // Walked climbs (a trail) are not reps: fast stretches spent mostly walking go back.
+    loop {
+        let walked = runs
+            .iter()
+            .position(|r| r.2 && motion.running_s(r.0, r.1) < 0.5 * motion.moving_s(r.0, r.1));
+        let Some(k) = walked else { break };
+        flip_run(&mut runs, k);
+    }
+    if !runs.iter().any(|r| r.2) {
+        return steady(
+            notes,
+            "the faster stretches were walked climbs, not repeats: one steady interval",
+        );
+    }
+    let hr = smoothed_hr(session, trace);
+    // Without heart rate, the watch's own speed must rise too (a climb at an even effort
+    // is fast only once hill-adjusted); with it, the heart rate decides below (hill
+    // repeats run up at effort are slow on the watch).
+    if hr.is_none() && !super::raw_structure(&runs, trace) {
         return steady(
             notes,
             "the faster stretches were climbs at a steady effort, not repeats: one steady \
              interval",
         );
     }
-    if let Some(hr) = smoothed_hr(session, trace) {
+    if let Some(hr) = hr {
         loop {
             let weak = runs
                 .iter()

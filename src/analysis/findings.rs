@@ -196,6 +196,29 @@ fn f(severity: Severity, code: &str, text: String, metrics: Vec<String>) -> Find
     }
 }
 
+/// The no-plan finding: what kind of run the finder read, in its own words.
+fn inferred_text(set: &IntervalSet) -> String {
+    let reading = set
+        .notes
+        .iter()
+        .rev()
+        .find(|n| {
+            n.as_str() != crate::analysis::intervals::INFERRED_NOTE
+                && !n.starts_with("standing or walking at the ends")
+                && !n.starts_with("device laps")
+        })
+        .cloned();
+    let work = set.work().count();
+    match reading {
+        Some(r) => format!("No plan for this session: read from the speed and heart rate as {r}."),
+        None if work >= 2 => format!(
+            "No plan for this session: read from the speed and heart rate as a set of {work} \
+             repeats."
+        ),
+        None => "No plan for this session: the intervals were inferred from the speed.".into(),
+    }
+}
+
 pub(crate) fn findings(
     r: &Review,
     session: &Session,
@@ -626,7 +649,7 @@ pub(crate) fn findings(
         out.push(f(
             Severity::Info,
             "inferred",
-            "No plan for this session: the intervals were inferred from the speed.".into(),
+            inferred_text(set),
             vec!["inferred".into()],
         ));
     }

@@ -175,13 +175,7 @@ pub fn render(r: &Review, profile: &AthleteProfile, plan_source: Option<&str>) -
         num(r.elevation_loss_m, 0),
     );
     if !r.zones.hr.is_empty() {
-        let z: Vec<String> = r
-            .zones
-            .hr
-            .iter()
-            .map(|z| format!("{} {}", z.name, format_clock(z.seconds)))
-            .collect();
-        let _ = writeln!(o, "  HR zones: {}", z.join(", "));
+        hr_zones_line(&mut o, r);
         // Zones from the age formula say so (Tanaka et al. 2001, with its error).
         let year = r.session.start.get(..4).and_then(|y| y.parse::<i32>().ok());
         if let Some(note) = year.and_then(|y| {
@@ -268,13 +262,18 @@ fn render_other_sport(o: &mut String, r: &Review, profile: &AthleteProfile) {
         num(r.elevation_loss_m, 0),
     );
     if !r.zones.hr.is_empty() {
-        let z: Vec<String> = r
-            .zones
-            .hr
-            .iter()
-            .map(|z| format!("{} {}", z.name, format_clock(z.seconds)))
-            .collect();
-        let _ = writeln!(o, "  HR zones: {}", z.join(", "));
+        hr_zones_line(o, r);
     }
     tail(o, r);
+}
+
+/// The time-in-HR-zones line.
+fn hr_zones_line(o: &mut String, r: &Review) {
+    let z: Vec<String> = r
+        .zones
+        .hr
+        .iter()
+        .map(|z| format!("{} {}", z.name, format_clock(z.seconds)))
+        .collect();
+    let _ = writeln!(o, "  HR zones: {}", z.join(", "));
 }

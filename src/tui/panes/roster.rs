@@ -140,16 +140,19 @@ pub fn render(app: &App, area: Rect, buf: &mut Buffer) {
     }
 }
 
+/// The athlete under the roster cursor.
+fn cursor_athlete(app: &App) -> Option<&crate::roster::Athlete> {
+    app.cursor
+        .athlete
+        .as_deref()
+        .and_then(|id| app.roster.athlete(id))
+}
+
 /// The foot of the roster pane when the athlete under the cursor has profile or plan
 /// problems: a heading and the first problems, one line each (file name, not the full path).
 fn problem_lines(app: &App, w: usize, height: usize) -> Vec<Line<'static>> {
     let t = &app.theme;
-    let Some(a) = app
-        .cursor
-        .athlete
-        .as_deref()
-        .and_then(|id| app.roster.athlete(id))
-    else {
+    let Some(a) = cursor_athlete(app) else {
         return Vec::new();
     };
     let problems = a.problems();
@@ -205,12 +208,7 @@ fn problem_lines(app: &App, w: usize, height: usize) -> Vec<Line<'static>> {
 /// per problem. Empty when the athlete has none.
 pub fn athlete_problems(app: &App) -> Vec<Line<'static>> {
     let t = &app.theme;
-    let Some(a) = app
-        .cursor
-        .athlete
-        .as_deref()
-        .and_then(|id| app.roster.athlete(id))
-    else {
+    let Some(a) = cursor_athlete(app) else {
         return Vec::new();
     };
     let problems = a.problems();

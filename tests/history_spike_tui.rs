@@ -7,15 +7,12 @@ mod tui_support;
 
 use std::path::{Path, PathBuf};
 
-use ratatui::backend::TestBackend;
-use ratatui::Terminal;
 use splitdesk::journal::Journal;
 use splitdesk::roster::Roster;
 use splitdesk::tui::app::{App, Options};
 use splitdesk::tui::keymap::KeyMap;
 use splitdesk::tui::theme::Theme;
-use splitdesk::tui::ui;
-use tui_support::run_effects;
+use tui_support::{run_effects, screen};
 
 fn copy_dir(from: &Path, to: &Path) {
     std::fs::create_dir_all(to).unwrap();
@@ -28,23 +25,6 @@ fn copy_dir(from: &Path, to: &Path) {
             std::fs::copy(e.path(), target).unwrap();
         }
     }
-}
-
-fn screen(app: &mut App, w: u16, h: u16) -> String {
-    app.size = (w, h);
-    let mut term = Terminal::new(TestBackend::new(w, h)).unwrap();
-    term.draw(|f| ui::draw(f, app)).unwrap();
-    let buf = term.backend().buffer().clone();
-    let mut out = String::new();
-    for y in 0..h {
-        for x in 0..w {
-            if let Some(c) = buf.cell((x, y)) {
-                out.push_str(c.symbol());
-            }
-        }
-        out.push('\n');
-    }
-    out
 }
 
 #[test]

@@ -3,33 +3,12 @@
 
 mod tui_support;
 
-use ratatui::backend::TestBackend;
-use ratatui::Terminal;
 use splitdesk::journal::Journal;
 use splitdesk::roster::Roster;
 use splitdesk::tui::app::{App, Options};
 use splitdesk::tui::keymap::KeyMap;
 use splitdesk::tui::theme::Theme;
-use splitdesk::tui::ui;
 use tui_support::*;
-
-/// Draw the app at a size and return the screen as text, one line per row.
-fn screen(app: &mut App, w: u16, h: u16) -> String {
-    app.size = (w, h);
-    let mut term = Terminal::new(TestBackend::new(w, h)).expect("terminal");
-    term.draw(|f| ui::draw(f, app)).expect("draw");
-    let buf = term.backend().buffer().clone();
-    let mut out = String::new();
-    for y in 0..h {
-        for x in 0..w {
-            if let Some(c) = buf.cell((x, y)) {
-                out.push_str(c.symbol());
-            }
-        }
-        out.push('\n');
-    }
-    out
-}
 
 /// The test roster with a typo in Ines's profile and her interval plan broken.
 fn broken_app(dir: &std::path::Path) -> App {

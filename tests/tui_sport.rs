@@ -6,33 +6,12 @@ mod tui_support;
 
 use chrono::{TimeZone, Utc};
 use crossterm::event::KeyCode;
-use ratatui::backend::TestBackend;
-use ratatui::Terminal;
 use splitdesk::demo::simulate::{simulate, SimInput};
 use splitdesk::demo::tcx_writer;
 use splitdesk::model::{AthleteProfile, Sport};
-use splitdesk::tui::app::App;
-use splitdesk::tui::ui;
 use tui_support::*;
 
 const RIDE: &str = "ines-aldana/2024-03-05-ride";
-
-fn screen(app: &mut App, w: u16, h: u16) -> String {
-    app.size = (w, h);
-    let mut term = Terminal::new(TestBackend::new(w, h)).expect("terminal");
-    term.draw(|f| ui::draw(f, app)).expect("draw");
-    let buf = term.backend().buffer().clone();
-    let mut out = String::new();
-    for y in 0..h {
-        for x in 0..w {
-            if let Some(c) = buf.cell((x, y)) {
-                out.push_str(c.symbol());
-            }
-        }
-        out.push('\n');
-    }
-    out
-}
 
 #[test]
 fn a_ride_shows_as_a_ride_and_is_graded_by_the_verdict_alone() {

@@ -220,3 +220,23 @@ pub fn grade_and_reveal(app: &mut App) {
     ch(app, 'o');
     key(app, KeyCode::Esc);
 }
+
+/// Draw the app at a size and return the screen as text, one line per row.
+pub fn screen(app: &mut App, w: u16, h: u16) -> String {
+    app.size = (w, h);
+    let mut term =
+        ratatui::Terminal::new(ratatui::backend::TestBackend::new(w, h)).expect("terminal");
+    term.draw(|f| splitdesk::tui::ui::draw(f, app))
+        .expect("draw");
+    let buf = term.backend().buffer().clone();
+    let mut out = String::new();
+    for y in 0..h {
+        for x in 0..w {
+            if let Some(c) = buf.cell((x, y)) {
+                out.push_str(c.symbol());
+            }
+        }
+        out.push('\n');
+    }
+    out
+}

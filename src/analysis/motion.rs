@@ -195,10 +195,12 @@ pub fn classify_with(session: &Session, grads: Option<&[Option<f64>]>) -> Motion
     let speed = motion_speed(session, &stopped, true);
     // A device's own speed (not derived from positions) places the edges of a stop to
     // the second: where it reads standing, the athlete stood.
+    // (Without positions the speed of motion already is that speed.)
     let device = session
         .speed
         .as_ref()
         .filter(|_| !session.derived.contains(&ChannelKind::Speed))
+        .filter(|_| session.lat.is_some() && session.lon.is_some())
         .map(|_| motion_speed(session, &stopped, false));
     let cadence = session.cadence.as_ref();
     let mut state: Vec<MotionState> = (0..n)
@@ -251,7 +253,7 @@ pub fn classify_with(session: &Session, grads: Option<&[Option<f64>]>) -> Motion
             }
         }
     }
-    absorb_short(&mut state, t, &dt);
+    absorb_short(&mut state, &dt);
     Motion { state, speed, dt }
 }
 
@@ -389,8 +391,7 @@ fn motion_speed(session: &Session, stopped: &[bool], positions: bool) -> Vec<Opt
 
 /// Standing and walking stretches shorter than [`MIN_DWELL_S`] take the state of the
 /// neighbour they sit in (running when the neighbours differ), shortest first.
-fn absorb_short(state: &mut [MotionState], t: &[f64], dt: &[f64]) {
-    let _ = t;
+fn absorb_short(state: &mut [MotionState], dt: &[f64]) {
     // Runs of equal state.
     let mut runs: Vec<(usize, usize, MotionState)> = Vec::new();
     for (i, &s) in state.iter().enumerate() {

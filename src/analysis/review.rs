@@ -1510,8 +1510,6 @@ pub(crate) struct Whole {
     /// Net descent of the second half of the analysed part minus that of the first, m.
     pub extra_descent_second_half_m: Option<f64>,
     pub analysed_s: f64,
-    /// Unflagged HR samples above the profile maximum: (seconds, highest bpm).
-    pub above_max: Option<(f64, f64)>,
 }
 
 fn whole_session(
@@ -1589,18 +1587,6 @@ fn whole_session(
     if let (Some(hr), Some(rest), Some(max)) = (&session.hr, profile.hr_rest, profile.hr_max) {
         let mask: Vec<bool> = (0..n).map(|i| s.hr_ok(i)).collect();
         whole.trimp = trimp_from_samples(&session.t, hr, Some(&mask), rest, max, profile.sex);
-        let (mut secs, mut top) = (0.0, 0.0f64);
-        for i in 0..n {
-            if let Some(h) = s.hr.and_then(|h| h.get(i).copied().flatten()) {
-                if s.hr_ok(i) && h > max {
-                    secs += s.dt(i).max(1.0);
-                    top = top.max(h);
-                }
-            }
-        }
-        if secs > 0.0 {
-            whole.above_max = Some((secs, top));
-        }
     }
     whole
 }

@@ -108,8 +108,10 @@ pub(super) fn find(
         &mut notes,
     );
     let mut pieces = Vec::new();
+    let mut trimmed = false;
     if a > 0 {
         if trace.time(a) - trace.time(0) >= MIN_END_S {
+            trimmed = true;
             pieces.push(Piece {
                 start: 0,
                 end: a,
@@ -121,39 +123,27 @@ pub(super) fn find(
             first.start = 0;
         }
     }
-    let trailing = if b + 1 < n {
+    let mut trailing = None;
+    if b + 1 < n {
         if trace.time(n - 1) - trace.time(b) >= MIN_END_S {
-            Some(Piece {
+            trimmed = true;
+            trailing = Some(Piece {
                 start: b,
                 end: n - 1,
                 kind: SegmentKind::Cooldown,
                 expected: None,
                 mode: Some(end_mode(motion, b, n - 1)),
-            })
-        } else {
-            if let Some(last) = main.last_mut() {
-                last.end = n - 1;
-            }
-            None
+            });
+        } else if let Some(last) = main.last_mut() {
+            last.end = n - 1;
         }
-    } else {
-        None
-    };
-    // A trimmed end beside a slow piece of the same role joins it.
-    let lead_trimmed = !pieces.is_empty();
+    }
     pieces.extend(main);
     pieces.extend(trailing);
-    if lead_trimmed || trailing_trimmed(&pieces, n) {
+    if trimmed {
         notes.push("standing or walking at the ends left out of the run".into());
     }
     (build(&trace.t, &pieces, IntervalSource::Detected), notes)
-}
-
-fn trailing_trimmed(pieces: &[Piece], n: usize) -> bool {
-    pieces
-        .last()
-        .is_some_and(|p| p.kind == SegmentKind::Cooldown && p.mode.is_some() && p.end + 1 >= n)
-        && pieces.len() > 1
 }
 
 fn whole(start: usize, end: usize, kind: SegmentKind) -> Piece {

@@ -292,12 +292,7 @@ pub fn steady_throughout(review: &Review) -> bool {
     if !effort_spread_pct(&review.intervals).is_some_and(|s| s <= STEADY_MAX_SPREAD_PCT) {
         return false;
     }
-    let moving = review.session.moving_s;
-    let mean = review
-        .session
-        .distance_m
-        .filter(|d| d.is_finite() && *d > 0.0 && moving > 0.0)
-        .map(|d| d / moving);
+    let mean = session_speed(review);
     let burst = review
         .best_efforts
         .iter()
@@ -307,6 +302,23 @@ pub fn steady_throughout(review: &Review) -> bool {
         (Some(b), Some(m)) => b <= STEADY_MAX_BURST_RATIO * m,
         _ => true,
     }
+}
+
+/// The session's mean moving speed, m/s: the review's distance-over-time on the same
+/// samples, or (a review cached before it had one) distance over moving time.
+fn session_speed(review: &Review) -> Option<f64> {
+    let moving = review.session.moving_s;
+    review
+        .session
+        .avg_speed_mps
+        .filter(|v| v.is_finite() && *v > 0.0)
+        .or_else(|| {
+            review
+                .session
+                .distance_m
+                .filter(|d| d.is_finite() && *d > 0.0 && moving > 0.0)
+                .map(|d| d / moving)
+        })
 }
 
 fn weighted_mean(pairs: impl Iterator<Item = (Option<f64>, f64)>) -> Option<f64> {
@@ -330,11 +342,7 @@ impl SessionSummary {
             .with_timezone(&Utc);
         let weight = interval_weight;
         let moving_s = review.session.moving_s;
-        let mean_speed_mps = review
-            .session
-            .distance_m
-            .filter(|d| d.is_finite() && *d > 0.0 && moving_s > 0.0)
-            .map(|d| d / moving_s);
+        let mean_speed_mps = session_speed(review);
         Some(SessionSummary {
             session_id: session_id.to_string(),
             start,

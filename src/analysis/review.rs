@@ -25,7 +25,7 @@ use super::zones::{hr_zones, pace_zones, time_in_zones};
 
 /// Bumped whenever a number in the review may change; cached summaries of another version
 /// are recomputed.
-pub const ANALYSIS_VERSION: u32 = 4;
+pub const ANALYSIS_VERSION: u32 = 5;
 
 /// The JSON schema name of [`Review`].
 pub const SCHEMA: &str = "splitdesk.analysis/1";
@@ -154,6 +154,13 @@ pub struct SessionInfo {
     pub duration_s: f64,
     pub moving_s: f64,
     pub distance_m: Option<f64>,
+    /// Mean moving speed, m/s, from a distance and a time over the same samples (a
+    /// distance carried across a recording gap or a flagged stretch is left out of it, as
+    /// the gap's time is left out of `moving_s`): the session's average pace is
+    /// `1000 / avg_speed_mps`, not `distance_m / moving_s`. `None` without speed or
+    /// distance.
+    #[serde(default)]
+    pub avg_speed_mps: Option<f64>,
     pub samples: usize,
     pub channels: Vec<String>,
 }
@@ -400,6 +407,9 @@ pub(crate) struct Series<'a> {
     pub speed_ok: Vec<bool>,
     pub hr_ok: Vec<bool>,
     pub cadence_ok: Vec<bool>,
+    /// Distance value usable: present and unflagged (speed, position and gap flags mask it
+    /// too). Pauses are left out through `moving`.
+    pub distance_ok: Vec<bool>,
     /// Moving: running or walking ([`super::motion`]) with a usable speed (without speed:
     /// moving and not paused).
     pub moving: Vec<bool>,
@@ -448,6 +458,15 @@ impl<'a> Series<'a> {
         let speed_ok = ok(ChannelKind::Speed, session.speed.as_ref());
         let hr_ok = ok(ChannelKind::Hr, session.hr.as_ref());
         let cadence_ok = ok(ChannelKind::Cadence, session.cadence.as_ref());
+        let distance_ok = {
+            let mask = sample_mask(session, &session.flags, ChannelKind::Distance);
+            let d = session.distance.as_ref();
+            (0..n)
+                .map(|i| {
+                    d.and_then(|c| c.get(i)).is_some() && !mask.get(i).copied().unwrap_or(false)
+                })
+                .collect()
+        };
         // Moving: running or walking by the motion classification (standing with a
         // wandering GPS, pauses and recording gaps left out), with a usable speed.
         let moving: Vec<bool> = match &session.speed {
@@ -471,9 +490,47 @@ impl<'a> Series<'a> {
             speed_ok,
             hr_ok,
             cadence_ok,
+            distance_ok,
             moving,
             running,
         }
+    }
+
+    /// Mean moving speed over samples `a+1..=b` from a distance and a time over the same
+    /// samples: each moving sample whose distance is usable at both ends of its stretch
+    /// (`t[i-1]..t[i]`) adds its distance increment and its spacing, and nothing else
+    /// does. A flagged speed sample (which masks the distance too), a standing or paused
+    /// stretch, or a missing distance leaves both out, so the pace is never the distance of
+    /// the whole stretch over the time of a part of it. `None` without a distance channel
+    /// or without such samples.
+    fn distance_speed(&self, a: usize, b: usize) -> Option<f64> {
+        let d = self.distance?;
+        let flag = |v: &[bool], i: usize| v.get(i).copied().unwrap_or(false);
+        let (mut dist, mut time) = (0.0, 0.0);
+        for i in (a + 1)..=b.min(self.t.len().saturating_sub(1)) {
+            let prev = i - 1;
+            if !flag(&self.moving, i)
+                || !flag(&self.distance_ok, i)
+                || !flag(&self.distance_ok, prev)
+            {
+                continue;
+            }
+            let (Some(d0), Some(d1)) =
+                (d.get(prev).copied().flatten(), d.get(i).copied().flatten())
+            else {
+                continue;
+            };
+            let (Some(&t0), Some(&t1)) = (self.t.get(prev), self.t.get(i)) else {
+                continue;
+            };
+            let (dd, dt) = (d1 - d0, t1 - t0);
+            if !(dd.is_finite() && dt.is_finite() && dt > 0.0) {
+                continue;
+            }
+            dist += dd.max(0.0);
+            time += dt;
+        }
+        (time > 0.0).then(|| dist / time)
     }
 
     fn dt(&self, i: usize) -> f64 {
@@ -614,6 +671,11 @@ pub fn review_moving(
             duration_s: session.duration_s(),
             moving_s: motion.moving_total_s(),
             distance_m: super::motion::moving_distance_m(session, motion),
+            avg_speed_mps: {
+                let last = session.len().saturating_sub(1);
+                s.distance_speed(0, last)
+                    .or_else(|| s.speed.and_then(|sp| s.moving_speed(sp, 0, last)))
+            },
             samples: session.len(),
             channels: session
                 .channels_present()
@@ -945,12 +1007,12 @@ fn one_interval(
                 .sum()
         }),
     };
-    // Average pace (moving): distance over moving time where the file has distance,
-    // otherwise the time-weighted mean of the moving speed samples.
-    let avg_speed = match distance_m {
-        Some(d) if s.distance.is_some() && moving_s > 0.0 => Some(d / moving_s),
-        _ => s.speed.and_then(|sp| s.moving_speed(sp, a, b)),
-    };
+    // Average pace (moving): distance over time on the same samples where the file has
+    // distance (`Series::distance_speed`), otherwise the time-weighted mean of the moving
+    // speed samples.
+    let avg_speed = s
+        .distance_speed(a, b)
+        .or_else(|| s.speed.and_then(|sp| s.moving_speed(sp, a, b)));
     // Hill-adjusted speed on the same footing as the pace: the average pace scaled by the
     // ratio of the mean hill-adjusted to the mean recorded speed over the same samples, so
     // on flat ground the two columns agree exactly (the speed channel's own mean can differ

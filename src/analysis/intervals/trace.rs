@@ -64,7 +64,8 @@ pub(crate) struct SegStats {
     pub distance_m: Option<f64>,
     /// Time-weighted mean hill-adjusted speed, m/s.
     pub adj_speed: Option<f64>,
-    /// Mean recorded speed (distance over moving time, else time-weighted mean), m/s.
+    /// Mean recorded speed (distance over time on the same samples, else time-weighted
+    /// mean), m/s.
     pub raw_speed: Option<f64>,
 }
 
@@ -256,6 +257,35 @@ impl Trace {
         d.iter().skip(i).find_map(|v| *v)
     }
 
+    /// Mean speed over samples `start+1..=end` from a distance and a time over the same
+    /// samples: each step that counts as moving time (not paused, not stopped) and has a
+    /// usable speed (not flagged) adds its distance increment and its time; a step capped
+    /// at [`MAX_SAMPLE_DT_S`] adds the share of its increment that the cap keeps. `None`
+    /// without distance or without such steps.
+    fn distance_speed(&self, start: usize, end: usize) -> Option<f64> {
+        let d = self.dist.as_ref()?;
+        let (mut dist, mut time) = (0.0, 0.0);
+        for i in (start + 1)..=end.min(self.len().saturating_sub(1)) {
+            let g = self.gap.get(i).copied().unwrap_or(0.0);
+            if g <= 0.0 || self.raw.get(i).copied().flatten().is_none() {
+                continue;
+            }
+            let (Some(d0), Some(d1)) =
+                (d.get(i - 1).copied().flatten(), d.get(i).copied().flatten())
+            else {
+                continue;
+            };
+            let step = self.time(i) - self.time(i - 1);
+            let dd = d1 - d0;
+            if !(step > 0.0 && dd.is_finite()) {
+                continue;
+            }
+            dist += dd.max(0.0) * (g / step).min(1.0);
+            time += g;
+        }
+        (time > 0.0).then(|| dist / time)
+    }
+
     /// Statistics of samples `start..=end` (the boundaries shared with the neighbours).
     pub fn stats(&self, start: usize, end: usize) -> SegStats {
         let duration_s: f64 = (start + 1..=end)
@@ -276,10 +306,7 @@ impl Trace {
             (wsum > 0.0).then(|| s / wsum)
         };
         let adj_speed = mean(&self.adj);
-        let raw_speed = match distance_m {
-            Some(d) if duration_s > 0.0 => Some(d / duration_s),
-            _ => mean(&self.raw),
-        };
+        let raw_speed = self.distance_speed(start, end).or_else(|| mean(&self.raw));
         SegStats {
             duration_s,
             distance_m,

@@ -102,7 +102,9 @@ pub fn tone(text: &str) -> f64 {
         } else {
             continue;
         };
-        let negated = words[i.saturating_sub(2)..i]
+        let negated = words
+            .get(i.saturating_sub(2)..i)
+            .unwrap_or_default()
             .iter()
             .any(|p| NEGATIONS.contains(&p.as_str()));
         let s = if negated { -sign } else { sign };

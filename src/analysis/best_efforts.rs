@@ -72,12 +72,10 @@ pub fn best_efforts_for(session: &Session, durations_s: &[f64]) -> Vec<BestEffor
             let mut acc = 0.0;
             (0..n)
                 .map(|i| {
-                    if i > 0 {
-                        let dt = t[i] - t[i - 1];
-                        if let Some(v) = sp.get(i) {
-                            if dt.is_finite() && dt > 0.0 && v.is_finite() && v >= 0.0 {
-                                acc += v * dt;
-                            }
+                    let dt = step_s(t, i);
+                    if let Some(v) = sp.get(i) {
+                        if dt.is_finite() && dt > 0.0 && v.is_finite() && v >= 0.0 {
+                            acc += v * dt;
                         }
                     }
                     sp.get(i).map(|_| acc)
@@ -91,10 +89,26 @@ pub fn best_efforts_for(session: &Session, durations_s: &[f64]) -> Vec<BestEffor
             i > 0
                 && !bad.get(i).copied().unwrap_or(true)
                 && !bad.get(i - 1).copied().unwrap_or(true)
-                && !session.is_paused_at(0.5 * (t[i - 1] + t[i]))
+                && !session.is_paused_at(mid_s(t, i))
         })
         .collect();
     best_efforts_in(t, &distance, &step_ok, durations_s)
+}
+
+/// `t[i] - t[i-1]`; NaN for the first sample or an index past the end (never usable).
+fn step_s(t: &[f64], i: usize) -> f64 {
+    match (i.checked_sub(1).and_then(|p| t.get(p)), t.get(i)) {
+        (Some(a), Some(b)) => b - a,
+        _ => f64::NAN,
+    }
+}
+
+/// The middle of the step `t[i-1]..t[i]` (NaN when there is no such step).
+fn mid_s(t: &[f64], i: usize) -> f64 {
+    match (i.checked_sub(1).and_then(|p| t.get(p)), t.get(i)) {
+        (Some(a), Some(b)) => 0.5 * (a + b),
+        _ => f64::NAN,
+    }
 }
 
 /// Best efforts on plain series: sample times `t` (seconds, non-decreasing), cumulative
@@ -146,7 +160,7 @@ fn stretches(t: &[f64], distance: &[Option<f64>], step_ok: &[bool]) -> Vec<Stret
             distance.get(i).copied().flatten(),
         ) {
             (true, Some(d0), Some(d1)) => {
-                let dt = t[i] - t[i - 1];
+                let dt = step_s(t, i);
                 let dd = d1 - d0;
                 dt.is_finite()
                     && dt > 0.0
@@ -157,13 +171,13 @@ fn stretches(t: &[f64], distance: &[Option<f64>], step_ok: &[bool]) -> Vec<Stret
             }
             _ => false,
         };
-        if usable {
+        if let (true, Some(&t0), Some(&t1)) = (usable, t.get(i - 1), t.get(i)) {
             if cur.t.is_empty() {
-                cur.t.push(t[i - 1]);
+                cur.t.push(t0);
                 cur.d
                     .push(distance.get(i - 1).copied().flatten().unwrap_or(0.0));
             }
-            cur.t.push(t[i]);
+            cur.t.push(t1);
             cur.d
                 .push(distance.get(i).copied().flatten().unwrap_or(0.0));
         } else if !cur.t.is_empty() {
@@ -202,33 +216,34 @@ fn best_in_stretch(t: &[f64], d: &[f64], dur: f64) -> Option<BestEffort> {
     let n = t.len();
     let mut best_dist = f64::NEG_INFINITY;
     let mut best_start = first;
+    let before = |k: usize, x: f64| t.get(k).is_some_and(|&tk| tk < x);
     // Window starts on a sample.
     let mut j = 1;
-    for i in 0..n {
-        let end = t[i] + dur;
+    for (&ti, &di) in t.iter().zip(d) {
+        let end = ti + dur;
         if end > last {
             break;
         }
-        while j < n - 1 && t[j] < end {
+        while j < n - 1 && before(j, end) {
             j += 1;
         }
-        let dist = interp(t, d, j, end)? - d[i];
+        let dist = interp(t, d, j, end)? - di;
         if dist > best_dist {
             best_dist = dist;
-            best_start = t[i];
+            best_start = ti;
         }
     }
     // Window ends on a sample.
     let mut i = 1;
-    for k in 0..n {
-        let start = t[k] - dur;
+    for (&tk, &dk) in t.iter().zip(d) {
+        let start = tk - dur;
         if start < first {
             continue;
         }
-        while i < n - 1 && t[i] < start {
+        while i < n - 1 && before(i, start) {
             i += 1;
         }
-        let dist = d[k] - interp(t, d, i, start)?;
+        let dist = dk - interp(t, d, i, start)?;
         if dist > best_dist {
             best_dist = dist;
             best_start = start;

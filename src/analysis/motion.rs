@@ -175,22 +175,26 @@ pub fn classify_with(session: &Session, grads: Option<&[Option<f64>]>) -> Motion
     let gap = gap_threshold_s(t);
     let mut dt = vec![0.0; n];
     let mut stopped = vec![false; n];
-    for i in 1..n {
-        let (Some(&a), Some(&b)) = (t.get(i - 1), t.get(i)) else {
-            continue;
-        };
+    for ((d_out, s_out), (&a, &b)) in dt
+        .iter_mut()
+        .zip(stopped.iter_mut())
+        .skip(1)
+        .zip(t.iter().zip(t.iter().skip(1)))
+    {
         let d = b - a;
         if !d.is_finite() || d <= 0.0 {
             continue;
         }
-        dt[i] = d;
+        *d_out = d;
         if d > gap || session.is_paused_at(0.5 * (a + b)) {
-            stopped[i] = true;
+            *s_out = true;
         }
     }
     // The first sample belongs with the second.
-    if n > 1 {
-        stopped[0] = stopped[1];
+    if let Some(&second) = stopped.get(1) {
+        if let Some(first) = stopped.first_mut() {
+            *first = second;
+        }
     }
     let speed = motion_speed(session, &stopped, true);
     // A device's own speed (not derived from positions) places the edges of a stop to
@@ -205,10 +209,10 @@ pub fn classify_with(session: &Session, grads: Option<&[Option<f64>]>) -> Motion
     let cadence = session.cadence.as_ref();
     let mut state: Vec<MotionState> = (0..n)
         .map(|i| {
-            if stopped[i] {
+            if stopped.get(i).copied().unwrap_or(true) {
                 return MotionState::Stopped;
             }
-            let Some(v) = speed[i] else {
+            let Some(v) = speed.get(i).copied().flatten() else {
                 return MotionState::Run;
             };
             let cad = cadence.and_then(|c| c.get(i)).filter(|c| *c > 0.0);
@@ -237,19 +241,24 @@ pub fn classify_with(session: &Session, grads: Option<&[Option<f64>]>) -> Motion
             None => v,
         })
     };
-    let mut run_speeds: Vec<f64> = (0..n)
-        .filter(|&i| state[i] == MotionState::Run)
-        .filter_map(adjusted)
+    let mut run_speeds: Vec<f64> = state
+        .iter()
+        .enumerate()
+        .filter(|(_, s)| **s == MotionState::Run)
+        .filter_map(|(i, _)| adjusted(i))
         .collect();
-    if !run_speeds.is_empty() {
-        run_speeds.sort_by(f64::total_cmp);
-        let median = run_speeds[run_speeds.len() / 2];
-        for i in 0..n {
-            if state[i] == MotionState::Run
-                && speed[i].is_some_and(|v| v < WALK_CADENCE_SPEED_MPS)
+    run_speeds.sort_by(f64::total_cmp);
+    if let Some(&median) = run_speeds.get(run_speeds.len() / 2) {
+        for (i, st) in state.iter_mut().enumerate() {
+            if *st == MotionState::Run
+                && speed
+                    .get(i)
+                    .copied()
+                    .flatten()
+                    .is_some_and(|v| v < WALK_CADENCE_SPEED_MPS)
                 && adjusted(i).is_some_and(|v| v < WALK_RELATIVE * median)
             {
-                state[i] = MotionState::Walk;
+                *st = MotionState::Walk;
             }
         }
     }
@@ -283,14 +292,17 @@ fn motion_speed(session: &Session, stopped: &[bool], positions: bool) -> Vec<Opt
     let n = session.len();
     let t = &session.t;
     // Block id: samples between stops share one; a window stays inside its block.
-    let mut block = vec![0usize; n];
-    let mut id = 0usize;
-    for i in 0..n {
-        if i > 0 && stopped[i] {
-            id += 1;
-        }
-        block[i] = id;
-    }
+    let block: Vec<usize> = (0..n)
+        .scan(0usize, |id, i| {
+            if i > 0 && stopped.get(i).copied().unwrap_or(false) {
+                *id += 1;
+            }
+            Some(*id)
+        })
+        .collect();
+    // Every index below is under `n`; the defaults never apply.
+    let tk = |k: usize| t.get(k).copied().unwrap_or(f64::NAN);
+    let bk = |k: usize| block.get(k).copied().unwrap_or(usize::MAX);
     let pos = if positions {
         local_positions(session)
     } else {
@@ -303,13 +315,14 @@ fn motion_speed(session: &Session, stopped: &[bool], positions: bool) -> Vec<Opt
     let mut out = vec![None; n];
     if usable_positions {
         let Some(p) = pos else { return out };
-        let mut ps = vec![(0.0f64, 0.0f64, 0.0f64, 0usize); n + 1];
-        for i in 0..n {
-            let prev = ps[i];
-            ps[i + 1] = match p.get(i).copied().flatten() {
-                Some((x, y)) => (prev.0 + x, prev.1 + y, prev.2 + t[i], prev.3 + 1),
+        let mut ps: Vec<(f64, f64, f64, usize)> = Vec::with_capacity(n + 1);
+        ps.push((0.0, 0.0, 0.0, 0));
+        for (i, &ti) in t.iter().enumerate() {
+            let prev = ps.last().copied().unwrap_or_default();
+            ps.push(match p.get(i).copied().flatten() {
+                Some((x, y)) => (prev.0 + x, prev.1 + y, prev.2 + ti, prev.3 + 1),
                 None => prev,
-            };
+            });
         }
         let mean = |lo: usize, hi: usize| -> Option<(f64, f64, f64)> {
             // samples lo..hi (exclusive)
@@ -321,22 +334,22 @@ fn motion_speed(session: &Session, stopped: &[bool], positions: bool) -> Vec<Opt
             })
         };
         let (mut lo, mut hi) = (0usize, 0usize);
-        for i in 0..n {
-            let ti = t[i];
-            while lo < i && (t[lo] < ti - DISPLACEMENT_HALF_S || block[lo] != block[i]) {
+        for (i, o) in out.iter_mut().enumerate() {
+            let (ti, bi) = (tk(i), bk(i));
+            while lo < i && (tk(lo) < ti - DISPLACEMENT_HALF_S || bk(lo) != bi) {
                 lo += 1;
             }
             if hi < i + 1 {
                 hi = i + 1;
             }
-            while hi < n && t[hi] <= ti + DISPLACEMENT_HALF_S && block[hi] == block[i] {
+            while hi < n && tk(hi) <= ti + DISPLACEMENT_HALF_S && bk(hi) == bi {
                 hi += 1;
             }
             // Before: lo..=i, after: i..hi.
             if let (Some(b), Some(a)) = (mean(lo, i + 1), mean(i, hi)) {
                 let span = a.2 - b.2;
                 if span >= 0.5 * DISPLACEMENT_HALF_S {
-                    out[i] = Some(((a.0 - b.0).powi(2) + (a.1 - b.1).powi(2)).sqrt() / span);
+                    *o = Some(((a.0 - b.0).powi(2) + (a.1 - b.1).powi(2)).sqrt() / span);
                 }
             }
         }
@@ -355,10 +368,10 @@ fn motion_speed(session: &Session, stopped: &[bool], positions: bool) -> Vec<Opt
     };
     let (mut lo, mut hi) = (0usize, 0usize);
     let (mut sum, mut cnt) = (0.0f64, 0usize);
-    for i in 0..n {
-        let ti = t[i];
-        while hi < n && t[hi] <= ti + SPEED_HALF_S {
-            if block[hi] == block[i] {
+    for (i, o) in out.iter_mut().enumerate() {
+        let (ti, bi) = (tk(i), bk(i));
+        while hi < n && tk(hi) <= ti + SPEED_HALF_S {
+            if bk(hi) == bi {
                 if let Some(v) = sp.get(hi).filter(|v| v.is_finite()) {
                     sum += v;
                     cnt += 1;
@@ -366,8 +379,8 @@ fn motion_speed(session: &Session, stopped: &[bool], positions: bool) -> Vec<Opt
             }
             hi += 1;
         }
-        while lo < hi && (t[lo] < ti - SPEED_HALF_S) {
-            if block[lo] == block[i] {
+        while lo < hi && (tk(lo) < ti - SPEED_HALF_S) {
+            if bk(lo) == bi {
                 if let Some(v) = sp.get(lo).filter(|v| v.is_finite()) {
                     sum -= v;
                     cnt = cnt.saturating_sub(1);
@@ -376,15 +389,15 @@ fn motion_speed(session: &Session, stopped: &[bool], positions: bool) -> Vec<Opt
             lo += 1;
         }
         // Block changes inside the window: recount (rare: only around stops).
-        let (s, c) = if (lo..hi).all(|k| block[k] == block[i]) {
+        let (s, c) = if (lo..hi).all(|k| bk(k) == bi) {
             (sum, cnt)
         } else {
             (lo..hi)
-                .filter(|&k| block[k] == block[i])
+                .filter(|&k| bk(k) == bi)
                 .filter_map(|k| sp.get(k).filter(|v| v.is_finite()))
                 .fold((0.0, 0usize), |(s, c), v| (s + v, c + 1))
         };
-        out[i] = (c > 0).then(|| (s / c as f64).max(0.0));
+        *o = (c > 0).then(|| (s / c as f64).max(0.0));
     }
     out
 }
@@ -404,7 +417,7 @@ fn absorb_short(state: &mut [MotionState], dt: &[f64]) {
         (r.0..=r.1).map(|i| dt.get(i).copied().unwrap_or(0.0)).sum()
     };
     for k in 0..runs.len() {
-        let r = runs[k];
+        let Some(&r) = runs.get(k) else { continue };
         if !matches!(r.2, MotionState::Stand | MotionState::Walk) || dur(&r) >= MIN_DWELL_S {
             continue;
         }

@@ -391,6 +391,11 @@ impl Review {
     }
 }
 
+/// `v[i]`, false past the end.
+fn flag(v: &[bool], i: usize) -> bool {
+    v.get(i).copied().unwrap_or(false)
+}
+
 /// Per-sample series the metrics share, computed once per session.
 pub(crate) struct Series<'a> {
     pub t: &'a [f64],
@@ -439,10 +444,16 @@ impl<'a> Series<'a> {
         motion: &Motion,
     ) -> Series<'a> {
         let n = session.len();
-        let paused: Vec<bool> = (0..n)
-            .map(|i| {
-                let a = if i == 0 { 0.0 } else { session.t[i - 1] };
-                session.is_paused_at(0.5 * (a + session.t[i]))
+        let paused: Vec<bool> = session
+            .t
+            .iter()
+            .enumerate()
+            .map(|(i, &b)| {
+                let a = match i.checked_sub(1).and_then(|p| session.t.get(p)) {
+                    Some(&a) => a,
+                    None => 0.0,
+                };
+                session.is_paused_at(0.5 * (a + b))
             })
             .collect();
         let ok = |kind: ChannelKind, ch: Option<&crate::model::Channel>| -> Vec<bool> {
@@ -451,7 +462,7 @@ impl<'a> Series<'a> {
                 .map(|i| {
                     ch.and_then(|c| c.get(i)).is_some()
                         && !mask.get(i).copied().unwrap_or(false)
-                        && !paused[i]
+                        && !flag(&paused, i)
                 })
                 .collect()
         };
@@ -470,10 +481,16 @@ impl<'a> Series<'a> {
         // Moving: running or walking by the motion classification (standing with a
         // wandering GPS, pauses and recording gaps left out), with a usable speed.
         let moving: Vec<bool> = match &session.speed {
-            Some(_) => (0..n).map(|i| speed_ok[i] && motion.moving(i)).collect(),
-            None => (0..n).map(|i| !paused[i] && motion.moving(i)).collect(),
+            Some(_) => (0..n)
+                .map(|i| flag(&speed_ok, i) && motion.moving(i))
+                .collect(),
+            None => (0..n)
+                .map(|i| !flag(&paused, i) && motion.moving(i))
+                .collect(),
         };
-        let running: Vec<bool> = (0..n).map(|i| moving[i] && motion.running(i)).collect();
+        let running: Vec<bool> = (0..n)
+            .map(|i| flag(&moving, i) && motion.running(i))
+            .collect();
         let hill = hill_adjusted_speed_with(session, grads);
         let hill_adjusted = hill
             .as_ref()
@@ -535,6 +552,11 @@ impl<'a> Series<'a> {
 
     fn dt(&self, i: usize) -> f64 {
         sample_dt(self.t, i)
+    }
+
+    /// Elapsed time of sample `i` (NaN past the end: no comparison holds for it).
+    fn time(&self, i: usize) -> f64 {
+        self.t.get(i).copied().unwrap_or(f64::NAN)
     }
 
     /// Time-weighted mean of `values` over samples `a+1..=b` where `ok` holds.
@@ -817,7 +839,7 @@ fn hr_checks(session: &Session, s: &Series<'_>, profile: &AthleteProfile) -> HrC
             let dt = s.dt(i);
             open = match open {
                 Some((t0, d)) => Some((t0, d + dt)),
-                None => Some((s.t[i - 1], dt)),
+                None => Some((s.time(i - 1), dt)),
             };
         }
     }
@@ -831,9 +853,9 @@ fn hr_checks(session: &Session, s: &Series<'_>, profile: &AthleteProfile) -> HrC
         return out;
     };
     let mut episodes: Vec<(usize, usize)> = vec![(first, first)];
-    for &i in &above[1..] {
+    for &i in above.iter().skip(1) {
         match episodes.last_mut() {
-            Some(e) if s.t[i] - s.t[e.1] <= 5.0 => e.1 = i,
+            Some(e) if s.time(i) - s.time(e.1) <= 5.0 => e.1 = i,
             _ => episodes.push((i, i)),
         }
     }
@@ -845,13 +867,13 @@ fn hr_checks(session: &Session, s: &Series<'_>, profile: &AthleteProfile) -> HrC
     }
     // Smooth: HR climbs into each stretch no faster than a heart does.
     let steep = episodes.iter().any(|&(a, _)| {
-        let (Some(h1), ta) = (at(a), s.t[a]) else {
+        let (Some(h1), ta) = (at(a), s.time(a)) else {
             return false;
         };
         (0..a)
             .rev()
-            .take_while(|&j| ta - s.t[j] <= 10.0)
-            .filter_map(|j| at(j).map(|h| (h, ta - s.t[j])))
+            .take_while(|&j| ta - s.time(j) <= 10.0)
+            .filter_map(|j| at(j).map(|h| (h, ta - s.time(j))))
             .last()
             .is_some_and(|(h0, dt)| dt >= 1.0 && (h1 - h0) / dt > ABOVE_MAX_RISE_BPM_PER_S)
     });
@@ -861,7 +883,7 @@ fn hr_checks(session: &Session, s: &Series<'_>, profile: &AthleteProfile) -> HrC
             crate::model::FlagKind::HrRate | crate::model::FlagKind::CadenceLock
         ) && episodes
             .iter()
-            .any(|&(a, b)| f.from_s <= s.t[b] + 10.0 && f.to_s >= s.t[a] - 10.0)
+            .any(|&(a, b)| f.from_s <= s.time(b) + 10.0 && f.to_s >= s.time(a) - 10.0)
     });
     if steep || rate_flagged {
         implausible.push("jumping rather than climbing");
@@ -874,11 +896,11 @@ fn hr_checks(session: &Session, s: &Series<'_>, profile: &AthleteProfile) -> HrC
             .collect();
         if !moving.is_empty() {
             moving.sort_by(f64::total_cmp);
-            let median = moving[moving.len() / 2];
+            let median = moving.get(moving.len() / 2).copied().unwrap_or(0.0);
             let (mut dist, mut time) = (0.0, 0.0);
             for &(a, b) in &episodes {
-                let lo = s.t[a] - 60.0;
-                for i in (0..=b).rev().take_while(|&i| s.t[i] >= lo) {
+                let lo = s.time(a) - 60.0;
+                for i in (0..=b).rev().take_while(|&i| s.time(i) >= lo) {
                     let dt = s.dt(i);
                     time += dt;
                     if s.speed_ok.get(i).copied().unwrap_or(false) {
@@ -919,15 +941,18 @@ pub(crate) fn smooth(
             None
         }
     };
-    for i in 0..n {
-        while hi < n && t[hi] <= t[i] + half_s {
+    // Every index below is under `n`; the default never applies.
+    let tk = |k: usize| t.get(k).copied().unwrap_or(f64::NAN);
+    for (i, o) in out.iter_mut().enumerate() {
+        let ti = tk(i);
+        while hi < n && tk(hi) <= ti + half_s {
             if let Some(v) = val(hi) {
                 sum += v;
                 cnt += 1;
             }
             hi += 1;
         }
-        while lo < n && t[lo] < t[i] - half_s {
+        while lo < n && tk(lo) < ti - half_s {
             if let Some(v) = val(lo) {
                 sum -= v;
                 cnt -= 1;
@@ -935,7 +960,7 @@ pub(crate) fn smooth(
             lo += 1;
         }
         if cnt > 0 && val(i).is_some() {
-            out[i] = Some(sum / cnt as f64);
+            *o = Some(sum / cnt as f64);
         }
     }
     out
@@ -1056,7 +1081,7 @@ fn one_interval(
         .map(|(v, thr)| v / thr);
     // Halves by time.
     let mid_t = 0.5 * (iv.start_s + iv.end_s);
-    let mid = (a..=b).find(|&i| s.t[i] >= mid_t).unwrap_or(b);
+    let mid = (a..=b).find(|&i| s.time(i) >= mid_t).unwrap_or(b);
     let half_pace = |x: usize, y: usize| {
         s.speed
             .and_then(|sp| s.moving_speed(sp, x, y))
@@ -1266,7 +1291,7 @@ fn recovery_metrics(
         // The boundary sample `iv.end` is the rep's last: the recovery starts after it.
         let (trough, trough_at) = match rec_end {
             Some(e) => ((iv.end + 1)..=e.min(n.saturating_sub(1)))
-                .filter_map(|i| hr_at(i).map(|h| (h, s.t[i])))
+                .filter_map(|i| hr_at(i).map(|h| (h, s.time(i))))
                 .fold((None, None), |(best, at), (h, ti)| match best {
                     Some(b) if b <= h => (Some(b), at),
                     _ => (Some(h), Some(ti)),
@@ -1277,8 +1302,8 @@ fn recovery_metrics(
         let end_hr = (iv.start..=end_i).rev().find_map(hr_at);
         let end_t = iv.end_s;
         let window: Vec<(f64, f64)> = ((end_i + 1)..n)
-            .take_while(|&i| s.t[i] <= end_t + HR_LAG_WINDOW_S)
-            .filter_map(|i| hr_at(i).map(|h| (s.t[i], h)))
+            .take_while(|&i| s.time(i) <= end_t + HR_LAG_WINDOW_S)
+            .filter_map(|i| hr_at(i).map(|h| (s.time(i), h)))
             .collect();
         let (lag_s, lag_bpm) = match end_hr {
             Some(e) => {
@@ -1315,9 +1340,9 @@ fn recovery_metrics(
         let drop = end_hr.and_then(|e| {
             let target = end_t + 60.0;
             ((end_i + 1)..n)
-                .take_while(|&i| s.t[i] <= target + 5.0)
-                .filter(|&i| s.t[i] >= target - 5.0)
-                .filter_map(|i| hr_at(i).map(|h| ((s.t[i] - target).abs(), h)))
+                .take_while(|&i| s.time(i) <= target + 5.0)
+                .filter(|&i| s.time(i) >= target - 5.0)
+                .filter_map(|i| hr_at(i).map(|h| ((s.time(i) - target).abs(), h)))
                 .min_by(|x, y| x.0.total_cmp(&y.0))
                 .map(|(_, h)| e - h)
         });
@@ -1325,14 +1350,14 @@ fn recovery_metrics(
         // time with usable HR against time not paused.
         let span_end = rec_end.unwrap_or(end_i).max(
             ((end_i + 1)..n)
-                .take_while(|&i| s.t[i] <= end_t + 65.0)
+                .take_while(|&i| s.time(i) <= end_t + 65.0)
                 .last()
                 .unwrap_or(end_i),
         );
         let (mut covered, mut total) = (0.0, 0.0);
         for i in (end_i + 1)..=span_end.min(n.saturating_sub(1)) {
             let dt = s.dt(i);
-            if session.is_paused_at(s.t[i] - 0.5 * dt) {
+            if session.is_paused_at(s.time(i) - 0.5 * dt) {
                 continue;
             }
             total += dt;
@@ -1584,7 +1609,7 @@ fn whole_session(
     let usable: Vec<bool> = (0..n)
         .map(|i| i > a && i <= b && s.running.get(i).copied().unwrap_or(false) && s.hr_ok(i))
         .collect();
-    let analysed_s: f64 = (0..n).filter(|&i| usable[i]).map(|i| s.dt(i)).sum();
+    let analysed_s: f64 = (0..n).filter(|&i| flag(&usable, i)).map(|i| s.dt(i)).sum();
     let mut whole = Whole {
         analysed_s,
         ..Whole::default()
@@ -1599,21 +1624,21 @@ fn whole_session(
             // Steady pace: hill-adjusted speed within the band around its median.
             if let Some(adj) = s.adj.as_deref() {
                 let mut vals: Vec<f64> = (0..n)
-                    .filter(|&i| usable[i])
+                    .filter(|&i| flag(&usable, i))
                     .filter_map(|i| adj.get(i).copied().flatten())
                     .collect();
                 if !vals.is_empty() {
                     vals.sort_by(f64::total_cmp);
-                    let med = vals[vals.len() / 2];
+                    let med = vals.get(vals.len() / 2).copied().unwrap_or(0.0);
                     // Heart rate takes a few minutes to settle at a new effort: the
                     // drift is fitted from HR_SETTLE_S into the window.
                     let settle_from = (0..n)
-                        .find(|&i| usable[i])
-                        .map_or(f64::INFINITY, |i| s.t[i] + HR_SETTLE_S);
+                        .find(|&i| flag(&usable, i))
+                        .map_or(f64::INFINITY, |i| s.time(i) + HR_SETTLE_S);
                     let steady: Vec<bool> = (0..n)
                         .map(|i| {
-                            usable[i]
-                                && s.t[i] >= settle_from
+                            flag(&usable, i)
+                                && s.time(i) >= settle_from
                                 && adj
                                     .get(i)
                                     .copied()
@@ -1621,7 +1646,7 @@ fn whole_session(
                                     .is_some_and(|v| (v - med).abs() <= STEADY_BAND * med)
                         })
                         .collect();
-                    let steady_s: f64 = (0..n).filter(|&i| steady[i]).map(|i| s.dt(i)).sum();
+                    let steady_s: f64 = (0..n).filter(|&i| flag(&steady, i)).map(|i| s.dt(i)).sum();
                     if steady_s + DECOUPLING_SLACK_S >= MIN_DECOUPLING_S {
                         whole.drift = hr_drift_bpm_per_h(s.t, hr, &steady);
                     }
@@ -1630,11 +1655,11 @@ fn whole_session(
         }
         // Elevation check for a negative decoupling: descent in each half of the analysed part.
         if let Some(alt) = &session.altitude {
-            let times: Vec<usize> = (0..n).filter(|&i| usable[i]).collect();
+            let times: Vec<usize> = (0..n).filter(|&i| flag(&usable, i)).collect();
             if let (Some(&first), Some(&last)) = (times.first(), times.last()) {
-                let mid_t = 0.5 * (s.t[first] + s.t[last]);
+                let mid_t = 0.5 * (s.time(first) + s.time(last));
                 let at = |i: usize| alt.get(i);
-                let mid = (first..=last).find(|&i| s.t[i] >= mid_t).unwrap_or(last);
+                let mid = (first..=last).find(|&i| s.time(i) >= mid_t).unwrap_or(last);
                 let near = |i: usize| -> Option<f64> {
                     (i..=last)
                         .find_map(at)

@@ -49,7 +49,7 @@ pub fn fit_window(session: &Session, from_s: f64, to_s: f64) -> RulerFit {
         let values = values?;
         let (xs, ys): (Vec<f64>, Vec<f64>) = (0..session.len())
             .filter(|&i| inside(i) && ok(i))
-            .filter_map(|i| Some((session.t[i], values.get(i).copied().flatten()?)))
+            .filter_map(|i| Some((*session.t.get(i)?, values.get(i).copied().flatten()?)))
             .unzip();
         trend::fit(&xs, &ys)
     };

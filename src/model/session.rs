@@ -357,12 +357,14 @@ impl Session {
 
     /// Median spacing between consecutive samples, seconds (0 for fewer than two samples).
     pub fn median_interval_s(&self) -> f64 {
-        let mut d: Vec<f64> = self.t.windows(2).map(|w| w[1] - w[0]).collect();
-        if d.is_empty() {
-            return 0.0;
-        }
+        let mut d: Vec<f64> = self
+            .t
+            .iter()
+            .zip(self.t.iter().skip(1))
+            .map(|(a, b)| b - a)
+            .collect();
         d.sort_by(f64::total_cmp);
-        d[d.len() / 2]
+        d.get(d.len() / 2).copied().unwrap_or(0.0)
     }
 
     /// Check the struct-of-arrays invariants; used by tests and after ingest.
@@ -392,7 +394,7 @@ impl Session {
         if self.t.first().is_some_and(|&t0| t0 != 0.0) {
             return Err("t does not start at 0".into());
         }
-        if self.t.windows(2).any(|w| w[1] < w[0]) {
+        if self.t.iter().zip(self.t.iter().skip(1)).any(|(a, b)| b < a) {
             return Err("t goes backwards".into());
         }
         Ok(())

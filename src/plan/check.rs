@@ -115,19 +115,23 @@ pub fn edit_distance(a: &str, b: &str) -> usize {
     for (j, cell) in d.iter_mut().take(w).enumerate() {
         *cell = j;
     }
+    // Every index below is inside the (a.len() + 1) x w table; a miss reads as "far".
+    let at = |d: &[usize], i: usize, j: usize| d.get(i * w + j).copied().unwrap_or(usize::MAX / 2);
     for i in 1..=a.len() {
         for j in 1..=b.len() {
             let cost = usize::from(a.get(i - 1) != b.get(j - 1));
-            let mut best = (d[(i - 1) * w + j] + 1)
-                .min(d[i * w + j - 1] + 1)
-                .min(d[(i - 1) * w + j - 1] + cost);
+            let mut best = (at(&d, i - 1, j) + 1)
+                .min(at(&d, i, j - 1) + 1)
+                .min(at(&d, i - 1, j - 1) + cost);
             if i > 1 && j > 1 && a.get(i - 1) == b.get(j - 2) && a.get(i - 2) == b.get(j - 1) {
-                best = best.min(d[(i - 2) * w + j - 2] + 1);
+                best = best.min(at(&d, i - 2, j - 2) + 1);
             }
-            d[i * w + j] = best;
+            if let Some(cell) = d.get_mut(i * w + j) {
+                *cell = best;
+            }
         }
     }
-    d[a.len() * w + b.len()]
+    at(&d, a.len(), b.len())
 }
 
 /// The candidate closest to `word` when it is close enough to be a likely typo: at most two

@@ -118,7 +118,7 @@ pub(crate) fn align(
                         .map(<[usize]>::to_vec)
                         .unwrap_or_default();
                     // Back-to-back in the plan: consecutive expanded indices.
-                    if idx.windows(2).any(|p| p[1] != p[0] + 1) {
+                    if idx.iter().zip(idx.iter().skip(1)).any(|(a, b)| *b != a + 1) {
                         break;
                     }
                     let Some(f) = fast.get(j - 1) else { continue };

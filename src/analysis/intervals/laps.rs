@@ -72,10 +72,9 @@ pub(crate) fn fit_plan(bounds: &[usize], expected: &[ExpectedInterval], trace: &
     if bounds.len() != expected.len() + 1 || expected.is_empty() {
         return false;
     }
-    bounds
-        .windows(2)
+    super::pairs(bounds)
         .zip(expected)
-        .all(|(w, e)| fits(e.amount, &trace.stats(w[0], w[1])))
+        .all(|((a, b), e)| fits(e.amount, &trace.stats(a, b)))
 }
 
 /// Auto-laps: at least [`AUTO_LAP_SHARE`] of the laps (all but the last, which the
@@ -89,10 +88,9 @@ pub(crate) fn are_auto_laps(bounds: &[usize], trace: &Trace) -> bool {
     if full < 2 {
         return false;
     }
-    let dists: Vec<f64> = bounds
-        .windows(2)
+    let dists: Vec<f64> = super::pairs(bounds)
         .take(full)
-        .filter_map(|w| trace.stats(w[0], w[1]).distance_m)
+        .filter_map(|(a, b)| trace.stats(a, b).distance_m)
         .collect();
     if dists.len() < full {
         return false;
@@ -116,9 +114,8 @@ pub const AUTO_LAP_SHARE: f64 = 0.75;
 /// Without a plan: the laps split the session into fast and slow laps by a clear margin,
 /// with at least one slow lap between fast ones. Returns which laps are fast.
 pub(crate) fn pace_split(bounds: &[usize], trace: &Trace) -> Option<Vec<bool>> {
-    let speeds: Vec<f64> = bounds
-        .windows(2)
-        .map(|w| trace.stats(w[0], w[1]).adj_speed)
+    let speeds: Vec<f64> = super::pairs(bounds)
+        .map(|(a, b)| trace.stats(a, b).adj_speed)
         .collect::<Option<Vec<f64>>>()?;
     if speeds.len() < 3 {
         return None;
@@ -127,11 +124,11 @@ pub(crate) fn pace_split(bounds: &[usize], trace: &Trace) -> Option<Vec<bool>> {
     sorted.sort_by(f64::total_cmp);
     // The widest relative gap between consecutive sorted speeds.
     let (mut best_ratio, mut cut) = (0.0, 0.0);
-    for w in sorted.windows(2) {
-        let ratio = w[1] / w[0].max(0.1);
+    for (lo, hi) in sorted.iter().zip(sorted.iter().skip(1)) {
+        let ratio = hi / lo.max(0.1);
         if ratio > best_ratio {
             best_ratio = ratio;
-            cut = 0.5 * (w[0] + w[1]);
+            cut = 0.5 * (lo + hi);
         }
     }
     if best_ratio < LAP_PACE_RATIO {
@@ -140,6 +137,6 @@ pub(crate) fn pace_split(bounds: &[usize], trace: &Trace) -> Option<Vec<bool>> {
     let fast: Vec<bool> = speeds.iter().map(|&v| v > cut).collect();
     // Fast laps must alternate with slow ones: no two fast laps in a row, at least two fast.
     let n_fast = fast.iter().filter(|&&f| f).count();
-    let consecutive = fast.windows(2).any(|w| w[0] && w[1]);
+    let consecutive = fast.iter().zip(fast.iter().skip(1)).any(|(a, b)| *a && *b);
     (n_fast >= 2 && !consecutive).then_some(fast)
 }

@@ -122,6 +122,11 @@ struct Piece {
     mode: Option<RecoveryMode>,
 }
 
+/// Consecutive pairs of boundary indices: `(b[0], b[1]), (b[1], b[2]), ...`.
+pub(crate) fn pairs(b: &[usize]) -> impl Iterator<Item = (usize, usize)> + '_ {
+    b.iter().copied().zip(b.iter().copied().skip(1))
+}
+
 /// Find the intervals of a session: device laps when they fit, otherwise detection from the
 /// speed, aligned to the plan's expected sequence when there is a plan (see the module
 /// docs). Pure; O(n) in samples plus O(detected × expected) for the alignment.
@@ -198,15 +203,14 @@ pub fn find_intervals_moving(
     if let Some(bounds) = laps::lap_boundaries(&session.laps, &trace) {
         if plan.is_some() {
             if laps::fit_plan(&bounds, &expected, &trace) {
-                let pieces: Vec<Piece> = bounds
-                    .windows(2)
+                let pieces: Vec<Piece> = pairs(&bounds)
                     .zip(expected.iter().enumerate())
-                    .map(|(w, (i, e))| Piece {
-                        start: w[0],
-                        end: w[1],
+                    .map(|((a, b), (i, e))| Piece {
+                        start: a,
+                        end: b,
                         kind: e.kind,
                         expected: Some(i),
-                        mode: recovery_mode(e.kind, e.mode, &trace, w[0], w[1]),
+                        mode: recovery_mode(e.kind, e.mode, &trace, a, b),
                     })
                     .collect();
                 set.notes.push("device laps fitted the plan".into());
@@ -223,10 +227,9 @@ pub fn find_intervals_moving(
             set.notes
                 .push("device laps are auto-laps (equal distances): not used".into());
         } else if let Some(fast) = laps::pace_split(&bounds, &trace) {
-            let runs: Vec<(usize, usize, bool)> = bounds
-                .windows(2)
+            let runs: Vec<(usize, usize, bool)> = pairs(&bounds)
                 .zip(&fast)
-                .map(|(w, &f)| (w[0], w[1], f))
+                .map(|((a, b), &f)| (a, b, f))
                 .collect();
             set.notes.push("device laps split the pace".into());
             set.intervals = build(
@@ -502,13 +505,13 @@ fn aligned_pieces(
                 }
             }
             b.push(end);
-            for (w, &i) in b.windows(2).zip(&idx) {
+            for ((from, to), &i) in pairs(&b).zip(&idx) {
                 if let Some(u) = used.get_mut(i) {
                     *u = true;
                 }
                 pieces.push(Piece {
-                    start: w[0],
-                    end: w[1],
+                    start: from,
+                    end: to,
                     kind: SegmentKind::Work,
                     expected: Some(i),
                     mode: None,

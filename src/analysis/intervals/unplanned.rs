@@ -254,9 +254,8 @@ fn main_pieces(
             "progression: {} stages, each faster than the one before",
             stages.len() - 1
         ));
-        return stages
-            .windows(2)
-            .map(|w| whole(w[0], w[1], SegmentKind::Steady))
+        return super::pairs(&stages)
+            .map(|(x, y)| whole(x, y, SegmentKind::Steady))
             .collect();
     }
     if runs.is_empty() {
@@ -494,14 +493,15 @@ fn progression(trace: &Trace, a: usize, b: usize) -> Option<Vec<usize>> {
     let mut cuts: Vec<usize> = vec![0, m];
     loop {
         let mut best: Option<(f64, usize)> = None;
-        for w in cuts.windows(2) {
-            let (lo, hi) = (w[0], w[1]);
-            if hi - lo < 2 * min {
+        for (lo, hi) in super::pairs(&cuts) {
+            if hi < lo + 2 * min {
                 continue;
             }
             for c in lo + min..=hi - min {
                 let mean = |x: &[f64]| x.iter().sum::<f64>() / x.len().max(1) as f64;
-                let (l, r) = (&vals[lo..c], &vals[c..hi]);
+                let (Some(l), Some(r)) = (vals.get(lo..c), vals.get(c..hi)) else {
+                    continue;
+                };
                 let (ml, mr) = (mean(l), mean(r));
                 if (mr / ml - 1.0).abs() < PROGRESSION_STEP {
                     continue;
@@ -519,13 +519,16 @@ fn progression(trace: &Trace, a: usize, b: usize) -> Option<Vec<usize>> {
     if cuts.len() - 1 < PROGRESSION_MIN_STAGES {
         return None;
     }
-    let means: Vec<f64> = cuts
-        .windows(2)
-        .map(|w| vals[w[0]..w[1]].iter().sum::<f64>() / (w[1] - w[0]) as f64)
+    let means: Vec<f64> = super::pairs(&cuts)
+        .map(|(x, y)| {
+            let part = vals.get(x..y).unwrap_or_default();
+            part.iter().sum::<f64>() / part.len() as f64
+        })
         .collect();
     let rising = means
-        .windows(2)
-        .all(|w| w[1] >= w[0] * (1.0 + PROGRESSION_STEP));
+        .iter()
+        .zip(means.iter().skip(1))
+        .all(|(x, y)| *y >= x * (1.0 + PROGRESSION_STEP));
     let first = *means.first()?;
     let last = *means.last()?;
     if !rising || last < first * (1.0 + PROGRESSION_TOTAL) {

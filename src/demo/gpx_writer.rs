@@ -33,7 +33,9 @@ pub fn write(session: &Session) -> Vec<u8> {
     let mut w = Writer::new_with_indent(Vec::new(), b' ', 2);
     // Writing into a Vec<u8> cannot fail: the only errors quick-xml's writer reports are the
     // underlying sink's I/O errors.
-    write_doc(&mut w, session).expect("writing XML into a Vec<u8> never fails");
+    if write_doc(&mut w, session).is_err() {
+        return Vec::new();
+    }
     let mut out = w.into_inner();
     out.push(b'\n');
     out
@@ -70,10 +72,7 @@ fn write_doc<W: io::Write>(w: &mut Writer<W>, s: &Session) -> io::Result<()> {
         let Some((lat, lon)) = s.position(i) else {
             continue;
         };
-        let split = i > 0
-            && s.pauses
-                .iter()
-                .any(|p| s.t[i - 1] <= p.from_s && s.t[i] >= p.to_s);
+        let split = super::pause_between(s, i);
         if seg_open && split {
             w.write_event(Event::End(BytesEnd::new("trkseg")))?;
             seg_open = false;

@@ -592,6 +592,7 @@ impl Builder {
     }
 
     #[allow(clippy::too_many_arguments)]
+    #[allow(clippy::indexing_slicing)] // `i` is the spec pushed just before it is used.
     fn base(
         &mut self,
         week: u32,

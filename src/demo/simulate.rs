@@ -280,7 +280,7 @@ impl Default for SimInput {
             start: Utc
                 .with_ymd_and_hms(2024, 3, 4, 7, 0, 0)
                 .single()
-                .expect("valid fixed date"),
+                .unwrap_or(DateTime::<Utc>::UNIX_EPOCH),
             conditions: Conditions::default(),
             faults: Faults::default(),
             seed: 1,

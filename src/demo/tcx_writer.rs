@@ -33,7 +33,9 @@ pub fn write(session: &Session) -> Vec<u8> {
     let mut w = Writer::new_with_indent(Vec::new(), b' ', 2);
     // Writing into a Vec<u8> cannot fail: the only errors quick-xml's writer reports are the
     // underlying sink's I/O errors.
-    write_doc(&mut w, session).expect("writing XML into a Vec<u8> never fails");
+    if write_doc(&mut w, session).is_err() {
+        return Vec::new();
+    }
     let mut out = w.into_inner();
     out.push(b'\n');
     out
@@ -140,9 +142,8 @@ fn write_doc<W: io::Write>(w: &mut Writer<W>, s: &Session) -> io::Result<()> {
         bounds.push(s.t.partition_point(|&t| t < lap.start_s));
     }
     bounds.push(s.len());
-    for (k, lap) in laps.iter().enumerate() {
-        let range = bounds[k]..bounds[k + 1].max(bounds[k]);
-        write_lap(w, s, lap, range)?;
+    for (lap, (lo, hi)) in laps.iter().zip(bounds.iter().zip(bounds.iter().skip(1))) {
+        write_lap(w, s, lap, *lo..*hi.max(lo))?;
     }
 
     if let Some(note) = s.note.as_deref() {
@@ -185,10 +186,7 @@ fn write_lap<W: io::Write>(
 
     let mut track_open = false;
     for i in range {
-        let split = i > 0
-            && s.pauses
-                .iter()
-                .any(|p| s.t[i - 1] <= p.from_s && s.t[i] >= p.to_s);
+        let split = super::pause_between(s, i);
         if track_open && split {
             close(w, "Track")?;
             track_open = false;
@@ -207,7 +205,11 @@ fn write_lap<W: io::Write>(
 
 fn write_point<W: io::Write>(w: &mut Writer<W>, s: &Session, i: usize) -> io::Result<()> {
     open(w, "Trackpoint")?;
-    let time = s.time.get(i).copied().unwrap_or_else(|| at(s, s.t[i]));
+    let time = s
+        .time
+        .get(i)
+        .copied()
+        .unwrap_or_else(|| at(s, s.t.get(i).copied().unwrap_or(0.0)));
     text_elem(w, "Time", &format_time(time))?;
     if let Some((lat, lon)) = s.position(i) {
         open(w, "Position")?;

@@ -23,8 +23,11 @@ pub(crate) fn stretch_hr_lag(session: &mut Session, kinds: &[SegmentKind], max_c
     };
     let original = hr.clone();
     let t = &session.t;
-    let work: Vec<usize> = (0..kinds.len())
-        .filter(|&i| kinds[i] == SegmentKind::Work)
+    let work: Vec<usize> = kinds
+        .iter()
+        .enumerate()
+        .filter(|(_, k)| **k == SegmentKind::Work)
+        .map(|(i, _)| i)
         .collect();
     let n = work.len();
     if n < 2 {
@@ -32,7 +35,10 @@ pub(crate) fn stretch_hr_lag(session: &mut Session, kinds: &[SegmentKind], max_c
     }
     let max_c = max_c.clamp(0.0, 0.9);
     // HR at time `x` by linear interpolation of the present samples.
-    let present: Vec<(f64, f64)> = original.iter_present().map(|(q, h)| (t[q], h)).collect();
+    let present: Vec<(f64, f64)> = original
+        .iter_present()
+        .filter_map(|(q, h)| Some((*t.get(q)?, h)))
+        .collect();
     let hr_at = |x: f64| -> Option<f64> {
         let j = present.partition_point(|p| p.0 <= x);
         match (
@@ -53,7 +59,9 @@ pub(crate) fn stretch_hr_lag(session: &mut Session, kinds: &[SegmentKind], max_c
         if c <= 0.0 {
             continue;
         }
-        let end = session.laps[i].end_s;
+        let Some(end) = session.laps.get(i).map(|l| l.end_s) else {
+            continue;
+        };
         let w = match (kinds.get(i + 1), session.laps.get(i + 1)) {
             (Some(SegmentKind::Recovery), Some(next)) => next.end_s - end,
             _ => 60.0,
@@ -61,14 +69,14 @@ pub(crate) fn stretch_hr_lag(session: &mut Session, kinds: &[SegmentKind], max_c
         if w <= 1.0 {
             continue;
         }
-        for q in 0..t.len() {
-            let x = t[q] - end;
-            if x <= 0.0 || x >= w || out[q].is_none() {
+        for (&tq, o) in t.iter().zip(out.iter_mut()) {
+            let x = tq - end;
+            if x <= 0.0 || x >= w || o.is_none() {
                 continue;
             }
             let tau = x - c * x * (1.0 - x / w);
             if let Some(h) = hr_at(end + tau) {
-                out[q] = Some((h * 10.0).round() / 10.0);
+                *o = Some((h * 10.0).round() / 10.0);
             }
         }
     }

@@ -444,14 +444,15 @@ pub(crate) fn run(input: &SimInput, physio: &Physio) -> Track {
             if let StopPhase::Paused { from, until } = stop {
                 if k >= until {
                     tr.pauses.push((from, k));
-                    tr.pause_marked.push(stops[next_stop].1);
+                    // A pause is only entered with `next_stop` in range (see below).
+                    tr.pause_marked
+                        .push(stops.get(next_stop).is_some_and(|s| s.1));
                     stop = StopPhase::Idle;
                     next_stop += 1;
                 }
             }
             if matches!(stop, StopPhase::Idle)
-                && next_stop < stops.len()
-                && t >= stops[next_stop].0.at_s
+                && stops.get(next_stop).is_some_and(|s| t >= s.0.at_s)
             {
                 stop = StopPhase::Slowing { since: k };
             }
@@ -528,7 +529,10 @@ pub(crate) fn run(input: &SimInput, physio: &Physio) -> Track {
                 if v_new < 0.2 || k - since >= STOP_MAX_SLOWING_S {
                     // The last steps to a halt; the timer pauses at the next second.
                     v_new = 0.0;
-                    let dur = stops[next_stop].0.dur_s.round().max(1.0) as usize;
+                    let dur = stops
+                        .get(next_stop)
+                        .map_or(1.0, |s| s.0.dur_s.round().max(1.0))
+                        as usize;
                     stop = StopPhase::Paused {
                         from: k + 1,
                         until: k + 1 + dur,
@@ -550,11 +554,12 @@ pub(crate) fn run(input: &SimInput, physio: &Physio) -> Track {
                 v_new * hill_cost_ratio(grade) / (physio.v_threshold * sport_scale)
             };
             effort_hist.push(effort);
-            let delayed = if effort_hist.len() > HR_DELAY_S {
-                effort_hist[effort_hist.len() - 1 - HR_DELAY_S]
-            } else {
-                0.0
-            };
+            let delayed = effort_hist
+                .len()
+                .checked_sub(1 + HR_DELAY_S)
+                .and_then(|j| effort_hist.get(j))
+                .copied()
+                .unwrap_or(0.0);
             drive += (delayed - drive) * k_drive;
             drift += drift_bph / 3600.0 * DT * (drive / 0.8).clamp(0.0, 1.5);
             slow += SLOW_GAIN * (1.0 + 3.0 * fatigue) * (drive - SLOW_THRESHOLD).max(0.0) * DT

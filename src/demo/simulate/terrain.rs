@@ -68,11 +68,11 @@ impl TerrainState {
             }
             Terrain::Profile(p) => {
                 let j = p.partition_point(|(x, _)| *x <= d);
-                if j == 0 || j >= p.len() {
+                let (Some(&(d0, a0)), Some(&(d1, a1))) =
+                    (j.checked_sub(1).and_then(|i| p.get(i)), p.get(j))
+                else {
                     return 0.0;
-                }
-                let (d0, a0) = p[j - 1];
-                let (d1, a1) = p[j];
+                };
                 (a1 - a0) / (d1 - d0)
             }
         }
@@ -107,19 +107,15 @@ impl TerrainState {
                 BASE_ALTITUDE_M - grade.abs() * (d - flat_m).max(0.0)
             }
             Terrain::Profile(p) => {
-                if p.is_empty() {
+                let (Some(first), Some(last)) = (p.first(), p.last()) else {
                     return BASE_ALTITUDE_M;
-                }
+                };
                 let j = p.partition_point(|(x, _)| *x <= d);
-                if j == 0 {
-                    return p[0].1;
+                match (j.checked_sub(1).and_then(|i| p.get(i)), p.get(j)) {
+                    (None, _) => first.1,
+                    (_, None) => last.1,
+                    (Some(&(d0, a0)), Some(&(d1, a1))) => a0 + (a1 - a0) * (d - d0) / (d1 - d0),
                 }
-                if j >= p.len() {
-                    return p[p.len() - 1].1;
-                }
-                let (d0, a0) = p[j - 1];
-                let (d1, a1) = p[j];
-                a0 + (a1 - a0) * (d - d0) / (d1 - d0)
             }
         }
     }
@@ -170,12 +166,13 @@ impl RoutePath {
         };
         let mut cum = Vec::with_capacity(shape.len());
         let mut acc = 0.0;
-        for (k, p) in shape.iter().enumerate() {
-            if k > 0 {
-                let q = shape[k - 1];
+        let mut prev: Option<(f64, f64)> = None;
+        for &p in &shape {
+            if let Some(q) = prev {
                 acc += ((p.0 - q.0).powi(2) + (p.1 - q.1).powi(2)).sqrt();
             }
             cum.push(acc);
+            prev = Some(p);
         }
         let scale = length / acc;
         RoutePath {
@@ -202,10 +199,15 @@ impl RoutePath {
         let j = self
             .cum
             .partition_point(|c| *c <= s)
-            .clamp(1, self.cum.len() - 1);
-        let (c0, c1) = (self.cum[j - 1], self.cum[j]);
+            .clamp(1, self.cum.len().saturating_sub(1).max(1));
+        let pair = |v: &[(f64, f64)]| Some((*v.get(j - 1)?, *v.get(j)?));
+        let (Some(&c0), Some(&c1), Some((p0, p1))) =
+            (self.cum.get(j - 1), self.cum.get(j), pair(&self.pts))
+        else {
+            // A route has at least two points (see `new`).
+            return self.pts.first().copied().unwrap_or((0.0, 0.0));
+        };
         let f = if c1 > c0 { (s - c0) / (c1 - c0) } else { 0.0 };
-        let (p0, p1) = (self.pts[j - 1], self.pts[j]);
         (p0.0 + (p1.0 - p0.0) * f, p0.1 + (p1.1 - p0.1) * f)
     }
 

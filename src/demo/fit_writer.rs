@@ -135,7 +135,12 @@ pub fn write_with(session: &Session, opts: FitOptions) -> Vec<u8> {
         &[
             &[(253, 4, UINT32), (0, 4, SINT32), (1, 4, SINT32)],
             speed_distance,
-            &[(3, 1, UINT8), (4, 1, UINT8), (53, 1, UINT8), (78, 4, UINT32)],
+            &[
+                (3, 1, UINT8),
+                (4, 1, UINT8),
+                (53, 1, UINT8),
+                (78, 4, UINT32),
+            ],
         ]
         .concat(),
     );

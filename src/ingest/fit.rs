@@ -109,11 +109,17 @@ pub fn decode(bytes: &[u8]) -> Result<Session, ParseError> {
 /// `fit_crc.c` that fitparser also uses), continuing from `crc` (start with 0).
 pub fn crc16(crc: u16, data: &[u8]) -> u16 {
     data.iter().fold(crc, |crc, &b| {
-        (crc >> 8) ^ CRC_TABLE[usize::from((crc ^ u16::from(b)) & 0xFF)]
+        let entry = CRC_TABLE
+            .get(usize::from((crc ^ u16::from(b)) & 0xFF))
+            .copied()
+            .unwrap_or(0);
+        (crc >> 8) ^ entry
     })
 }
 
-/// Byte-at-a-time table, built from the FIT SDK's 16-entry nibble table.
+/// Byte-at-a-time table, built from the FIT SDK's 16-entry nibble table. Built at compile
+/// time: an index out of range there is a compile error, never a panic at run time.
+#[allow(clippy::indexing_slicing)]
 const CRC_TABLE: [u16; 256] = {
     const NIBBLE: [u16; 16] = [
         0x0000, 0xCC01, 0xD801, 0x1400, 0xF001, 0x3C00, 0x2800, 0xE401, 0xA001, 0x6C00, 0x7800,
@@ -267,25 +273,27 @@ pub fn check_messages(file: &[u8]) -> Result<Cow<'_, [u8]>, ParseError> {
             })
     };
     while pos < data_end {
-        let head = take(pos, 1)?[0];
+        let head = take(pos, 1)?.first().copied().unwrap_or(0);
         let msg_start = pos;
         pos += 1;
         if head & 0xC0 == 0x40 {
             // Definition message: reserved, architecture, global number, field count, fields.
-            let fixed = take(pos, 5)?;
-            let big_endian = fixed[1] == 1;
-            let global = if big_endian {
-                u16::from_be_bytes([fixed[2], fixed[3]])
-            } else {
-                u16::from_le_bytes([fixed[2], fixed[3]])
+            let &[_, arch, g0, g1, n_fields] = take(pos, 5)? else {
+                return Err(fit_err(format!("short definition at byte {msg_start}")));
             };
-            let n_fields = usize::from(fixed[4]);
+            let global = if arch == 1 {
+                u16::from_be_bytes([g0, g1])
+            } else {
+                u16::from_le_bytes([g0, g1])
+            };
+            let n_fields = usize::from(n_fields);
             pos += 5;
             let field_bytes = take(pos, 3 * n_fields)?;
             let mut fields = Vec::with_capacity(n_fields);
             let mut size = 0usize;
             for (k, f) in field_bytes.chunks_exact(3).enumerate() {
-                let (num, fsize, base) = (f[0], usize::from(f[1]), f[2] & 0x9F);
+                let &[num, fsize, base] = f else { continue };
+                let (fsize, base) = (usize::from(fsize), base & 0x9F);
                 if fsize % base_type_size(base) != 0 {
                     patches.push(pos + 3 * k + 2);
                 }
@@ -294,10 +302,11 @@ pub fn check_messages(file: &[u8]) -> Result<Cow<'_, [u8]>, ParseError> {
             }
             pos += 3 * n_fields;
             if head & 0x20 != 0 {
-                let n_dev = usize::from(take(pos, 1)?[0]);
+                let n_dev = usize::from(take(pos, 1)?.first().copied().unwrap_or(0));
                 pos += 1;
                 for f in take(pos, 3 * n_dev)?.chunks_exact(3) {
-                    let (num, fsize, index) = (f[0], usize::from(f[1]), f[2]);
+                    let &[num, fsize, index] = f else { continue };
+                    let fsize = usize::from(fsize);
                     if let Some(&bsize) = dev_types.get(&(index, num)) {
                         if fsize % bsize != 0 {
                             return Err(fit_err(format!(
@@ -309,18 +318,20 @@ pub fn check_messages(file: &[u8]) -> Result<Cow<'_, [u8]>, ParseError> {
                 }
                 pos += 3 * n_dev;
             }
-            defs[usize::from(head & 0x0F)] = Some(ScanDef {
-                global,
-                size,
-                fields,
-            });
+            if let Some(slot) = defs.get_mut(usize::from(head & 0x0F)) {
+                *slot = Some(ScanDef {
+                    global,
+                    size,
+                    fields,
+                });
+            }
         } else {
             let local = if head & 0x80 != 0 {
                 (head >> 5) & 0x03
             } else {
                 head & 0x0F
             };
-            let Some(def) = &defs[usize::from(local)] else {
+            let Some(def) = defs.get(usize::from(local)).and_then(Option::as_ref) else {
                 return Err(fit_err(format!(
                     "data message at byte {msg_start} uses undefined local type {local}"
                 )));
@@ -632,7 +643,11 @@ fn channel(recs: &[Rec], get: impl Fn(&Rec) -> Option<f64>) -> Option<Channel> {
 fn build_session(mut raw: Raw) -> Result<Session, ParseError> {
     let converted = system_time_to_utc(&mut raw)?;
     let mut recs = raw.records;
-    if recs.windows(2).any(|w| w[1].ts < w[0].ts) {
+    if recs
+        .iter()
+        .zip(recs.iter().skip(1))
+        .any(|(a, b)| b.ts < a.ts)
+    {
         recs.sort_by_key(|r| r.ts); // stable
     }
     if let (true, Some(first), Some(last)) = (recs.len() >= 2, recs.first(), recs.last()) {

@@ -65,7 +65,7 @@ fn what_the_coach_sees_for_converted_and_damaged_notes() {
         format!("{TEXT}\n(converted from UTF-16)")
     );
     // A BOM is stripped silently.
-    assert_eq!(note::decode(b"\xEF\xBB\xBFok\n").display().unwrap(), "ok");
+    assert_eq!(note::decode(b"\xEF\xBB\xBFok\n").display().unwrap(), "ok\n");
     // A lone surrogate in UTF-16: the rest is shown, the damage named.
     let mut bad = utf16("ok ", false, true);
     bad.extend_from_slice(&0xD800u16.to_le_bytes());

@@ -50,8 +50,8 @@ pub struct DecodedNote {
 }
 
 impl DecodedNote {
-    /// The text as shown to the coach after the reveal: the text, then a short marker line
-    /// when it was converted or could not be fully decoded. `None` when there is nothing to
+    /// The text as shown to the coach after the reveal: the text, then (trailing blank lines
+    /// removed) a short marker line when it was converted or could not be fully decoded. `None` when there is nothing to
     /// show (blank text and no problem).
     pub fn display(&self) -> Option<String> {
         let text = self.text.trim_end();
@@ -67,7 +67,8 @@ impl DecodedNote {
             _ if text.trim().is_empty() && self.problem.is_none() => None,
             Some(m) if text.trim().is_empty() => Some(m),
             Some(m) => Some(format!("{text}\n{m}")),
-            None => Some(text.to_string()),
+            // Unconverted text is returned exactly as read (BOM aside).
+            None => Some(self.text.clone()),
         }
     }
 }

@@ -3,6 +3,7 @@
 //! broken activity files.
 
 mod fit_common;
+mod fitdecode_support;
 mod roster_support;
 
 use assert_cmd::Command;
@@ -47,6 +48,43 @@ fn compressed_speed_and_distance_are_decoded_across_distance_wraps() {
         assert!((w - g).abs() <= 0.005 + 1e-9, "speed at {i}: {w} vs {g}");
     }
     assert!(!got.derived.contains(&ChannelKind::Distance));
+}
+
+#[test]
+fn compressed_speed_and_distance_agree_with_fitdecode() {
+    let Some(python) = fitdecode_support::python() else {
+        return;
+    };
+    let mut s = fit_common::session(900, false);
+    s.lat = None;
+    s.lon = None;
+    let bytes = fit_writer::write_with(
+        &s,
+        FitOptions {
+            compressed_speed_distance: true,
+            ..FitOptions::default()
+        },
+    );
+    let ours = ingest::fit::decode(&bytes).unwrap();
+    let theirs = fitdecode_support::fitdecode_bytes(&python, &bytes);
+    // Source: fitdecode (PyPI), an independent FIT decoder, which expands the components of
+    // compressed_speed_distance and accumulates the distance.
+    let recs = theirs["records"].as_array().unwrap();
+    assert_eq!(recs.len(), ours.len());
+    for (i, r) in recs.iter().enumerate() {
+        fitdecode_support::same(
+            "distance",
+            fitdecode_support::at(&ours.distance, i),
+            &r["distance"],
+            1e-9,
+        );
+        fitdecode_support::same(
+            "speed",
+            fitdecode_support::at(&ours.speed, i),
+            &r["speed"],
+            1e-9,
+        );
+    }
 }
 
 struct Roster {

@@ -8,7 +8,6 @@ mod fit_common;
 
 use std::alloc::{GlobalAlloc, Layout, System};
 use std::cell::Cell;
-use std::time::Instant;
 
 use splitdesk::ingest::{self, IngestError, Limits};
 
@@ -59,9 +58,7 @@ fn a_sparse_two_gigabyte_fit_file_is_refused_from_its_size_without_reading_it() 
         .set_len(GIB2)
         .unwrap();
 
-    let clock = Instant::now();
     let (result, bytes) = allocated_by(|| ingest::ingest_file(&path, None));
-    let elapsed = clock.elapsed();
     let err = result.unwrap_err();
     assert!(matches!(err, IngestError::Refused { .. }), "{err:?}");
     assert_eq!(
@@ -72,10 +69,8 @@ fn a_sparse_two_gigabyte_fit_file_is_refused_from_its_size_without_reading_it() 
             path.display()
         )
     );
-    // Before the cap this read the whole file: 2 GiB of allocation and seconds of I/O.
+    // Before the cap this read the whole file: 2 GiB of allocation (and seconds of I/O).
     assert!(bytes < 64 * 1024, "allocated {bytes} bytes");
-    // Generous: a stat takes microseconds; reading 2 GiB of zeroes takes seconds.
-    assert!(elapsed.as_secs() < 2, "took {elapsed:?}");
 }
 
 #[test]

@@ -163,3 +163,22 @@ fn fit_system_time_without_an_offset_is_refused() {
          and the file gives no offset to UTC"
     );
 }
+
+#[test]
+fn a_fit_record_stamped_near_the_fit_epoch_is_dropped_and_flagged() {
+    let mut s = run();
+    // 1989-12-31 00:00:05: the issue's "136-year session dated 1989".
+    s.time[0] = Utc.with_ymd_and_hms(1989, 12, 31, 0, 0, 5).unwrap();
+    let got = ingest(&fit_writer::write(&s), FileFormat::Fit).unwrap();
+    assert_eq!(got.len(), s.len() - 1);
+    assert_eq!(got.start, fit_common::start() + Duration::seconds(1));
+    assert!(got.duration_s() < 1000.0, "{}", got.duration_s());
+    assert_eq!(got.warnings.len(), 1, "{:?}", got.warnings);
+    assert!(
+        got.warnings[0].starts_with(
+            "1 sample with an impossible timestamp was dropped (e.g. 1989-12-31 00:00:05 UTC, "
+        ),
+        "{}",
+        got.warnings[0]
+    );
+}

@@ -19,6 +19,29 @@ pub struct Config {
     /// Key overrides for the workstation (action name = key).
     #[serde(default)]
     pub keys: toml::Table,
+    /// Bounds on reading activity files.
+    #[serde(default)]
+    pub ingest: IngestConfig,
+}
+
+/// The `[ingest]` table.
+#[derive(Debug, Clone, Default, Deserialize, PartialEq)]
+#[serde(deny_unknown_fields)]
+pub struct IngestConfig {
+    /// Activity files larger than this many MiB are refused without being read (default
+    /// [`crate::ingest::DEFAULT_MAX_FILE_MB`]; at least 1).
+    pub max_file_mb: Option<u64>,
+}
+
+impl Config {
+    /// The ingest limits this configuration asks for.
+    pub fn ingest_limits(&self) -> crate::ingest::Limits {
+        crate::ingest::Limits::from_mb(
+            self.ingest
+                .max_file_mb
+                .unwrap_or(crate::ingest::DEFAULT_MAX_FILE_MB),
+        )
+    }
 }
 
 /// The configuration file could not be used.
@@ -106,5 +129,18 @@ mod tests {
         assert_eq!(resolve_roster(None, &Config::default()), demo_roster());
         let err = parse("rooster = 1").unwrap_err();
         assert!(err.starts_with("line 1, column 1:"), "{err}");
+    }
+
+    #[test]
+    fn ingest_size_cap_is_configurable() {
+        assert_eq!(
+            Config::default().ingest_limits().max_file_bytes,
+            64 * 1024 * 1024
+        );
+        let cfg = parse("[ingest]\nmax_file_mb = 8\n").unwrap();
+        assert_eq!(cfg.ingest_limits().max_file_bytes, 8 * 1024 * 1024);
+        let cfg = parse("[ingest]\nmax_file_mb = 0\n").unwrap();
+        assert_eq!(cfg.ingest_limits().max_file_bytes, 1024 * 1024);
+        assert!(parse("[ingest]\nmax_mb = 8\n").is_err());
     }
 }

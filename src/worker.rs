@@ -76,10 +76,10 @@ pub struct Done {
 pub fn run_job(job: &Job) -> Outcome {
     if job.kind == JobKind::Scan {
         if let Some(known) = &job.cached_hash {
-            match std::fs::read(&job.activity.path) {
+            match crate::ingest::read_activity(&job.activity.path, crate::ingest::limits()) {
                 Ok(bytes) if &sha256_hex(&bytes) == known => return Outcome::Unchanged,
                 Ok(_) => {}
-                Err(e) => return Outcome::Failed(format!("{}: {e}", job.activity.path.display())),
+                Err(e) => return Outcome::Failed(e.to_string()),
             }
         }
     }

@@ -95,10 +95,7 @@ impl Analysed {
 
 /// Read, clean and analyse one activity of a roster (no journal; any thread).
 pub fn analyse_activity(athlete: &Athlete, act: &Activity) -> Result<Analysed, WorkspaceError> {
-    let bytes = std::fs::read(&act.path).map_err(|source| IngestError::Io {
-        path: act.path.clone(),
-        source,
-    })?;
+    let bytes = ingest::read_activity(&act.path, ingest::limits())?;
     analyse_bytes(athlete, act, &bytes)
 }
 
@@ -344,10 +341,7 @@ impl Workspace {
     ) -> Result<(Review, bool), WorkspaceError> {
         let (athlete, act) = self.find(session_id)?;
         let (athlete, act) = (athlete.clone(), act.clone());
-        let bytes = std::fs::read(&act.path).map_err(|source| IngestError::Io {
-            path: act.path.clone(),
-            source,
-        })?;
+        let bytes = ingest::read_activity(&act.path, ingest::limits())?;
         let hash = ingest::hash::sha256_hex(&bytes);
         if let Some(json) = self
             .cached(session_id, &hash)?

@@ -49,6 +49,8 @@ def main(path):
                     "lon": None if lon is None else lon * SEMI,
                     "distance": val(frame, "distance"),
                     "enhanced_speed": val(frame, "enhanced_speed"),
+                    # 16-bit speed, or the speed component of compressed_speed_distance.
+                    "speed": val(frame, "speed"),
                     "heart_rate": val(frame, "heart_rate"),
                     "cadence": None if cad is None else cad + (frac or 0.0),
                     "enhanced_altitude": val(frame, "enhanced_altitude"),

@@ -48,16 +48,35 @@ pub fn run(root: &Path, json: bool) -> anyhow::Result<i32> {
     let mut readable = 0;
     for (athlete, act) in roster.activities() {
         match ingest::ingest_file(&act.path, Some(&athlete.profile)) {
-            Ok(_) => readable += 1,
+            Ok(session) => {
+                readable += 1;
+                // What ingest worked around (dropped timestamps, trailing bytes): listed,
+                // not failing.
+                for w in &session.warnings {
+                    problems.push(ProblemOut {
+                        path: printable(&act.path.display().to_string()),
+                        problem: printable(w),
+                        unreadable: false,
+                        profile_or_plan: false,
+                    });
+                }
+            }
             Err(e) => problems.push(ProblemOut {
                 path: printable(&act.path.display().to_string()),
-                problem: printable(&match &e {
-                    ingest::IngestError::Io { source, .. } => source.to_string(),
-                    ingest::IngestError::Parse { source, .. } => source.to_string(),
-                }),
+                problem: printable(&e.reason()),
                 unreadable: true,
                 profile_or_plan: false,
             }),
+        }
+        if let Some(note) = &act.note_file {
+            if let Some(p) = ingest::note::problem(note) {
+                problems.push(ProblemOut {
+                    path: printable(&note.display().to_string()),
+                    problem: printable(&p),
+                    unreadable: false,
+                    profile_or_plan: false,
+                });
+            }
         }
         bar.inc(1);
     }

@@ -230,6 +230,7 @@ pub enum PlanCommand {
 /// Run a parsed command line; returns the process exit code.
 pub fn run(cli: Cli) -> anyhow::Result<i32> {
     let config = crate::config::load()?;
+    crate::ingest::set_limits(config.ingest_limits());
     match cli.command {
         None => crate::tui::run(
             &crate::config::resolve_roster(cli.roster.as_deref(), &config),

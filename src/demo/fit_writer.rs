@@ -29,6 +29,7 @@ const UINT16: u8 = 0x84;
 const SINT32: u8 = 0x85;
 const UINT32: u8 = 0x86;
 const UINT32Z: u8 = 0x8C;
+const BYTE: u8 = 0x0D;
 
 // Local message types.
 const L_FILE_ID: u8 = 0;
@@ -37,6 +38,7 @@ const L_RECORD: u8 = 2;
 const L_LAP: u8 = 3;
 const L_SESSION: u8 = 4;
 const L_ACTIVITY: u8 = 5;
+const L_CORRELATION: u8 = 6;
 
 // Enum values from the FIT profile.
 const EVENT_TIMER: u8 = 0;
@@ -48,8 +50,41 @@ const TYPE_STOP: u8 = 1;
 const TYPE_STOP_ALL: u8 = 4;
 const LAP_TRIGGER_SESSION_END: u8 = 7;
 
+/// Encoding choices beyond the default, for test files that exercise rarer FIT features.
+#[derive(Debug, Clone, Copy, Default, PartialEq, Eq)]
+pub struct FitOptions {
+    /// Write speed and distance only as the record's `compressed_speed_distance` field (8):
+    /// 12-bit speed in 1/100 m/s and 12-bit distance in 1/16 m, wrapping every 256 m.
+    pub compressed_speed_distance: bool,
+    /// Write every timestamp as system time (seconds from power-on): the session's UTC times
+    /// minus this many seconds. `Some` adds a `timestamp_correlation` message (162) that
+    /// gives the offset back; see also `correlation`.
+    pub system_time_offset: Option<u32>,
+    /// With `system_time_offset`, whether to write the `timestamp_correlation` message.
+    pub correlation: bool,
+}
+
 /// Encode `session` as FIT bytes.
 pub fn write(session: &Session) -> Vec<u8> {
+    write_with(session, FitOptions::default())
+}
+
+/// Encode `session` as FIT bytes with the given options (`write` is the default options).
+pub fn write_with(session: &Session, opts: FitOptions) -> Vec<u8> {
+    let shifted;
+    let session = match opts.system_time_offset {
+        Some(offset) => {
+            let back = chrono::Duration::seconds(i64::from(offset));
+            let mut s = session.clone();
+            s.start -= back;
+            for t in &mut s.time {
+                *t -= back;
+            }
+            shifted = s;
+            &shifted
+        }
+        None => session,
+    };
     let mut w = Writer::default();
     let start = fit_time(session.start);
     let n = session.len();
@@ -89,20 +124,25 @@ pub fn write(session: &Session) -> Vec<u8> {
     events.sort_by_key(|e| (e.0, e.1));
     let mut pending = events.into_iter().peekable();
 
+    let speed_distance: &[(u8, u8, u8)] = if opts.compressed_speed_distance {
+        &[(8, 3, BYTE)]
+    } else {
+        &[(5, 4, UINT32), (73, 4, UINT32)]
+    };
     w.define(
         L_RECORD,
         20,
         &[
-            (253, 4, UINT32),
-            (0, 4, SINT32),
-            (1, 4, SINT32),
-            (5, 4, UINT32),
-            (73, 4, UINT32),
-            (3, 1, UINT8),
-            (4, 1, UINT8),
-            (53, 1, UINT8),
-            (78, 4, UINT32),
-        ],
+            &[(253, 4, UINT32), (0, 4, SINT32), (1, 4, SINT32)],
+            speed_distance,
+            &[
+                (3, 1, UINT8),
+                (4, 1, UINT8),
+                (53, 1, UINT8),
+                (78, 4, UINT32),
+            ],
+        ]
+        .concat(),
     );
     let get = |c: &Option<Channel>, i: usize| c.as_ref().and_then(|c| c.get(i));
     for (i, &ts) in rec_ts.iter().enumerate() {
@@ -117,8 +157,19 @@ pub fn write(session: &Session) -> Vec<u8> {
         w.u32(ts);
         w.i32(get(&session.lat, i).and_then(|d| semicircles(d, 90.0)));
         w.i32(get(&session.lon, i).and_then(|d| semicircles(d, 180.0)));
-        w.u32_opt(get(&session.distance, i).and_then(|d| scaled_u32(d, 100.0, 0.0)));
-        w.u32_opt(get(&session.speed, i).and_then(|v| scaled_u32(v, 1000.0, 0.0)));
+        if opts.compressed_speed_distance {
+            let speed = get(&session.speed, i)
+                .and_then(|v| scaled_u32(v, 100.0, 0.0))
+                .map_or(0xFFF, |v| v.min(0xFFE));
+            let distance = get(&session.distance, i)
+                .and_then(|d| scaled_u32(d, 16.0, 0.0))
+                .map_or(0, |d| d & 0xFFF);
+            let packed = speed | distance << 12;
+            w.data.extend_from_slice(&packed.to_le_bytes()[..3]);
+        } else {
+            w.u32_opt(get(&session.distance, i).and_then(|d| scaled_u32(d, 100.0, 0.0)));
+            w.u32_opt(get(&session.speed, i).and_then(|v| scaled_u32(v, 1000.0, 0.0)));
+        }
         w.u8_opt(get(&session.hr, i).and_then(scaled_u8));
         let (cad, frac) = match get(&session.cadence, i).and_then(strides) {
             Some((c, f)) => (Some(c), Some(f)),
@@ -226,6 +277,14 @@ pub fn write(session: &Session) -> Vec<u8> {
     w.u8(0); // type: manual
     w.u8(EVENT_ACTIVITY);
     w.u8(TYPE_STOP);
+
+    if let (Some(offset), true) = (opts.system_time_offset, opts.correlation) {
+        // timestamp_correlation: timestamp (253, UTC) and system_timestamp (1).
+        w.define(L_CORRELATION, 162, &[(253, 4, UINT32), (1, 4, UINT32)]);
+        w.data(L_CORRELATION);
+        w.u32(last.saturating_add(offset));
+        w.u32(last);
+    }
 
     w.finish()
 }

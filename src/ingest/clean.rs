@@ -155,9 +155,14 @@ pub fn gap_threshold_s(t: &[f64]) -> f64 {
     (GAP_MEDIAN_FACTOR * median_interval(t)).max(GAP_MIN_S)
 }
 
+/// `t[i]`, for indices the caller keeps in range (0 otherwise, never reached).
+fn at(t: &[f64], i: usize) -> f64 {
+    t.get(i).copied().unwrap_or(0.0)
+}
+
 /// Median spacing of `t`, seconds (0 for fewer than two samples).
 fn median_interval(t: &[f64]) -> f64 {
-    let mut d: Vec<f64> = t.windows(2).map(|w| w[1] - w[0]).collect();
+    let mut d: Vec<f64> = t.iter().zip(t.iter().skip(1)).map(|(a, b)| b - a).collect();
     if d.is_empty() {
         return 0.0;
     }
@@ -191,24 +196,26 @@ pub fn position_jumps(t: &[f64], lat: &Channel, lon: &Channel) -> Vec<PositionJu
     let m = fixes.len();
     let mut k = 1;
     while k < m {
-        let anchor = fixes[k - 1];
-        if screen.surely_plausible(anchor, fixes[k]) {
+        let (Some(&anchor), Some(&fix_k)) = (fixes.get(k - 1), fixes.get(k)) else {
+            break;
+        };
+        if screen.surely_plausible(anchor, fix_k) {
             k += 1;
             continue;
         }
-        let (d_out, v_out) = step(anchor, fixes[k]);
+        let (d_out, v_out) = step(anchor, fix_k);
         if v_out <= MAX_SPEED_MPS {
             k += 1;
             continue;
         }
         let mut found = None;
         let mut j = k + 1;
-        while j < m
-            && fixes[j].1 - anchor.1 <= POSITION_RETURN_WINDOW_S
-            && j - k <= POSITION_RETURN_MAX_FIXES
-        {
-            let (_, v_back) = step(fixes[j - 1], fixes[j]);
-            if v_back > MAX_SPEED_MPS && step(anchor, fixes[j]).1 <= MAX_SPEED_MPS {
+        while let (Some(&prev), Some(&fix_j)) = (fixes.get(j - 1), fixes.get(j)) {
+            if fix_j.1 - anchor.1 > POSITION_RETURN_WINDOW_S || j - k > POSITION_RETURN_MAX_FIXES {
+                break;
+            }
+            let (_, v_back) = step(prev, fix_j);
+            if v_back > MAX_SPEED_MPS && step(anchor, fix_j).1 <= MAX_SPEED_MPS {
                 found = Some((j, v_back));
                 break;
             }
@@ -216,13 +223,15 @@ pub fn position_jumps(t: &[f64], lat: &Channel, lon: &Channel) -> Vec<PositionJu
         }
         match found {
             Some((j, back_mps)) => {
-                let away_m = fixes[k..j]
+                let away_m = fixes
+                    .get(k..j)
+                    .unwrap_or_default()
                     .iter()
                     .map(|&f| step(anchor, f).0)
                     .fold(d_out, f64::max);
                 out.push(PositionJump::Excursion {
-                    first: fixes[k].0,
-                    last: fixes[j - 1].0,
+                    first: fix_k.0,
+                    last: fixes.get(j - 1).map_or(fix_k.0, |f| f.0),
                     away_m,
                     out_mps: v_out,
                     back_mps,
@@ -232,7 +241,7 @@ pub fn position_jumps(t: &[f64], lat: &Channel, lon: &Channel) -> Vec<PositionJu
             None => {
                 out.push(PositionJump::Step {
                     from: anchor.0,
-                    to: fixes[k].0,
+                    to: fix_k.0,
                     distance_m: d_out,
                     speed_mps: v_out,
                 });
@@ -590,7 +599,7 @@ fn cadence_lock(ctx: &Ctx<'_>, hr: &Channel, cad: &Channel, half: bool, out: &mu
         }
         let (s, mut e, mut j) = (i, i, i + 1);
         while j < n {
-            let since = t[j] - t[e];
+            let since = at(t, j) - at(t, e);
             if on(j) && since <= continue_s {
                 e = j;
             } else if on(j) || since > CADENCE_LOCK_GRACE_S {
@@ -600,7 +609,7 @@ fn cadence_lock(ctx: &Ctx<'_>, hr: &Channel, cad: &Channel, half: bool, out: &mu
         }
         i = j.max(e + 1);
         // Common coaching practice (no published source), methods.md §12: 30 s or more.
-        if t[e] - t[s] < CADENCE_LOCK_MIN_S {
+        if at(t, e) - at(t, s) < CADENCE_LOCK_MIN_S {
             continue;
         }
         let (Some(hr_s), Some(hr_e)) = (hr.get(s), hr.get(e)) else {
@@ -609,7 +618,7 @@ fn cadence_lock(ctx: &Ctx<'_>, hr: &Channel, cad: &Channel, half: bool, out: &mu
         // Entry jump: largest change within the window before the first sample on cadence.
         let mut entry: Option<(usize, f64)> = None;
         for q in (0..s).rev() {
-            if t[s] - t[q] > CADENCE_LOCK_JUMP_WINDOW_S {
+            if at(t, s) - at(t, q) > CADENCE_LOCK_JUMP_WINDOW_S {
                 break;
             }
             if let Some(h) = hr.get(q) {
@@ -622,7 +631,7 @@ fn cadence_lock(ctx: &Ctx<'_>, hr: &Channel, cad: &Channel, half: bool, out: &mu
         // Exit jump: largest change within the window after the last sample on cadence.
         let mut exit = 0.0f64;
         for q in (e + 1)..n {
-            if t[q] - t[e] > CADENCE_LOCK_JUMP_WINDOW_S {
+            if at(t, q) - at(t, e) > CADENCE_LOCK_JUMP_WINDOW_S {
                 break;
             }
             if let Some(h) = hr.get(q) {
@@ -645,14 +654,14 @@ fn cadence_lock(ctx: &Ctx<'_>, hr: &Channel, cad: &Channel, half: bool, out: &mu
             None => format!("and leaves it with a {exit:.0} bpm jump"),
         };
         out.push(Flag {
-            from_s: t[from],
-            to_s: t[e],
+            from_s: at(t, from),
+            to_s: at(t, e),
             channel: ChannelKind::Hr,
             kind: FlagKind::CadenceLock,
             reason: format!(
                 "heart rate {lo:.0}-{hi:.0} bpm follows {onto} within ±{CADENCE_LOCK_TOLERANCE_BPM} bpm \
                  for {:.0} s {how}: likely the sensor counting steps",
-                t[e] - t[s]
+                at(t, e) - at(t, s)
             ),
         });
     }
@@ -700,11 +709,11 @@ fn flat_line(
             continue;
         };
         let (mut e, mut j) = (i, i + 1);
-        while j < n && moving(j) && ch.get(j) == Some(v) && t[j] - t[e] <= ctx.gap_thr {
+        while j < n && moving(j) && ch.get(j) == Some(v) && at(t, j) - at(t, e) <= ctx.gap_thr {
             e = j;
             j += 1;
         }
-        let dur = t[e] - t[i];
+        let dur = at(t, e) - at(t, i);
         // Common coaching practice (no published source): 60 s of the same value.
         let long_enough = match steady_check {
             None => dur >= FLAT_LINE_MIN_S,
@@ -715,8 +724,8 @@ fn flat_line(
         };
         if long_enough {
             out.push(Flag {
-                from_s: t[i],
-                to_s: t[e],
+                from_s: at(t, i),
+                to_s: at(t, e),
                 channel: kind,
                 kind: FlagKind::FlatLine,
                 reason: format!(
@@ -750,8 +759,7 @@ fn gap_rule(ctx: &Ctx<'_>, session: &Session, out: &mut Vec<Flag>) {
     .into_iter()
     .find(|&k| session.channel(k).is_some())
     .unwrap_or(ChannelKind::Speed);
-    for w in ctx.t.windows(2) {
-        let (a, b) = (w[0], w[1]);
+    for (&a, &b) in ctx.t.iter().zip(ctx.t.iter().skip(1)) {
         let dt = b - a;
         // Common coaching practice (no published source): max(10 s, 3 × median interval).
         if dt <= ctx.gap_thr {

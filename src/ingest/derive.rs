@@ -115,7 +115,10 @@ impl PauseCursor {
         while self.pauses.get(self.next).is_some_and(|p| p.1 <= t) {
             self.next += 1;
         }
-        let inside = self.pauses[self.next..]
+        let inside = self
+            .pauses
+            .get(self.next..)
+            .unwrap_or_default()
             .iter()
             .take_while(|p| p.0 < t)
             .any(|p| t > p.0 && t < p.1);
@@ -190,30 +193,30 @@ fn speed_from_distance(session: &Session) -> Option<Channel> {
     }
     let mut values: Vec<Option<f64>> = vec![None; n];
     let (mut lo, mut hi) = (0usize, 0usize);
-    for k in 0..pts.len() {
-        let (idx, tk, _, seg) = pts[k];
+    // `pts` is never indexed past its end: every index below is checked against its length.
+    let pt = |i: usize| pts.get(i).copied();
+    for (k, &(idx, tk, _, seg)) in pts.iter().enumerate() {
         // Window start: first point within the half-window and in the same segment.
-        while lo < k && (pts[lo].1 < tk - SPEED_HALF_WINDOW_S || pts[lo].3 != seg) {
+        while lo < k && pt(lo).is_some_and(|p| p.1 < tk - SPEED_HALF_WINDOW_S || p.3 != seg) {
             lo += 1;
         }
         hi = hi.max(k);
-        while hi + 1 < pts.len()
-            && pts[hi + 1].1 <= tk + SPEED_HALF_WINDOW_S
-            && pts[hi + 1].3 == seg
-        {
+        while pt(hi + 1).is_some_and(|p| p.1 <= tk + SPEED_HALF_WINDOW_S && p.3 == seg) {
             hi += 1;
         }
         let mut a = lo;
         let mut b = hi;
         // Sparse sampling: widen to the nearest neighbour on each side, unless that
         // neighbour lies across a pause or a recording gap.
-        if a == k && k > 0 && pts[k - 1].3 == seg && tk - pts[k - 1].1 <= max_step_s {
+        if a == k && k > 0 && pt(k - 1).is_some_and(|p| p.3 == seg && tk - p.1 <= max_step_s) {
             a = k - 1;
         }
-        if b == k && k + 1 < pts.len() && pts[k + 1].3 == seg && pts[k + 1].1 - tk <= max_step_s {
+        if b == k && pt(k + 1).is_some_and(|p| p.3 == seg && p.1 - tk <= max_step_s) {
             b = k + 1;
         }
-        let (pa, pb) = (pts[a], pts[b]);
+        let (Some(pa), Some(pb)) = (pt(a), pt(b)) else {
+            continue;
+        };
         let dt = pb.1 - pa.1;
         if dt > 0.0 {
             if let Some(v) = values.get_mut(idx) {

@@ -22,12 +22,30 @@
 //!    them to read later developer fields). As a last resort the whole step runs inside
 //!    `catch_unwind`; the default panic hook would still print the message in that case.
 //!
+//! Bytes after the first FIT file's CRC are not read; the session carries a warning saying
+//! whether they were a chained second FIT file (only the first file is read, as before) or
+//! something else.
+//!
 //! Timestamps are UTC seconds since the FIT epoch; local-time fields are never read.
+//! Source: FIT SDK Profile, type `date_time`: "seconds since UTC 00:00 Dec 31 1989. If
+//! date_time is < 0x10000000 then it is system time (seconds from device power on)". Such
+//! system-time stamps are converted to UTC with the offset the file gives: a
+//! `timestamp_correlation` message (162: `timestamp` 253 minus `system_timestamp` 1), else
+//! `device_settings` (2) field 2 `time_offset` ("offset from system time", from memory of the
+//! FIT SDK Profile). A file whose records all carry system time and that gives no offset is
+//! refused; isolated system-time stamps among UTC ones are left to [`super::timeaxis`],
+//! which drops them (they fall before 2000).
+//!
 //! Records are sorted stably by timestamp when the file has them out of order, and records
 //! sharing a timestamp are merged into one sample (the first present value of each channel
-//! wins), so `t` is strictly increasing. A record without a timestamp is skipped.
-//! Compressed-timestamp headers are honoured; the old `compressed_speed_distance` record
-//! field is not read.
+//! wins), so `t` is strictly increasing. A record without a timestamp is skipped; two or more
+//! records that all share one timestamp are refused (no time axis).
+//! Compressed-timestamp headers are honoured. The record field `compressed_speed_distance`
+//! (field 8) is decoded when the record has no plain speed or distance. Source: FIT SDK
+//! Profile, record message: `compressed_speed_distance`, byte[3], components `speed` (12
+//! bits, scale 100, m/s) and `distance` (12 bits, scale 16, m, accumulated), packed
+//! little-endian from bit 0. The 12-bit distance wraps every 4096/16 = 256 m; it is
+//! accumulated across wraps in file order, as the SDK's accumulator does.
 
 use std::borrow::Cow;
 use std::collections::HashMap;
@@ -49,13 +67,19 @@ pub const DEG_PER_SEMICIRCLE: f64 = 180.0 / 2_147_483_648.0;
 
 /// Global message numbers from the FIT profile.
 mod mesg {
+    pub const DEVICE_SETTINGS: u16 = 2;
     pub const SPORT: u16 = 12;
     pub const SESSION: u16 = 18;
     pub const LAP: u16 = 19;
     pub const RECORD: u16 = 20;
     pub const EVENT: u16 = 21;
+    pub const TIMESTAMP_CORRELATION: u16 = 162;
     pub const FIELD_DESCRIPTION: u16 = 206;
 }
+
+/// `date_time` values below this are system time (seconds from device power-on), not UTC.
+/// Source: FIT SDK Profile, type `date_time` (min value 0x10000000).
+pub const SYSTEM_TIME_LIMIT: i64 = 0x1000_0000;
 
 const TIMESTAMP: u8 = 253;
 
@@ -66,6 +90,7 @@ fn fit_err(reason: impl Into<String>) -> ParseError {
 /// Decode FIT bytes into a raw session (no hash, no derived channels, no flags).
 pub fn decode(bytes: &[u8]) -> Result<Session, ParseError> {
     let file = frame(bytes)?;
+    let trailing = trailing_warning(bytes, file.len());
     let file = check_messages(file)?;
     let raw = std::panic::catch_unwind(|| read_messages(&file)).map_err(|panic| {
         let what = panic
@@ -75,18 +100,26 @@ pub fn decode(bytes: &[u8]) -> Result<Session, ParseError> {
             .unwrap_or_else(|| "unknown panic".into());
         fit_err(format!("decoder crashed: {what}"))
     })??;
-    build_session(raw)
+    let mut session = build_session(raw)?;
+    session.warnings.extend(trailing);
+    Ok(session)
 }
 
 /// CRC-16 as the FIT protocol defines it (CRC-16/ARC, the algorithm of the FIT SDK's
 /// `fit_crc.c` that fitparser also uses), continuing from `crc` (start with 0).
 pub fn crc16(crc: u16, data: &[u8]) -> u16 {
     data.iter().fold(crc, |crc, &b| {
-        (crc >> 8) ^ CRC_TABLE[usize::from((crc ^ u16::from(b)) & 0xFF)]
+        let entry = CRC_TABLE
+            .get(usize::from((crc ^ u16::from(b)) & 0xFF))
+            .copied()
+            .unwrap_or(0);
+        (crc >> 8) ^ entry
     })
 }
 
-/// Byte-at-a-time table, built from the FIT SDK's 16-entry nibble table.
+/// Byte-at-a-time table, built from the FIT SDK's 16-entry nibble table. Built at compile
+/// time: an index out of range there is a compile error, never a panic at run time.
+#[allow(clippy::indexing_slicing)]
 const CRC_TABLE: [u16; 256] = {
     const NIBBLE: [u16; 16] = [
         0x0000, 0xCC01, 0xD801, 0x1400, 0xF001, 0x3C00, 0x2800, 0xE401, 0xA001, 0x6C00, 0x7800,
@@ -119,37 +152,10 @@ fn u32_at(b: &[u8], i: usize) -> Option<u32> {
 /// fitparser checks in that case: the two agree on every valid file.
 pub fn frame(bytes: &[u8]) -> Result<&[u8], ParseError> {
     let len = bytes.len();
-    if len == 0 {
-        return Err(fit_err("empty file"));
-    }
+    check_header(bytes.get(..len.min(14)).unwrap_or_default(), len as u64)?;
     let header_size = usize::from(bytes.first().copied().unwrap_or(0));
-    if header_size != 12 && header_size != 14 {
-        return Err(fit_err(format!(
-            "bad header size {header_size} (expected 12 or 14)"
-        )));
-    }
-    if len < header_size {
-        return Err(fit_err(format!(
-            "truncated: {len} bytes, shorter than the {header_size}-byte header"
-        )));
-    }
-    if bytes.get(8..12) != Some(b".FIT".as_slice()) {
-        return Err(fit_err("no .FIT signature in the header"));
-    }
-    if header_size == 14 {
-        let stored = u16_at(bytes, 12).unwrap_or(0);
-        if stored != 0 && stored != crc16(0, bytes.get(..12).unwrap_or_default()) {
-            return Err(fit_err("header CRC mismatch"));
-        }
-    }
     let data_size = u32_at(bytes, 4).unwrap_or(0) as usize;
-    let available = len - header_size;
     let data_end = header_size.saturating_add(data_size);
-    if data_size > available {
-        return Err(fit_err(format!(
-            "truncated: header declares {data_size} data bytes, file has {available}"
-        )));
-    }
     let Some(stored) = u16_at(bytes, data_end) else {
         return Err(fit_err("truncated: file CRC missing"));
     };
@@ -162,6 +168,68 @@ pub fn frame(bytes: &[u8]) -> Result<&[u8], ParseError> {
     bytes
         .get(..data_end + 2)
         .ok_or_else(|| fit_err("truncated: file CRC missing"))
+}
+
+/// Check a FIT file header (its first 12 or 14 bytes, `head`) against the file's total length,
+/// before the body is read: header size byte, `.FIT` signature, header CRC when set, and a
+/// declared data size that fits in the file.
+///
+/// Source: FIT protocol, "File Header" (header size 12 or 14; bytes 4..8 data size
+/// little-endian; bytes 8..12 ".FIT"; bytes 12..14 header CRC, 0 when not computed).
+pub fn check_header(head: &[u8], total_len: u64) -> Result<(), ParseError> {
+    if total_len == 0 {
+        return Err(fit_err("empty file"));
+    }
+    let header_size = head.first().copied().unwrap_or(0);
+    if header_size != 12 && header_size != 14 {
+        return Err(fit_err(format!(
+            "bad header size {header_size} (expected 12 or 14)"
+        )));
+    }
+    let header_size = usize::from(header_size);
+    if total_len < header_size as u64 || head.len() < header_size {
+        return Err(fit_err(format!(
+            "truncated: {total_len} bytes, shorter than the {header_size}-byte header"
+        )));
+    }
+    if head.get(8..12) != Some(b".FIT".as_slice()) {
+        return Err(fit_err("no .FIT signature in the header"));
+    }
+    if header_size == 14 {
+        let stored = u16_at(head, 12).unwrap_or(0);
+        if stored != 0 && stored != crc16(0, head.get(..12).unwrap_or_default()) {
+            return Err(fit_err("header CRC mismatch"));
+        }
+    }
+    let data_size = u64::from(u32_at(head, 4).unwrap_or(0));
+    let available = total_len - header_size as u64;
+    if data_size > available {
+        return Err(fit_err(format!(
+            "truncated: header declares {data_size} data bytes, file has {available}"
+        )));
+    }
+    Ok(())
+}
+
+/// What follows the first FIT file's CRC, as a warning: a chained FIT file (not read: only
+/// the first file becomes the session, as before) or other bytes (ignored).
+fn trailing_warning(bytes: &[u8], framed_len: usize) -> Option<String> {
+    let rest = bytes.get(framed_len..).filter(|r| !r.is_empty())?;
+    let chained = rest.len() >= 12
+        && matches!(rest.first(), Some(12 | 14))
+        && rest.get(8..12) == Some(b".FIT".as_slice());
+    Some(if chained {
+        format!(
+            "a second FIT file ({} bytes) is chained after the first; only the first was read",
+            rest.len()
+        )
+    } else {
+        format!(
+            "{} byte{} after the end of the FIT data were ignored",
+            rest.len(),
+            if rest.len() == 1 { "" } else { "s" }
+        )
+    })
 }
 
 /// Byte size of a FIT base type, as fitparser sizes it (unknown types count as one byte).
@@ -205,25 +273,27 @@ pub fn check_messages(file: &[u8]) -> Result<Cow<'_, [u8]>, ParseError> {
             })
     };
     while pos < data_end {
-        let head = take(pos, 1)?[0];
+        let head = take(pos, 1)?.first().copied().unwrap_or(0);
         let msg_start = pos;
         pos += 1;
         if head & 0xC0 == 0x40 {
             // Definition message: reserved, architecture, global number, field count, fields.
-            let fixed = take(pos, 5)?;
-            let big_endian = fixed[1] == 1;
-            let global = if big_endian {
-                u16::from_be_bytes([fixed[2], fixed[3]])
-            } else {
-                u16::from_le_bytes([fixed[2], fixed[3]])
+            let &[_, arch, g0, g1, n_fields] = take(pos, 5)? else {
+                return Err(fit_err(format!("short definition at byte {msg_start}")));
             };
-            let n_fields = usize::from(fixed[4]);
+            let global = if arch == 1 {
+                u16::from_be_bytes([g0, g1])
+            } else {
+                u16::from_le_bytes([g0, g1])
+            };
+            let n_fields = usize::from(n_fields);
             pos += 5;
             let field_bytes = take(pos, 3 * n_fields)?;
             let mut fields = Vec::with_capacity(n_fields);
             let mut size = 0usize;
             for (k, f) in field_bytes.chunks_exact(3).enumerate() {
-                let (num, fsize, base) = (f[0], usize::from(f[1]), f[2] & 0x9F);
+                let &[num, fsize, base] = f else { continue };
+                let (fsize, base) = (usize::from(fsize), base & 0x9F);
                 if fsize % base_type_size(base) != 0 {
                     patches.push(pos + 3 * k + 2);
                 }
@@ -232,10 +302,11 @@ pub fn check_messages(file: &[u8]) -> Result<Cow<'_, [u8]>, ParseError> {
             }
             pos += 3 * n_fields;
             if head & 0x20 != 0 {
-                let n_dev = usize::from(take(pos, 1)?[0]);
+                let n_dev = usize::from(take(pos, 1)?.first().copied().unwrap_or(0));
                 pos += 1;
                 for f in take(pos, 3 * n_dev)?.chunks_exact(3) {
-                    let (num, fsize, index) = (f[0], usize::from(f[1]), f[2]);
+                    let &[num, fsize, index] = f else { continue };
+                    let fsize = usize::from(fsize);
                     if let Some(&bsize) = dev_types.get(&(index, num)) {
                         if fsize % bsize != 0 {
                             return Err(fit_err(format!(
@@ -247,18 +318,20 @@ pub fn check_messages(file: &[u8]) -> Result<Cow<'_, [u8]>, ParseError> {
                 }
                 pos += 3 * n_dev;
             }
-            defs[usize::from(head & 0x0F)] = Some(ScanDef {
-                global,
-                size,
-                fields,
-            });
+            if let Some(slot) = defs.get_mut(usize::from(head & 0x0F)) {
+                *slot = Some(ScanDef {
+                    global,
+                    size,
+                    fields,
+                });
+            }
         } else {
             let local = if head & 0x80 != 0 {
                 (head >> 5) & 0x03
             } else {
                 head & 0x0F
             };
-            let Some(def) = &defs[usize::from(local)] else {
+            let Some(def) = defs.get(usize::from(local)).and_then(Option::as_ref) else {
                 return Err(fit_err(format!(
                     "data message at byte {msg_start} uses undefined local type {local}"
                 )));
@@ -344,6 +417,42 @@ struct Raw {
     laps: Vec<RawLap>,
     session_sport: Option<u8>,
     sport_sport: Option<u8>,
+    /// Seconds to add to a system-time stamp to make it UTC, when the file says.
+    system_offset: Option<i64>,
+}
+
+/// The SDK's accumulator for a wrapping field: the first value as is, then each later value
+/// adds its difference from the previous one modulo 2^bits.
+#[derive(Default)]
+struct Accumulator {
+    last_raw: Option<u32>,
+    total: u64,
+}
+
+impl Accumulator {
+    fn add(&mut self, raw: u32, bits: u32) -> u64 {
+        let mask = (1u32 << bits) - 1;
+        let raw = raw & mask;
+        self.total = match self.last_raw {
+            None => u64::from(raw),
+            Some(last) => self.total + u64::from(raw.wrapping_sub(last) & mask),
+        };
+        self.last_raw = Some(raw);
+        self.total
+    }
+}
+
+/// The three bytes of `compressed_speed_distance` as (12-bit speed, 12-bit distance) raw.
+fn compressed_speed_distance(v: Option<&Value>) -> Option<(u32, u32)> {
+    let Value::Array(items) = v? else {
+        return None;
+    };
+    let byte = |i: usize| match items.get(i) {
+        Some(Value::Byte(b) | Value::UInt8(b)) => Some(u32::from(*b)),
+        _ => None,
+    };
+    let packed = byte(0)? | byte(1)? << 8 | byte(2)? << 16;
+    Some((packed & 0xFFF, packed >> 12 & 0xFFF))
 }
 
 /// A raw numeric field value; arrays, strings and non-finite floats are not numbers here.
@@ -380,6 +489,7 @@ fn read_messages(file: &[u8]) -> Result<Raw, ParseError> {
     let mut raw = Raw::default();
     // Last full timestamp seen, the base for compressed-timestamp headers.
     let mut last_ts: Option<i64> = None;
+    let mut distance_acc = Accumulator::default();
     let mut input = file;
     while !input.is_empty() {
         let (rest, object) = processor
@@ -418,12 +528,14 @@ fn read_messages(file: &[u8]) -> Result<Raw, ParseError> {
                 let speed = f(73).or_else(|| f(6)).map(|v| v / 1000.0);
                 let altitude = f(78).or_else(|| f(2)).map(|v| v / 5.0 - 500.0);
                 let cadence = f(4).map(|c| 2.0 * (c + f(53).map_or(0.0, |x| x / 128.0)));
+                let compressed = compressed_speed_distance(fields.get(&8))
+                    .map(|(sp, d)| (f64::from(sp) / 100.0, distance_acc.add(d, 12) as f64 / 16.0));
                 raw.records.push(Rec {
                     ts,
                     lat,
                     lon,
-                    distance: f(5).map(|v| v / 100.0),
-                    speed,
+                    distance: f(5).map(|v| v / 100.0).or(compressed.map(|(_, d)| d)),
+                    speed: speed.or(compressed.map(|(sp, _)| sp)),
                     hr: f(3),
                     cadence,
                     altitude,
@@ -449,6 +561,23 @@ fn read_messages(file: &[u8]) -> Result<Raw, ParseError> {
             mesg::SPORT => {
                 raw.sport_sport = raw.sport_sport.or(enum_u8(fields.get(&0)));
             }
+            mesg::TIMESTAMP_CORRELATION => {
+                if let (Some(utc), Some(system)) = (ts, fit_time(fields.get(&1))) {
+                    if utc >= SYSTEM_TIME_LIMIT && system < SYSTEM_TIME_LIMIT {
+                        raw.system_offset = Some(utc - system);
+                    }
+                }
+            }
+            mesg::DEVICE_SETTINGS => {
+                let offset = match fields.get(&2) {
+                    Some(Value::Array(items)) => items.first().and_then(num),
+                    Some(v) => num(v),
+                    None => None,
+                };
+                if let Some(offset) = offset.filter(|o| *o >= 1.0 && *o <= f64::from(u32::MAX)) {
+                    raw.system_offset = raw.system_offset.or(Some(offset as i64));
+                }
+            }
             mesg::FIELD_DESCRIPTION => {
                 // fitparser must see these to read later developer fields.
                 processor
@@ -461,6 +590,47 @@ fn read_messages(file: &[u8]) -> Result<Raw, ParseError> {
     Ok(raw)
 }
 
+/// Convert system-time stamps (below [`SYSTEM_TIME_LIMIT`]) to UTC with the file's offset.
+/// True when something was converted. Refused when every record is in system time and the
+/// file gives no offset.
+fn system_time_to_utc(raw: &mut Raw) -> Result<bool, ParseError> {
+    let is_system = |ts: i64| ts < SYSTEM_TIME_LIMIT;
+    let any = raw.records.iter().any(|r| is_system(r.ts));
+    if !any {
+        return Ok(false);
+    }
+    let Some(offset) = raw.system_offset else {
+        if raw.records.iter().all(|r| is_system(r.ts)) {
+            return Err(ParseError::TimeAxis(
+                "the FIT timestamps count from device power-on (system time) and the file gives \
+                 no offset to UTC"
+                    .to_string(),
+            ));
+        }
+        return Ok(false);
+    };
+    let fix = |ts: &mut i64| {
+        if is_system(*ts) {
+            *ts += offset;
+        }
+    };
+    for r in &mut raw.records {
+        fix(&mut r.ts);
+    }
+    for (ts, _) in &mut raw.timer_events {
+        fix(ts);
+    }
+    for lap in &mut raw.laps {
+        if let Some(ts) = lap.ts.as_mut() {
+            fix(ts);
+        }
+        if let Some(ts) = lap.start.as_mut() {
+            fix(ts);
+        }
+    }
+    Ok(true)
+}
+
 fn utc(fit_s: i64) -> Result<DateTime<Utc>, ParseError> {
     DateTime::from_timestamp(fit_s + FIT_EPOCH_UNIX_S, 0)
         .ok_or_else(|| fit_err(format!("timestamp {fit_s} out of range")))
@@ -470,10 +640,22 @@ fn channel(recs: &[Rec], get: impl Fn(&Rec) -> Option<f64>) -> Option<Channel> {
     Channel::new(recs.iter().map(get).collect()).into_option()
 }
 
-fn build_session(raw: Raw) -> Result<Session, ParseError> {
+fn build_session(mut raw: Raw) -> Result<Session, ParseError> {
+    let converted = system_time_to_utc(&mut raw)?;
     let mut recs = raw.records;
-    if recs.windows(2).any(|w| w[1].ts < w[0].ts) {
+    if recs
+        .iter()
+        .zip(recs.iter().skip(1))
+        .any(|(a, b)| b.ts < a.ts)
+    {
         recs.sort_by_key(|r| r.ts); // stable
+    }
+    if let (true, Some(first), Some(last)) = (recs.len() >= 2, recs.first(), recs.last()) {
+        if first.ts == last.ts {
+            return Err(ParseError::TimeAxis(
+                super::timeaxis::one_timestamp_message(recs.len(), utc(first.ts)?),
+            ));
+        }
     }
     // Merge records sharing a timestamp into the first of them.
     let mut merged: Vec<Rec> = Vec::with_capacity(recs.len());
@@ -548,6 +730,12 @@ fn build_session(raw: Raw) -> Result<Session, ParseError> {
         });
     }
 
+    if converted {
+        session.warnings.push(
+            "timestamps counted from device power-on were converted to UTC with the file's time offset"
+                .to_string(),
+        );
+    }
     session.sport = match raw.session_sport.or(raw.sport_sport) {
         Some(v) if FitSport::is_named_variant(i64::from(v)) => {
             Sport::from_name(&FitSport::from(v).to_string())

@@ -177,7 +177,7 @@ impl GpxHandler {
             return Err(ParseError::NoSamples);
         }
         self.points.sort_by_key(|p| p.time);
-        let Some(start) = self.points[0].time else {
+        let Some(start) = self.points.first().and_then(|p| p.time) else {
             return Err(ParseError::NoSamples);
         };
         let mut s = Session::empty(FileFormat::Gpx, start);

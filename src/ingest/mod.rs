@@ -3,16 +3,28 @@
 //! `decode` turns bytes into a raw session per format; `ingest_bytes` adds the content
 //! hash, the derived channels (distance from positions, speed from distance) and the
 //! bad-data flags. Only this module parses file formats.
+//!
+//! Reading from disk goes through [`read_activity`], the one bounded reader: it looks at the
+//! file's metadata first and refuses anything that is not a regular file or is larger than
+//! [`Limits::max_file_bytes`] (default [`DEFAULT_MAX_FILE_MB`] MiB, `[ingest] max_file_mb` in
+//! `config.toml`), checks a FIT header before reading the body, and never reads more than
+//! the limit even if the file grows while it is read. TCX and GPX are parsed by quick-xml's
+//! streaming reader over that bounded buffer (no document tree is built), so the size cap
+//! bounds the memory any activity file can take.
 
 pub mod clean;
 pub mod derive;
 pub mod fit;
 pub mod gpx;
 pub mod hash;
+pub mod note;
 pub mod tcx;
+pub mod timeaxis;
 mod xml;
 
+use std::io::Read;
 use std::path::{Path, PathBuf};
+use std::sync::atomic::{AtomicU64, Ordering};
 
 use crate::model::{AthleteProfile, FileFormat, Session};
 
@@ -31,6 +43,8 @@ pub enum ParseError {
     Gpx(String),
     #[error("no samples with a timestamp")]
     NoSamples,
+    #[error("no usable time axis: {0}")]
+    TimeAxis(String),
 }
 
 /// A file that could not be read, with its path.
@@ -48,14 +62,171 @@ pub enum IngestError {
         #[source]
         source: ParseError,
     },
+    /// Refused before reading: too large, or not a regular file.
+    #[error("{path}: {reason}")]
+    Refused { path: PathBuf, reason: String },
 }
 
 impl IngestError {
     pub fn path(&self) -> &Path {
         match self {
-            IngestError::Io { path, .. } | IngestError::Parse { path, .. } => path,
+            IngestError::Io { path, .. }
+            | IngestError::Parse { path, .. }
+            | IngestError::Refused { path, .. } => path,
         }
     }
+
+    /// The message without the path (for lists that print the path themselves).
+    pub fn reason(&self) -> String {
+        match self {
+            IngestError::Io { source, .. } => source.to_string(),
+            IngestError::Parse { source, .. } => source.to_string(),
+            IngestError::Refused { reason, .. } => reason.clone(),
+        }
+    }
+}
+
+/// The default size cap for one activity file, MiB. A 10-hour 1 Hz FIT file with every
+/// channel is about 1.5 MB and its TCX about 15 MB, so 64 MiB leaves ample room.
+pub const DEFAULT_MAX_FILE_MB: u64 = 64;
+
+/// Bounds on what reading one activity file may cost.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub struct Limits {
+    /// Files larger than this are refused without being read.
+    pub max_file_bytes: u64,
+}
+
+impl Limits {
+    /// A cap of `mb` MiB (at least 1).
+    pub fn from_mb(mb: u64) -> Limits {
+        Limits {
+            max_file_bytes: mb.max(1).saturating_mul(1024 * 1024),
+        }
+    }
+}
+
+impl Default for Limits {
+    fn default() -> Limits {
+        Limits::from_mb(DEFAULT_MAX_FILE_MB)
+    }
+}
+
+/// The process-wide cap, set once from the configuration at start-up.
+static MAX_FILE_BYTES: AtomicU64 = AtomicU64::new(DEFAULT_MAX_FILE_MB * 1024 * 1024);
+
+/// Set the limits every later [`ingest_file`] and roster read uses (from `config.toml`).
+pub fn set_limits(limits: Limits) {
+    MAX_FILE_BYTES.store(limits.max_file_bytes, Ordering::Relaxed);
+}
+
+/// The limits set by [`set_limits`] (the defaults until then).
+pub fn limits() -> Limits {
+    Limits {
+        max_file_bytes: MAX_FILE_BYTES.load(Ordering::Relaxed),
+    }
+}
+
+/// A byte count for people: "2.0 GB", "64 MiB" style, with the exact count for large ones.
+fn human_size(bytes: u64) -> String {
+    const MIB: f64 = 1024.0 * 1024.0;
+    let mib = bytes as f64 / MIB;
+    if mib >= 1024.0 {
+        format!("{:.1} GiB", mib / 1024.0)
+    } else if mib >= 1.0 {
+        format!("{mib:.1} MiB")
+    } else {
+        format!("{bytes} bytes")
+    }
+}
+
+/// Read an activity file, bounded.
+///
+/// Refuses (without reading) a path that is not a regular file (after following symlinks)
+/// and a file larger than `limits.max_file_bytes`. A file whose name ends in `.fit` has its
+/// header read and checked first (size byte, `.FIT` signature, declared data size against
+/// the file size), so a damaged or foreign file costs 14 bytes, not its whole length. The
+/// body is read with a hard bound of the cap plus one byte, so a file that grows while it is
+/// read is refused too.
+pub fn read_activity(path: &Path, limits: Limits) -> Result<Vec<u8>, IngestError> {
+    let io = |source| IngestError::Io {
+        path: path.to_path_buf(),
+        source,
+    };
+    let refused = |reason: String| IngestError::Refused {
+        path: path.to_path_buf(),
+        reason,
+    };
+    let too_large = |size: u64| {
+        refused(format!(
+            "file is {} ({size} bytes), above the {} limit for activity files \
+             (raise [ingest] max_file_mb in config.toml to read it)",
+            human_size(size),
+            human_size(limits.max_file_bytes)
+        ))
+    };
+    let meta = std::fs::metadata(path).map_err(io)?;
+    if !meta.is_file() {
+        let what = if meta.is_dir() {
+            "a folder"
+        } else {
+            "not a regular file"
+        };
+        return Err(refused(format!("{what}, not an activity file")));
+    }
+    let size = meta.len();
+    if size > limits.max_file_bytes {
+        return Err(too_large(size));
+    }
+    let file = std::fs::File::open(path).map_err(io)?;
+    let is_fit = path
+        .extension()
+        .and_then(|e| e.to_str())
+        .and_then(FileFormat::from_extension)
+        == Some(FileFormat::Fit);
+    let mut bounded = file.take(limits.max_file_bytes.saturating_add(1));
+    let mut bytes = Vec::new();
+    if is_fit && size > 0 {
+        let mut head = [0u8; 14];
+        let got = read_up_to(&mut bounded, &mut head).map_err(io)?;
+        let head = head.get(..got).unwrap_or_default();
+        fit::check_header(head, size).map_err(|source| IngestError::Parse {
+            path: path.to_path_buf(),
+            source,
+        })?;
+        bytes.extend_from_slice(head);
+    }
+    // The capacity comes from the metadata, already checked against the cap.
+    bytes.reserve(
+        usize::try_from(size)
+            .unwrap_or(0)
+            .saturating_sub(bytes.len()),
+    );
+    bounded.read_to_end(&mut bytes).map_err(io)?;
+    if u64::try_from(bytes.len()).unwrap_or(u64::MAX) > limits.max_file_bytes {
+        return Err(refused(format!(
+            "file grew while being read and is now above the {} limit for activity files",
+            human_size(limits.max_file_bytes)
+        )));
+    }
+    Ok(bytes)
+}
+
+/// Fill `buf` as far as the reader allows; the number of bytes read.
+fn read_up_to(r: &mut impl Read, buf: &mut [u8]) -> std::io::Result<usize> {
+    let mut got = 0;
+    while let Some(rest) = buf.get_mut(got..) {
+        if rest.is_empty() {
+            break;
+        }
+        match r.read(rest) {
+            Ok(0) => break,
+            Ok(n) => got += n,
+            Err(e) if e.kind() == std::io::ErrorKind::Interrupted => {}
+            Err(e) => return Err(e),
+        }
+    }
+    Ok(got)
 }
 
 /// The format of a file: by extension first, then by looking at the bytes.
@@ -72,10 +243,10 @@ pub fn detect_format(path: Option<&Path>, bytes: &[u8]) -> Option<FileFormat> {
 
 /// Guess the format from the content alone.
 pub fn sniff(bytes: &[u8]) -> Option<FileFormat> {
-    if bytes.len() >= 12 && &bytes[8..12] == b".FIT" {
+    if bytes.get(8..12) == Some(b".FIT".as_slice()) {
         return Some(FileFormat::Fit);
     }
-    let head = &bytes[..bytes.len().min(4096)];
+    let head = bytes.get(..bytes.len().min(4096)).unwrap_or_default();
     let text = String::from_utf8_lossy(head);
     if text.contains("<TrainingCenterDatabase") || text.contains(":TrainingCenterDatabase") {
         return Some(FileFormat::Tcx);
@@ -91,11 +262,13 @@ pub fn decode(bytes: &[u8], format: FileFormat) -> Result<Session, ParseError> {
     if bytes.is_empty() {
         return Err(ParseError::Empty);
     }
-    match format {
+    let mut session = match format {
         FileFormat::Fit => fit::decode(bytes),
         FileFormat::Tcx => tcx::decode(bytes),
         FileFormat::Gpx => gpx::decode(bytes),
-    }
+    }?;
+    timeaxis::repair(&mut session)?;
+    Ok(session)
 }
 
 /// Decode, then hash, derive missing channels and flag bad data.
@@ -114,12 +287,10 @@ pub fn ingest_bytes(
     Ok(session)
 }
 
-/// Read a file from disk and ingest it. The format comes from the extension or the content.
+/// Read a file from disk (bounded by [`limits`]) and ingest it. The format comes from the
+/// extension or the content.
 pub fn ingest_file(path: &Path, profile: Option<&AthleteProfile>) -> Result<Session, IngestError> {
-    let bytes = std::fs::read(path).map_err(|source| IngestError::Io {
-        path: path.to_path_buf(),
-        source,
-    })?;
+    let bytes = read_activity(path, limits())?;
     let parse_err = |source| IngestError::Parse {
         path: path.to_path_buf(),
         source,

@@ -262,7 +262,7 @@ impl TcxHandler {
         }
         // Every kept point has a time; sort_by_key is stable.
         self.points.sort_by_key(|p| p.time);
-        let Some(start) = self.points[0].time else {
+        let Some(start) = self.points.first().and_then(|p| p.time) else {
             return Err(ParseError::NoSamples);
         };
         let mut s = Session::empty(FileFormat::Tcx, start);
@@ -320,10 +320,11 @@ fn build_laps(raw: &[RawLap], start: DateTime<Utc>) -> Vec<DeviceLap> {
         })
         .collect();
     laps.sort_by(|a, b| a.start_s.total_cmp(&b.start_s));
-    for i in 1..laps.len() {
-        let next_start = laps[i].start_s;
-        if laps[i - 1].end_s > next_start {
-            laps[i - 1].end_s = next_start;
+    // Each lap ends no later than the next one starts.
+    let starts: Vec<f64> = laps.iter().skip(1).map(|l| l.start_s).collect();
+    for (lap, next_start) in laps.iter_mut().zip(starts) {
+        if lap.end_s > next_start {
+            lap.end_s = next_start;
         }
     }
     laps.retain(|l| l.end_s > l.start_s);

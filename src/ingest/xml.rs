@@ -123,10 +123,14 @@ pub(crate) fn walk<H: Handler>(bytes: &[u8], root: &str, handler: &mut H) -> Res
     }
 
     if let Some(&end) = name_ends.last() {
-        let begin = name_ends.len().checked_sub(2).map_or(0, |i| name_ends[i]);
+        let begin = name_ends
+            .len()
+            .checked_sub(2)
+            .and_then(|i| name_ends.get(i).copied())
+            .unwrap_or(0);
         return Err(format!(
             "truncated: input ends inside <{}>",
-            String::from_utf8_lossy(&names[begin..end])
+            String::from_utf8_lossy(names.get(begin..end).unwrap_or_default())
         ));
     }
     if !root_done {
@@ -168,7 +172,7 @@ fn push_reference(text: &mut String, r: &BytesRef<'_>) -> Result<(), String> {
 /// 1-based line and column (in bytes) of a byte offset.
 pub(crate) fn line_col(bytes: &[u8], pos: u64) -> (usize, usize) {
     let pos = usize::try_from(pos).unwrap_or(usize::MAX).min(bytes.len());
-    let before = &bytes[..pos];
+    let before = bytes.get(..pos).unwrap_or_default();
     let line = before.iter().filter(|&&b| b == b'\n').count() + 1;
     let col = match before.iter().rposition(|&b| b == b'\n') {
         Some(nl) => pos - nl,

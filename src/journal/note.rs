@@ -40,6 +40,8 @@ impl RevealPermit {
 
 /// The athlete's note for a revealed session: the text of `note_file` (`notes/<stem>.txt`)
 /// when given and readable and not blank, else the note embedded in the activity file.
+/// The note file may be UTF-8 (with or without a byte-order mark), UTF-16 or Latin-1; text
+/// that was converted ends with a marker line such as "(converted from Latin-1)".
 ///
 /// A `note_file` whose stem does not match the permit's session is ignored: a permit opens
 /// only its own session's note.
@@ -53,10 +55,12 @@ pub fn read_note(
             .file_stem()
             .is_some_and(|s| s.to_string_lossy() == permit.stem());
         if stem_matches {
-            if let Ok(text) = std::fs::read_to_string(path) {
-                if !text.trim().is_empty() {
-                    return Some(text);
-                }
+            // Any encoding: converted text carries a marker line (ingest::note).
+            if let Some(text) = crate::ingest::note::read_file(path)
+                .ok()
+                .and_then(|d| d.display())
+            {
+                return Some(text);
             }
         }
     }

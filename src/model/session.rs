@@ -227,6 +227,10 @@ pub struct Session {
     pub note: Option<String>,
     /// Which channels were derived by us rather than recorded (e.g. distance from positions).
     pub derived: Vec<ChannelKind>,
+    /// What ingest noticed and worked around while reading the file, one plain sentence each
+    /// (timestamps dropped as out of range, bytes after the end of a FIT file, ...).
+    #[serde(default)]
+    pub warnings: Vec<String>,
 }
 
 /// The names of the per-sample channels.
@@ -282,6 +286,7 @@ impl Session {
             content_hash: String::new(),
             note: None,
             derived: Vec::new(),
+            warnings: Vec::new(),
         }
     }
 

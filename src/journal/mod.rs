@@ -624,59 +624,7 @@ impl Journal {
         score: u8,
         now: DateTime<Utc>,
     ) -> Result<()> {
-        if !(1..=5).contains(&score) {
-            return Err(JournalError::InvalidScore {
-                path: self.path.clone(),
-                score,
-            });
-        }
-        self.write(|tx, path| {
-            let row = require_session(tx, path, session_id)?;
-            let rid = ensure_review(tx, path, &row, now)?;
-            let review = review_row(tx, path, rid)?;
-            let n = if review.revealed_at.is_some() {
-                review.work_intervals.unwrap_or(0)
-            } else {
-                row.work_intervals
-                    .ok_or_else(|| JournalError::NotAnalysed {
-                        path: path.to_path_buf(),
-                        session_id: session_id.to_string(),
-                    })?
-            };
-            if interval == 0 || interval > n {
-                return Err(JournalError::NoSuchInterval {
-                    path: path.to_path_buf(),
-                    session_id: session_id.to_string(),
-                    interval,
-                    work_intervals: n,
-                });
-            }
-            if review.revealed_at.is_none() {
-                tx.execute(
-                    "INSERT INTO score (review_id, interval_no, score, given_at)
-                     VALUES (?1, ?2, ?3, ?4)
-                     ON CONFLICT (review_id, interval_no)
-                     DO UPDATE SET score = excluded.score, given_at = excluded.given_at",
-                    params![rid, interval, score, ts(now)],
-                )
-                .sq(path)?;
-                return Ok(());
-            }
-            let current =
-                current_score(tx, path, rid, interval)?.ok_or_else(|| JournalError::BadValue {
-                    path: path.to_path_buf(),
-                    detail: format!("{session_id}: revealed without a score for {interval}"),
-                })?;
-            if current != score {
-                tx.execute(
-                    "INSERT INTO revision (review_id, target, interval_no, old_value, new_value, at)
-                     VALUES (?1, 'score', ?2, ?3, ?4, ?5)",
-                    params![rid, interval, current.to_string(), score.to_string(), ts(now)],
-                )
-                .sq(path)?;
-            }
-            Ok(())
-        })
+        self.grade(session_id, &[(interval, score)], None, now)
     }
 
     /// Give (before the reveal) or revise (after it) the purpose verdict.
@@ -686,30 +634,65 @@ impl Journal {
         verdict: PurposeVerdict,
         now: DateTime<Utc>,
     ) -> Result<()> {
+        self.grade(session_id, &[], Some(verdict), now)
+    }
+
+    /// One grading action, all or nothing: every `(interval, score)` (1-based work interval,
+    /// score 1-5; a later pair for the same interval wins) and the purpose verdict, if given.
+    /// Everything is checked first (scores in range, every interval exists) and then written
+    /// in one transaction, so a refused or interrupted action leaves nothing behind. Before
+    /// the reveal the values replace the blind ones; after it each change is kept as a
+    /// [`Revision`] (an unchanged value records nothing).
+    pub fn grade(
+        &mut self,
+        session_id: &str,
+        scores: &[(u32, u8)],
+        verdict: Option<PurposeVerdict>,
+        now: DateTime<Utc>,
+    ) -> Result<()> {
+        if let Some(&(_, score)) = scores.iter().find(|(_, s)| !(1..=5).contains(s)) {
+            return Err(JournalError::InvalidScore {
+                path: self.path.clone(),
+                score,
+            });
+        }
+        // The last value given for an interval wins.
+        let scores: BTreeMap<u32, u8> = scores.iter().copied().collect();
         self.write(|tx, path| {
             let row = require_session(tx, path, session_id)?;
-            let rid = ensure_review(tx, path, &row, now)?;
-            let review = review_row(tx, path, rid)?;
-            if review.revealed_at.is_none() {
-                tx.execute(
-                    "UPDATE review SET verdict = ?2, verdict_at = ?3 WHERE id = ?1",
-                    params![rid, verdict.as_str(), ts(now)],
-                )
-                .sq(path)?;
+            let review = match row.review_id {
+                Some(rid) => Some(review_row(tx, path, rid)?),
+                None => None,
+            };
+            let revealed = review.as_ref().is_some_and(|r| r.revealed_at.is_some());
+            if !scores.is_empty() {
+                let n = if revealed {
+                    review.as_ref().and_then(|r| r.work_intervals).unwrap_or(0)
+                } else {
+                    row.work_intervals
+                        .ok_or_else(|| JournalError::NotAnalysed {
+                            path: path.to_path_buf(),
+                            session_id: session_id.to_string(),
+                        })?
+                };
+                if let Some(&interval) = scores.keys().find(|&&i| i == 0 || i > n) {
+                    return Err(JournalError::NoSuchInterval {
+                        path: path.to_path_buf(),
+                        session_id: session_id.to_string(),
+                        interval,
+                        work_intervals: n,
+                    });
+                }
+            }
+            if scores.is_empty() && verdict.is_none() {
                 return Ok(());
             }
-            let current =
-                current_verdict(tx, path, rid)?.ok_or_else(|| JournalError::BadValue {
-                    path: path.to_path_buf(),
-                    detail: format!("{session_id}: revealed without a verdict"),
-                })?;
-            if current != verdict {
-                tx.execute(
-                    "INSERT INTO revision (review_id, target, interval_no, old_value, new_value, at)
-                     VALUES (?1, 'verdict', NULL, ?2, ?3, ?4)",
-                    params![rid, current.as_str(), verdict.as_str(), ts(now)],
-                )
-                .sq(path)?;
+            let rid = ensure_review(tx, path, &row, now)?;
+            for (&interval, &score) in &scores {
+                write_score(tx, path, session_id, rid, revealed, interval, score, now)?;
+            }
+            if let Some(v) = verdict {
+                write_verdict(tx, path, session_id, rid, revealed, v, now)?;
             }
             Ok(())
         })
@@ -1440,6 +1423,85 @@ fn revisions_of(conn: &Connection, path: &Path, rid: i64) -> Result<Vec<Revision
             })
         })
         .collect()
+}
+
+/// Write one validated score inside a grading transaction: the blind value before the
+/// reveal, a revision (when it changes) after it.
+#[allow(clippy::too_many_arguments)]
+fn write_score(
+    tx: &Connection,
+    path: &Path,
+    session_id: &str,
+    rid: i64,
+    revealed: bool,
+    interval: u32,
+    score: u8,
+    now: DateTime<Utc>,
+) -> Result<()> {
+    if !revealed {
+        tx.execute(
+            "INSERT INTO score (review_id, interval_no, score, given_at)
+             VALUES (?1, ?2, ?3, ?4)
+             ON CONFLICT (review_id, interval_no)
+             DO UPDATE SET score = excluded.score, given_at = excluded.given_at",
+            params![rid, interval, score, ts(now)],
+        )
+        .sq(path)?;
+        return Ok(());
+    }
+    let current =
+        current_score(tx, path, rid, interval)?.ok_or_else(|| JournalError::BadValue {
+            path: path.to_path_buf(),
+            detail: format!("{session_id}: revealed without a score for {interval}"),
+        })?;
+    if current != score {
+        tx.execute(
+            "INSERT INTO revision (review_id, target, interval_no, old_value, new_value, at)
+             VALUES (?1, 'score', ?2, ?3, ?4, ?5)",
+            params![
+                rid,
+                interval,
+                current.to_string(),
+                score.to_string(),
+                ts(now)
+            ],
+        )
+        .sq(path)?;
+    }
+    Ok(())
+}
+
+/// Write the purpose verdict inside a grading transaction (blind, or a revision).
+fn write_verdict(
+    tx: &Connection,
+    path: &Path,
+    session_id: &str,
+    rid: i64,
+    revealed: bool,
+    verdict: PurposeVerdict,
+    now: DateTime<Utc>,
+) -> Result<()> {
+    if !revealed {
+        tx.execute(
+            "UPDATE review SET verdict = ?2, verdict_at = ?3 WHERE id = ?1",
+            params![rid, verdict.as_str(), ts(now)],
+        )
+        .sq(path)?;
+        return Ok(());
+    }
+    let current = current_verdict(tx, path, rid)?.ok_or_else(|| JournalError::BadValue {
+        path: path.to_path_buf(),
+        detail: format!("{session_id}: revealed without a verdict"),
+    })?;
+    if current != verdict {
+        tx.execute(
+            "INSERT INTO revision (review_id, target, interval_no, old_value, new_value, at)
+             VALUES (?1, 'verdict', NULL, ?2, ?3, ?4)",
+            params![rid, current.as_str(), verdict.as_str(), ts(now)],
+        )
+        .sq(path)?;
+    }
+    Ok(())
 }
 
 fn feedback_sent(conn: &Connection, path: &Path, rid: i64) -> Result<bool> {

@@ -1567,7 +1567,7 @@ impl App {
         }
         let interval = sel.min(n - 1) as u32 + 1;
         let revealed = self.open.as_ref().is_some_and(OpenSession::revealed);
-        match self.journal.set_score(&id, interval, score, now()) {
+        match self.journal.grade(&id, &[(interval, score)], None, now()) {
             Ok(()) => {
                 self.reload_grades();
                 let advanced = match self.open.as_mut() {

@@ -889,6 +889,33 @@ impl Journal {
         })
     }
 
+    /// Save the feedback text (when `body` is given) and record that it was copied, exported
+    /// or printed, in one transaction: both or neither. Needs the reveal first.
+    pub fn send_feedback(
+        &mut self,
+        session_id: &str,
+        body: Option<&str>,
+        kind: FeedbackEventKind,
+        now: DateTime<Utc>,
+    ) -> Result<()> {
+        self.write(|tx, path| {
+            let rid = revealed_review(tx, path, session_id)?;
+            if let Some(body) = body {
+                tx.execute(
+                    "INSERT INTO feedback_version (review_id, body, saved_at) VALUES (?1, ?2, ?3)",
+                    params![rid, body, ts(now)],
+                )
+                .sq(path)?;
+            }
+            tx.execute(
+                "INSERT INTO feedback_event (review_id, kind, at) VALUES (?1, ?2, ?3)",
+                params![rid, kind.as_str(), ts(now)],
+            )
+            .sq(path)?;
+            Ok(())
+        })
+    }
+
     /// When and how the feedback left splitdesk, oldest first.
     pub fn feedback_events(&self, session_id: &str) -> Result<Vec<FeedbackEvent>> {
         self.read(|conn, path| {

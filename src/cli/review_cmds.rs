@@ -641,6 +641,7 @@ pub fn journal_check(ws: &Workspace, json: bool) -> anyhow::Result<i32> {
                 "journal": ws.journal.path(),
                 "ok": r.is_ok(),
                 "problems": r.problems,
+                "cache_problems": r.cache_problems,
                 "schema_version": r.schema_version,
                 "sessions": r.sessions,
                 "reviews": r.reviews,
@@ -666,6 +667,9 @@ pub fn journal_check(ws: &Workspace, json: bool) -> anyhow::Result<i32> {
         );
         for p in &r.problems {
             println!("  {p}");
+        }
+        for p in &r.cache_problems {
+            println!("  {}", crate::roster::printable(p));
         }
     }
     Ok(if r.is_ok() { 0 } else { 1 })

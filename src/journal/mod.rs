@@ -152,9 +152,9 @@ const SQLITE_MAGIC: &[u8; 16] = b"SQLite format 3\0";
 
 /// Check the first bytes without SQLite: a non-empty file must start with the SQLite header.
 fn check_header(path: &Path) -> Result<()> {
-    let io = |source| JournalError::Io {
+    let io = |err| JournalError::Io {
         path: path.to_path_buf(),
-        source,
+        err,
     };
     let mut f = fs::File::open(path).map_err(io)?;
     let mut head = Vec::with_capacity(16);
@@ -285,7 +285,7 @@ impl Journal {
                     e.kind(),
                     std::io::ErrorKind::NotFound | std::io::ErrorKind::NotADirectory
                 ) => {}
-            Err(source) => return Err(JournalError::Io { path, source }),
+            Err(err) => return Err(JournalError::Io { path, err }),
         }
         check_writable_dir(&path)?;
         let conn = Connection::open_with_flags(
@@ -328,8 +328,8 @@ impl Journal {
     /// Open an existing journal read-only. Write methods then fail with `ReadOnlyLocation`.
     pub fn open_read_only(path: &Path) -> Result<Journal> {
         let path = path.to_path_buf();
-        if let Err(source) = fs::metadata(&path) {
-            return Err(JournalError::Io { path, source });
+        if let Err(err) = fs::metadata(&path) {
+            return Err(JournalError::Io { path, err });
         }
         check_header(&path)?;
         let conn = Connection::open_with_flags(
@@ -552,7 +552,7 @@ impl Journal {
                 "SELECT summary_json FROM session
                  WHERE session_id = ?1 AND summary_version = ?2 AND summary_hash = content_hash",
                 params![session_id, analysis_version],
-                |r| r.get::<_, Option<String>>(0),
+                |r| Ok(cache_text(r.get_ref(0)?)),
             )
             .optional()
             .map(Option::flatten)
@@ -1197,7 +1197,33 @@ impl Journal {
             let version: i64 = conn
                 .pragma_query_value(None, "user_version", |r| r.get(0))
                 .sq(path)?;
+            // The analysis cache is derived: a damaged row is reported, not a failure.
+            let mut cache_problems = Vec::new();
+            {
+                let mut stmt = conn
+                    .prepare(
+                        "SELECT CAST(session_id AS BLOB), summary_json FROM session
+                         WHERE summary_json IS NOT NULL ORDER BY session_id",
+                    )
+                    .sq(path)?;
+                let mut rows = stmt.query([]).sq(path)?;
+                while let Some(r) = rows.next().sq(path)? {
+                    if let Some(why) = cache_damage(r.get_ref(1).sq(path)?) {
+                        let id = match r.get_ref(0).sq(path)? {
+                            rusqlite::types::ValueRef::Blob(b) => {
+                                String::from_utf8_lossy(b).into_owned()
+                            }
+                            _ => String::new(),
+                        };
+                        cache_problems.push(format!(
+                            "cached analysis of {id} is damaged ({why}); it is dropped and \
+                             made again from the activity file on the next run"
+                        ));
+                    }
+                }
+            }
             Ok(CheckReport {
+                cache_problems,
                 problems,
                 schema_version: u32::try_from(version).unwrap_or(0),
                 sessions: count("session")?,
@@ -1263,7 +1289,7 @@ fn session_row(conn: &Connection, path: &Path, session_id: &str) -> Result<Optio
          FROM session WHERE session_id = ?1",
         [session_id],
         |r| {
-            let json: Option<String> = r.get(4)?;
+            let json = cache_text(r.get_ref(4)?);
             let version: Option<u32> = r.get(5)?;
             let n: Option<u32> = r.get(6)?;
             Ok(SessionRow {
@@ -1301,10 +1327,37 @@ fn summary_for_hash(
            AND summary_version IS NOT NULL AND work_intervals IS NOT NULL
          ORDER BY seen_at DESC LIMIT 1",
         [hash],
-        |r| Ok((r.get(0)?, r.get(1)?, r.get(2)?)),
+        |r| Ok((cache_text(r.get_ref(0)?), r.get(1)?, r.get(2)?)),
     )
     .optional()
     .sq(path)
+    .map(|found| found.and_then(|(json, v, n)| json.map(|j| (j, v, n))))
+}
+
+/// A cached text column as a string; `None` when it is missing or damaged (not UTF-8 text).
+/// The analysis cache is derived data: a damaged value is a cache miss, never an error.
+fn cache_text(v: rusqlite::types::ValueRef<'_>) -> Option<String> {
+    use rusqlite::types::ValueRef;
+    match v {
+        ValueRef::Text(b) | ValueRef::Blob(b) => std::str::from_utf8(b).ok().map(str::to_string),
+        _ => None,
+    }
+}
+
+/// Why a cached summary cannot be used, if it cannot.
+fn cache_damage(v: rusqlite::types::ValueRef<'_>) -> Option<&'static str> {
+    use rusqlite::types::ValueRef;
+    match v {
+        ValueRef::Null => None,
+        ValueRef::Text(b) | ValueRef::Blob(b) => match std::str::from_utf8(b) {
+            Err(_) => Some("not UTF-8 text"),
+            Ok(t) if serde_json::from_str::<serde::de::IgnoredAny>(t).is_err() => {
+                Some("not valid JSON")
+            }
+            Ok(_) => None,
+        },
+        _ => Some("not text"),
+    }
 }
 
 fn latest_review_for_hash(conn: &Connection, path: &Path, hash: &str) -> Result<Option<i64>> {

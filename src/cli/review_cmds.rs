@@ -622,7 +622,7 @@ pub fn bias_check(ws: &mut Workspace, athlete: Option<&str>, json: bool) -> anyh
 
 /// `splitdesk journal backup FILE`.
 pub fn journal_backup(ws: &Workspace, dest: &Path) -> anyhow::Result<i32> {
-    ws.journal.backup_to(dest)?;
+    ws.journal.backup_outside_roster(dest, &ws.roster.root)?;
     println!(
         "{}: backup of {} written",
         dest.display(),

@@ -92,6 +92,13 @@ pub enum JournalError {
     )]
     InsideRoster { path: PathBuf, roster: PathBuf },
 
+    /// A backup would sit inside the roster folder, which may be shared with athletes.
+    #[error(
+        "{path}: a backup of the journal must not be written inside the roster folder {roster} \
+         (it may be shared with athletes); choose a file outside it. Nothing was written"
+    )]
+    BackupInsideRoster { path: PathBuf, roster: PathBuf },
+
     /// The backup destination already exists; backups never overwrite a file.
     #[error("{path}: backup destination already exists; choose a new file name")]
     DestinationExists { path: PathBuf },

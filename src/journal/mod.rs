@@ -1237,10 +1237,22 @@ impl Journal {
         })
     }
 
+    /// [`Journal::backup_to`] after checking that `dest` is not inside `roster_root`
+    /// (symbolic links and `..` resolved as for the journal itself).
+    pub fn backup_outside_roster(&self, dest: &Path, roster_root: &Path) -> Result<()> {
+        if let Err(JournalError::InsideRoster { path, roster }) =
+            check_outside_roster(dest, roster_root)
+        {
+            return Err(JournalError::BackupInsideRoster { path, roster });
+        }
+        self.backup_to(dest)
+    }
+
     /// Copy the journal to a new file `dest` with SQLite's online backup API (safe while in
     /// use). Never overwrites: an existing `dest` is refused.
     pub fn backup_to(&self, dest: &Path) -> Result<()> {
-        if dest.exists() {
+        // `symlink_metadata`: a dangling symbolic link exists too (and would be followed).
+        if fs::symlink_metadata(dest).is_ok() {
             return Err(JournalError::DestinationExists {
                 path: dest.to_path_buf(),
             });

@@ -51,16 +51,24 @@ pub struct Analysed {
 /// The key of the summary JSON that holds the inputs digest (the review itself ignores it).
 const INPUTS_KEY: &str = "analysis_inputs";
 
-/// Whether a cached summary was made under the athlete's current profile and plans.
+/// Whether a cached summary is a readable review made under the athlete's current profile
+/// and plans. A damaged one (bad JSON, not a review) is not current: it is made again.
 pub fn summary_is_current(json: &str, athlete: &Athlete) -> bool {
-    serde_json::from_str::<serde_json::Value>(json)
-        .ok()
-        .and_then(|v| {
-            v.get(INPUTS_KEY)
-                .and_then(|d| d.as_str())
-                .map(|d| d == athlete.inputs_digest)
-        })
-        .unwrap_or(false)
+    cached_review(json, athlete).is_some()
+}
+
+/// The review in a cached summary, when it is readable and was made under the athlete's
+/// current profile and plans.
+pub fn cached_review(json: &str, athlete: &Athlete) -> Option<Review> {
+    let value = serde_json::from_str::<serde_json::Value>(json).ok()?;
+    let current = value
+        .get(INPUTS_KEY)
+        .and_then(|d| d.as_str())
+        .is_some_and(|d| d == athlete.inputs_digest);
+    if !current {
+        return None;
+    }
+    serde_json::from_value(value).ok()
 }
 
 impl Analysed {
@@ -302,10 +310,10 @@ impl Workspace {
         let path = journal_path(&roster.root, journal)?;
         if let Some(parent) = path.parent() {
             if !parent.as_os_str().is_empty() && !parent.exists() {
-                std::fs::create_dir_all(parent).map_err(|source| {
+                std::fs::create_dir_all(parent).map_err(|err| {
                     WorkspaceError::Journal(JournalError::Io {
                         path: parent.to_path_buf(),
-                        source,
+                        err,
                     })
                 })?;
             }
@@ -343,14 +351,11 @@ impl Workspace {
         let (athlete, act) = (athlete.clone(), act.clone());
         let bytes = ingest::read_activity(&act.path, ingest::limits())?;
         let hash = ingest::hash::sha256_hex(&bytes);
-        if let Some(json) = self
+        // A damaged or stale cached summary is simply made again (and replaced).
+        if let Some(review) = self
             .cached(session_id, &hash)?
-            .filter(|json| summary_is_current(json, &athlete))
+            .and_then(|json| cached_review(&json, &athlete))
         {
-            let review = serde_json::from_str(&json).map_err(|e| WorkspaceError::BadCache {
-                path: act.path.clone(),
-                message: e.to_string(),
-            })?;
             return Ok((review, true));
         }
         let analysed = analyse_bytes(&athlete, &act, &bytes)?;

@@ -288,6 +288,15 @@ fn run_with_journal(
     journal: Option<&std::path::Path>,
 ) -> anyhow::Result<i32> {
     use review_cmds as rc;
+    // Checking and backing up the journal take it as it is: no sync first, so they work
+    // whatever the roster or the analysis cache hold.
+    if let Command::Journal(jc) = &cmd {
+        let ws = crate::workspace::Workspace::open(roster, journal)?;
+        return match jc {
+            JournalCommand::Backup { file } => rc::journal_backup(&ws, file),
+            JournalCommand::Check { json } => rc::journal_check(&ws, *json),
+        };
+    }
     let mut ws = rc::open_synced(roster, journal)?;
     match cmd {
         Command::Queue { athlete, json } => rc::queue(&mut ws, athlete.as_deref(), json),
@@ -346,8 +355,6 @@ fn run_with_journal(
             weeks,
             json,
         } => trends_cmd::run(&ws, &athlete, weeks, json),
-        Command::Journal(JournalCommand::Backup { file }) => rc::journal_backup(&ws, &file),
-        Command::Journal(JournalCommand::Check { json }) => rc::journal_check(&ws, json),
         _ => Ok(0),
     }
 }

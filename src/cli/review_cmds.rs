@@ -168,6 +168,16 @@ fn grade_out(ws: &Workspace, id: &str) -> anyhow::Result<GradeOut> {
     })
 }
 
+/// A refused write, said once: the journal's reason and that nothing of the action was kept.
+fn nothing_saved(e: JournalError) -> anyhow::Error {
+    let text = e.to_string();
+    if text.contains("nothing was saved") {
+        anyhow::anyhow!(text)
+    } else {
+        anyhow::anyhow!("{text}; nothing was saved")
+    }
+}
+
 /// `splitdesk grade SESSION --score N=S ... --verdict V`.
 pub fn grade(
     ws: &mut Workspace,
@@ -178,18 +188,15 @@ pub fn grade(
 ) -> anyhow::Result<i32> {
     ws.refresh(id, Utc::now())?;
     let verdict = match verdict {
-        Some(v) => Some(
-            PurposeVerdict::parse(v)
-                .with_context(|| format!("--verdict {v:?}: expected met, partly or missed"))?,
-        ),
+        Some(v) => Some(PurposeVerdict::parse(v).with_context(|| {
+            format!("--verdict {v:?}: expected met, partly or missed; nothing was saved")
+        })?),
         None => None,
     };
-    for &(n, s) in scores {
-        ws.journal.set_score(id, n, s, Utc::now())?;
-    }
-    if let Some(v) = verdict {
-        ws.journal.set_verdict(id, v, Utc::now())?;
-    }
+    // Checked as a whole, then written in one transaction: all of it or nothing.
+    ws.journal
+        .grade(id, scores, verdict, Utc::now())
+        .map_err(nothing_saved)?;
     let out = grade_out(ws, id)?;
     if json {
         println!("{}", serde_json::to_string_pretty(&out)?);
@@ -615,7 +622,7 @@ pub fn bias_check(ws: &mut Workspace, athlete: Option<&str>, json: bool) -> anyh
 
 /// `splitdesk journal backup FILE`.
 pub fn journal_backup(ws: &Workspace, dest: &Path) -> anyhow::Result<i32> {
-    ws.journal.backup_to(dest)?;
+    ws.journal.backup_outside_roster(dest, &ws.roster.root)?;
     println!(
         "{}: backup of {} written",
         dest.display(),
@@ -634,6 +641,7 @@ pub fn journal_check(ws: &Workspace, json: bool) -> anyhow::Result<i32> {
                 "journal": ws.journal.path(),
                 "ok": r.is_ok(),
                 "problems": r.problems,
+                "cache_problems": r.cache_problems,
                 "schema_version": r.schema_version,
                 "sessions": r.sessions,
                 "reviews": r.reviews,
@@ -659,6 +667,9 @@ pub fn journal_check(ws: &Workspace, json: bool) -> anyhow::Result<i32> {
         );
         for p in &r.problems {
             println!("  {p}");
+        }
+        for p in &r.cache_problems {
+            println!("  {}", crate::roster::printable(p));
         }
     }
     Ok(if r.is_ok() { 0 } else { 1 })

@@ -92,6 +92,13 @@ pub enum JournalError {
     )]
     InsideRoster { path: PathBuf, roster: PathBuf },
 
+    /// A backup would sit inside the roster folder, which may be shared with athletes.
+    #[error(
+        "{path}: a backup of the journal must not be written inside the roster folder {roster} \
+         (it may be shared with athletes); choose a file outside it. Nothing was written"
+    )]
+    BackupInsideRoster { path: PathBuf, roster: PathBuf },
+
     /// The backup destination already exists; backups never overwrite a file.
     #[error("{path}: backup destination already exists; choose a new file name")]
     DestinationExists { path: PathBuf },
@@ -143,21 +150,14 @@ pub enum JournalError {
     #[error("{path}: unexpected stored value: {detail}")]
     BadValue { path: PathBuf, detail: String },
 
-    /// A file-system operation failed.
-    #[error("{path}: {source}")]
-    Io {
-        path: PathBuf,
-        #[source]
-        source: std::io::Error,
-    },
+    /// A file-system operation failed. (The cause is in the message and deliberately not
+    /// chained as a `source`, so a printed error chain says it once.)
+    #[error("{path}: {err}")]
+    Io { path: PathBuf, err: std::io::Error },
 
-    /// Any other SQLite failure.
-    #[error("{path}: {source}")]
-    Sqlite {
-        path: PathBuf,
-        #[source]
-        source: rusqlite::Error,
-    },
+    /// Any other SQLite failure (its message said once, as for `Io`).
+    #[error("{path}: {err}")]
+    Sqlite { path: PathBuf, err: rusqlite::Error },
 }
 
 impl JournalError {
@@ -181,7 +181,7 @@ impl JournalError {
                     detail: source.to_string(),
                 }
             }
-            _ => JournalError::Sqlite { path, source },
+            _ => JournalError::Sqlite { path, err: source },
         }
     }
 }
@@ -189,6 +189,25 @@ impl JournalError {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn a_printed_error_chain_says_the_cause_once() {
+        let io = std::io::Error::new(std::io::ErrorKind::PermissionDenied, "no entry here");
+        let e = anyhow::Error::from(JournalError::Io {
+            path: "/j.sqlite".into(),
+            err: io,
+        });
+        let text = format!("{e:#}");
+        assert_eq!(text, "/j.sqlite: no entry here");
+        let sql = rusqlite::Error::InvalidColumnType(
+            4,
+            "summary_json".into(),
+            rusqlite::types::Type::Blob,
+        );
+        let e = anyhow::Error::from(JournalError::sql(std::path::Path::new("/j.sqlite"), sql));
+        let text = format!("{e:#}");
+        assert_eq!(text.matches("summary_json").count(), 1, "{text}");
+    }
 
     #[test]
     fn missing_reads_plainly() {

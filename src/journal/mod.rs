@@ -152,9 +152,9 @@ const SQLITE_MAGIC: &[u8; 16] = b"SQLite format 3\0";
 
 /// Check the first bytes without SQLite: a non-empty file must start with the SQLite header.
 fn check_header(path: &Path) -> Result<()> {
-    let io = |source| JournalError::Io {
+    let io = |err| JournalError::Io {
         path: path.to_path_buf(),
-        source,
+        err,
     };
     let mut f = fs::File::open(path).map_err(io)?;
     let mut head = Vec::with_capacity(16);
@@ -285,7 +285,7 @@ impl Journal {
                     e.kind(),
                     std::io::ErrorKind::NotFound | std::io::ErrorKind::NotADirectory
                 ) => {}
-            Err(source) => return Err(JournalError::Io { path, source }),
+            Err(err) => return Err(JournalError::Io { path, err }),
         }
         check_writable_dir(&path)?;
         let conn = Connection::open_with_flags(
@@ -328,8 +328,8 @@ impl Journal {
     /// Open an existing journal read-only. Write methods then fail with `ReadOnlyLocation`.
     pub fn open_read_only(path: &Path) -> Result<Journal> {
         let path = path.to_path_buf();
-        if let Err(source) = fs::metadata(&path) {
-            return Err(JournalError::Io { path, source });
+        if let Err(err) = fs::metadata(&path) {
+            return Err(JournalError::Io { path, err });
         }
         check_header(&path)?;
         let conn = Connection::open_with_flags(
@@ -552,7 +552,7 @@ impl Journal {
                 "SELECT summary_json FROM session
                  WHERE session_id = ?1 AND summary_version = ?2 AND summary_hash = content_hash",
                 params![session_id, analysis_version],
-                |r| r.get::<_, Option<String>>(0),
+                |r| Ok(cache_text(r.get_ref(0)?)),
             )
             .optional()
             .map(Option::flatten)
@@ -624,59 +624,7 @@ impl Journal {
         score: u8,
         now: DateTime<Utc>,
     ) -> Result<()> {
-        if !(1..=5).contains(&score) {
-            return Err(JournalError::InvalidScore {
-                path: self.path.clone(),
-                score,
-            });
-        }
-        self.write(|tx, path| {
-            let row = require_session(tx, path, session_id)?;
-            let rid = ensure_review(tx, path, &row, now)?;
-            let review = review_row(tx, path, rid)?;
-            let n = if review.revealed_at.is_some() {
-                review.work_intervals.unwrap_or(0)
-            } else {
-                row.work_intervals
-                    .ok_or_else(|| JournalError::NotAnalysed {
-                        path: path.to_path_buf(),
-                        session_id: session_id.to_string(),
-                    })?
-            };
-            if interval == 0 || interval > n {
-                return Err(JournalError::NoSuchInterval {
-                    path: path.to_path_buf(),
-                    session_id: session_id.to_string(),
-                    interval,
-                    work_intervals: n,
-                });
-            }
-            if review.revealed_at.is_none() {
-                tx.execute(
-                    "INSERT INTO score (review_id, interval_no, score, given_at)
-                     VALUES (?1, ?2, ?3, ?4)
-                     ON CONFLICT (review_id, interval_no)
-                     DO UPDATE SET score = excluded.score, given_at = excluded.given_at",
-                    params![rid, interval, score, ts(now)],
-                )
-                .sq(path)?;
-                return Ok(());
-            }
-            let current =
-                current_score(tx, path, rid, interval)?.ok_or_else(|| JournalError::BadValue {
-                    path: path.to_path_buf(),
-                    detail: format!("{session_id}: revealed without a score for {interval}"),
-                })?;
-            if current != score {
-                tx.execute(
-                    "INSERT INTO revision (review_id, target, interval_no, old_value, new_value, at)
-                     VALUES (?1, 'score', ?2, ?3, ?4, ?5)",
-                    params![rid, interval, current.to_string(), score.to_string(), ts(now)],
-                )
-                .sq(path)?;
-            }
-            Ok(())
-        })
+        self.grade(session_id, &[(interval, score)], None, now)
     }
 
     /// Give (before the reveal) or revise (after it) the purpose verdict.
@@ -686,30 +634,65 @@ impl Journal {
         verdict: PurposeVerdict,
         now: DateTime<Utc>,
     ) -> Result<()> {
+        self.grade(session_id, &[], Some(verdict), now)
+    }
+
+    /// One grading action, all or nothing: every `(interval, score)` (1-based work interval,
+    /// score 1-5; a later pair for the same interval wins) and the purpose verdict, if given.
+    /// Everything is checked first (scores in range, every interval exists) and then written
+    /// in one transaction, so a refused or interrupted action leaves nothing behind. Before
+    /// the reveal the values replace the blind ones; after it each change is kept as a
+    /// [`Revision`] (an unchanged value records nothing).
+    pub fn grade(
+        &mut self,
+        session_id: &str,
+        scores: &[(u32, u8)],
+        verdict: Option<PurposeVerdict>,
+        now: DateTime<Utc>,
+    ) -> Result<()> {
+        if let Some(&(_, score)) = scores.iter().find(|(_, s)| !(1..=5).contains(s)) {
+            return Err(JournalError::InvalidScore {
+                path: self.path.clone(),
+                score,
+            });
+        }
+        // The last value given for an interval wins.
+        let scores: BTreeMap<u32, u8> = scores.iter().copied().collect();
         self.write(|tx, path| {
             let row = require_session(tx, path, session_id)?;
-            let rid = ensure_review(tx, path, &row, now)?;
-            let review = review_row(tx, path, rid)?;
-            if review.revealed_at.is_none() {
-                tx.execute(
-                    "UPDATE review SET verdict = ?2, verdict_at = ?3 WHERE id = ?1",
-                    params![rid, verdict.as_str(), ts(now)],
-                )
-                .sq(path)?;
+            let review = match row.review_id {
+                Some(rid) => Some(review_row(tx, path, rid)?),
+                None => None,
+            };
+            let revealed = review.as_ref().is_some_and(|r| r.revealed_at.is_some());
+            if !scores.is_empty() {
+                let n = if revealed {
+                    review.as_ref().and_then(|r| r.work_intervals).unwrap_or(0)
+                } else {
+                    row.work_intervals
+                        .ok_or_else(|| JournalError::NotAnalysed {
+                            path: path.to_path_buf(),
+                            session_id: session_id.to_string(),
+                        })?
+                };
+                if let Some(&interval) = scores.keys().find(|&&i| i == 0 || i > n) {
+                    return Err(JournalError::NoSuchInterval {
+                        path: path.to_path_buf(),
+                        session_id: session_id.to_string(),
+                        interval,
+                        work_intervals: n,
+                    });
+                }
+            }
+            if scores.is_empty() && verdict.is_none() {
                 return Ok(());
             }
-            let current =
-                current_verdict(tx, path, rid)?.ok_or_else(|| JournalError::BadValue {
-                    path: path.to_path_buf(),
-                    detail: format!("{session_id}: revealed without a verdict"),
-                })?;
-            if current != verdict {
-                tx.execute(
-                    "INSERT INTO revision (review_id, target, interval_no, old_value, new_value, at)
-                     VALUES (?1, 'verdict', NULL, ?2, ?3, ?4)",
-                    params![rid, current.as_str(), verdict.as_str(), ts(now)],
-                )
-                .sq(path)?;
+            let rid = ensure_review(tx, path, &row, now)?;
+            for (&interval, &score) in &scores {
+                write_score(tx, path, session_id, rid, revealed, interval, score, now)?;
+            }
+            if let Some(v) = verdict {
+                write_verdict(tx, path, session_id, rid, revealed, v, now)?;
             }
             Ok(())
         })
@@ -897,6 +880,33 @@ impl Journal {
     ) -> Result<()> {
         self.write(|tx, path| {
             let rid = revealed_review(tx, path, session_id)?;
+            tx.execute(
+                "INSERT INTO feedback_event (review_id, kind, at) VALUES (?1, ?2, ?3)",
+                params![rid, kind.as_str(), ts(now)],
+            )
+            .sq(path)?;
+            Ok(())
+        })
+    }
+
+    /// Save the feedback text (when `body` is given) and record that it was copied, exported
+    /// or printed, in one transaction: both or neither. Needs the reveal first.
+    pub fn send_feedback(
+        &mut self,
+        session_id: &str,
+        body: Option<&str>,
+        kind: FeedbackEventKind,
+        now: DateTime<Utc>,
+    ) -> Result<()> {
+        self.write(|tx, path| {
+            let rid = revealed_review(tx, path, session_id)?;
+            if let Some(body) = body {
+                tx.execute(
+                    "INSERT INTO feedback_version (review_id, body, saved_at) VALUES (?1, ?2, ?3)",
+                    params![rid, body, ts(now)],
+                )
+                .sq(path)?;
+            }
             tx.execute(
                 "INSERT INTO feedback_event (review_id, kind, at) VALUES (?1, ?2, ?3)",
                 params![rid, kind.as_str(), ts(now)],
@@ -1187,7 +1197,33 @@ impl Journal {
             let version: i64 = conn
                 .pragma_query_value(None, "user_version", |r| r.get(0))
                 .sq(path)?;
+            // The analysis cache is derived: a damaged row is reported, not a failure.
+            let mut cache_problems = Vec::new();
+            {
+                let mut stmt = conn
+                    .prepare(
+                        "SELECT CAST(session_id AS BLOB), summary_json FROM session
+                         WHERE summary_json IS NOT NULL ORDER BY session_id",
+                    )
+                    .sq(path)?;
+                let mut rows = stmt.query([]).sq(path)?;
+                while let Some(r) = rows.next().sq(path)? {
+                    if let Some(why) = cache_damage(r.get_ref(1).sq(path)?) {
+                        let id = match r.get_ref(0).sq(path)? {
+                            rusqlite::types::ValueRef::Blob(b) => {
+                                String::from_utf8_lossy(b).into_owned()
+                            }
+                            _ => String::new(),
+                        };
+                        cache_problems.push(format!(
+                            "cached analysis of {id} is damaged ({why}); it is dropped and \
+                             made again from the activity file on the next run"
+                        ));
+                    }
+                }
+            }
             Ok(CheckReport {
+                cache_problems,
                 problems,
                 schema_version: u32::try_from(version).unwrap_or(0),
                 sessions: count("session")?,
@@ -1201,10 +1237,22 @@ impl Journal {
         })
     }
 
+    /// [`Journal::backup_to`] after checking that `dest` is not inside `roster_root`
+    /// (symbolic links and `..` resolved as for the journal itself).
+    pub fn backup_outside_roster(&self, dest: &Path, roster_root: &Path) -> Result<()> {
+        if let Err(JournalError::InsideRoster { path, roster }) =
+            check_outside_roster(dest, roster_root)
+        {
+            return Err(JournalError::BackupInsideRoster { path, roster });
+        }
+        self.backup_to(dest)
+    }
+
     /// Copy the journal to a new file `dest` with SQLite's online backup API (safe while in
     /// use). Never overwrites: an existing `dest` is refused.
     pub fn backup_to(&self, dest: &Path) -> Result<()> {
-        if dest.exists() {
+        // `symlink_metadata`: a dangling symbolic link exists too (and would be followed).
+        if fs::symlink_metadata(dest).is_ok() {
             return Err(JournalError::DestinationExists {
                 path: dest.to_path_buf(),
             });
@@ -1253,7 +1301,7 @@ fn session_row(conn: &Connection, path: &Path, session_id: &str) -> Result<Optio
          FROM session WHERE session_id = ?1",
         [session_id],
         |r| {
-            let json: Option<String> = r.get(4)?;
+            let json = cache_text(r.get_ref(4)?);
             let version: Option<u32> = r.get(5)?;
             let n: Option<u32> = r.get(6)?;
             Ok(SessionRow {
@@ -1291,10 +1339,37 @@ fn summary_for_hash(
            AND summary_version IS NOT NULL AND work_intervals IS NOT NULL
          ORDER BY seen_at DESC LIMIT 1",
         [hash],
-        |r| Ok((r.get(0)?, r.get(1)?, r.get(2)?)),
+        |r| Ok((cache_text(r.get_ref(0)?), r.get(1)?, r.get(2)?)),
     )
     .optional()
     .sq(path)
+    .map(|found| found.and_then(|(json, v, n)| json.map(|j| (j, v, n))))
+}
+
+/// A cached text column as a string; `None` when it is missing or damaged (not UTF-8 text).
+/// The analysis cache is derived data: a damaged value is a cache miss, never an error.
+fn cache_text(v: rusqlite::types::ValueRef<'_>) -> Option<String> {
+    use rusqlite::types::ValueRef;
+    match v {
+        ValueRef::Text(b) | ValueRef::Blob(b) => std::str::from_utf8(b).ok().map(str::to_string),
+        _ => None,
+    }
+}
+
+/// Why a cached summary cannot be used, if it cannot.
+fn cache_damage(v: rusqlite::types::ValueRef<'_>) -> Option<&'static str> {
+    use rusqlite::types::ValueRef;
+    match v {
+        ValueRef::Null => None,
+        ValueRef::Text(b) | ValueRef::Blob(b) => match std::str::from_utf8(b) {
+            Err(_) => Some("not UTF-8 text"),
+            Ok(t) if serde_json::from_str::<serde::de::IgnoredAny>(t).is_err() => {
+                Some("not valid JSON")
+            }
+            Ok(_) => None,
+        },
+        _ => Some("not text"),
+    }
 }
 
 fn latest_review_for_hash(conn: &Connection, path: &Path, hash: &str) -> Result<Option<i64>> {
@@ -1440,6 +1515,85 @@ fn revisions_of(conn: &Connection, path: &Path, rid: i64) -> Result<Vec<Revision
             })
         })
         .collect()
+}
+
+/// Write one validated score inside a grading transaction: the blind value before the
+/// reveal, a revision (when it changes) after it.
+#[allow(clippy::too_many_arguments)]
+fn write_score(
+    tx: &Connection,
+    path: &Path,
+    session_id: &str,
+    rid: i64,
+    revealed: bool,
+    interval: u32,
+    score: u8,
+    now: DateTime<Utc>,
+) -> Result<()> {
+    if !revealed {
+        tx.execute(
+            "INSERT INTO score (review_id, interval_no, score, given_at)
+             VALUES (?1, ?2, ?3, ?4)
+             ON CONFLICT (review_id, interval_no)
+             DO UPDATE SET score = excluded.score, given_at = excluded.given_at",
+            params![rid, interval, score, ts(now)],
+        )
+        .sq(path)?;
+        return Ok(());
+    }
+    let current =
+        current_score(tx, path, rid, interval)?.ok_or_else(|| JournalError::BadValue {
+            path: path.to_path_buf(),
+            detail: format!("{session_id}: revealed without a score for {interval}"),
+        })?;
+    if current != score {
+        tx.execute(
+            "INSERT INTO revision (review_id, target, interval_no, old_value, new_value, at)
+             VALUES (?1, 'score', ?2, ?3, ?4, ?5)",
+            params![
+                rid,
+                interval,
+                current.to_string(),
+                score.to_string(),
+                ts(now)
+            ],
+        )
+        .sq(path)?;
+    }
+    Ok(())
+}
+
+/// Write the purpose verdict inside a grading transaction (blind, or a revision).
+fn write_verdict(
+    tx: &Connection,
+    path: &Path,
+    session_id: &str,
+    rid: i64,
+    revealed: bool,
+    verdict: PurposeVerdict,
+    now: DateTime<Utc>,
+) -> Result<()> {
+    if !revealed {
+        tx.execute(
+            "UPDATE review SET verdict = ?2, verdict_at = ?3 WHERE id = ?1",
+            params![rid, verdict.as_str(), ts(now)],
+        )
+        .sq(path)?;
+        return Ok(());
+    }
+    let current = current_verdict(tx, path, rid)?.ok_or_else(|| JournalError::BadValue {
+        path: path.to_path_buf(),
+        detail: format!("{session_id}: revealed without a verdict"),
+    })?;
+    if current != verdict {
+        tx.execute(
+            "INSERT INTO revision (review_id, target, interval_no, old_value, new_value, at)
+             VALUES (?1, 'verdict', NULL, ?2, ?3, ?4)",
+            params![rid, current.as_str(), verdict.as_str(), ts(now)],
+        )
+        .sq(path)?;
+    }
+    Ok(())
 }
 
 fn feedback_sent(conn: &Connection, path: &Path, rid: i64) -> Result<bool> {

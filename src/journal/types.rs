@@ -313,6 +313,9 @@ pub struct BiasInput {
 pub struct CheckReport {
     /// Rows of `PRAGMA integrity_check` and `PRAGMA foreign_key_check`; empty when all is well.
     pub problems: Vec<String>,
+    /// Damaged rows of the analysis cache (derived data, made again on the next sync), one
+    /// line per session. They do not make the check fail.
+    pub cache_problems: Vec<String>,
     /// Schema version (`PRAGMA user_version`).
     pub schema_version: u32,
     /// Sessions seen.

@@ -1567,7 +1567,7 @@ impl App {
         }
         let interval = sel.min(n - 1) as u32 + 1;
         let revealed = self.open.as_ref().is_some_and(OpenSession::revealed);
-        match self.journal.set_score(&id, interval, score, now()) {
+        match self.journal.grade(&id, &[(interval, score)], None, now()) {
             Ok(()) => {
                 self.reload_grades();
                 let advanced = match self.open.as_mut() {
@@ -1774,11 +1774,23 @@ impl App {
             return false;
         };
         let never_saved = matches!(self.journal.feedback(&id), Ok(None));
-        if self.unsaved() || never_saved {
-            self.save_feedback();
-        }
-        match self.journal.record_feedback_event(&id, kind, now()) {
+        // The text is saved (when it needs to be) and the sending recorded together.
+        let body = if self.unsaved() || never_saved {
+            self.feedback_text()
+        } else {
+            None
+        };
+        match self
+            .journal
+            .send_feedback(&id, body.as_deref(), kind, now())
+        {
             Ok(()) => {
+                if body.is_some() {
+                    if let Some(ed) = self.open.as_mut().and_then(|o| o.feedback.as_mut()) {
+                        ed.dirty = false;
+                        ed.saved = true;
+                    }
+                }
                 self.reload_grades();
                 self.lists_dirty = true;
                 true

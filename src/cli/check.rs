@@ -6,7 +6,7 @@ use std::path::Path;
 use serde::Serialize;
 
 use crate::ingest;
-use crate::roster::{printable, Roster};
+use crate::roster::Roster;
 
 #[derive(Debug, Serialize)]
 struct ProblemOut {
@@ -37,8 +37,8 @@ pub fn run(root: &Path, json: bool) -> anyhow::Result<i32> {
         .problems
         .iter()
         .map(|p| ProblemOut {
-            path: printable(&p.path.display().to_string()),
-            problem: printable(&p.message),
+            path: p.path.display().to_string(),
+            problem: p.message.clone(),
             unreadable: false,
             profile_or_plan: athlete_problems.contains(p),
         })
@@ -50,11 +50,11 @@ pub fn run(root: &Path, json: bool) -> anyhow::Result<i32> {
         match ingest::ingest_file(&act.path, Some(&athlete.profile)) {
             Ok(_) => readable += 1,
             Err(e) => problems.push(ProblemOut {
-                path: printable(&act.path.display().to_string()),
-                problem: printable(&match &e {
+                path: act.path.display().to_string(),
+                problem: match &e {
                     ingest::IngestError::Io { source, .. } => source.to_string(),
                     ingest::IngestError::Parse { source, .. } => source.to_string(),
-                }),
+                },
                 unreadable: true,
                 profile_or_plan: false,
             }),
@@ -71,7 +71,7 @@ pub fn run(root: &Path, json: bool) -> anyhow::Result<i32> {
         problems,
     };
     if json {
-        println!("{}", serde_json::to_string_pretty(&out)?);
+        crate::cli::out::json(&out)?;
     } else {
         for p in &out.problems {
             println!("{}: {}", p.path, p.problem);

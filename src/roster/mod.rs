@@ -13,6 +13,7 @@
 
 pub mod plans;
 mod profile;
+mod safe_text;
 
 pub(crate) use profile::toml_error_line;
 
@@ -23,6 +24,7 @@ use serde::Deserialize;
 use crate::model::{AthleteProfile, FileFormat, Units};
 
 pub use profile::{parse_profile, read_profile, ProfileError, ProfileProblem, ProfileReport};
+pub use safe_text::{is_unsafe, json_text, printable, printable_text};
 
 /// The roster root itself could not be read.
 #[derive(Debug, thiserror::Error)]
@@ -53,15 +55,6 @@ impl std::fmt::Display for Problem {
             printable(&self.message)
         )
     }
-}
-
-/// Text from the roster made safe for a terminal: control characters (escape sequences,
-/// carriage returns, bells...) become spaces, so a file name or a file's contents cannot
-/// move the cursor or restyle the screen.
-pub fn printable(s: &str) -> String {
-    s.chars()
-        .map(|c| if c.is_control() { ' ' } else { c })
-        .collect()
 }
 
 /// One recorded-session file of an athlete.

@@ -60,7 +60,7 @@ pub fn render(app: &App, area: Rect, buf: &mut Buffer) {
         Paragraph::new("no athlete selected").render(inner, buf);
         return;
     };
-    let title = format!(" History: {} ", a.profile.name);
+    let title = format!(" History: {} ", crate::roster::printable(&a.profile.name));
     let block = pane_block(app, title, false);
     let inner = block.inner(area);
     block.render(area, buf);

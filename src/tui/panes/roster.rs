@@ -13,7 +13,7 @@ use crate::tui::ui::pane_block;
 /// Draw the roster pane.
 pub fn render(app: &App, area: Rect, buf: &mut Buffer) {
     let t = &app.theme;
-    let mut title = format!(" Roster · {} ", app.roster.name);
+    let mut title = format!(" Roster · {} ", printable(&app.roster.name));
     if app.only_unreviewed {
         title.push_str("· unreviewed ");
     }
@@ -111,7 +111,7 @@ pub fn render(app: &App, area: Rect, buf: &mut Buffer) {
                     " "
                 };
                 let title_w = w.saturating_sub(2 + date.chars().count() + 1 + stage_w + 1);
-                let title = app.session_title(&s.session_id);
+                let title = printable(&app.session_title(&s.session_id));
                 let base = if selected { t.selected } else { t.text };
                 let stage_style = if selected {
                     t.selected

@@ -216,6 +216,7 @@ fn draw_welcome(app: &App, area: Rect, buf: &mut Buffer) {
     ];
     let mut lines = lines;
     lines.extend(panes::roster::athlete_problems(app));
+    lines.extend(panes::roster::roster_problems(app));
     Paragraph::new(lines)
         .wrap(Wrap { trim: false })
         .render(inner, buf);

@@ -238,3 +238,46 @@ pub fn athlete_problems(app: &App) -> Vec<Line<'static>> {
     }
     out
 }
+
+/// The roster's own problems (entries that are not used: a folder that is no athlete
+/// folder, a link that leads outside the roster or nowhere, a folder named like an activity
+/// file, a name that is not UTF-8, a folder listed once though reached twice), for the pane
+/// beside the roster while no session is open: a heading and one line per problem, the
+/// path relative to the roster. Empty when there are none.
+pub fn roster_problems(app: &App) -> Vec<Line<'static>> {
+    let t = &app.theme;
+    let of_athletes: Vec<crate::roster::Problem> = app
+        .roster
+        .athletes
+        .iter()
+        .flat_map(|a| a.problems())
+        .collect();
+    let own: Vec<&crate::roster::Problem> = app
+        .roster
+        .problems
+        .iter()
+        .filter(|p| !of_athletes.contains(p))
+        .collect();
+    if own.is_empty() {
+        return Vec::new();
+    }
+    let mut out = vec![
+        Line::raw(""),
+        Line::styled(
+            format!(
+                "! {} roster entr{} not used (splitdesk check lists them):",
+                own.len(),
+                if own.len() == 1 { "y" } else { "ies" }
+            ),
+            t.warn,
+        ),
+    ];
+    for p in own {
+        let path = p.path.strip_prefix(&app.roster.root).unwrap_or(&p.path);
+        out.push(Line::styled(
+            printable(&format!("{}: {}", path.display(), p.message)),
+            t.text,
+        ));
+    }
+    out
+}

@@ -310,6 +310,10 @@ where
                 changed = true;
             }
             None => {
+                // Grades written by another process show up without a key press.
+                if app.poll_journal() {
+                    changed = true;
+                }
                 if changed || app.busy() {
                     effects.extend(app.handle(AppEvent::Tick));
                 }

@@ -381,7 +381,7 @@ fn volume(t: &Theme, hv: &HistoryView, u: Units, area: Rect, buf: &mut Buffer) {
                     " "
                 }
             } else {
-                EIGHTHS[filled as usize]
+                EIGHTHS.get(filled as usize).copied().unwrap_or(full)
             };
             for dx in 0..(COL as u16 - 1) {
                 if let Some(c) = buf.cell_mut((x + dx, y)) {

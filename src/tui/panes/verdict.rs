@@ -209,7 +209,7 @@ fn grading_lines<'a>(app: &App, o: &OpenSession, review: &Review) -> Vec<Line<'a
         }
     }
     if let Some(m) = app.message.as_ref().filter(|m| m.tone == Tone::Warn) {
-        lines.push(Line::styled(m.text.clone(), t.warn));
+        lines.push(Line::styled(printable(&m.text), t.warn));
     }
     lines
 }

@@ -5,7 +5,8 @@ fn main() {
     match splitdesk::cli::run(cli) {
         Ok(code) => std::process::exit(code),
         Err(e) => {
-            eprintln!("error: {e:#}");
+            // Error messages embed paths and text from the roster: made safe for a terminal.
+            splitdesk::cli::out::eprint_text(format_args!("error: {e:#}\n"));
             std::process::exit(2);
         }
     }

@@ -63,8 +63,12 @@ fn discovers_athletes_activities_notes_and_plans() {
     assert!(r.find_session("cy-ode/b").is_none());
 
     let msgs: Vec<String> = r.problems.iter().map(|p| p.to_string()).collect();
-    assert_eq!(msgs.len(), 3, "{msgs:?}");
+    assert_eq!(msgs.len(), 4, "{msgs:?}");
     assert!(msgs.iter().any(|m| m.contains("photo.jpg")));
+    // A folder that is no athlete folder is named, not skipped silently.
+    assert!(msgs.iter().any(|m| m.ends_with(
+        "shared-docs: not an athlete folder (no athlete.toml, no activities folder); skipped"
+    )));
     // A plan file that is not a plan is listed too (and kept on the athlete).
     assert!(msgs.iter().any(|m| m.ends_with(
         "2026-10-02-reps.toml: line 1, column 12: missing steps: add steps = \"...\" \

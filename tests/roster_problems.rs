@@ -331,7 +331,7 @@ fn problem_lines_carry_no_control_characters() {
     let out = splitdesk().arg("check").arg(dir.path()).output().unwrap();
     assert_eq!(out.status.code(), Some(1));
     let text = String::from_utf8(out.stdout).unwrap();
-    assert!(text.contains(" [2Jwipe .toml: line 2"), "{text:?}");
+    assert!(text.contains("␛[2Jwipe␇.toml: line 2"), "{text:?}");
     assert!(
         !text.chars().any(|c| c.is_control() && c != '\n'),
         "{text:?}"

@@ -160,7 +160,7 @@ pub fn run(
         }
     }
     if json {
-        println!("{}", serde_json::to_string_pretty(&review)?);
+        crate::cli::out::json(&review)?;
     } else {
         print!(
             "{}",

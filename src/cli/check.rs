@@ -6,7 +6,7 @@ use std::path::Path;
 use serde::Serialize;
 
 use crate::ingest;
-use crate::roster::{printable, Roster};
+use crate::roster::Roster;
 
 #[derive(Debug, Serialize)]
 struct ProblemOut {
@@ -37,8 +37,8 @@ pub fn run(root: &Path, json: bool) -> anyhow::Result<i32> {
         .problems
         .iter()
         .map(|p| ProblemOut {
-            path: printable(&p.path.display().to_string()),
-            problem: printable(&p.message),
+            path: p.path.display().to_string(),
+            problem: p.message.clone(),
             unreadable: false,
             profile_or_plan: athlete_problems.contains(p),
         })
@@ -54,16 +54,16 @@ pub fn run(root: &Path, json: bool) -> anyhow::Result<i32> {
                 // not failing.
                 for w in &session.warnings {
                     problems.push(ProblemOut {
-                        path: printable(&act.path.display().to_string()),
-                        problem: printable(w),
+                        path: act.path.display().to_string(),
+                        problem: w.clone(),
                         unreadable: false,
                         profile_or_plan: false,
                     });
                 }
             }
             Err(e) => problems.push(ProblemOut {
-                path: printable(&act.path.display().to_string()),
-                problem: printable(&e.reason()),
+                path: act.path.display().to_string(),
+                problem: e.reason(),
                 unreadable: true,
                 profile_or_plan: false,
             }),
@@ -71,8 +71,8 @@ pub fn run(root: &Path, json: bool) -> anyhow::Result<i32> {
         if let Some(note) = &act.note_file {
             if let Some(p) = ingest::note::problem(note) {
                 problems.push(ProblemOut {
-                    path: printable(&note.display().to_string()),
-                    problem: printable(&p),
+                    path: note.display().to_string(),
+                    problem: p,
                     unreadable: false,
                     profile_or_plan: false,
                 });
@@ -90,7 +90,7 @@ pub fn run(root: &Path, json: bool) -> anyhow::Result<i32> {
         problems,
     };
     if json {
-        println!("{}", serde_json::to_string_pretty(&out)?);
+        crate::cli::out::json(&out)?;
     } else {
         for p in &out.problems {
             println!("{}: {}", p.path, p.problem);

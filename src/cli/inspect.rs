@@ -160,7 +160,7 @@ pub fn run(files: &[PathBuf], json: bool) -> anyhow::Result<i32> {
         }
     }
     if json {
-        println!("{}", serde_json::to_string_pretty(&reports)?);
+        crate::cli::out::json(&reports)?;
     }
     Ok(code)
 }

@@ -3,10 +3,34 @@
 //! Every command prints errors as one line `error: PATH: reason` on stderr and returns
 //! a non-zero exit code; nothing here panics on bad input.
 
+// Inside `cli`, the printing macros write through `out::Safe`: roster text in human output
+// cannot carry escape sequences to the coach's terminal (see `out`). They shadow std's
+// macros for every module declared below.
+macro_rules! print {
+    ($($arg:tt)*) => { $crate::cli::out::print_text(::std::format_args!($($arg)*)) };
+}
+macro_rules! println {
+    () => { $crate::cli::out::print_text(::std::format_args!("\n")) };
+    ($($arg:tt)*) => {
+        $crate::cli::out::print_text(::std::format_args!("{}\n", ::std::format_args!($($arg)*)))
+    };
+}
+#[allow(unused_macros)]
+macro_rules! eprint {
+    ($($arg:tt)*) => { $crate::cli::out::eprint_text(::std::format_args!($($arg)*)) };
+}
+macro_rules! eprintln {
+    () => { $crate::cli::out::eprint_text(::std::format_args!("\n")) };
+    ($($arg:tt)*) => {
+        $crate::cli::out::eprint_text(::std::format_args!("{}\n", ::std::format_args!($($arg)*)))
+    };
+}
+
 mod analyze;
 mod check;
 mod demo_cmd;
 mod inspect;
+pub mod out;
 pub mod plan_cmd;
 mod review_cmds;
 mod review_text;

@@ -20,7 +20,7 @@ struct CheckOutput<'a> {
 /// One line `error: ...`; a person at a terminal also gets the line with a caret under it.
 fn report(message: &str, snippet: Option<String>) {
     use std::io::IsTerminal;
-    let mut err = std::io::stderr().lock();
+    let mut err = super::out::stderr();
     let _ = writeln!(err, "error: {}", printable(message));
     if !std::io::stderr().is_terminal() {
         return;
@@ -183,7 +183,7 @@ pub fn run_check(
             for u in &unknown {
                 report(&format!("{at}{}", u.message(&k.profile)), None);
             }
-            let mut err = std::io::stderr().lock();
+            let mut err = super::out::stderr();
             for p in &k.problems {
                 let _ = writeln!(
                     err,
@@ -194,15 +194,14 @@ pub fn run_check(
             return Ok(2);
         }
     }
-    let mut out = std::io::stdout().lock();
     if json {
         let doc = CheckOutput {
             plan: &plan,
             expanded: plan.expand(),
         };
-        serde_json::to_writer_pretty(&mut out, &doc)?;
-        writeln!(out)?;
+        super::out::json(&doc)?;
     } else {
+        let mut out = super::out::stdout();
         write!(out, "{}", plan::format_expanded(&plan, None))?;
         if file.is_some() {
             writeln!(out, "\nas shorthand: {}", plan::describe_line(&plan.steps))?;

@@ -97,7 +97,7 @@ pub fn queue(ws: &mut Workspace, athlete: Option<&str>, json: bool) -> anyhow::R
     let entries = ws.journal.unreviewed(athlete)?;
     let rows: Vec<QueueOut> = entries.iter().map(|e| queue_out(ws, e)).collect();
     if json {
-        println!("{}", serde_json::to_string_pretty(&rows)?);
+        crate::cli::out::json(&rows)?;
         return Ok(0);
     }
     if rows.is_empty() {
@@ -199,7 +199,7 @@ pub fn grade(
         .map_err(nothing_saved)?;
     let out = grade_out(ws, id)?;
     if json {
-        println!("{}", serde_json::to_string_pretty(&out)?);
+        crate::cli::out::json(&out)?;
     } else {
         let scores: Vec<String> = out
             .scores
@@ -249,10 +249,7 @@ pub fn notes(ws: &mut Workspace, id: &str, json: bool) -> anyhow::Result<i32> {
         .and_then(|s| s.note);
     let note = journal::read_note(&permit, act.note_file.as_deref(), embedded.as_deref());
     if json {
-        println!(
-            "{}",
-            serde_json::to_string_pretty(&serde_json::json!({ "session": id, "note": note }))?
-        );
+        crate::cli::out::json(&serde_json::json!({ "session": id, "note": note }))?;
     } else {
         match note {
             Some(n) => println!("{}", n.trim_end()),
@@ -349,10 +346,7 @@ pub fn feedback(
         }
     };
     if json {
-        println!(
-            "{}",
-            serde_json::to_string_pretty(&serde_json::json!({ "session": id, "feedback": text }))?
-        );
+        crate::cli::out::json(&serde_json::json!({ "session": id, "feedback": text }))?;
     } else {
         print!("{text}");
         if !text.ends_with('\n') {
@@ -431,7 +425,7 @@ pub fn export_feedback(ws: &mut Workspace, filter: &Filter, format: &str) -> any
             .record_feedback_event(&e.session_id, FeedbackEventKind::Exported, Utc::now())?;
     }
     match format {
-        "json" => println!("{}", serde_json::to_string_pretty(&blocks)?),
+        "json" => crate::cli::out::json(&blocks)?,
         "md" => {
             for b in &blocks {
                 println!("## {} — {} ({})\n", b.name, b.title, b.date);
@@ -607,7 +601,7 @@ pub fn bias_check(ws: &mut Workspace, athlete: Option<&str>, json: bool) -> anyh
     }
     let report = crate::bias::report(&cases);
     if json {
-        println!("{}", serde_json::to_string_pretty(&report)?);
+        crate::cli::out::json(&report)?;
     } else {
         println!("overall: {}", report.overall.text);
         for (a, s) in &report.athletes {
@@ -635,23 +629,20 @@ pub fn journal_backup(ws: &Workspace, dest: &Path) -> anyhow::Result<i32> {
 pub fn journal_check(ws: &Workspace, json: bool) -> anyhow::Result<i32> {
     let r = ws.journal.check()?;
     if json {
-        println!(
-            "{}",
-            serde_json::to_string_pretty(&serde_json::json!({
-                "journal": ws.journal.path(),
-                "ok": r.is_ok(),
-                "problems": r.problems,
-                "cache_problems": r.cache_problems,
-                "schema_version": r.schema_version,
-                "sessions": r.sessions,
-                "reviews": r.reviews,
-                "scores": r.scores,
-                "revisions": r.revisions,
-                "feedback_versions": r.feedback_versions,
-                "feedback_events": r.feedback_events,
-                "rulers": r.rulers,
-            }))?
-        );
+        crate::cli::out::json(&serde_json::json!({
+            "journal": ws.journal.path(),
+            "ok": r.is_ok(),
+            "problems": r.problems,
+            "cache_problems": r.cache_problems,
+            "schema_version": r.schema_version,
+            "sessions": r.sessions,
+            "reviews": r.reviews,
+            "scores": r.scores,
+            "revisions": r.revisions,
+            "feedback_versions": r.feedback_versions,
+            "feedback_events": r.feedback_events,
+            "rulers": r.rulers,
+        }))?;
     } else {
         println!(
             "{}: {} (schema {}; {} sessions, {} reviews, {} scores, {} revisions, {} feedback versions, {} rulers)",

@@ -59,7 +59,7 @@ pub fn run(ws: &Workspace, athlete: &str, weeks: Option<u32>, json: bool) -> any
         ));
     }
     if json {
-        println!("{}", serde_json::to_string_pretty(&h)?);
+        crate::cli::out::json(&h)?;
     } else {
         print!("{}", render(&h, &profile.name, profile.units));
     }

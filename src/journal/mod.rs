@@ -416,6 +416,16 @@ impl Journal {
         &self.path
     }
 
+    /// A number that changes whenever another connection (another process, a worker
+    /// thread) has committed to the journal since this one last looked: SQLite's
+    /// `PRAGMA data_version`. Cheap enough to poll; this connection's own commits do not
+    /// change it.
+    pub fn data_version(&self) -> Result<i64> {
+        self.conn
+            .query_row("PRAGMA data_version", [], |r| r.get(0))
+            .sq(&self.path)
+    }
+
     /// Run `f` in one `BEGIN IMMEDIATE` transaction; commit on success, roll back on error.
     fn write<T>(&mut self, f: impl FnOnce(&Transaction<'_>, &Path) -> Result<T>) -> Result<T> {
         let path = self.path.clone();

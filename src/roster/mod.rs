@@ -13,6 +13,7 @@
 
 pub mod plans;
 mod profile;
+mod safe_text;
 
 pub(crate) use profile::toml_error_line;
 
@@ -23,6 +24,7 @@ use serde::Deserialize;
 use crate::model::{AthleteProfile, FileFormat, Units};
 
 pub use profile::{parse_profile, read_profile, ProfileError, ProfileProblem, ProfileReport};
+pub use safe_text::{is_unsafe, json_text, printable, printable_text};
 
 /// The roster root itself could not be read.
 #[derive(Debug, thiserror::Error)]
@@ -55,15 +57,6 @@ impl std::fmt::Display for Problem {
     }
 }
 
-/// Text from the roster made safe for a terminal: control characters (escape sequences,
-/// carriage returns, bells...) become spaces, so a file name or a file's contents cannot
-/// move the cursor or restyle the screen.
-pub fn printable(s: &str) -> String {
-    s.chars()
-        .map(|c| if c.is_control() { ' ' } else { c })
-        .collect()
-}
-
 /// One recorded-session file of an athlete.
 #[derive(Debug, Clone, PartialEq, Eq)]
 pub struct Activity {
@@ -89,6 +82,9 @@ pub struct Athlete {
     pub profile_problems: Vec<ProfileProblem>,
     /// Plan files that cannot be read, or that name paces the profile does not have.
     pub plan_problems: Vec<Problem>,
+    /// What is wrong with the folder itself (no `athlete.toml`, a profile that leads
+    /// outside the roster).
+    pub folder_problems: Vec<Problem>,
     /// A digest of everything besides the activity file that a review of this athlete's
     /// sessions depends on (the profile file and every plan file, names and contents): a
     /// cached review made under another digest is stale.
@@ -101,22 +97,25 @@ impl Athlete {
         self.dir.join("athlete.toml")
     }
 
-    /// Every profile and plan problem of this athlete, one line each, profile first.
+    /// Every folder, profile and plan problem of this athlete, one line each.
     pub fn problems(&self) -> Vec<Problem> {
         let profile = self.profile_path();
-        self.profile_problems
+        self.folder_problems
             .iter()
-            .map(|p| Problem {
+            .cloned()
+            .chain(self.profile_problems.iter().map(|p| Problem {
                 path: profile.clone(),
                 message: p.to_string(),
-            })
+            }))
             .chain(self.plan_problems.iter().cloned())
             .collect()
     }
 
-    /// Whether the profile or a plan has a problem.
+    /// Whether the folder, the profile or a plan has a problem.
     pub fn has_problems(&self) -> bool {
-        !self.profile_problems.is_empty() || !self.plan_problems.is_empty()
+        !self.folder_problems.is_empty()
+            || !self.profile_problems.is_empty()
+            || !self.plan_problems.is_empty()
     }
 
     /// The stable session id of an activity: `<athlete-id>/<file-stem>`.
@@ -213,67 +212,13 @@ impl Roster {
             }
         }
 
+        let inside = std::fs::canonicalize(root).map_err(|source| RosterError::Io {
+            path: root.to_path_buf(),
+            source,
+        })?;
         let mut athletes = Vec::new();
-        for dir in sorted_entries(root, &mut problems) {
-            if !dir.is_dir() {
-                continue;
-            }
-            let Some(id) = dir.file_name().and_then(|n| n.to_str()).map(str::to_string) else {
-                continue;
-            };
-            if id.starts_with('.') {
-                continue;
-            }
-            let profile_path = dir.join("athlete.toml");
-            if !profile_path.exists() {
-                // Not an athlete folder (e.g. a stray folder in a synced roster).
-                continue;
-            }
-            let mut profile_problems = Vec::new();
-            let mut inputs = Vec::new();
-            let profile = match std::fs::read_to_string(&profile_path) {
-                Ok(text) => {
-                    inputs.extend_from_slice(text.as_bytes());
-                    let report = read_profile(&text, &id, units);
-                    profile_problems = report.problems;
-                    report.profile
-                }
-                Err(e) => {
-                    problems.push(Problem {
-                        path: profile_path.clone(),
-                        message: e.to_string(),
-                    });
-                    AthleteProfile::bare(&id)
-                }
-            };
-            let activities = discover_activities(&dir, &mut problems);
-            let plan_files = sorted_entries(&dir.join("plans"), &mut Vec::new())
-                .into_iter()
-                .filter(|p| {
-                    p.extension()
-                        .is_some_and(|e| e.eq_ignore_ascii_case("toml"))
-                })
-                .collect::<Vec<_>>();
-            let plan_problems: Vec<Problem> = plan_files
-                .iter()
-                .flat_map(|p| plans::check_plan_file(p, &profile))
-                .collect();
-            for p in &plan_files {
-                inputs.extend_from_slice(b"\0plan\0");
-                inputs.extend_from_slice(p.to_string_lossy().as_bytes());
-                inputs.push(0);
-                inputs.extend_from_slice(&std::fs::read(p).unwrap_or_default());
-            }
-            let athlete = Athlete {
-                id,
-                dir,
-                profile,
-                activities,
-                plan_files,
-                profile_problems,
-                plan_problems,
-                inputs_digest: crate::ingest::hash::sha256_hex(&inputs),
-            };
+        for found in athlete_folders(root, &inside, &mut problems) {
+            let athlete = read_athlete(found, &inside, units, &mut problems);
             problems.extend(athlete.problems());
             athletes.push(athlete);
         }
@@ -290,6 +235,227 @@ impl Roster {
 fn read_roster_file(path: &Path) -> Result<RosterFile, String> {
     let text = std::fs::read_to_string(path).map_err(|e| e.to_string())?;
     toml::from_str(&text).map_err(|e| profile::toml_error_line(&text, &e))
+}
+
+/// Why an athlete folder's `athlete.toml` is missing, as the coach reads it.
+pub const NO_PROFILE: &str = "no athlete.toml: its sessions are listed with a bare profile \
+     (no heart-rate or pace zones) until the file is written";
+
+/// A folder of the roster that holds an athlete.
+struct AthleteFolder {
+    id: String,
+    dir: PathBuf,
+    has_profile: bool,
+}
+
+/// Whether `path` is a symbolic link (not followed).
+fn is_link(path: &Path) -> bool {
+    std::fs::symlink_metadata(path).is_ok_and(|m| m.file_type().is_symlink())
+}
+
+/// Whether an entry exists at `path` (a dangling link counts).
+fn entry_exists(path: &Path) -> bool {
+    std::fs::symlink_metadata(path).is_ok()
+}
+
+/// Where `path` really is, when that is inside the roster (`inside`, canonical). A
+/// dangling or looping link, or one that leads outside the roster, is a problem and
+/// `None`: nothing outside the roster is ever read.
+fn resolve(path: &Path, inside: &Path, problems: &mut Vec<Problem>) -> Option<PathBuf> {
+    let message = match std::fs::canonicalize(path) {
+        Ok(real) if real.starts_with(inside) => return Some(real),
+        Ok(real) => format!(
+            "a symbolic link to {}, outside the roster; not followed",
+            real.display()
+        ),
+        Err(e) if e.raw_os_error() == Some(libc::ELOOP) => {
+            "a symbolic link that loops back on itself; skipped".to_string()
+        }
+        Err(e) if e.kind() == std::io::ErrorKind::NotFound && is_link(path) => {
+            match std::fs::read_link(path) {
+                Ok(to) => format!(
+                    "a symbolic link to {}, which does not exist; skipped",
+                    to.display()
+                ),
+                Err(_) => "a symbolic link to nothing; skipped".to_string(),
+            }
+        }
+        Err(e) => format!("{e}; skipped"),
+    };
+    problems.push(Problem {
+        path: path.to_path_buf(),
+        message,
+    });
+    None
+}
+
+/// The message for an entry whose name is not UTF-8.
+fn not_utf8(what: &str) -> String {
+    format!("the {what} name is not valid UTF-8 (shown here with �); rename it; skipped")
+}
+
+/// The athlete folders of the roster, sorted by id. A folder reached twice (a symbolic
+/// link to another athlete folder) is listed once, by its real name; a folder that is
+/// neither an athlete folder nor hidden is a problem.
+fn athlete_folders(root: &Path, inside: &Path, problems: &mut Vec<Problem>) -> Vec<AthleteFolder> {
+    let mut found: Vec<(AthleteFolder, PathBuf, bool)> = Vec::new();
+    for dir in sorted_entries(root, problems) {
+        let Some(name) = dir.file_name() else {
+            continue;
+        };
+        if name.as_encoded_bytes().starts_with(b".") {
+            continue;
+        }
+        let link = is_link(&dir);
+        if !link && !dir.is_dir() {
+            // roster.toml, a read-me, ...: not the roster's business.
+            continue;
+        }
+        let Some(real) = resolve(&dir, inside, problems) else {
+            continue;
+        };
+        if !real.is_dir() {
+            continue;
+        }
+        let Some(id) = name.to_str().map(str::to_string) else {
+            problems.push(Problem {
+                path: dir.clone(),
+                message: not_utf8("folder"),
+            });
+            continue;
+        };
+        let has_profile = entry_exists(&dir.join("athlete.toml"));
+        if !has_profile && !dir.join("activities").is_dir() {
+            problems.push(Problem {
+                path: dir.clone(),
+                message: "not an athlete folder (no athlete.toml, no activities folder); \
+                          skipped"
+                    .to_string(),
+            });
+            continue;
+        }
+        found.push((
+            AthleteFolder {
+                id,
+                dir,
+                has_profile,
+            },
+            real,
+            link,
+        ));
+    }
+    // Real folders before links to them: the link is the one reported.
+    found.sort_by_key(|(_, _, link)| *link);
+    let mut seen: std::collections::BTreeMap<PathBuf, PathBuf> = Default::default();
+    let mut out = Vec::new();
+    for (f, real, _) in found {
+        if let Some(first) = seen.get(&real) {
+            problems.push(Problem {
+                path: f.dir.clone(),
+                message: format!(
+                    "the same folder as {} (a symbolic link to it); listed once",
+                    first.display()
+                ),
+            });
+            continue;
+        }
+        seen.insert(real, f.dir.clone());
+        out.push(f);
+    }
+    out.sort_by(|a, b| a.id.cmp(&b.id));
+    out
+}
+
+/// A sub-folder of an athlete folder (`activities`, `plans`, `notes`) when it is inside
+/// the roster; a missing one is `None` without a problem.
+fn sub_folder(
+    dir: &Path,
+    name: &str,
+    inside: &Path,
+    problems: &mut Vec<Problem>,
+) -> Option<PathBuf> {
+    let path = dir.join(name);
+    if !entry_exists(&path) {
+        return None;
+    }
+    resolve(&path, inside, problems)?;
+    Some(path)
+}
+
+/// Read one athlete folder: profile, plans, activities and notes.
+fn read_athlete(
+    found: AthleteFolder,
+    inside: &Path,
+    units: Units,
+    problems: &mut Vec<Problem>,
+) -> Athlete {
+    let AthleteFolder {
+        id,
+        dir,
+        has_profile,
+    } = found;
+    let profile_path = dir.join("athlete.toml");
+    let mut folder_problems = Vec::new();
+    let mut profile_problems = Vec::new();
+    let mut inputs = Vec::new();
+    let profile = if !has_profile {
+        folder_problems.push(Problem {
+            path: dir.clone(),
+            message: NO_PROFILE.to_string(),
+        });
+        AthleteProfile::bare(&id)
+    } else if resolve(&profile_path, inside, &mut folder_problems).is_none() {
+        AthleteProfile::bare(&id)
+    } else {
+        match std::fs::read_to_string(&profile_path) {
+            Ok(text) => {
+                inputs.extend_from_slice(text.as_bytes());
+                let report = read_profile(&text, &id, units);
+                profile_problems = report.problems;
+                report.profile
+            }
+            Err(e) => {
+                problems.push(Problem {
+                    path: profile_path.clone(),
+                    message: e.to_string(),
+                });
+                AthleteProfile::bare(&id)
+            }
+        }
+    };
+    let activities = discover_activities(&dir, inside, problems);
+    let plan_files = match sub_folder(&dir, "plans", inside, problems) {
+        Some(plans) => sorted_entries(&plans, &mut Vec::new())
+            .into_iter()
+            .filter(|p| {
+                p.extension()
+                    .is_some_and(|e| e.eq_ignore_ascii_case("toml"))
+            })
+            .filter(|p| resolve(p, inside, problems).is_some_and(|real| real.is_file()))
+            .collect::<Vec<_>>(),
+        None => Vec::new(),
+    };
+    let plan_problems: Vec<Problem> = plan_files
+        .iter()
+        .flat_map(|p| plans::check_plan_file(p, &profile))
+        .collect();
+    for p in &plan_files {
+        inputs.extend_from_slice(b"\0plan\0");
+        inputs.extend_from_slice(p.to_string_lossy().as_bytes());
+        inputs.push(0);
+        inputs.extend_from_slice(&std::fs::read(p).unwrap_or_default());
+    }
+    Athlete {
+        id,
+        dir,
+        profile,
+        activities,
+        plan_files,
+        profile_problems,
+        plan_problems,
+        folder_problems,
+        inputs_digest: crate::ingest::hash::sha256_hex(&inputs),
+    }
 }
 
 /// The entries of a folder sorted by name; a missing folder is empty, an unreadable one a problem.
@@ -310,19 +476,59 @@ fn sorted_entries(dir: &Path, problems: &mut Vec<Problem>) -> Vec<PathBuf> {
     out
 }
 
-fn discover_activities(athlete_dir: &Path, problems: &mut Vec<Problem>) -> Vec<Activity> {
-    let notes_dir = athlete_dir.join("notes");
+fn discover_activities(
+    athlete_dir: &Path,
+    inside: &Path,
+    problems: &mut Vec<Problem>,
+) -> Vec<Activity> {
+    let Some(activities) = sub_folder(athlete_dir, "activities", inside, problems) else {
+        return Vec::new();
+    };
+    let notes_dir = sub_folder(athlete_dir, "notes", inside, problems);
     let mut out = Vec::new();
-    for path in sorted_entries(&athlete_dir.join("activities"), problems) {
-        if !path.is_file() {
-            continue;
-        }
-        let Some(name) = path.file_name().and_then(|n| n.to_str()) else {
+    let mut real_paths: std::collections::BTreeMap<PathBuf, PathBuf> = Default::default();
+    for path in sorted_entries(&activities, problems) {
+        let Some(name) = path.file_name() else {
             continue;
         };
-        if name.starts_with('.') {
+        if name.as_encoded_bytes().starts_with(b".") {
             continue;
         }
+        let Some(real) = resolve(&path, inside, problems) else {
+            continue;
+        };
+        if real.is_dir() {
+            problems.push(Problem {
+                path: path.clone(),
+                message: "a folder, not an activity file; skipped".into(),
+            });
+            continue;
+        }
+        if !real.is_file() {
+            problems.push(Problem {
+                path: path.clone(),
+                message: "not a regular file; skipped".into(),
+            });
+            continue;
+        }
+        if name.to_str().is_none() {
+            problems.push(Problem {
+                path: path.clone(),
+                message: not_utf8("file"),
+            });
+            continue;
+        }
+        if let Some(first) = real_paths.get(&real) {
+            problems.push(Problem {
+                path: path.clone(),
+                message: format!(
+                    "the same file as {} (a symbolic link to it); listed once",
+                    first.display()
+                ),
+            });
+            continue;
+        }
+        real_paths.insert(real, path.clone());
         let format = path
             .extension()
             .and_then(|e| e.to_str())
@@ -338,10 +544,14 @@ fn discover_activities(athlete_dir: &Path, problems: &mut Vec<Problem>) -> Vec<A
             .file_stem()
             .map(|s| s.to_string_lossy().into_owned())
             .unwrap_or_default();
-        let note = notes_dir.join(format!("{stem}.txt"));
+        let note_file = notes_dir
+            .as_ref()
+            .map(|d| d.join(format!("{stem}.txt")))
+            .filter(|n| entry_exists(n))
+            .filter(|n| resolve(n, inside, problems).is_some_and(|real| real.is_file()));
         out.push(Activity {
             path,
-            note_file: note.is_file().then_some(note),
+            note_file,
             stem,
             format,
         });

@@ -497,6 +497,8 @@ pub struct App {
     pub feedback_dir: Option<PathBuf>,
     /// The history view's data, built when the view opens.
     pub history: Option<HistoryView>,
+    /// The journal's `data_version` when last looked at (see [`App::poll_journal`]).
+    journal_version: Option<i64>,
 }
 
 /// The built history of one athlete and how far the week bars are scrolled.
@@ -558,10 +560,37 @@ impl App {
             lists_dirty: false,
             feedback_dir: options.feedback_dir,
             history: None,
+            journal_version: None,
         };
         app.problems = app.roster.problems.iter().map(|p| p.to_string()).collect();
         app.refresh_lists();
+        app.journal_version = app.journal.data_version().ok();
         app
+    }
+
+    /// Whether another process (a `grade` command, a second workstation) or a worker wrote
+    /// to the journal since the last look; if so the lists and the open session's grades
+    /// are re-read. The event loop calls this when it is idle. `true` when something was
+    /// re-read (the screen needs a redraw).
+    pub fn poll_journal(&mut self) -> bool {
+        let Ok(v) = self.journal.data_version() else {
+            return false;
+        };
+        if self.journal_version == Some(v) {
+            return false;
+        }
+        self.journal_version = Some(v);
+        self.refresh_lists();
+        self.reload_grades();
+        // Grading completed and the notes revealed elsewhere: show them here too.
+        if self
+            .open
+            .as_ref()
+            .is_some_and(|o| o.revealed() && o.note.is_none())
+        {
+            self.load_revealed();
+        }
+        true
     }
 
     /// Start the background ingestion of every session: jobs for the event loop.

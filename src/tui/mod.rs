@@ -47,6 +47,25 @@ use theme::Theme;
 pub const NOT_A_TERMINAL: &str =
     "error: the workstation needs a terminal; use the headless commands (splitdesk --help)";
 
+/// Test only: with this variable set to `1` the workstation panics in the middle of
+/// drawing the first frame that shows an open session (the frame is built, not yet
+/// flushed), so a test can check that the terminal is restored after a panic. Read once
+/// when the workstation starts; without it nothing changes.
+pub const PANIC_IN_DRAW_ENV: &str = "SPLITDESK_TEST_PANIC_IN_DRAW";
+
+/// What the test panic says.
+pub const PANIC_IN_DRAW_MESSAGE: &str = "test panic in the middle of a draw";
+
+static PANIC_IN_DRAW: AtomicBool = AtomicBool::new(false);
+
+/// Draw one frame (and, under [`PANIC_IN_DRAW_ENV`], panic once a session is open).
+fn draw_frame(frame: &mut ratatui::Frame, app: &App) {
+    ui::draw(frame, app);
+    if app.open.is_some() && PANIC_IN_DRAW.load(Ordering::Relaxed) {
+        panic!("{PANIC_IN_DRAW_MESSAGE} ({PANIC_IN_DRAW_ENV}=1)");
+    }
+}
+
 /// Where `s` writes feedback files: `<data dir>/feedback`, if the platform has one.
 pub fn default_feedback_dir() -> Option<PathBuf> {
     directories::ProjectDirs::from("", "", "splitdesk").map(|d| d.data_dir().join("feedback"))
@@ -79,6 +98,10 @@ pub fn run(roster_dir: &Path, journal: Option<&Path>, config: &Config) -> anyhow
         // Only sets a flag: async-signal-safe. The loop sees it within one poll interval.
         signal_hook::flag::register(sig, Arc::clone(&term_flag))?;
     }
+    PANIC_IN_DRAW.store(
+        std::env::var_os(PANIC_IN_DRAW_ENV).is_some_and(|v| v == "1"),
+        Ordering::Relaxed,
+    );
     install_panic_hook();
     // A terminal that goes away must not leave the process spinning (see `hangup`).
     let watcher = hangup::Watcher::spawn(libc::STDIN_FILENO, Arc::clone(&term_flag), || {
@@ -109,16 +132,26 @@ struct TerminalGuard;
 
 impl TerminalGuard {
     fn enter() -> io::Result<TerminalGuard> {
-        enable_raw_mode()?;
         let guard = TerminalGuard;
-        execute!(
-            io::stdout(),
-            EnterAlternateScreen,
-            EnableBracketedPaste,
-            cursor::Hide
-        )?;
+        enter_terminal()?;
         Ok(guard)
     }
+}
+
+/// Whether the terminal is in the workstation's modes (raw, alternate screen, hidden
+/// cursor): set on entering, cleared by the first [`restore_terminal`].
+static TERMINAL_TAKEN: AtomicBool = AtomicBool::new(false);
+
+/// Raw mode, alternate screen, bracketed paste, hidden cursor.
+fn enter_terminal() -> io::Result<()> {
+    TERMINAL_TAKEN.store(true, Ordering::SeqCst);
+    enable_raw_mode()?;
+    execute!(
+        io::stdout(),
+        EnterAlternateScreen,
+        EnableBracketedPaste,
+        cursor::Hide
+    )
 }
 
 impl Drop for TerminalGuard {
@@ -127,8 +160,14 @@ impl Drop for TerminalGuard {
     }
 }
 
-/// Leave raw mode and the alternate screen (safe to call more than once).
+/// Leave raw mode and the alternate screen. Only the first call after entering does
+/// anything: leaving the alternate screen a second time would move the cursor back to
+/// where it was saved on entering, and what was printed since (the panic message, after
+/// the panic hook restored the terminal) would be overwritten.
 pub fn restore_terminal() {
+    if !TERMINAL_TAKEN.swap(false, Ordering::SeqCst) {
+        return;
+    }
     let _ = disable_raw_mode();
     let _ = execute!(
         io::stdout(),
@@ -225,13 +264,7 @@ pub fn edit_in_editor(text: &str) -> Result<String, String> {
             .map_err(|e| format!("{editor}: {e}")),
         None => Err("no editor".to_string()),
     };
-    let _ = enable_raw_mode();
-    let _ = execute!(
-        io::stdout(),
-        EnterAlternateScreen,
-        EnableBracketedPaste,
-        cursor::Hide
-    );
+    let _ = enter_terminal();
     let result = match status {
         Ok(s) if s.success() => {
             std::fs::read_to_string(&path).map_err(|e| format!("{}: {e}", path.display()))
@@ -266,12 +299,12 @@ where
 {
     let size = terminal.size()?;
     app.size = (size.width, size.height);
-    terminal.draw(|f| ui::draw(f, app))?;
+    terminal.draw(|f| draw_frame(f, app))?;
     let first = app.start_scan();
     if carry_out(first, app, worker, host, terminal)? {
         return Ok(());
     }
-    terminal.draw(|f| ui::draw(f, app))?;
+    terminal.draw(|f| draw_frame(f, app))?;
     loop {
         if stop.load(Ordering::SeqCst) {
             app.save_before_exit();
@@ -310,6 +343,10 @@ where
                 changed = true;
             }
             None => {
+                // Grades written by another process show up without a key press.
+                if app.poll_journal() {
+                    changed = true;
+                }
                 if changed || app.busy() {
                     effects.extend(app.handle(AppEvent::Tick));
                 }
@@ -319,7 +356,7 @@ where
             return Ok(());
         }
         if changed {
-            terminal.draw(|f| ui::draw(f, app))?;
+            terminal.draw(|f| draw_frame(f, app))?;
         }
     }
 }
@@ -363,7 +400,7 @@ where
         }
     }
     if redraw {
-        terminal.draw(|f| ui::draw(f, app))?;
+        terminal.draw(|f| draw_frame(f, app))?;
     }
     let _ = io::stdout().flush();
     Ok(false)

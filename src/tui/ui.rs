@@ -132,10 +132,36 @@ pub fn draw(frame: &mut Frame, app: &App) {
     if app.theme.ascii {
         super::theme::asciify(buf);
     }
+    scrub(frame.buffer_mut());
+}
+
+/// The last pass before a frame is flushed: a cell whose symbol holds a control or
+/// bidirectional character (one that slipped past the panes' own escaping) loses it; a
+/// cell left empty shows the character's visible stand-in. Nothing from the roster can
+/// reach the terminal as an escape sequence, whatever pane drew it.
+pub fn scrub(buf: &mut Buffer) {
+    for cell in buf.content.iter_mut() {
+        let sym = cell.symbol();
+        if !sym.chars().any(is_unsafe) {
+            continue;
+        }
+        let kept: String = sym.chars().filter(|&c| !is_unsafe(c)).collect();
+        let shown = if kept.is_empty() {
+            printable(
+                sym.get(..sym.chars().next().map_or(0, char::len_utf8))
+                    .unwrap_or(""),
+            )
+        } else {
+            kept
+        };
+        cell.set_symbol(&shown);
+    }
 }
 
 use ratatui::buffer::Buffer;
 use ratatui::widgets::Widget;
+
+use crate::roster::{is_unsafe, printable};
 
 fn draw_title(app: &App, area: Rect, buf: &mut Buffer) {
     let t = &app.theme;
@@ -153,7 +179,7 @@ fn draw_title(app: &App, area: Rect, buf: &mut Buffer) {
         };
         parts.push(format!("[{mode}]"));
     }
-    Paragraph::new(parts.join(" · "))
+    Paragraph::new(printable(&parts.join(" · ")))
         .style(t.bar)
         .render(area, buf);
 }
@@ -190,6 +216,7 @@ fn draw_welcome(app: &App, area: Rect, buf: &mut Buffer) {
     ];
     let mut lines = lines;
     lines.extend(panes::roster::athlete_problems(app));
+    lines.extend(panes::roster::roster_problems(app));
     Paragraph::new(lines)
         .wrap(Wrap { trim: false })
         .render(inner, buf);
@@ -217,7 +244,7 @@ fn draw_status(app: &App, area: Rect, buf: &mut Buffer) {
             Tone::Done => t.good,
             Tone::Warn => t.warn,
         };
-        Paragraph::new(Line::styled(format!(" {}", m.text), style)).render(l, buf);
+        Paragraph::new(Line::styled(format!(" {}", printable(&m.text)), style)).render(l, buf);
     }
     Paragraph::new(Line::styled(right, t.dim)).render(r, buf);
 }
@@ -332,7 +359,7 @@ fn draw_modal(app: &App, modal: &Modal, area: Rect, buf: &mut Buffer) {
             block.render(r, buf);
             let mut lines: Vec<Line> = text
                 .lines()
-                .map(|l| Line::styled(l.to_string(), t.text))
+                .map(|l| Line::styled(printable(l), t.text))
                 .collect();
             lines.push(Line::raw(""));
             lines.push(Line::styled(

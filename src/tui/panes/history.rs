@@ -60,7 +60,7 @@ pub fn render(app: &App, area: Rect, buf: &mut Buffer) {
         Paragraph::new("no athlete selected").render(inner, buf);
         return;
     };
-    let title = format!(" History: {} ", a.profile.name);
+    let title = format!(" History: {} ", crate::roster::printable(&a.profile.name));
     let block = pane_block(app, title, false);
     let inner = block.inner(area);
     block.render(area, buf);
@@ -381,7 +381,7 @@ fn volume(t: &Theme, hv: &HistoryView, u: Units, area: Rect, buf: &mut Buffer) {
                     " "
                 }
             } else {
-                EIGHTHS[filled as usize]
+                EIGHTHS.get(filled as usize).copied().unwrap_or(full)
             };
             for dx in 0..(COL as u16 - 1) {
                 if let Some(c) = buf.cell_mut((x + dx, y)) {

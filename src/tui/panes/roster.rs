@@ -13,7 +13,7 @@ use crate::tui::ui::pane_block;
 /// Draw the roster pane.
 pub fn render(app: &App, area: Rect, buf: &mut Buffer) {
     let t = &app.theme;
-    let mut title = format!(" Roster · {} ", app.roster.name);
+    let mut title = format!(" Roster · {} ", printable(&app.roster.name));
     if app.only_unreviewed {
         title.push_str("· unreviewed ");
     }
@@ -111,7 +111,7 @@ pub fn render(app: &App, area: Rect, buf: &mut Buffer) {
                     " "
                 };
                 let title_w = w.saturating_sub(2 + date.chars().count() + 1 + stage_w + 1);
-                let title = app.session_title(&s.session_id);
+                let title = printable(&app.session_title(&s.session_id));
                 let base = if selected { t.selected } else { t.text };
                 let stage_style = if selected {
                     t.selected
@@ -233,6 +233,49 @@ pub fn athlete_problems(app: &App) -> Vec<Line<'static>> {
             .unwrap_or_default();
         out.push(Line::styled(
             printable(&format!("{file}: {}", p.message)),
+            t.text,
+        ));
+    }
+    out
+}
+
+/// The roster's own problems (entries that are not used: a folder that is no athlete
+/// folder, a link that leads outside the roster or nowhere, a folder named like an activity
+/// file, a name that is not UTF-8, a folder listed once though reached twice), for the pane
+/// beside the roster while no session is open: a heading and one line per problem, the
+/// path relative to the roster. Empty when there are none.
+pub fn roster_problems(app: &App) -> Vec<Line<'static>> {
+    let t = &app.theme;
+    let of_athletes: Vec<crate::roster::Problem> = app
+        .roster
+        .athletes
+        .iter()
+        .flat_map(|a| a.problems())
+        .collect();
+    let own: Vec<&crate::roster::Problem> = app
+        .roster
+        .problems
+        .iter()
+        .filter(|p| !of_athletes.contains(p))
+        .collect();
+    if own.is_empty() {
+        return Vec::new();
+    }
+    let mut out = vec![
+        Line::raw(""),
+        Line::styled(
+            format!(
+                "! {} roster entr{} not used (splitdesk check lists them):",
+                own.len(),
+                if own.len() == 1 { "y" } else { "ies" }
+            ),
+            t.warn,
+        ),
+    ];
+    for p in own {
+        let path = p.path.strip_prefix(&app.roster.root).unwrap_or(&p.path);
+        out.push(Line::styled(
+            printable(&format!("{}: {}", path.display(), p.message)),
             t.text,
         ));
     }

@@ -209,7 +209,7 @@ fn grading_lines<'a>(app: &App, o: &OpenSession, review: &Review) -> Vec<Line<'a
         }
     }
     if let Some(m) = app.message.as_ref().filter(|m| m.tone == Tone::Warn) {
-        lines.push(Line::styled(m.text.clone(), t.warn));
+        lines.push(Line::styled(printable(&m.text), t.warn));
     }
     lines
 }
@@ -287,11 +287,11 @@ pub fn render(app: &App, area: Rect, buf: &mut Buffer) {
     let purpose = match &review.plan {
         Some(p) if !p.purpose.is_empty() => Line::from(vec![
             Span::styled("Purpose ", t.heading),
-            Span::styled(fit(&p.purpose, w.saturating_sub(8)), t.text),
+            Span::styled(fit(&printable(&p.purpose), w.saturating_sub(8)), t.text),
         ]),
         Some(p) => Line::from(vec![
             Span::styled("Plan ", t.heading),
-            Span::styled(p.title.clone(), t.text),
+            Span::styled(printable(&p.title), t.text),
         ]),
         None => match plan_not_used {
             Some(note) => {
@@ -427,7 +427,7 @@ fn render_findings(
         lines.push(Line::from(vec![
             Span::styled(format!("{mark} "), style),
             Span::styled(
-                f.text.clone(),
+                printable(&f.text),
                 if f.severity >= Severity::Warning {
                     style
                 } else {
@@ -452,7 +452,7 @@ fn render_revealed(app: &App, o: &OpenSession, area: Rect, buf: &mut Buffer) {
     let bottom = area.y + area.height;
     if !editing {
         let note_lines: Vec<String> = match &o.note {
-            Some(Some(text)) => text.lines().map(str::to_string).collect(),
+            Some(Some(text)) => text.lines().map(printable).collect(),
             Some(None) => vec!["(no notes for this session)".to_string()],
             None => vec![],
         };
@@ -510,7 +510,8 @@ fn render_revealed(app: &App, o: &OpenSession, area: Rect, buf: &mut Buffer) {
     };
     let w = area.width as usize;
     for (i, line) in ed.lines.iter().enumerate().skip(first).take(room) {
-        let text = fit(line, w);
+        // One stand-in per unsafe character: the cursor column stays right.
+        let text = fit(&printable(line), w);
         let l = if ed.editing && i == ed.row {
             let chars: Vec<char> = text.chars().collect();
             let col = ed.col.min(chars.len());

@@ -83,15 +83,24 @@ fn ingest_as(data: &[u8], format: FileFormat) {
     }
     let profile = full_profile();
     // As a roster file with the right extension...
-    if let Ok(session) = ingest::ingest_bytes(data, format, Some(&profile)) {
-        check_session(&session);
-    }
+    check_outcome(ingest::ingest_bytes(data, format, Some(&profile)));
     // ...and as one whose format is found from the content alone.
     if let Some(sniffed) = ingest::detect_format(None, data) {
         if sniffed != format {
-            if let Ok(session) = ingest::ingest_bytes(data, sniffed, None) {
-                check_session(&session);
-            }
+            check_outcome(ingest::ingest_bytes(data, sniffed, None));
+        }
+    }
+}
+
+/// A clean error, or a session that keeps its invariants. The FIT reader's last-resort
+/// `catch_unwind` ("decoder crashed") counts as a failure: that panic was not prevented.
+pub fn check_outcome(outcome: Result<Session, ingest::ParseError>) {
+    match outcome {
+        Ok(session) => check_session(&session),
+        Err(e) => {
+            let text = e.to_string();
+            assert!(!text.contains("decoder crashed"), "{text}");
+            assert!(!text.is_empty());
         }
     }
 }

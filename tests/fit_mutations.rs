@@ -214,8 +214,8 @@ fn encode(fit: &Fit, cut: Option<usize>) -> Vec<u8> {
 /// FIT base types (FIT SDK profile, "Base Types" table) plus two that do not exist.
 // Source: Garmin FIT SDK, "FIT Protocol" document, table "FIT Base Types".
 const BASE_TYPES: [u8; 19] = [
-    0x00, 0x01, 0x02, 0x83, 0x84, 0x85, 0x86, 0x07, 0x88, 0x89, 0x0A, 0x8B, 0x8C, 0x0D, 0x8E,
-    0x8F, 0x90, 0x11, 0xE7,
+    0x00, 0x01, 0x02, 0x83, 0x84, 0x85, 0x86, 0x07, 0x88, 0x89, 0x0A, 0x8B, 0x8C, 0x0D, 0x8E, 0x8F,
+    0x90, 0x11, 0xE7,
 ];
 
 /// Global message numbers worth swapping in (FIT SDK profile): file_id 0, sport 12,
@@ -531,11 +531,7 @@ fn crc_is_the_fit_sdk_crc() {
     // bytes "123456789" is 0xBB3D (CRC RevEng catalogue, "CRC-16/ARC").
     assert_eq!(fit_crc(0, b"123456789"), 0xBB3D);
     for b in bases() {
-        assert_eq!(
-            fit_crc(0, &b),
-            0,
-            "a whole file with its CRC checks to 0"
-        );
+        assert_eq!(fit_crc(0, &b), 0, "a whole file with its CRC checks to 0");
         assert_eq!(fit_crc(0, &b[..12]), u16::from_le_bytes([b[12], b[13]]));
         assert_eq!(
             fit_crc(0, &b[..b.len() - 2]),
@@ -560,7 +556,9 @@ fn mutated_files_give_a_clean_error_or_a_sound_session() {
     let mut outcomes = [0usize; 2]; // [errors, sessions]
     let mut failures = Vec::new();
     for seed in 0..MUTANTS as u64 {
-        let mut rng = Rng(XorShift(0x9E37_79B9_7F4A_7C15 ^ (seed + 1).wrapping_mul(0x2545)));
+        let mut rng = Rng(XorShift(
+            0x9E37_79B9_7F4A_7C15 ^ (seed + 1).wrapping_mul(0x2545),
+        ));
         let mut fit = parsed[seed as usize % parsed.len()].clone();
         let mut cut = None;
         let count = 1 + rng.below(3);
@@ -583,7 +581,11 @@ fn mutated_files_give_a_clean_error_or_a_sound_session() {
                 std::fs::create_dir_all(&dir).unwrap();
                 let path = dir.join(format!("mutant-{seed}.fit"));
                 std::fs::write(&path, &bytes).unwrap();
-                failures.push(format!("seed {seed}: {} ({})", what.join("; "), path.display()));
+                failures.push(format!(
+                    "seed {seed}: {} ({})",
+                    what.join("; "),
+                    path.display()
+                ));
             }
         }
     }
@@ -591,6 +593,12 @@ fn mutated_files_give_a_clean_error_or_a_sound_session() {
     // The mutations reach both ends: some files still read, some are refused.
     let [errors, sessions] = outcomes;
     eprintln!("{MUTANTS} mutated files: {errors} refused, {sessions} read");
-    assert!(errors >= MUTANTS / 10, "{errors} errors, {sessions} sessions");
-    assert!(sessions >= MUTANTS / 10, "{errors} errors, {sessions} sessions");
+    assert!(
+        errors >= MUTANTS / 10,
+        "{errors} errors, {sessions} sessions"
+    );
+    assert!(
+        sessions >= MUTANTS / 10,
+        "{errors} errors, {sessions} sessions"
+    );
 }

@@ -80,7 +80,11 @@ fn every_seed_passes_its_target() {
 fn every_saved_fuzz_failure_passes_its_target() {
     let mut total = 0;
     for (target, f) in TARGETS {
-        total += run_dir(target, f, &root().join("tests/fuzz-regressions").join(target));
+        total += run_dir(
+            target,
+            f,
+            &root().join("tests/fuzz-regressions").join(target),
+        );
     }
     // The folder's README lists what each saved input found.
     assert!(root().join("tests/fuzz-regressions/README.md").is_file());
@@ -113,7 +117,11 @@ fn ingest_seeds_decode() {
 fn seed_sessions(samples: usize, gps_always: bool) -> Vec<(&'static str, Session)> {
     // The pause of `fit_common::session` starts at 600 s: keep it in the longest session.
     let full = fit_common::session(samples.max(640), true);
-    let full = if samples < 640 { cut(full, samples) } else { full };
+    let full = if samples < 640 {
+        cut(full, samples)
+    } else {
+        full
+    };
     let mut bare = fit_common::session(samples * 2 / 3, false);
     if !gps_always {
         bare.lat = None;
@@ -130,7 +138,11 @@ fn seed_sessions(samples: usize, gps_always: bool) -> Vec<(&'static str, Session
             }
         }
     }
-    vec![("run-full", full), ("run-no-gps", bare), ("ride-holes", ride)]
+    vec![
+        ("run-full", full),
+        ("run-no-gps", bare),
+        ("ride-holes", ride),
+    ]
 }
 
 /// The first `n` samples of a session, with its laps and pauses cut to them.
@@ -274,30 +286,46 @@ fn write_seed_corpus() {
         for chunk in bytes.iter_mut().skip(12).step_by(9) {
             *chunk %= 200;
         }
-        write(&corpus.join("analysis"), &format!("pattern-{k}.bin"), &bytes);
+        write(
+            &corpus.join("analysis"),
+            &format!("pattern-{k}.bin"),
+            &bytes,
+        );
     }
 
     // The journal's cached rows: a real cached review, as text (mode 0) and stored in the
     // journal (mode 1), and a review JSON with a byte that is not UTF-8 (mode 5).
     let (_, s) = &seed_sessions(200, false)[0];
     let bytes = fit_writer::write(s);
-    let session = splitdesk::ingest::ingest_bytes(&bytes, splitdesk::model::FileFormat::Fit, None)
-        .unwrap();
+    let session =
+        splitdesk::ingest::ingest_bytes(&bytes, splitdesk::model::FileFormat::Fit, None).unwrap();
     let review = splitdesk::analysis::analyze(
         &session,
         None,
         &splitdesk::model::AthleteProfile::bare("seed"),
     );
     let json = serde_json::to_vec(&review).unwrap();
-    for (mode, name) in [(0u8, "review-text"), (1, "review-row"), (3, "review-row-reopen")] {
+    for (mode, name) in [
+        (0u8, "review-text"),
+        (1, "review-row"),
+        (3, "review-row-reopen"),
+    ] {
         let mut input = vec![mode];
         input.extend_from_slice(&json);
-        write(&corpus.join("journal_cache"), &format!("{name}.bin"), &input);
+        write(
+            &corpus.join("journal_cache"),
+            &format!("{name}.bin"),
+            &input,
+        );
     }
     let mut bad = vec![5u8];
     bad.extend_from_slice(&json);
     if let Some(at) = bad.iter().position(|&b| b == b':') {
         bad.insert(at + 1, 0xFF);
     }
-    write(&corpus.join("journal_cache"), "review-row-bad-utf8.bin", &bad);
+    write(
+        &corpus.join("journal_cache"),
+        "review-row-bad-utf8.bin",
+        &bad,
+    );
 }

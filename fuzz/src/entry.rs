@@ -110,7 +110,10 @@ pub fn check_session(s: &Session) {
     let n = s.len();
     assert!(n > 0, "an ingested session has samples");
     assert_eq!(s.time.len(), n, "one absolute time per sample");
-    assert!(s.t.iter().all(|t| t.is_finite()), "elapsed times are finite");
+    assert!(
+        s.t.iter().all(|t| t.is_finite()),
+        "elapsed times are finite"
+    );
     assert!(
         s.t.windows(2).all(|w| w[0] <= w[1]),
         "elapsed time never goes backwards"
@@ -134,18 +137,30 @@ pub fn check_session(s: &Session) {
         }
     }
     for f in &s.flags {
-        assert!(f.from_s.is_finite() && f.to_s.is_finite(), "flag bounds finite");
+        assert!(
+            f.from_s.is_finite() && f.to_s.is_finite(),
+            "flag bounds finite"
+        );
     }
     for p in &s.pauses {
-        assert!(p.from_s.is_finite() && p.to_s.is_finite(), "pause bounds finite");
+        assert!(
+            p.from_s.is_finite() && p.to_s.is_finite(),
+            "pause bounds finite"
+        );
     }
     for l in &s.laps {
-        assert!(l.start_s.is_finite() && l.end_s.is_finite(), "lap bounds finite");
+        assert!(
+            l.start_s.is_finite() && l.end_s.is_finite(),
+            "lap bounds finite"
+        );
     }
     assert!(s.duration_s().is_finite());
     assert!(s.timer_s().is_finite());
     if let Some(d) = s.distance_m() {
-        assert!(d.is_finite() && d >= 0.0, "distance finite and not negative");
+        assert!(
+            d.is_finite() && d >= 0.0,
+            "distance finite and not negative"
+        );
     }
 }
 
@@ -216,7 +231,10 @@ pub fn profile(data: &[u8]) {
     for units in [Units::Km, Units::Mi] {
         let report = splitdesk::roster::read_profile(text, "fuzz-athlete", units);
         let p = &report.profile;
-        for v in [p.hr_max, p.hr_rest, p.threshold_speed_mps].into_iter().flatten() {
+        for v in [p.hr_max, p.hr_rest, p.threshold_speed_mps]
+            .into_iter()
+            .flatten()
+        {
             assert!(v.is_finite(), "profile numbers are finite");
         }
         for (name, v) in &p.paces {
@@ -318,7 +336,12 @@ fn arbitrary_session(u: &mut Unstructured<'_>) -> arbitrary::Result<Built> {
         let missing = gap_every > 0 && i % usize::from(gap_every) == usize::from(gap_every) / 2;
         let v = f64::from(u.arbitrary::<u16>()?) / 6000.0; // 0 to 10.9 m/s
         let jump: u8 = u.arbitrary()?;
-        d += v * 1.0 + if jump > 250 { f64::from(jump) * 4.0 } else { 0.0 };
+        d += v * 1.0
+            + if jump > 250 {
+                f64::from(jump) * 4.0
+            } else {
+                0.0
+            };
         let h: u8 = u.arbitrary()?;
         let c: u8 = u.arbitrary()?;
         let a = f64::from(u.arbitrary::<i16>()?) / 20.0;
@@ -338,9 +361,8 @@ fn arbitrary_session(u: &mut Unstructured<'_>) -> arbitrary::Result<Built> {
         .iter()
         .map(|s| start + Duration::milliseconds((s * 1000.0) as i64))
         .collect();
-    let channel = |bit: u8, values: Vec<Option<f64>>| {
-        (mask & (1 << bit) != 0).then(|| Channel::new(values))
-    };
+    let channel =
+        |bit: u8, values: Vec<Option<f64>>| (mask & (1 << bit) != 0).then(|| Channel::new(values));
     let end = now;
     let mut pauses = Vec::new();
     let mut laps = Vec::new();

@@ -117,6 +117,7 @@ pub fn resolve_roster(flag: Option<&Path>, config: &Config) -> PathBuf {
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::ingest::Limits;
 
     #[test]
     fn flag_beats_config_beats_demo() {
@@ -142,5 +143,10 @@ mod tests {
         let cfg = parse("[ingest]\nmax_file_mb = 0\n").unwrap();
         assert_eq!(cfg.ingest_limits().max_file_bytes, 1024 * 1024);
         assert!(parse("[ingest]\nmax_mb = 8\n").is_err());
+        // The documented example parses, and its commented key is the default.
+        let example = include_str!("../config.example.toml");
+        assert_eq!(parse(example).unwrap().ingest_limits(), Limits::default());
+        let uncommented = example.replace("# max_file_mb = 64", "max_file_mb = 64");
+        assert_eq!(parse(&uncommented).unwrap().ingest.max_file_mb, Some(64));
     }
 }

@@ -86,8 +86,9 @@ impl IngestError {
     }
 }
 
-/// The default size cap for one activity file, MiB. A 10-hour 1 Hz FIT file with every
-/// channel is about 1.5 MB and its TCX about 15 MB, so 64 MiB leaves ample room.
+/// The default size cap for one activity file, MiB. Measured with our own writers (every
+/// channel at 1 Hz, 10 hours): FIT 1.0 MB, GPX 13.5 MB, TCX 23.4 MB, so 64 MiB leaves room
+/// for recordings well beyond a day.
 pub const DEFAULT_MAX_FILE_MB: u64 = 64;
 
 /// Bounds on what reading one activity file may cost.
@@ -127,7 +128,7 @@ pub fn limits() -> Limits {
     }
 }
 
-/// A byte count for people: "2.0 GB", "64 MiB" style, with the exact count for large ones.
+/// A byte count for people: "2.0 GiB", "64.0 MiB", or "900 bytes" below one MiB.
 fn human_size(bytes: u64) -> String {
     const MIB: f64 = 1024.0 * 1024.0;
     let mib = bytes as f64 / MIB;

@@ -125,9 +125,14 @@ pub fn repair(s: &mut Session) -> Result<(), ParseError> {
     let far = (example - if a > 0 { kept_from } else { kept_to })
         .num_days()
         .abs();
+    let far = if far >= 730 {
+        format!("{} years", far / 365)
+    } else {
+        format!("{far} days")
+    };
     keep_range(s, a, b);
     s.warnings.push(format!(
-        "{dropped} sample{} with an impossible timestamp {} dropped (e.g. {}, {far} days from the rest)",
+        "{dropped} sample{} with an impossible timestamp {} dropped (e.g. {}, {far} from the rest)",
         if dropped == 1 { "" } else { "s" },
         if dropped == 1 { "was" } else { "were" },
         example.format("%Y-%m-%d %H:%M:%S UTC"),

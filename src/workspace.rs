@@ -321,7 +321,15 @@ impl Workspace {
                 })?;
             }
         }
-        let journal = Journal::open_for_roster(&path, &roster.root)?;
+        let journal = match Journal::open_for_roster(&path, &roster.root) {
+            Ok(j) => j,
+            // An existing journal that cannot be written still serves reading: a copy in
+            // memory, every write of the coach's data refused.
+            Err(JournalError::ReadOnlyLocation { .. }) if path.is_file() => {
+                Journal::open_snapshot(&path, &journal::why_read_only(&path))?
+            }
+            Err(e) => return Err(e.into()),
+        };
         Ok(Workspace { roster, journal })
     }
 

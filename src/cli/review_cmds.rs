@@ -19,13 +19,27 @@ pub const EXIT_BLIND: i32 = 3;
 
 /// Open the workspace and bring the journal up to date with the roster (progress on stderr).
 pub fn open_synced(roster: &Path, journal: Option<&Path>) -> anyhow::Result<Workspace> {
-    let mut ws = Workspace::open(roster, journal)?;
+    let mut ws = open_noting_read_only(roster, journal)?;
     let total = ws.roster.activities().count() as u64;
     let bar = super::progress_bar(total, "analysing");
     let report = ws.sync(Utc::now(), |done, _| bar.set_position(done as u64))?;
     bar.finish_and_clear();
     for p in &report.problems {
         eprintln!("warning: {p}");
+    }
+    Ok(ws)
+}
+
+/// Open the workspace; when the journal cannot be written, say so once on stderr (reading
+/// commands then work on it as it is; a write is refused with its own message).
+pub fn open_noting_read_only(roster: &Path, journal: Option<&Path>) -> anyhow::Result<Workspace> {
+    let ws = Workspace::open(roster, journal)?;
+    if let Some(reason) = ws.journal.read_only() {
+        eprintln!(
+            "note: {}: the journal is read-only ({reason}); it is read as it is and nothing \
+             will be saved in it",
+            ws.journal.path().display()
+        );
     }
     Ok(ws)
 }
@@ -410,6 +424,7 @@ pub fn export_feedback(ws: &mut Workspace, filter: &Filter, format: &str) -> any
         .filter(|e| filter.keeps(e) && !e.stage.is_unreviewed())
         .collect();
     let mut blocks = Vec::new();
+    let mut not_recorded = false;
     for e in &entries {
         let review = ws.refresh(&e.session_id, Utc::now())?;
         let (text, saved) = current_feedback(ws, &e.session_id)?;
@@ -427,8 +442,15 @@ pub fn export_feedback(ws: &mut Workspace, filter: &Filter, format: &str) -> any
             feedback: text,
             saved,
         });
-        ws.journal
-            .record_feedback_event(&e.session_id, FeedbackEventKind::Exported, Utc::now())?;
+        match ws.journal.record_feedback_event(
+            &e.session_id,
+            FeedbackEventKind::Exported,
+            Utc::now(),
+        ) {
+            Ok(()) => {}
+            Err(JournalError::ReadOnly { .. }) => not_recorded = true,
+            Err(e) => return Err(e.into()),
+        }
     }
     match format {
         "json" => println!("{}", serde_json::to_string_pretty(&blocks)?),
@@ -447,6 +469,12 @@ pub fn export_feedback(ws: &mut Workspace, filter: &Filter, format: &str) -> any
                 println!("{}", b.feedback.trim_end());
             }
         }
+    }
+    if not_recorded {
+        eprintln!(
+            "note: {}: this export was not recorded as sent (nothing can be saved there)",
+            ws.journal.path().display()
+        );
     }
     if blocks.is_empty() {
         eprintln!("no reviewed sessions match (feedback is exported once the notes were revealed)");

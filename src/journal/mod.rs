@@ -73,6 +73,10 @@ pub type Result<T, E = JournalError> = std::result::Result<T, E>;
 pub struct Journal {
     conn: Connection,
     path: PathBuf,
+    /// `Some(reason)` for a journal opened with [`Journal::open_snapshot`]: a copy in memory
+    /// of a journal that cannot be written. Reads and the analysis cache work on the copy;
+    /// any write of the coach's data is refused with [`JournalError::ReadOnly`].
+    read_only: Option<String>,
 }
 
 /// Map rusqlite results into journal errors carrying the path.
@@ -169,6 +173,87 @@ fn check_header(path: &Path) -> Result<()> {
     }
 }
 
+/// Identify and check a journal through `source`, then copy it into a new in-memory
+/// database with the backup API, giving up (with `Busy`) after [`BUSY_TIMEOUT`].
+fn copy_to_memory(source: &Connection, path: &Path) -> Result<Connection> {
+    match identify_conn(source, path)? {
+        Identity::Ours(_) => quick_check(source, path)?,
+        Identity::Empty => {
+            return Err(JournalError::NotAJournal {
+                path: path.to_path_buf(),
+                reason: "an empty database".into(),
+            })
+        }
+    }
+    let mut conn = Connection::open_in_memory().sq(path)?;
+    {
+        use rusqlite::backup::StepResult;
+        let backup = rusqlite::backup::Backup::new(source, &mut conn).sq(path)?;
+        let deadline = std::time::Instant::now() + BUSY_TIMEOUT;
+        loop {
+            match backup.step(-1).sq(path)? {
+                StepResult::Done => break,
+                StepResult::More | StepResult::Busy | StepResult::Locked => {
+                    if std::time::Instant::now() > deadline {
+                        return Err(JournalError::Busy {
+                            path: path.to_path_buf(),
+                        });
+                    }
+                    std::thread::sleep(Duration::from_millis(10));
+                }
+                _ => {
+                    return Err(JournalError::Busy {
+                        path: path.to_path_buf(),
+                    })
+                }
+            }
+        }
+    }
+    Ok(conn)
+}
+
+fn read_only_conn(path: &Path) -> Result<Connection> {
+    let conn = Connection::open_with_flags(
+        path,
+        OpenFlags::SQLITE_OPEN_READ_ONLY | OpenFlags::SQLITE_OPEN_NO_MUTEX,
+    )
+    .sq(path)?;
+    conn.busy_timeout(BUSY_TIMEOUT).sq(path)?;
+    // Opening is lazy: make SQLite read the file now, so a failure shows here.
+    conn.query_row("SELECT count(*) FROM sqlite_schema", [], |r| {
+        r.get::<_, i64>(0)
+    })
+    .sq(path)?;
+    Ok(conn)
+}
+
+/// A read-only connection that takes the file as unchanging (`immutable=1`): no locks, no
+/// shared-memory file. Only for files nobody can be writing.
+fn immutable_conn(path: &Path) -> Result<Connection> {
+    let abs = std::path::absolute(path).unwrap_or_else(|_| path.to_path_buf());
+    let mut uri = String::from("file:");
+    for b in abs.to_string_lossy().bytes() {
+        if b.is_ascii_alphanumeric() || b"/-_.~".contains(&b) {
+            uri.push(char::from(b));
+        } else {
+            uri.push_str(&format!("%{b:02X}"));
+        }
+    }
+    uri.push_str("?immutable=1");
+    let conn = Connection::open_with_flags(
+        &uri,
+        OpenFlags::SQLITE_OPEN_READ_ONLY
+            | OpenFlags::SQLITE_OPEN_URI
+            | OpenFlags::SQLITE_OPEN_NO_MUTEX,
+    )
+    .sq(path)?;
+    conn.query_row("SELECT count(*) FROM sqlite_schema", [], |r| {
+        r.get::<_, i64>(0)
+    })
+    .sq(path)?;
+    Ok(conn)
+}
+
 /// Identify an existing file through a read-only connection, which never changes it.
 fn identify(path: &Path) -> Result<Identity> {
     check_header(path)?;
@@ -237,6 +322,18 @@ fn quick_check(conn: &Connection, path: &Path) -> Result<()> {
             path: path.to_path_buf(),
             detail: rows.join("; "),
         })
+    }
+}
+
+/// In plain words, why the journal at `path` cannot be written: its file or its folder.
+pub fn why_read_only(path: &Path) -> String {
+    let file_writable = fs::OpenOptions::new().write(true).open(path).is_ok();
+    if !file_writable {
+        return "the file is read-only".into();
+    }
+    match check_writable_dir(path) {
+        Err(_) => "its folder cannot be written".into(),
+        Ok(()) => "the file system refused a write".into(),
     }
 }
 
@@ -313,7 +410,11 @@ impl Journal {
                 detail: format!("could not switch to WAL mode (got {mode})"),
             });
         }
-        let mut journal = Journal { conn, path };
+        let mut journal = Journal {
+            conn,
+            path,
+            read_only: None,
+        };
         journal.configure()?;
         journal.migrate()?;
         Ok(journal)
@@ -355,16 +456,69 @@ impl Journal {
             }
         }
         quick_check(&conn, &path)?;
-        let journal = Journal { conn, path };
+        let journal = Journal {
+            conn,
+            path,
+            read_only: None,
+        };
         journal.configure()?;
         Ok(journal)
+    }
+
+    /// Open a journal that cannot be written (`reason` says why) for reading: its content is
+    /// copied into memory with SQLite's backup API and upgraded there if older. The file is
+    /// never changed. Reads work; the analysis cache is kept in the copy only; every write of
+    /// the coach's data is refused with [`JournalError::ReadOnly`], nothing saved.
+    pub fn open_snapshot(path: &Path, reason: &str) -> Result<Journal> {
+        let path = path.to_path_buf();
+        if let Err(err) = fs::metadata(&path) {
+            return Err(JournalError::Io { path, err });
+        }
+        check_header(&path)?;
+        // A plain read-only connection sees the write-ahead log too. When it cannot (a WAL
+        // journal whose shared-memory file cannot be made or written), and no log with
+        // unmerged writes lies beside the file, read the file as it is.
+        let copied = read_only_conn(&path).and_then(|source| copy_to_memory(&source, &path));
+        let conn = match copied {
+            Ok(c) => c,
+            Err(e) => {
+                let mut wal = path.clone().into_os_string();
+                wal.push("-wal");
+                let wal_len = fs::metadata(PathBuf::from(wal))
+                    .map(|m| m.len())
+                    .unwrap_or(0);
+                if wal_len > 0 {
+                    return Err(e);
+                }
+                copy_to_memory(&immutable_conn(&path)?, &path)?
+            }
+        };
+        let mut journal = Journal {
+            conn,
+            path,
+            read_only: None,
+        };
+        journal.configure()?;
+        journal.migrate()?;
+        journal.read_only = Some(reason.to_string());
+        Ok(journal)
+    }
+
+    /// Why the journal is read-only (opened with [`Journal::open_snapshot`]); `None` when it
+    /// can be written.
+    pub fn read_only(&self) -> Option<&str> {
+        self.read_only.as_deref()
     }
 
     /// A fresh journal in memory (tests, throw-away runs).
     pub fn open_in_memory() -> Result<Journal> {
         let path = PathBuf::from(":memory:");
         let conn = Connection::open_in_memory().sq(&path)?;
-        let mut journal = Journal { conn, path };
+        let mut journal = Journal {
+            conn,
+            path,
+            read_only: None,
+        };
         journal.configure()?;
         journal.migrate()?;
         Ok(journal)
@@ -417,7 +571,38 @@ impl Journal {
     }
 
     /// Run `f` in one `BEGIN IMMEDIATE` transaction; commit on success, roll back on error.
+    /// On a read-only journal (a snapshot) an `f` that changes nothing succeeds, one that
+    /// would change the coach's data is rolled back and refused with `ReadOnly`.
     fn write<T>(&mut self, f: impl FnOnce(&Transaction<'_>, &Path) -> Result<T>) -> Result<T> {
+        let path = self.path.clone();
+        let tx = self
+            .conn
+            .transaction_with_behavior(TransactionBehavior::Immediate)
+            .sq(&path)?;
+        let changes = |tx: &Transaction<'_>| -> Result<i64> {
+            tx.query_row("SELECT total_changes()", [], |r| r.get(0))
+                .sq(&path)
+        };
+        let before = changes(&tx)?;
+        let out = f(&tx, &path)?;
+        if let Some(reason) = &self.read_only {
+            if changes(&tx)? != before {
+                return Err(JournalError::ReadOnly {
+                    path,
+                    detail: reason.clone(),
+                });
+            }
+        }
+        tx.commit().sq(&path)?;
+        Ok(out)
+    }
+
+    /// [`Journal::write`] for the session list and the analysis cache (derived data): on a
+    /// read-only journal these go to the copy in memory only.
+    fn write_cache<T>(
+        &mut self,
+        f: impl FnOnce(&Transaction<'_>, &Path) -> Result<T>,
+    ) -> Result<T> {
         let path = self.path.clone();
         let tx = self
             .conn
@@ -444,7 +629,7 @@ impl Journal {
         record: &SessionRecord,
         now: DateTime<Utc>,
     ) -> Result<SessionChange> {
-        self.write(|tx, path| {
+        self.write_cache(|tx, path| {
             let existing = session_row(tx, path, &record.session_id)?;
             let (mut change, review_id) = match &existing {
                 None => match latest_review_for_hash(tx, path, &record.content_hash)? {
@@ -519,7 +704,7 @@ impl Journal {
         content_hash: &str,
         summary: &SummaryCache,
     ) -> Result<bool> {
-        self.write(|tx, path| {
+        self.write_cache(|tx, path| {
             let row = require_session(tx, path, session_id)?;
             if row.content_hash != content_hash {
                 return Ok(false);
@@ -575,7 +760,7 @@ impl Journal {
     /// Their reviews stay in the journal and reattach if the same content reappears.
     pub fn retain_sessions(&mut self, present: &[&str]) -> Result<usize> {
         let keep: BTreeSet<&str> = present.iter().copied().collect();
-        self.write(|tx, path| {
+        self.write_cache(|tx, path| {
             let ids: Vec<String> = {
                 let mut stmt = tx.prepare("SELECT session_id FROM session").sq(path)?;
                 let rows = stmt.query_map([], |r| r.get(0)).sq(path)?;

@@ -532,6 +532,26 @@ pub fn export_intervals(ws: &mut Workspace, filter: &Filter) -> anyhow::Result<i
             .collect();
         for m in &review.intervals {
             let sc = m.work_number.and_then(|n| scores.get(&(n as u32)));
+            // The journal's rule is a score of 1-5; anything else (a hand-edited journal) is
+            // left out of the CSV with a warning rather than passed on silently.
+            let sc = sc.map(|&(blind, current)| {
+                let keep = |what: &str, v: u8| {
+                    if (1..=5).contains(&v) || (what == "current" && v == blind) {
+                        Some(v)
+                    } else {
+                        eprintln!(
+                            "warning: {}: work interval {}: the journal holds {what} score {v}, \
+                             outside 1-5; left empty in the export",
+                            crate::roster::printable(&e.session_id),
+                            m.work_number.unwrap_or(0)
+                        );
+                        None
+                    }
+                };
+                let ok = |v: u8| Some(v).filter(|v| (1..=5).contains(v));
+                let (b, c) = (keep("blind", blind), keep("current", current));
+                (b.and(ok(blind)), c.and(ok(current)))
+            });
             w.write_record([
                 e.session_id.clone(),
                 e.athlete.clone(),
@@ -558,8 +578,12 @@ pub fn export_intervals(ws: &mut Workspace, filter: &Filter) -> anyhow::Result<i
                 m.target.clone().unwrap_or_default(),
                 opt(m.in_target_pct),
                 m.target_hit.map(|h| h.to_string()).unwrap_or_default(),
-                sc.map(|s| s.0.to_string()).unwrap_or_default(),
-                sc.map(|s| s.1.to_string()).unwrap_or_default(),
+                sc.and_then(|s| s.0)
+                    .map(|v| v.to_string())
+                    .unwrap_or_default(),
+                sc.and_then(|s| s.1)
+                    .map(|v| v.to_string())
+                    .unwrap_or_default(),
             ])?;
         }
     }

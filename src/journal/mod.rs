@@ -1827,3 +1827,105 @@ fn permit(row: &SessionRow) -> RevealPermit {
         file_path: row.file_path.clone(),
     }
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use chrono::TimeZone;
+
+    fn t(s: i64) -> DateTime<Utc> {
+        Utc.with_ymd_and_hms(2026, 3, 2, 6, 0, 0).unwrap() + chrono::Duration::seconds(s)
+    }
+
+    fn journal_with_session() -> Journal {
+        let mut j = Journal::open_in_memory().unwrap();
+        j.upsert_session(
+            &SessionRecord {
+                session_id: "a/s".into(),
+                athlete_id: "a".into(),
+                file_path: PathBuf::from("/r/a/activities/s.fit"),
+                content_hash: "h".repeat(64),
+                start: t(0),
+                summary: Some(SummaryCache {
+                    json: "{}".into(),
+                    analysis_version: 1,
+                    work_intervals: 3,
+                }),
+            },
+            t(0),
+        )
+        .unwrap();
+        j
+    }
+
+    /// SQLITE_FULL (provoked with `max_page_count`) reads "the disk is full; nothing was
+    /// saved", and the refused action left nothing behind.
+    #[test]
+    fn a_full_disk_says_so_and_saves_nothing() {
+        let mut j = journal_with_session();
+        j.grade(
+            "a/s",
+            &[(1, 4), (2, 3), (3, 5)],
+            Some(PurposeVerdict::Met),
+            t(1),
+        )
+        .unwrap();
+        j.reveal("a/s", t(2)).unwrap();
+        let pages: i64 = j
+            .conn
+            .pragma_query_value(None, "page_count", |r| r.get(0))
+            .unwrap();
+        j.conn.pragma_update(None, "max_page_count", pages).unwrap();
+        let big = "x".repeat(64 * 1024);
+        let err = j.save_feedback("a/s", &big, t(3)).unwrap_err();
+        assert!(matches!(err, JournalError::DiskFull { .. }), "{err:?}");
+        assert_eq!(
+            err.to_string(),
+            ":memory:: the disk is full; nothing was saved. Free some space and try again"
+        );
+        assert!(j.feedback("a/s").unwrap().is_none());
+        // A grade change with a long feedback in one action: neither is kept.
+        let err = j
+            .send_feedback("a/s", Some(&big), FeedbackEventKind::Copied, t(4))
+            .unwrap_err();
+        assert!(matches!(err, JournalError::DiskFull { .. }), "{err:?}");
+        assert!(j.feedback_events("a/s").unwrap().is_empty());
+    }
+
+    #[test]
+    fn a_grade_is_checked_whole_before_anything_is_written() {
+        let mut j = journal_with_session();
+        let err = j
+            .grade(
+                "a/s",
+                &[(1, 4), (2, 3), (4, 5)],
+                Some(PurposeVerdict::Met),
+                t(1),
+            )
+            .unwrap_err();
+        assert!(
+            matches!(err, JournalError::NoSuchInterval { interval: 4, .. }),
+            "{err:?}"
+        );
+        let err = j.grade("a/s", &[(1, 4), (2, 6)], None, t(1)).unwrap_err();
+        assert!(matches!(err, JournalError::InvalidScore { score: 6, .. }));
+        let st = j.review_state("a/s").unwrap();
+        assert!(st.scores.is_empty() && st.verdict.is_none());
+        // The last value for an interval wins; after the reveal, only changes are revisions.
+        j.grade(
+            "a/s",
+            &[(1, 4), (2, 3), (3, 5), (1, 2)],
+            Some(PurposeVerdict::Met),
+            t(1),
+        )
+        .unwrap();
+        let st = j.review_state("a/s").unwrap();
+        let blind: Vec<u8> = st.scores.iter().map(|c| c.blind).collect();
+        assert_eq!(blind, [2, 3, 5]);
+        j.reveal("a/s", t(2)).unwrap();
+        j.grade("a/s", &[(1, 2), (2, 4)], Some(PurposeVerdict::Partly), t(3))
+            .unwrap();
+        let revs = j.revisions("a/s").unwrap();
+        assert_eq!(revs.len(), 2, "{revs:?}");
+    }
+}

@@ -55,9 +55,9 @@ pub use error::{JournalError, Missing};
 pub use location::{check_outside_roster, default_path, default_path_in, DATA_DIR_ENV};
 pub use note::{read_note, RevealPermit};
 pub use types::{
-    BiasInput, CheckReport, FeedbackEvent, FeedbackEventKind, FeedbackVersion, PurposeVerdict,
-    QueueEntry, ReviewStage, ReviewState, Revision, RevisionChange, Ruler, ScoreCell,
-    SessionChange, SessionRecord, SummaryCache, VerdictCell,
+    BiasInput, CheckReport, FeedbackEvent, FeedbackEventKind, FeedbackVersion, FileStat,
+    PurposeVerdict, QueueEntry, ReviewStage, ReviewState, Revision, RevisionChange, Ruler,
+    ScoreCell, SessionChange, SessionRecord, SummaryCache, VerdictCell,
 };
 
 use schema::{current_version, APPLICATION_ID, MIGRATIONS};
@@ -676,7 +676,12 @@ impl Journal {
                      summary_json = excluded.summary_json,
                      summary_version = excluded.summary_version,
                      summary_hash = excluded.summary_hash,
-                     work_intervals = excluded.work_intervals",
+                     work_intervals = excluded.work_intervals,
+                     file_size = CASE WHEN session.content_hash = excluded.content_hash
+                         AND session.file_path = excluded.file_path THEN session.file_size END,
+                     file_mtime_ns = CASE WHEN session.content_hash = excluded.content_hash
+                         AND session.file_path = excluded.file_path
+                         THEN session.file_mtime_ns END",
                 params![
                     record.session_id,
                     record.athlete_id,
@@ -742,6 +747,51 @@ impl Journal {
             .optional()
             .map(Option::flatten)
             .sq(&self.path)
+    }
+
+    /// What the session's file looked like when its content hash was recorded; `None` for an
+    /// unknown session or when not known.
+    pub fn file_stat(&self, session_id: &str) -> Result<Option<FileStat>> {
+        self.conn
+            .query_row(
+                "SELECT CAST(file_path AS BLOB), file_size, file_mtime_ns FROM session
+                 WHERE session_id = ?1",
+                params![session_id],
+                |r| {
+                    let path = cache_text(r.get_ref(0)?);
+                    let size: Option<i64> = r.get(1).ok().flatten();
+                    let mtime: Option<i64> = r.get(2).ok().flatten();
+                    Ok(
+                        match (path, size.and_then(|n| u64::try_from(n).ok()), mtime) {
+                            (Some(p), Some(size), Some(mtime_ns)) => Some(FileStat {
+                                path: PathBuf::from(p),
+                                size,
+                                mtime_ns,
+                            }),
+                            _ => None,
+                        },
+                    )
+                },
+            )
+            .optional()
+            .map(Option::flatten)
+            .sq(&self.path)
+    }
+
+    /// Remember the stat of the session's file, taken before the bytes whose hash the journal
+    /// holds were read. Ignored (returns `false`) for an unknown session or another path.
+    pub fn set_file_stat(&mut self, session_id: &str, stat: &FileStat) -> Result<bool> {
+        let size = i64::try_from(stat.size).ok();
+        self.write_cache(|tx, path| {
+            let n = tx
+                .execute(
+                    "UPDATE session SET file_size = ?3, file_mtime_ns = ?4
+                     WHERE session_id = ?1 AND file_path = ?2",
+                    params![session_id, stat.path.to_string_lossy(), size, stat.mtime_ns],
+                )
+                .sq(path)?;
+            Ok(n > 0)
+        })
     }
 
     /// The content hash the journal last recorded for a session; `None` for an unknown one.

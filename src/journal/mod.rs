@@ -315,7 +315,7 @@ fn quick_check(conn: &Connection, path: &Path) -> Result<()> {
         .sq(path)?
         .collect::<rusqlite::Result<_>>()
         .sq(path)?;
-    if rows.len() == 1 && rows[0] == "ok" {
+    if rows.len() == 1 && rows.first().is_some_and(|r| r == "ok") {
         Ok(())
     } else {
         Err(JournalError::Corrupt {
@@ -545,14 +545,14 @@ impl Journal {
                 Identity::Ours(v) => v,
                 Identity::Empty => 0,
             };
-            if version as usize >= MIGRATIONS.len() {
+            let Some(step) = MIGRATIONS.get(version as usize) else {
                 return Ok(());
-            }
+            };
             if version == 0 {
                 tx.pragma_update(None, "application_id", APPLICATION_ID)
                     .sq(&path)?;
             }
-            tx.execute_batch(MIGRATIONS[version as usize]).sq(&path)?;
+            tx.execute_batch(step).sq(&path)?;
             tx.pragma_update(None, "user_version", version + 1)
                 .sq(&path)?;
             tx.commit().sq(&path)?;

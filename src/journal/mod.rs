@@ -1536,15 +1536,24 @@ fn session_row(conn: &Connection, path: &Path, session_id: &str) -> Result<Optio
          FROM session WHERE session_id = ?1",
         [session_id],
         |r| {
+            // The cache columns are derived data: a damaged value reads as missing.
             let json = cache_text(r.get_ref(4)?);
-            let version: Option<u32> = r.get(5)?;
-            let n: Option<u32> = r.get(6)?;
+            let version: Option<u32> = r.get(5).ok().flatten();
+            let n: Option<u32> = r.get(6).ok().flatten();
+            let lossy = |i: usize| -> rusqlite::Result<String> {
+                Ok(match r.get_ref(i)? {
+                    rusqlite::types::ValueRef::Text(b) | rusqlite::types::ValueRef::Blob(b) => {
+                        String::from_utf8_lossy(b).into_owned()
+                    }
+                    _ => String::new(),
+                })
+            };
             Ok(SessionRow {
-                content_hash: r.get(0)?,
-                file_path: PathBuf::from(r.get::<_, String>(1)?),
+                content_hash: lossy(0)?,
+                file_path: PathBuf::from(lossy(1)?),
                 session_id: session_id.to_string(),
                 review_id: r.get(2)?,
-                work_intervals: r.get(3)?,
+                work_intervals: r.get(3).ok().flatten(),
                 summary: match (json, version, n) {
                     (Some(j), Some(v), Some(n)) => Some((j, v, n)),
                     _ => None,
@@ -1574,11 +1583,20 @@ fn summary_for_hash(
            AND summary_version IS NOT NULL AND work_intervals IS NOT NULL
          ORDER BY seen_at DESC LIMIT 1",
         [hash],
-        |r| Ok((cache_text(r.get_ref(0)?), r.get(1)?, r.get(2)?)),
+        |r| {
+            Ok((
+                cache_text(r.get_ref(0)?),
+                r.get::<_, Option<u32>>(1).ok().flatten(),
+                r.get::<_, Option<u32>>(2).ok().flatten(),
+            ))
+        },
     )
     .optional()
     .sq(path)
-    .map(|found| found.and_then(|(json, v, n)| json.map(|j| (j, v, n))))
+    .map(|found| match found {
+        Some((Some(j), Some(v), Some(n))) => Some((j, v, n)),
+        _ => None,
+    })
 }
 
 /// A cached text column as a string; `None` when it is missing or damaged (not UTF-8 text).

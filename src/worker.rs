@@ -13,8 +13,9 @@ use std::sync::{Arc, Condvar, Mutex};
 use std::thread::JoinHandle;
 
 use crate::ingest::hash::sha256_hex;
+use crate::journal::FileStat;
 use crate::roster::{Activity, Athlete};
-use crate::workspace::{analyse_activity, Analysed};
+use crate::workspace::{analyse_activity, read_activity, Analysed};
 
 /// Why a job was asked for.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -39,6 +40,9 @@ pub struct Job {
     /// For scans: the content hash the journal holds with a valid cached summary. When the
     /// file still has this hash the job answers [`Outcome::Unchanged`] without analysing.
     pub cached_hash: Option<String>,
+    /// For scans: the file's stat the journal recorded with `cached_hash`. A file with this
+    /// very stat is [`Outcome::Unchanged`] without being read.
+    pub cached_stat: Option<FileStat>,
 }
 
 impl Job {
@@ -53,6 +57,9 @@ impl Job {
 pub enum Outcome {
     /// The file is unchanged and the journal's cached summary is still good.
     Unchanged,
+    /// The file's content is unchanged (same hash) but its stat is new: the journal should
+    /// remember this stat; the cached summary is still good.
+    Restat(FileStat),
     /// The session read and analysed.
     Analysed(Box<Analysed>),
     /// The file could not be read or analysed (one line naming the file).
@@ -76,8 +83,18 @@ pub struct Done {
 pub fn run_job(job: &Job) -> Outcome {
     if job.kind == JobKind::Scan {
         if let Some(known) = &job.cached_hash {
-            match crate::ingest::read_activity(&job.activity.path, crate::ingest::limits()) {
-                Ok(bytes) if &sha256_hex(&bytes) == known => return Outcome::Unchanged,
+            // One stat: the recorded path, size and modification time mean the same file.
+            let stat = FileStat::of(&job.activity.path);
+            if stat.is_some() && stat == job.cached_stat {
+                return Outcome::Unchanged;
+            }
+            match read_activity(&job.activity.path) {
+                Ok(bytes) if &sha256_hex(&bytes) == known => {
+                    return match stat {
+                        Some(s) => Outcome::Restat(s),
+                        None => Outcome::Unchanged,
+                    }
+                }
                 Ok(_) => {}
                 Err(e) => return Outcome::Failed(e.to_string()),
             }

@@ -10,7 +10,7 @@ use chrono::{DateTime, Utc};
 use crate::analysis::findings::{Finding, Severity};
 use crate::analysis::review::{Review, ANALYSIS_VERSION};
 use crate::ingest::{self, IngestError};
-use crate::journal::{self, Journal, JournalError, SessionRecord, SummaryCache};
+use crate::journal::{self, FileStat, Journal, JournalError, SessionRecord, SummaryCache};
 use crate::model::{Plan, Session};
 use crate::plan::PlanFileError;
 use crate::roster::{plans, Activity, Athlete, Roster, RosterError};
@@ -46,6 +46,8 @@ pub struct Analysed {
     pub review: Review,
     /// The athlete's [`Athlete::inputs_digest`] the review was made under.
     pub inputs_digest: String,
+    /// The file's stat, taken before its bytes were read (`None` when it could not be).
+    pub file_stat: Option<FileStat>,
 }
 
 /// The key of the summary JSON that holds the inputs digest (the review itself ignores it).
@@ -103,8 +105,30 @@ impl Analysed {
 
 /// Read, clean and analyse one activity of a roster (no journal; any thread).
 pub fn analyse_activity(athlete: &Athlete, act: &Activity) -> Result<Analysed, WorkspaceError> {
-    let bytes = ingest::read_activity(&act.path, ingest::limits())?;
-    analyse_bytes(athlete, act, &bytes)
+    let stat = FileStat::of(&act.path);
+    let bytes = read_activity(&act.path)?;
+    let mut analysed = analyse_bytes(athlete, act, &bytes)?;
+    analysed.file_stat = stat;
+    Ok(analysed)
+}
+
+/// Read an activity file whole, within the configured size cap (see [`ingest::read_activity`]).
+pub(crate) fn read_activity(path: &Path) -> Result<Vec<u8>, WorkspaceError> {
+    Ok(ingest::read_activity(path, ingest::limits())?)
+}
+
+/// Record an analysed session in the journal: the session with its summary, then the stat
+/// of its file (so the next start knows it unchanged without reading it).
+pub fn record_analysed(
+    journal: &mut Journal,
+    a: &Analysed,
+    now: DateTime<Utc>,
+) -> Result<(), WorkspaceError> {
+    journal.upsert_session(&a.record()?, now)?;
+    if let Some(stat) = &a.file_stat {
+        journal.set_file_stat(&a.session_id, stat)?;
+    }
+    Ok(())
 }
 
 fn analyse_bytes(
@@ -134,6 +158,7 @@ fn analyse_bytes(
         plan_path,
         review,
         inputs_digest: athlete.inputs_digest.clone(),
+        file_stat: None,
     })
 }
 
@@ -318,7 +343,15 @@ impl Workspace {
                 })?;
             }
         }
-        let journal = Journal::open_for_roster(&path, &roster.root)?;
+        let journal = match Journal::open_for_roster(&path, &roster.root) {
+            Ok(j) => j,
+            // An existing journal that cannot be written still serves reading: a copy in
+            // memory, every write of the coach's data refused.
+            Err(JournalError::ReadOnlyLocation { .. }) if path.is_file() => {
+                Journal::open_snapshot(&path, &journal::why_read_only(&path))?
+            }
+            Err(e) => return Err(e.into()),
+        };
         Ok(Workspace { roster, journal })
     }
 
@@ -349,16 +382,33 @@ impl Workspace {
     ) -> Result<(Review, bool), WorkspaceError> {
         let (athlete, act) = self.find(session_id)?;
         let (athlete, act) = (athlete.clone(), act.clone());
-        let bytes = ingest::read_activity(&act.path, ingest::limits())?;
+        // One stat first: a file with the path, size and modification time the journal
+        // recorded with its hash is known unchanged without reading it.
+        let stat = FileStat::of(&act.path);
+        if stat.is_some() && self.journal.file_stat(session_id)? == stat {
+            if let Some(review) = self
+                .journal
+                .cached_summary(session_id, ANALYSIS_VERSION)?
+                .and_then(|json| cached_review(&json, &athlete))
+            {
+                return Ok((review, true));
+            }
+        }
+        let bytes = read_activity(&act.path)?;
         let hash = ingest::hash::sha256_hex(&bytes);
         // A damaged or stale cached summary is simply made again (and replaced).
         if let Some(review) = self
             .cached(session_id, &hash)?
             .and_then(|json| cached_review(&json, &athlete))
         {
+            // Same content under a new stat (touched, copied back): remember the new stat.
+            if let Some(stat) = &stat {
+                self.journal.set_file_stat(session_id, stat)?;
+            }
             return Ok((review, true));
         }
-        let analysed = analyse_bytes(&athlete, &act, &bytes)?;
+        let mut analysed = analyse_bytes(&athlete, &act, &bytes)?;
+        analysed.file_stat = stat;
         self.record(&analysed, now)?;
         Ok((analysed.review, false))
     }
@@ -375,8 +425,7 @@ impl Workspace {
 
     /// Record an analysed session (and its summary) in the journal.
     pub fn record(&mut self, a: &Analysed, now: DateTime<Utc>) -> Result<(), WorkspaceError> {
-        self.journal.upsert_session(&a.record()?, now)?;
-        Ok(())
+        record_analysed(&mut self.journal, a, now)
     }
 
     /// Bring every session of the roster up to date in the journal.

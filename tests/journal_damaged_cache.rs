@@ -170,3 +170,22 @@ fn bad_json_in_a_cached_summary_is_made_again() {
     assert_eq!(work_rows, 5, "{csv}");
     assert!(!s.ok(&["journal", "check"]).contains("damaged"));
 }
+
+#[test]
+fn damaged_cache_numbers_block_nothing_either() {
+    let s = Setup::new();
+    reviewed(&s);
+    let c = rusqlite::Connection::open(&s.journal).unwrap();
+    c.execute(
+        "UPDATE session SET work_intervals = 'many', summary_version = x'00ff'
+         WHERE session_id = ?1",
+        [INTERVALS],
+    )
+    .unwrap();
+    drop(c);
+    assert_review_reachable(&s.journal);
+    let out = s.run(&["grade", INTERVALS, "--json"]);
+    assert_eq!(out.status.code(), Some(0), "{out:?}");
+    let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    assert_eq!(v["scores"]["5"], 3);
+}

@@ -315,7 +315,7 @@ fn run_with_journal(
     // Checking and backing up the journal take it as it is: no sync first, so they work
     // whatever the roster or the analysis cache hold.
     if let Command::Journal(jc) = &cmd {
-        let ws = crate::workspace::Workspace::open(roster, journal)?;
+        let ws = rc::open_noting_read_only(roster, journal)?;
         return match jc {
             JournalCommand::Backup { file } => rc::journal_backup(&ws, file),
             JournalCommand::Check { json } => rc::journal_check(&ws, *json),

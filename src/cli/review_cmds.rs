@@ -19,13 +19,27 @@ pub const EXIT_BLIND: i32 = 3;
 
 /// Open the workspace and bring the journal up to date with the roster (progress on stderr).
 pub fn open_synced(roster: &Path, journal: Option<&Path>) -> anyhow::Result<Workspace> {
-    let mut ws = Workspace::open(roster, journal)?;
+    let mut ws = open_noting_read_only(roster, journal)?;
     let total = ws.roster.activities().count() as u64;
     let bar = super::progress_bar(total, "analysing");
     let report = ws.sync(Utc::now(), |done, _| bar.set_position(done as u64))?;
     bar.finish_and_clear();
     for p in &report.problems {
         eprintln!("warning: {p}");
+    }
+    Ok(ws)
+}
+
+/// Open the workspace; when the journal cannot be written, say so once on stderr (reading
+/// commands then work on it as it is; a write is refused with its own message).
+pub fn open_noting_read_only(roster: &Path, journal: Option<&Path>) -> anyhow::Result<Workspace> {
+    let ws = Workspace::open(roster, journal)?;
+    if let Some(reason) = ws.journal.read_only() {
+        eprintln!(
+            "note: {}: the journal is read-only ({reason}); it is read as it is and nothing \
+             will be saved in it",
+            ws.journal.path().display()
+        );
     }
     Ok(ws)
 }
@@ -404,6 +418,7 @@ pub fn export_feedback(ws: &mut Workspace, filter: &Filter, format: &str) -> any
         .filter(|e| filter.keeps(e) && !e.stage.is_unreviewed())
         .collect();
     let mut blocks = Vec::new();
+    let mut not_recorded = false;
     for e in &entries {
         let review = ws.refresh(&e.session_id, Utc::now())?;
         let (text, saved) = current_feedback(ws, &e.session_id)?;
@@ -421,8 +436,15 @@ pub fn export_feedback(ws: &mut Workspace, filter: &Filter, format: &str) -> any
             feedback: text,
             saved,
         });
-        ws.journal
-            .record_feedback_event(&e.session_id, FeedbackEventKind::Exported, Utc::now())?;
+        match ws.journal.record_feedback_event(
+            &e.session_id,
+            FeedbackEventKind::Exported,
+            Utc::now(),
+        ) {
+            Ok(()) => {}
+            Err(JournalError::ReadOnly { .. }) => not_recorded = true,
+            Err(e) => return Err(e.into()),
+        }
     }
     match format {
         "json" => crate::cli::out::json(&blocks)?,
@@ -441,6 +463,12 @@ pub fn export_feedback(ws: &mut Workspace, filter: &Filter, format: &str) -> any
                 println!("{}", b.feedback.trim_end());
             }
         }
+    }
+    if not_recorded {
+        eprintln!(
+            "note: {}: this export was not recorded as sent (nothing can be saved there)",
+            ws.journal.path().display()
+        );
     }
     if blocks.is_empty() {
         eprintln!("no reviewed sessions match (feedback is exported once the notes were revealed)");
@@ -498,6 +526,26 @@ pub fn export_intervals(ws: &mut Workspace, filter: &Filter) -> anyhow::Result<i
             .collect();
         for m in &review.intervals {
             let sc = m.work_number.and_then(|n| scores.get(&(n as u32)));
+            // The journal's rule is a score of 1-5; anything else (a hand-edited journal) is
+            // left out of the CSV with a warning rather than passed on silently.
+            let sc = sc.map(|&(blind, current)| {
+                let keep = |what: &str, v: u8| {
+                    if (1..=5).contains(&v) || (what == "current" && v == blind) {
+                        Some(v)
+                    } else {
+                        eprintln!(
+                            "warning: {}: work interval {}: the journal holds {what} score {v}, \
+                             outside 1-5; left empty in the export",
+                            crate::roster::printable(&e.session_id),
+                            m.work_number.unwrap_or(0)
+                        );
+                        None
+                    }
+                };
+                let ok = |v: u8| Some(v).filter(|v| (1..=5).contains(v));
+                let (b, c) = (keep("blind", blind), keep("current", current));
+                (b.and(ok(blind)), c.and(ok(current)))
+            });
             w.write_record([
                 e.session_id.clone(),
                 e.athlete.clone(),
@@ -524,8 +572,12 @@ pub fn export_intervals(ws: &mut Workspace, filter: &Filter) -> anyhow::Result<i
                 m.target.clone().unwrap_or_default(),
                 opt(m.in_target_pct),
                 m.target_hit.map(|h| h.to_string()).unwrap_or_default(),
-                sc.map(|s| s.0.to_string()).unwrap_or_default(),
-                sc.map(|s| s.1.to_string()).unwrap_or_default(),
+                sc.and_then(|s| s.0)
+                    .map(|v| v.to_string())
+                    .unwrap_or_default(),
+                sc.and_then(|s| s.1)
+                    .map(|v| v.to_string())
+                    .unwrap_or_default(),
             ])?;
         }
     }

@@ -21,11 +21,12 @@ pub fn base64(bytes: &[u8]) -> String {
             chunk.get(1).copied().unwrap_or(0),
             chunk.get(2).copied().unwrap_or(0),
         ];
-        let n = (u32::from(b[0]) << 16) | (u32::from(b[1]) << 8) | u32::from(b[2]);
+        let [b0, b1, b2] = b;
+        let n = (u32::from(b0) << 16) | (u32::from(b1) << 8) | u32::from(b2);
         for k in 0..4 {
             if k <= chunk.len() {
                 let idx = ((n >> (18 - 6 * k)) & 63) as usize;
-                out.push(char::from(ALPHABET[idx]));
+                out.push(ALPHABET.get(idx).map_or('=', |&c| char::from(c)));
             } else {
                 out.push('=');
             }

@@ -81,6 +81,25 @@ pub enum JournalError {
     #[error("{path}: the journal cannot be written there ({detail})")]
     ReadOnlyLocation { path: PathBuf, detail: String },
 
+    /// A write refused because the journal was opened read-only (its file or folder cannot
+    /// be written). Nothing was saved.
+    #[error(
+        "{path}: the journal is read-only ({detail}); nothing was saved. Make the file and its \
+         folder writable, or pass --journal to use another journal"
+    )]
+    ReadOnly { path: PathBuf, detail: String },
+
+    /// The disk holding the journal is full. The write was rolled back.
+    #[error("{path}: the disk is full; nothing was saved. Free some space and try again")]
+    DiskFull { path: PathBuf },
+
+    /// The operating system failed to read or write the journal file.
+    #[error(
+        "{path}: the journal file could not be read or written (the disk or file system \
+         reported an error); nothing was saved"
+    )]
+    DiskIo { path: PathBuf },
+
     /// Another program held the journal locked for longer than the busy timeout.
     #[error("{path}: the journal is busy (locked by another splitdesk?); try again")]
     Busy { path: PathBuf },
@@ -160,6 +179,10 @@ pub enum JournalError {
     Sqlite { path: PathBuf, err: rusqlite::Error },
 }
 
+/// SQLite's extended result code SQLITE_IOERR_SHMSIZE (`SQLITE_IOERR | 19 << 8`).
+// Source: https://www.sqlite.org/rescode.html#ioerr_shmsize
+const SQLITE_IOERR_SHMSIZE: std::os::raw::c_int = 4874;
+
 impl JournalError {
     /// Classify a SQLite error for the journal at `path`.
     pub(crate) fn sql(path: &std::path::Path, source: rusqlite::Error) -> JournalError {
@@ -175,6 +198,17 @@ impl JournalError {
                     detail: source.to_string(),
                 }
             }
+            Some(ErrorCode::DiskFull) => JournalError::DiskFull { path },
+            // SQLITE_IOERR_SHMSIZE: the WAL index could not grow, which on Linux means the
+            // file system is full.
+            _ if matches!(
+                &source,
+                rusqlite::Error::SqliteFailure(f, _) if f.extended_code == SQLITE_IOERR_SHMSIZE
+            ) =>
+            {
+                JournalError::DiskFull { path }
+            }
+            Some(ErrorCode::SystemIoFailure) => JournalError::DiskIo { path },
             Some(ErrorCode::ReadOnly) | Some(ErrorCode::CannotOpen) => {
                 JournalError::ReadOnlyLocation {
                     path,

@@ -47,7 +47,7 @@ pub fn default_path_in(data_dir: &Path, roster_root: &Path) -> PathBuf {
     let hash = sha256_hex(canonical.to_string_lossy().as_bytes());
     data_dir
         .join("journals")
-        .join(format!("{name}-{}.sqlite", &hash[..16]))
+        .join(format!("{name}-{}.sqlite", hash.get(..16).unwrap_or(&hash)))
 }
 
 /// Refuse a journal path inside the roster folder (which may be synced to athletes).

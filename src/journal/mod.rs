@@ -55,9 +55,9 @@ pub use error::{JournalError, Missing};
 pub use location::{check_outside_roster, default_path, default_path_in, DATA_DIR_ENV};
 pub use note::{read_note, RevealPermit};
 pub use types::{
-    BiasInput, CheckReport, FeedbackEvent, FeedbackEventKind, FeedbackVersion, PurposeVerdict,
-    QueueEntry, ReviewStage, ReviewState, Revision, RevisionChange, Ruler, ScoreCell,
-    SessionChange, SessionRecord, SummaryCache, VerdictCell,
+    BiasInput, CheckReport, FeedbackEvent, FeedbackEventKind, FeedbackVersion, FileStat,
+    PurposeVerdict, QueueEntry, ReviewStage, ReviewState, Revision, RevisionChange, Ruler,
+    ScoreCell, SessionChange, SessionRecord, SummaryCache, VerdictCell,
 };
 
 use schema::{current_version, APPLICATION_ID, MIGRATIONS};
@@ -73,6 +73,10 @@ pub type Result<T, E = JournalError> = std::result::Result<T, E>;
 pub struct Journal {
     conn: Connection,
     path: PathBuf,
+    /// `Some(reason)` for a journal opened with [`Journal::open_snapshot`]: a copy in memory
+    /// of a journal that cannot be written. Reads and the analysis cache work on the copy;
+    /// any write of the coach's data is refused with [`JournalError::ReadOnly`].
+    read_only: Option<String>,
 }
 
 /// Map rusqlite results into journal errors carrying the path.
@@ -169,6 +173,87 @@ fn check_header(path: &Path) -> Result<()> {
     }
 }
 
+/// Identify and check a journal through `source`, then copy it into a new in-memory
+/// database with the backup API, giving up (with `Busy`) after [`BUSY_TIMEOUT`].
+fn copy_to_memory(source: &Connection, path: &Path) -> Result<Connection> {
+    match identify_conn(source, path)? {
+        Identity::Ours(_) => quick_check(source, path)?,
+        Identity::Empty => {
+            return Err(JournalError::NotAJournal {
+                path: path.to_path_buf(),
+                reason: "an empty database".into(),
+            })
+        }
+    }
+    let mut conn = Connection::open_in_memory().sq(path)?;
+    {
+        use rusqlite::backup::StepResult;
+        let backup = rusqlite::backup::Backup::new(source, &mut conn).sq(path)?;
+        let deadline = std::time::Instant::now() + BUSY_TIMEOUT;
+        loop {
+            match backup.step(-1).sq(path)? {
+                StepResult::Done => break,
+                StepResult::More | StepResult::Busy | StepResult::Locked => {
+                    if std::time::Instant::now() > deadline {
+                        return Err(JournalError::Busy {
+                            path: path.to_path_buf(),
+                        });
+                    }
+                    std::thread::sleep(Duration::from_millis(10));
+                }
+                _ => {
+                    return Err(JournalError::Busy {
+                        path: path.to_path_buf(),
+                    })
+                }
+            }
+        }
+    }
+    Ok(conn)
+}
+
+fn read_only_conn(path: &Path) -> Result<Connection> {
+    let conn = Connection::open_with_flags(
+        path,
+        OpenFlags::SQLITE_OPEN_READ_ONLY | OpenFlags::SQLITE_OPEN_NO_MUTEX,
+    )
+    .sq(path)?;
+    conn.busy_timeout(BUSY_TIMEOUT).sq(path)?;
+    // Opening is lazy: make SQLite read the file now, so a failure shows here.
+    conn.query_row("SELECT count(*) FROM sqlite_schema", [], |r| {
+        r.get::<_, i64>(0)
+    })
+    .sq(path)?;
+    Ok(conn)
+}
+
+/// A read-only connection that takes the file as unchanging (`immutable=1`): no locks, no
+/// shared-memory file. Only for files nobody can be writing.
+fn immutable_conn(path: &Path) -> Result<Connection> {
+    let abs = std::path::absolute(path).unwrap_or_else(|_| path.to_path_buf());
+    let mut uri = String::from("file:");
+    for b in abs.to_string_lossy().bytes() {
+        if b.is_ascii_alphanumeric() || b"/-_.~".contains(&b) {
+            uri.push(char::from(b));
+        } else {
+            uri.push_str(&format!("%{b:02X}"));
+        }
+    }
+    uri.push_str("?immutable=1");
+    let conn = Connection::open_with_flags(
+        &uri,
+        OpenFlags::SQLITE_OPEN_READ_ONLY
+            | OpenFlags::SQLITE_OPEN_URI
+            | OpenFlags::SQLITE_OPEN_NO_MUTEX,
+    )
+    .sq(path)?;
+    conn.query_row("SELECT count(*) FROM sqlite_schema", [], |r| {
+        r.get::<_, i64>(0)
+    })
+    .sq(path)?;
+    Ok(conn)
+}
+
 /// Identify an existing file through a read-only connection, which never changes it.
 fn identify(path: &Path) -> Result<Identity> {
     check_header(path)?;
@@ -230,13 +315,25 @@ fn quick_check(conn: &Connection, path: &Path) -> Result<()> {
         .sq(path)?
         .collect::<rusqlite::Result<_>>()
         .sq(path)?;
-    if rows.len() == 1 && rows[0] == "ok" {
+    if rows.len() == 1 && rows.first().is_some_and(|r| r == "ok") {
         Ok(())
     } else {
         Err(JournalError::Corrupt {
             path: path.to_path_buf(),
             detail: rows.join("; "),
         })
+    }
+}
+
+/// In plain words, why the journal at `path` cannot be written: its file or its folder.
+pub fn why_read_only(path: &Path) -> String {
+    let file_writable = fs::OpenOptions::new().write(true).open(path).is_ok();
+    if !file_writable {
+        return "the file is read-only".into();
+    }
+    match check_writable_dir(path) {
+        Err(_) => "its folder cannot be written".into(),
+        Ok(()) => "the file system refused a write".into(),
     }
 }
 
@@ -313,7 +410,11 @@ impl Journal {
                 detail: format!("could not switch to WAL mode (got {mode})"),
             });
         }
-        let mut journal = Journal { conn, path };
+        let mut journal = Journal {
+            conn,
+            path,
+            read_only: None,
+        };
         journal.configure()?;
         journal.migrate()?;
         Ok(journal)
@@ -355,16 +456,69 @@ impl Journal {
             }
         }
         quick_check(&conn, &path)?;
-        let journal = Journal { conn, path };
+        let journal = Journal {
+            conn,
+            path,
+            read_only: None,
+        };
         journal.configure()?;
         Ok(journal)
+    }
+
+    /// Open a journal that cannot be written (`reason` says why) for reading: its content is
+    /// copied into memory with SQLite's backup API and upgraded there if older. The file is
+    /// never changed. Reads work; the analysis cache is kept in the copy only; every write of
+    /// the coach's data is refused with [`JournalError::ReadOnly`], nothing saved.
+    pub fn open_snapshot(path: &Path, reason: &str) -> Result<Journal> {
+        let path = path.to_path_buf();
+        if let Err(err) = fs::metadata(&path) {
+            return Err(JournalError::Io { path, err });
+        }
+        check_header(&path)?;
+        // A plain read-only connection sees the write-ahead log too. When it cannot (a WAL
+        // journal whose shared-memory file cannot be made or written), and no log with
+        // unmerged writes lies beside the file, read the file as it is.
+        let copied = read_only_conn(&path).and_then(|source| copy_to_memory(&source, &path));
+        let conn = match copied {
+            Ok(c) => c,
+            Err(e) => {
+                let mut wal = path.clone().into_os_string();
+                wal.push("-wal");
+                let wal_len = fs::metadata(PathBuf::from(wal))
+                    .map(|m| m.len())
+                    .unwrap_or(0);
+                if wal_len > 0 {
+                    return Err(e);
+                }
+                copy_to_memory(&immutable_conn(&path)?, &path)?
+            }
+        };
+        let mut journal = Journal {
+            conn,
+            path,
+            read_only: None,
+        };
+        journal.configure()?;
+        journal.migrate()?;
+        journal.read_only = Some(reason.to_string());
+        Ok(journal)
+    }
+
+    /// Why the journal is read-only (opened with [`Journal::open_snapshot`]); `None` when it
+    /// can be written.
+    pub fn read_only(&self) -> Option<&str> {
+        self.read_only.as_deref()
     }
 
     /// A fresh journal in memory (tests, throw-away runs).
     pub fn open_in_memory() -> Result<Journal> {
         let path = PathBuf::from(":memory:");
         let conn = Connection::open_in_memory().sq(&path)?;
-        let mut journal = Journal { conn, path };
+        let mut journal = Journal {
+            conn,
+            path,
+            read_only: None,
+        };
         journal.configure()?;
         journal.migrate()?;
         Ok(journal)
@@ -391,14 +545,14 @@ impl Journal {
                 Identity::Ours(v) => v,
                 Identity::Empty => 0,
             };
-            if version as usize >= MIGRATIONS.len() {
+            let Some(step) = MIGRATIONS.get(version as usize) else {
                 return Ok(());
-            }
+            };
             if version == 0 {
                 tx.pragma_update(None, "application_id", APPLICATION_ID)
                     .sq(&path)?;
             }
-            tx.execute_batch(MIGRATIONS[version as usize]).sq(&path)?;
+            tx.execute_batch(step).sq(&path)?;
             tx.pragma_update(None, "user_version", version + 1)
                 .sq(&path)?;
             tx.commit().sq(&path)?;
@@ -427,7 +581,38 @@ impl Journal {
     }
 
     /// Run `f` in one `BEGIN IMMEDIATE` transaction; commit on success, roll back on error.
+    /// On a read-only journal (a snapshot) an `f` that changes nothing succeeds, one that
+    /// would change the coach's data is rolled back and refused with `ReadOnly`.
     fn write<T>(&mut self, f: impl FnOnce(&Transaction<'_>, &Path) -> Result<T>) -> Result<T> {
+        let path = self.path.clone();
+        let tx = self
+            .conn
+            .transaction_with_behavior(TransactionBehavior::Immediate)
+            .sq(&path)?;
+        let changes = |tx: &Transaction<'_>| -> Result<i64> {
+            tx.query_row("SELECT total_changes()", [], |r| r.get(0))
+                .sq(&path)
+        };
+        let before = changes(&tx)?;
+        let out = f(&tx, &path)?;
+        if let Some(reason) = &self.read_only {
+            if changes(&tx)? != before {
+                return Err(JournalError::ReadOnly {
+                    path,
+                    detail: reason.clone(),
+                });
+            }
+        }
+        tx.commit().sq(&path)?;
+        Ok(out)
+    }
+
+    /// [`Journal::write`] for the session list and the analysis cache (derived data): on a
+    /// read-only journal these go to the copy in memory only.
+    fn write_cache<T>(
+        &mut self,
+        f: impl FnOnce(&Transaction<'_>, &Path) -> Result<T>,
+    ) -> Result<T> {
         let path = self.path.clone();
         let tx = self
             .conn
@@ -454,7 +639,7 @@ impl Journal {
         record: &SessionRecord,
         now: DateTime<Utc>,
     ) -> Result<SessionChange> {
-        self.write(|tx, path| {
+        self.write_cache(|tx, path| {
             let existing = session_row(tx, path, &record.session_id)?;
             let (mut change, review_id) = match &existing {
                 None => match latest_review_for_hash(tx, path, &record.content_hash)? {
@@ -501,7 +686,12 @@ impl Journal {
                      summary_json = excluded.summary_json,
                      summary_version = excluded.summary_version,
                      summary_hash = excluded.summary_hash,
-                     work_intervals = excluded.work_intervals",
+                     work_intervals = excluded.work_intervals,
+                     file_size = CASE WHEN session.content_hash = excluded.content_hash
+                         AND session.file_path = excluded.file_path THEN session.file_size END,
+                     file_mtime_ns = CASE WHEN session.content_hash = excluded.content_hash
+                         AND session.file_path = excluded.file_path
+                         THEN session.file_mtime_ns END",
                 params![
                     record.session_id,
                     record.athlete_id,
@@ -529,7 +719,7 @@ impl Journal {
         content_hash: &str,
         summary: &SummaryCache,
     ) -> Result<bool> {
-        self.write(|tx, path| {
+        self.write_cache(|tx, path| {
             let row = require_session(tx, path, session_id)?;
             if row.content_hash != content_hash {
                 return Ok(false);
@@ -569,6 +759,51 @@ impl Journal {
             .sq(&self.path)
     }
 
+    /// What the session's file looked like when its content hash was recorded; `None` for an
+    /// unknown session or when not known.
+    pub fn file_stat(&self, session_id: &str) -> Result<Option<FileStat>> {
+        self.conn
+            .query_row(
+                "SELECT CAST(file_path AS BLOB), file_size, file_mtime_ns FROM session
+                 WHERE session_id = ?1",
+                params![session_id],
+                |r| {
+                    let path = cache_text(r.get_ref(0)?);
+                    let size: Option<i64> = r.get(1).ok().flatten();
+                    let mtime: Option<i64> = r.get(2).ok().flatten();
+                    Ok(
+                        match (path, size.and_then(|n| u64::try_from(n).ok()), mtime) {
+                            (Some(p), Some(size), Some(mtime_ns)) => Some(FileStat {
+                                path: PathBuf::from(p),
+                                size,
+                                mtime_ns,
+                            }),
+                            _ => None,
+                        },
+                    )
+                },
+            )
+            .optional()
+            .map(Option::flatten)
+            .sq(&self.path)
+    }
+
+    /// Remember the stat of the session's file, taken before the bytes whose hash the journal
+    /// holds were read. Ignored (returns `false`) for an unknown session or another path.
+    pub fn set_file_stat(&mut self, session_id: &str, stat: &FileStat) -> Result<bool> {
+        let size = i64::try_from(stat.size).ok();
+        self.write_cache(|tx, path| {
+            let n = tx
+                .execute(
+                    "UPDATE session SET file_size = ?3, file_mtime_ns = ?4
+                     WHERE session_id = ?1 AND file_path = ?2",
+                    params![session_id, stat.path.to_string_lossy(), size, stat.mtime_ns],
+                )
+                .sq(path)?;
+            Ok(n > 0)
+        })
+    }
+
     /// The content hash the journal last recorded for a session; `None` for an unknown one.
     pub fn session_hash(&self, session_id: &str) -> Result<Option<String>> {
         self.conn
@@ -585,7 +820,7 @@ impl Journal {
     /// Their reviews stay in the journal and reattach if the same content reappears.
     pub fn retain_sessions(&mut self, present: &[&str]) -> Result<usize> {
         let keep: BTreeSet<&str> = present.iter().copied().collect();
-        self.write(|tx, path| {
+        self.write_cache(|tx, path| {
             let ids: Vec<String> = {
                 let mut stmt = tx.prepare("SELECT session_id FROM session").sq(path)?;
                 let rows = stmt.query_map([], |r| r.get(0)).sq(path)?;
@@ -1311,15 +1546,24 @@ fn session_row(conn: &Connection, path: &Path, session_id: &str) -> Result<Optio
          FROM session WHERE session_id = ?1",
         [session_id],
         |r| {
+            // The cache columns are derived data: a damaged value reads as missing.
             let json = cache_text(r.get_ref(4)?);
-            let version: Option<u32> = r.get(5)?;
-            let n: Option<u32> = r.get(6)?;
+            let version: Option<u32> = r.get(5).ok().flatten();
+            let n: Option<u32> = r.get(6).ok().flatten();
+            let lossy = |i: usize| -> rusqlite::Result<String> {
+                Ok(match r.get_ref(i)? {
+                    rusqlite::types::ValueRef::Text(b) | rusqlite::types::ValueRef::Blob(b) => {
+                        String::from_utf8_lossy(b).into_owned()
+                    }
+                    _ => String::new(),
+                })
+            };
             Ok(SessionRow {
-                content_hash: r.get(0)?,
-                file_path: PathBuf::from(r.get::<_, String>(1)?),
+                content_hash: lossy(0)?,
+                file_path: PathBuf::from(lossy(1)?),
                 session_id: session_id.to_string(),
                 review_id: r.get(2)?,
-                work_intervals: r.get(3)?,
+                work_intervals: r.get(3).ok().flatten(),
                 summary: match (json, version, n) {
                     (Some(j), Some(v), Some(n)) => Some((j, v, n)),
                     _ => None,
@@ -1349,11 +1593,20 @@ fn summary_for_hash(
            AND summary_version IS NOT NULL AND work_intervals IS NOT NULL
          ORDER BY seen_at DESC LIMIT 1",
         [hash],
-        |r| Ok((cache_text(r.get_ref(0)?), r.get(1)?, r.get(2)?)),
+        |r| {
+            Ok((
+                cache_text(r.get_ref(0)?),
+                r.get::<_, Option<u32>>(1).ok().flatten(),
+                r.get::<_, Option<u32>>(2).ok().flatten(),
+            ))
+        },
     )
     .optional()
     .sq(path)
-    .map(|found| found.and_then(|(json, v, n)| json.map(|j| (j, v, n))))
+    .map(|found| match found {
+        Some((Some(j), Some(v), Some(n))) => Some((j, v, n)),
+        _ => None,
+    })
 }
 
 /// A cached text column as a string; `None` when it is missing or damaged (not UTF-8 text).
@@ -1650,5 +1903,107 @@ fn permit(row: &SessionRow) -> RevealPermit {
     RevealPermit {
         session_id: row.session_id.clone(),
         file_path: row.file_path.clone(),
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use chrono::TimeZone;
+
+    fn t(s: i64) -> DateTime<Utc> {
+        Utc.with_ymd_and_hms(2026, 3, 2, 6, 0, 0).unwrap() + chrono::Duration::seconds(s)
+    }
+
+    fn journal_with_session() -> Journal {
+        let mut j = Journal::open_in_memory().unwrap();
+        j.upsert_session(
+            &SessionRecord {
+                session_id: "a/s".into(),
+                athlete_id: "a".into(),
+                file_path: PathBuf::from("/r/a/activities/s.fit"),
+                content_hash: "h".repeat(64),
+                start: t(0),
+                summary: Some(SummaryCache {
+                    json: "{}".into(),
+                    analysis_version: 1,
+                    work_intervals: 3,
+                }),
+            },
+            t(0),
+        )
+        .unwrap();
+        j
+    }
+
+    /// SQLITE_FULL (provoked with `max_page_count`) reads "the disk is full; nothing was
+    /// saved", and the refused action left nothing behind.
+    #[test]
+    fn a_full_disk_says_so_and_saves_nothing() {
+        let mut j = journal_with_session();
+        j.grade(
+            "a/s",
+            &[(1, 4), (2, 3), (3, 5)],
+            Some(PurposeVerdict::Met),
+            t(1),
+        )
+        .unwrap();
+        j.reveal("a/s", t(2)).unwrap();
+        let pages: i64 = j
+            .conn
+            .pragma_query_value(None, "page_count", |r| r.get(0))
+            .unwrap();
+        j.conn.pragma_update(None, "max_page_count", pages).unwrap();
+        let big = "x".repeat(64 * 1024);
+        let err = j.save_feedback("a/s", &big, t(3)).unwrap_err();
+        assert!(matches!(err, JournalError::DiskFull { .. }), "{err:?}");
+        assert_eq!(
+            err.to_string(),
+            ":memory:: the disk is full; nothing was saved. Free some space and try again"
+        );
+        assert!(j.feedback("a/s").unwrap().is_none());
+        // A grade change with a long feedback in one action: neither is kept.
+        let err = j
+            .send_feedback("a/s", Some(&big), FeedbackEventKind::Copied, t(4))
+            .unwrap_err();
+        assert!(matches!(err, JournalError::DiskFull { .. }), "{err:?}");
+        assert!(j.feedback_events("a/s").unwrap().is_empty());
+    }
+
+    #[test]
+    fn a_grade_is_checked_whole_before_anything_is_written() {
+        let mut j = journal_with_session();
+        let err = j
+            .grade(
+                "a/s",
+                &[(1, 4), (2, 3), (4, 5)],
+                Some(PurposeVerdict::Met),
+                t(1),
+            )
+            .unwrap_err();
+        assert!(
+            matches!(err, JournalError::NoSuchInterval { interval: 4, .. }),
+            "{err:?}"
+        );
+        let err = j.grade("a/s", &[(1, 4), (2, 6)], None, t(1)).unwrap_err();
+        assert!(matches!(err, JournalError::InvalidScore { score: 6, .. }));
+        let st = j.review_state("a/s").unwrap();
+        assert!(st.scores.is_empty() && st.verdict.is_none());
+        // The last value for an interval wins; after the reveal, only changes are revisions.
+        j.grade(
+            "a/s",
+            &[(1, 4), (2, 3), (3, 5), (1, 2)],
+            Some(PurposeVerdict::Met),
+            t(1),
+        )
+        .unwrap();
+        let st = j.review_state("a/s").unwrap();
+        let blind: Vec<u8> = st.scores.iter().map(|c| c.blind).collect();
+        assert_eq!(blind, [2, 3, 5]);
+        j.reveal("a/s", t(2)).unwrap();
+        j.grade("a/s", &[(1, 2), (2, 4)], Some(PurposeVerdict::Partly), t(3))
+            .unwrap();
+        let revs = j.revisions("a/s").unwrap();
+        assert_eq!(revs.len(), 2, "{revs:?}");
     }
 }

@@ -93,6 +93,12 @@ CREATE TABLE ruler (
 );
 CREATE INDEX ruler_by_review ON ruler (review_id, id);
 "#,
+    // 2: what the roster file looked like when its content hash was taken (path, size,
+    // modification time in ns), so an unchanged file is known from one stat, unread
+    r#"
+ALTER TABLE session ADD COLUMN file_size INTEGER CHECK (file_size >= 0);
+ALTER TABLE session ADD COLUMN file_mtime_ns INTEGER;
+"#,
 ];
 
 /// The schema version this build writes and reads.

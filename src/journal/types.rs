@@ -340,3 +340,31 @@ impl CheckReport {
         self.problems.is_empty()
     }
 }
+
+/// What an activity file looked like when its content hash was taken: an unchanged file
+/// (same path, size and modification time to the nanosecond) is known from one `stat`,
+/// without reading or hashing it.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct FileStat {
+    /// The file's path.
+    pub path: PathBuf,
+    /// Size in bytes.
+    pub size: u64,
+    /// Modification time, nanoseconds since 1970-01-01 UTC.
+    pub mtime_ns: i64,
+}
+
+impl FileStat {
+    /// The stat of `path` (one `stat` call, following links); `None` when it cannot be
+    /// taken or the time is before 1970 (such a file is simply always read).
+    pub fn of(path: &std::path::Path) -> Option<FileStat> {
+        let meta = std::fs::metadata(path).ok()?;
+        let mtime = meta.modified().ok()?;
+        let ns = mtime.duration_since(std::time::UNIX_EPOCH).ok()?.as_nanos();
+        Some(FileStat {
+            path: path.to_path_buf(),
+            size: meta.len(),
+            mtime_ns: i64::try_from(ns).ok()?,
+        })
+    }
+}

@@ -606,10 +606,13 @@ impl App {
                     self.journal.cached_summary(&id, ANALYSIS_VERSION),
                     Ok(Some(json)) if crate::workspace::summary_is_current(&json, athlete)
                 );
-                let cached_hash = if cached {
-                    self.journal.session_hash(&id).ok().flatten()
+                let (cached_hash, cached_stat) = if cached {
+                    (
+                        self.journal.session_hash(&id).ok().flatten(),
+                        self.journal.file_stat(&id).ok().flatten(),
+                    )
                 } else {
-                    None
+                    (None, None)
                 };
                 out.push(Effect::Submit {
                     job: Job {
@@ -618,6 +621,7 @@ impl App {
                         athlete: Arc::clone(athlete),
                         activity: act.clone(),
                         cached_hash,
+                        cached_stat,
                     },
                     urgent: false,
                 });
@@ -1347,6 +1351,7 @@ impl App {
                     athlete,
                     activity: act,
                     cached_hash: None,
+                    cached_stat: None,
                 },
                 urgent: true,
             },
@@ -1492,6 +1497,11 @@ impl App {
         }
         match done.outcome {
             Outcome::Unchanged => {}
+            Outcome::Restat(stat) => {
+                // Same content, new stat: remember it (derived data; a failure only costs a
+                // read next time).
+                let _ = self.journal.set_file_stat(&done.session_id, &stat);
+            }
             Outcome::Failed(why) => {
                 if done.kind == JobKind::Scan {
                     self.progress.failed += 1;
@@ -1523,13 +1533,8 @@ impl App {
     }
 
     fn record(&mut self, a: &Analysed) {
-        match a.record() {
-            Ok(rec) => {
-                if let Err(e) = self.journal.upsert_session(&rec, now()) {
-                    self.say(Tone::Warn, e.to_string());
-                }
-            }
-            Err(e) => self.say(Tone::Warn, e.to_string()),
+        if let Err(e) = crate::workspace::record_analysed(&mut self.journal, a, now()) {
+            self.say(Tone::Warn, e.to_string());
         }
     }
 

@@ -216,8 +216,9 @@ fn assert_restored(tmux: &Tmux) -> String {
 
 fn signal(pid_file: &Path, sig: &str) {
     let pid = std::fs::read_to_string(pid_file).unwrap();
-    let ok = Command::new("kill")
-        .args([sig, pid.trim()])
+    // The shell's own `kill`: no procps needed.
+    let ok = Command::new("sh")
+        .args(["-c", &format!("kill {sig} {}", pid.trim())])
         .status()
         .unwrap()
         .success();

@@ -593,6 +593,11 @@ impl App {
         true
     }
 
+    /// Whether the start-up scan has begun (before it, the session counts are not known).
+    pub fn scan_started(&self) -> bool {
+        self.scan_generation > 0
+    }
+
     /// Start the background ingestion of every session: jobs for the event loop.
     pub fn start_scan(&mut self) -> Vec<Effect> {
         self.scan_generation += 1;

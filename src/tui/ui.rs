@@ -225,7 +225,10 @@ fn draw_welcome(app: &App, area: Rect, buf: &mut Buffer) {
 fn draw_status(app: &App, area: Rect, buf: &mut Buffer) {
     let t = &app.theme;
     let p = app.progress;
-    let right = if p.done < p.total {
+    let right = if !app.scan_started() {
+        // The very first frame, drawn before the scan starts: no count to show yet.
+        " reading the roster ".to_string()
+    } else if p.done < p.total {
         format!(" analysing {}/{} ", p.done, p.total)
     } else if p.failed > 0 {
         format!(

@@ -146,6 +146,13 @@ fn check_names_trailing_bytes_without_failing_and_the_session_still_reads() {
         "{out}"
     );
     assert!(out.contains("2 sessions, 2 readable"), "{out}");
+    // The review says it too, where the coach reads the findings.
+    let (code, out) = r.run(&["analyze", reps.to_str().unwrap()]);
+    assert_eq!(code, 0, "{out}");
+    assert!(
+        out.contains("While reading the file: 7 bytes after the end of the FIT data were ignored."),
+        "{out}"
+    );
 }
 
 #[test]

@@ -251,6 +251,17 @@ pub(crate) fn findings(
         ));
     }
 
+    // What ingest worked around in the file (dropped impossible timestamps, converted device
+    // time, bytes after the data): the numbers stand, but the coach should know.
+    for w in &session.warnings {
+        out.push(f(
+            Severity::Warning,
+            "file_warning",
+            format!("While reading the file: {w}."),
+            vec!["file".into()],
+        ));
+    }
+
     // Plan fit.
     if !r.missing_planned.is_empty() {
         let list: Vec<String> = r.missing_planned.iter().map(|m| m.to_string()).collect();

@@ -25,7 +25,7 @@ use super::zones::{hr_zones, pace_zones, time_in_zones};
 
 /// Bumped whenever a number in the review may change; cached summaries of another version
 /// are recomputed.
-pub const ANALYSIS_VERSION: u32 = 5;
+pub const ANALYSIS_VERSION: u32 = 6;
 
 /// The JSON schema name of [`Review`].
 pub const SCHEMA: &str = "splitdesk.analysis/1";

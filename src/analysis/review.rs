@@ -637,6 +637,19 @@ pub fn review_moving(
     grads: Option<&[Option<f64>]>,
     motion: &Motion,
 ) -> Review {
+    // Values no recording can hold read as missing: then the gradients and motion the
+    // caller computed on the raw values are computed again.
+    let checked = super::plausible::plausible(session);
+    let redone;
+    let (session, grads, motion) = match &checked {
+        std::borrow::Cow::Borrowed(_) => (session, grads, motion),
+        std::borrow::Cow::Owned(clean) => {
+            let g = gradients(clean);
+            let m = super::motion::classify_with(clean, g.as_deref());
+            redone = (g, m);
+            (clean, redone.0.as_deref(), &redone.1)
+        }
+    };
     let s = Series::with_motion(session, grads, motion);
     // A ride, a walk or any other sport gets no running analysis: no intervals to score,
     // whatever set the caller found.

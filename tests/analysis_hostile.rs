@@ -47,3 +47,14 @@ fn extreme_distance_speed_and_hr_values_read_as_missing() {
     // The session itself keeps every sample as recorded.
     assert_eq!(s.distance.as_ref().unwrap().get(300), Some(f64::MAX));
 }
+
+#[test]
+fn a_vanishing_speed_has_no_pace() {
+    // Found by the property tests: the smallest positive speed gave an infinite pace.
+    use splitdesk::model::units::pace_s_per_km;
+    assert_eq!(pace_s_per_km(f64::MIN_POSITIVE), None);
+    assert_eq!(pace_s_per_km(0.0), None);
+    // 1e-300 m/s is a finite (if absurd) pace; 4 m/s is 250 s/km.
+    assert_eq!(pace_s_per_km(1e-300), Some(1e303));
+    assert_eq!(pace_s_per_km(4.0), Some(250.0));
+}

@@ -165,3 +165,52 @@ fn without_flags_the_pace_is_distance_over_moving_time() {
     let from_totals = 1000.0 * w.moving_s / w.distance_m.unwrap();
     assert!((from_totals - pace).abs() < 1e-6, "{from_totals} vs {pace}");
 }
+
+#[test]
+fn a_flagged_speed_stretch_does_not_read_as_standing_before_a_high_heart_rate() {
+    // 20 min at 3 m/s, then a 3-min hard effort at 4 m/s with HR climbing to 195 bpm, above
+    // the profile's maximum of 185, from sample 1348 (140 + 55 x 148 / 180 > 185). The speed
+    // sensor spikes (15 m/s, flagged) for samples 1290..=1345, most of the minute before.
+    // The effort in the minute from 1288 to the end is 4 m/s on every trusted sample, above
+    // 0.95 x the 3 m/s median: the HR matches the effort. Before the fix the 56 flagged
+    // seconds counted as time without distance (4 x 37 / 93 = 1.6 m/s) and the HR was
+    // called "not matched by the effort".
+    let n = 1381;
+    let speed = |i: usize| match i {
+        1290..=1345 => 15.0,
+        1200.. => 4.0,
+        _ => 3.0,
+    };
+    let mut s = session(n, speed, |i| if i >= 1200 { 4.0 } else { 3.0 });
+    s.hr = Some(Channel::from_values((0..n).map(|i| {
+        if i < 1200 {
+            140.0
+        } else {
+            // 140 -> 195 over the 3 minutes, a beat every ~3 s: a heart following effort.
+            140.0 + 55.0 * (i - 1200) as f64 / 180.0
+        }
+    })));
+    s.flags = vec![Flag {
+        from_s: 1290.0,
+        to_s: 1345.0,
+        channel: ChannelKind::Speed,
+        kind: FlagKind::SpeedLimit,
+        reason: "speed up to 15.0 m/s, above the 12.5 m/s human limit".into(),
+    }];
+    let mut p = AthleteProfile::bare("a");
+    p.hr_max = Some(185.0);
+    p.hr_rest = Some(50.0);
+    let r = review(&s, &IntervalSet::default(), None, &p);
+    let finding = r
+        .findings
+        .iter()
+        .find(|f| f.code == "hr_above_max" || f.code == "hr_max_stale")
+        .unwrap();
+    assert!(
+        !finding.text.contains("not matched by the effort"),
+        "{}",
+        finding.text
+    );
+    // A heart following a hard effort for 33 s: the profile's maximum looks out of date.
+    assert_eq!(finding.code, "hr_max_stale", "{}", finding.text);
+}

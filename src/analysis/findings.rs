@@ -198,6 +198,15 @@ fn f(severity: Severity, code: &str, text: String, metrics: Vec<String>) -> Find
 
 /// The no-plan finding: what kind of run the finder read, in its own words.
 fn inferred_text(set: &IntervalSet) -> String {
+    if set
+        .notes
+        .iter()
+        .any(|n| n.starts_with("no speed or distance"))
+    {
+        return "No plan for this session, and no speed or distance in the file: the \
+                session is shown as one piece."
+            .into();
+    }
     let reading = set
         .notes
         .iter()

@@ -9,6 +9,7 @@ pub mod history;
 pub mod intervals;
 pub mod load;
 pub mod motion;
+pub mod plausible;
 pub mod race;
 pub mod review;
 pub mod ruler;
@@ -23,6 +24,8 @@ pub fn analyze(
     plan: Option<&crate::model::Plan>,
     profile: &crate::model::AthleteProfile,
 ) -> review::Review {
+    // Values no recording can hold read as missing (`plausible`).
+    let session = &*plausible::plausible(session);
     // The gradients feed both the interval finder and the review: compute them once.
     // So do the motion states (running, walking, standing, stopped).
     let grads = gradient::gradients(session);

@@ -368,23 +368,23 @@ fn motion_speed(session: &Session, stopped: &[bool], positions: bool) -> Vec<Opt
     };
     let (mut lo, mut hi) = (0usize, 0usize);
     let (mut sum, mut cnt) = (0.0f64, 0usize);
+    // The running sum holds every present sample of the window `lo..hi`, whatever its
+    // block: a sum kept only over the current sample's block would keep samples from before
+    // a stop (added then, never taken out) and miss those added while another block was
+    // current, and read a steady run after a pause as a walk.
     for (i, o) in out.iter_mut().enumerate() {
         let (ti, bi) = (tk(i), bk(i));
         while hi < n && tk(hi) <= ti + SPEED_HALF_S {
-            if bk(hi) == bi {
-                if let Some(v) = sp.get(hi).filter(|v| v.is_finite()) {
-                    sum += v;
-                    cnt += 1;
-                }
+            if let Some(v) = sp.get(hi).filter(|v| v.is_finite()) {
+                sum += v;
+                cnt += 1;
             }
             hi += 1;
         }
         while lo < hi && (tk(lo) < ti - SPEED_HALF_S) {
-            if bk(lo) == bi {
-                if let Some(v) = sp.get(lo).filter(|v| v.is_finite()) {
-                    sum -= v;
-                    cnt = cnt.saturating_sub(1);
-                }
+            if let Some(v) = sp.get(lo).filter(|v| v.is_finite()) {
+                sum -= v;
+                cnt = cnt.saturating_sub(1);
             }
             lo += 1;
         }

@@ -637,6 +637,19 @@ pub fn review_moving(
     grads: Option<&[Option<f64>]>,
     motion: &Motion,
 ) -> Review {
+    // Values no recording can hold read as missing: then the gradients and motion the
+    // caller computed on the raw values are computed again.
+    let checked = super::plausible::plausible(session);
+    let redone;
+    let (session, grads, motion) = match &checked {
+        std::borrow::Cow::Borrowed(_) => (session, grads, motion),
+        std::borrow::Cow::Owned(clean) => {
+            let g = gradients(clean);
+            let m = super::motion::classify_with(clean, g.as_deref());
+            redone = (g, m);
+            (clean, redone.0.as_deref(), &redone.1)
+        }
+    };
     let s = Series::with_motion(session, grads, motion);
     // A ride, a walk or any other sport gets no running analysis: no intervals to score,
     // whatever set the caller found.
@@ -888,7 +901,9 @@ fn hr_checks(session: &Session, s: &Series<'_>, profile: &AthleteProfile) -> HrC
     if steep || rate_flagged {
         implausible.push("jumping rather than climbing");
     }
-    // Matching effort: the speed over the minute up to and through each stretch.
+    // Matching effort: the speed over the minute up to and through each stretch, from a
+    // distance and a time over the same samples (a flagged or missing speed sample adds to
+    // neither, so it does not read as standing still).
     if let Some(sp) = s.speed {
         let mut moving: Vec<f64> = (0..n)
             .filter(|&i| s.moving.get(i).copied().unwrap_or(false))
@@ -901,10 +916,13 @@ fn hr_checks(session: &Session, s: &Series<'_>, profile: &AthleteProfile) -> HrC
             for &(a, b) in &episodes {
                 let lo = s.time(a) - 60.0;
                 for i in (0..=b).rev().take_while(|&i| s.time(i) >= lo) {
-                    let dt = s.dt(i);
-                    time += dt;
-                    if s.speed_ok.get(i).copied().unwrap_or(false) {
-                        dist += sp.get(i).copied().flatten().unwrap_or(0.0) * dt;
+                    if !flag(&s.speed_ok, i) {
+                        continue;
+                    }
+                    if let Some(v) = sp.get(i).copied().flatten() {
+                        let dt = s.dt(i);
+                        time += dt;
+                        dist += v * dt;
                     }
                 }
             }

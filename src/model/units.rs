@@ -74,9 +74,12 @@ pub fn parse_pace(s: &str, default_units: Units) -> Option<f64> {
     Some(units.metres() / secs)
 }
 
-/// Seconds per km for a speed, `None` for a non-positive speed.
+/// Seconds per km for a speed, `None` for a non-positive speed or one so small that the
+/// pace is not a finite number.
 pub fn pace_s_per_km(speed_mps: f64) -> Option<f64> {
-    (speed_mps > 0.0 && speed_mps.is_finite()).then(|| 1000.0 / speed_mps)
+    (speed_mps > 0.0 && speed_mps.is_finite())
+        .then(|| 1000.0 / speed_mps)
+        .filter(|p| p.is_finite())
 }
 
 /// Format a duration in seconds as `m:ss` or `h:mm:ss`.

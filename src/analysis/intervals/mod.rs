@@ -173,6 +173,18 @@ pub fn find_intervals_moving(
     grads: Option<&[Option<f64>]>,
     motion: &Motion,
 ) -> IntervalSet {
+    // Values no recording can hold read as missing (see `review::review_moving`).
+    let checked = crate::analysis::plausible::plausible(session);
+    let redone;
+    let (session, grads, motion) = match &checked {
+        std::borrow::Cow::Borrowed(_) => (session, grads, motion),
+        std::borrow::Cow::Owned(clean) => {
+            let g = crate::analysis::gradient::gradients(clean);
+            let m = motion::classify_with(clean, g.as_deref());
+            redone = (g, m);
+            (clean, redone.0.as_deref(), &redone.1)
+        }
+    };
     let expected: Vec<ExpectedInterval> = plan.map(Plan::expand).unwrap_or_default();
     let n = session.len();
     let mut set = IntervalSet {

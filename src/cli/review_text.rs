@@ -241,9 +241,15 @@ fn render_other_sport(o: &mut String, r: &Review, profile: &AthleteProfile) {
         o,
         "  {sport}: not a run, so no running analysis (no intervals to score, no pace, no decoupling)."
     );
-    let speed = match (s.distance_m, s.moving_s) {
-        (Some(d), m) if m > 0.0 => {
-            let per_h = d / m * 3600.0 / u.metres();
+    // The session's mean speed over the samples it trusts (distance and time over the same
+    // samples); older cached reviews without it fall back to distance over moving time.
+    let mean = s.avg_speed_mps.or(match (s.distance_m, s.moving_s) {
+        (Some(d), m) if m > 0.0 => Some(d / m),
+        _ => None,
+    });
+    let speed = match mean {
+        Some(v) if v.is_finite() => {
+            let per_h = v * 3600.0 / u.metres();
             let label = match u {
                 Units::Km => "km/h",
                 Units::Mi => "mph",

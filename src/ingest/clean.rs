@@ -558,9 +558,15 @@ fn hr_rules(ctx: &Ctx<'_>, hr: &Channel, out: &mut Vec<Flag>) {
             to_s,
             channel: ChannelKind::Hr,
             kind: FlagKind::HrRate,
-            reason: format!(
-                "heart rate changes by up to {worst:.0} bpm/s, faster than {HR_MAX_RATE_BPM_PER_S} bpm/s"
-            ),
+            reason: if worst.is_finite() && worst < 1000.0 {
+                format!(
+                    "heart rate changes by up to {worst:.0} bpm/s, faster than {HR_MAX_RATE_BPM_PER_S} bpm/s"
+                )
+            } else {
+                format!(
+                    "heart rate changes by more than 1000 bpm/s, faster than {HR_MAX_RATE_BPM_PER_S} bpm/s"
+                )
+            },
         });
     };
     rates(ctx, hr, |a, b, rate| {

@@ -3,6 +3,13 @@
 //! Data flows one way: files → `ingest` → `analysis` → `journal` → views.
 //! `model`, `plan` and `analysis` do no I/O and know nothing of terminals.
 
+// Nothing read from a file or typed by a user may panic the program: no unwrap, expect or
+// panicking index outside tests (the few justified exceptions carry their own `allow`).
+#![cfg_attr(
+    not(test),
+    deny(clippy::unwrap_used, clippy::expect_used, clippy::indexing_slicing)
+)]
+
 pub mod analysis;
 pub mod bias;
 pub mod cli;

@@ -1,3 +1,6 @@
+// The binary edge: no unwrap, expect or panicking index either.
+#![deny(clippy::unwrap_used, clippy::expect_used, clippy::indexing_slicing)]
+
 use clap::Parser;
 
 fn main() {

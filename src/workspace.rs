@@ -117,17 +117,14 @@ pub(crate) fn read_activity(path: &Path) -> Result<Vec<u8>, WorkspaceError> {
     Ok(ingest::read_activity(path, ingest::limits())?)
 }
 
-/// Record an analysed session in the journal: the session with its summary, then the stat
-/// of its file (so the next start knows it unchanged without reading it).
+/// Record an analysed session in the journal, in one transaction: the session with its
+/// summary and the stat of its file (so the next start knows it unchanged without reading it).
 pub fn record_analysed(
     journal: &mut Journal,
     a: &Analysed,
     now: DateTime<Utc>,
 ) -> Result<(), WorkspaceError> {
-    journal.upsert_session(&a.record()?, now)?;
-    if let Some(stat) = &a.file_stat {
-        journal.set_file_stat(&a.session_id, stat)?;
-    }
+    journal.upsert_session_with_stat(&a.record()?, a.file_stat.as_ref(), now)?;
     Ok(())
 }
 

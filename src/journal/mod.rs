@@ -639,6 +639,18 @@ impl Journal {
         record: &SessionRecord,
         now: DateTime<Utc>,
     ) -> Result<SessionChange> {
+        self.upsert_session_with_stat(record, None, now)
+    }
+
+    /// [`Journal::upsert_session`] and, in the same transaction, the stat of the session's
+    /// file taken before the bytes behind `record.content_hash` were read (see
+    /// [`Journal::set_file_stat`]).
+    pub fn upsert_session_with_stat(
+        &mut self,
+        record: &SessionRecord,
+        stat: Option<&FileStat>,
+        now: DateTime<Utc>,
+    ) -> Result<SessionChange> {
         self.write_cache(|tx, path| {
             let existing = session_row(tx, path, &record.session_id)?;
             let (mut change, review_id) = match &existing {
@@ -707,6 +719,9 @@ impl Journal {
                 ],
             )
             .sq(path)?;
+            if let Some(st) = stat {
+                write_file_stat(tx, path, &record.session_id, st)?;
+            }
             Ok(change)
         })
     }
@@ -791,17 +806,7 @@ impl Journal {
     /// Remember the stat of the session's file, taken before the bytes whose hash the journal
     /// holds were read. Ignored (returns `false`) for an unknown session or another path.
     pub fn set_file_stat(&mut self, session_id: &str, stat: &FileStat) -> Result<bool> {
-        let size = i64::try_from(stat.size).ok();
-        self.write_cache(|tx, path| {
-            let n = tx
-                .execute(
-                    "UPDATE session SET file_size = ?3, file_mtime_ns = ?4
-                     WHERE session_id = ?1 AND file_path = ?2",
-                    params![session_id, stat.path.to_string_lossy(), size, stat.mtime_ns],
-                )
-                .sq(path)?;
-            Ok(n > 0)
-        })
+        self.write_cache(|tx, path| write_file_stat(tx, path, session_id, stat))
     }
 
     /// The content hash the journal last recorded for a session; `None` for an unknown one.
@@ -1607,6 +1612,27 @@ fn summary_for_hash(
         Some((Some(j), Some(v), Some(n))) => Some((j, v, n)),
         _ => None,
     })
+}
+
+fn write_file_stat(
+    tx: &Connection,
+    path: &Path,
+    session_id: &str,
+    stat: &FileStat,
+) -> Result<bool> {
+    let n = tx
+        .execute(
+            "UPDATE session SET file_size = ?3, file_mtime_ns = ?4
+             WHERE session_id = ?1 AND file_path = ?2",
+            params![
+                session_id,
+                stat.path.to_string_lossy(),
+                i64::try_from(stat.size).ok(),
+                stat.mtime_ns
+            ],
+        )
+        .sq(path)?;
+    Ok(n > 0)
 }
 
 /// A cached text column as a string; `None` when it is missing or damaged (not UTF-8 text).

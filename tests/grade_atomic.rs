@@ -6,20 +6,16 @@
 //!   and the verdict; after *every* kill the journal holds exactly the old grades or exactly
 //!   the new ones, never a mix, and after the reveal never a part of the revisions.
 
+mod cli_support;
 mod tui_support;
 
 use std::path::{Path, PathBuf};
 use std::process::{Command, Output, Stdio};
 use std::time::{Duration, Instant};
 
+use cli_support::binary;
 use splitdesk::journal::Journal;
 use tui_support::{build_roster, INTERVALS};
-
-fn binary() -> PathBuf {
-    std::env::var_os("SPLITDESK_E2E_BIN")
-        .map(PathBuf::from)
-        .unwrap_or_else(|| PathBuf::from(env!("CARGO_BIN_EXE_splitdesk")))
-}
 
 struct Setup {
     _dir: tempfile::TempDir,

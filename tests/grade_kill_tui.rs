@@ -8,104 +8,20 @@
 //! test build of the binary. Needs tmux: skipped with a message when it is missing, except
 //! under `CI=true`, where that is a failure.
 
+mod tmux_support;
 mod tui_support;
 
-use std::path::{Path, PathBuf};
+use std::path::Path;
 use std::process::Command;
 use std::time::{Duration, Instant};
 
 use splitdesk::journal::Journal;
+use tmux_support::{binary, need_tmux, run, running, Tmux};
 use tui_support::{build_roster, EASY, INTERVALS, LONG};
 
-fn binary() -> PathBuf {
-    std::env::var_os("SPLITDESK_E2E_BIN")
-        .map(PathBuf::from)
-        .unwrap_or_else(|| PathBuf::from(env!("CARGO_BIN_EXE_splitdesk")))
-}
-
-fn need_tmux() -> bool {
-    let have = Command::new("tmux")
-        .arg("-V")
-        .output()
-        .map(|o| o.status.success())
-        .unwrap_or(false);
-    if have {
-        return true;
-    }
-    assert!(
-        std::env::var("CI").as_deref() != Ok("true"),
-        "tmux is missing under CI=true; .ci/run installs it"
-    );
-    eprintln!("skipped: tmux is not installed");
-    false
-}
-
-struct Tmux {
-    socket: PathBuf,
-}
-
-impl Tmux {
-    fn cmd(&self) -> Command {
-        let mut c = Command::new("tmux");
-        c.arg("-S").arg(&self.socket);
-        c
-    }
-
-    fn screen(&self, name: &str) -> String {
-        let out = self
-            .cmd()
-            .args(["capture-pane", "-p", "-t", name])
-            .output()
-            .unwrap();
-        String::from_utf8_lossy(&out.stdout).into_owned()
-    }
-
-    /// Poll until the screen shows every one of `texts` (or fail with the screen).
-    fn wait_for(&self, name: &str, texts: &[&str]) -> String {
-        let start = Instant::now();
-        loop {
-            let s = self.screen(name);
-            if texts.iter().all(|t| s.contains(t)) {
-                return s;
-            }
-            assert!(
-                start.elapsed() < Duration::from_secs(40),
-                "timed out waiting for {texts:?}; screen:\n{s}"
-            );
-            std::thread::sleep(Duration::from_millis(50));
-        }
-    }
-
-    fn keys(&self, name: &str, keys: &[&str]) {
-        let ok = self
-            .cmd()
-            .args(["send-keys", "-t", name])
-            .args(keys)
-            .status()
-            .unwrap()
-            .success();
-        assert!(ok, "send-keys {keys:?}");
-    }
-}
-
-impl Drop for Tmux {
-    fn drop(&mut self) {
-        let _ = self
-            .cmd()
-            .arg("kill-server")
-            .stderr(std::process::Stdio::null())
-            .status();
-    }
-}
-
-fn running(pid: &str) -> bool {
-    match std::fs::read_to_string(format!("/proc/{pid}/stat")) {
-        Ok(stat) => !stat
-            .rsplit_once(')')
-            .is_some_and(|(_, rest)| rest.trim_start().starts_with('Z')),
-        Err(_) => false,
-    }
-}
+/// The waits here: up to 40 s each, looking every 50 ms.
+const WAIT: Duration = Duration::from_secs(40);
+const POLL: Duration = Duration::from_millis(50);
 
 /// Blind scores by interval and the blind verdict.
 #[derive(Debug, Clone, PartialEq, Eq)]
@@ -180,15 +96,7 @@ fn killed_workstation_keeps_whole_keystrokes_only() {
     let roster = build_roster(&dir.path().join("roster"));
     let journal = dir.path().join("coach/journal.sqlite");
     let cli = |args: &[&str]| {
-        let out = Command::new(binary())
-            .env("SPLITDESK_CONFIG", "/nonexistent")
-            .arg("--roster")
-            .arg(&roster)
-            .arg("--journal")
-            .arg(&journal)
-            .args(args)
-            .output()
-            .unwrap();
+        let out = run(&roster, &journal, args);
         assert_eq!(out.status.code(), Some(0), "{args:?}: {out:?}");
     };
     // Review the two older sessions, so `]` (next in the queue) opens the interval session.
@@ -196,9 +104,7 @@ fn killed_workstation_keeps_whole_keystrokes_only() {
         cli(&["grade", id, "--verdict", "met"]);
         cli(&["notes", id]);
     }
-    let tmux = Tmux {
-        socket: dir.path().join("tmux.sock"),
-    };
+    let mut tmux = Tmux::new(dir.path().join("tmux.sock"), "keep");
     let pid_file = dir.path().join("pid");
     let mut rng = Rng(0x7E37_2026);
     let mut current = grades(&journal);
@@ -224,17 +130,11 @@ fn killed_workstation_keeps_whole_keystrokes_only() {
             roster.display(),
             journal.display(),
         );
-        let ok = tmux
-            .cmd()
-            .args(["new-session", "-d", "-s", &name, "-x", "160", "-y", "48"])
-            .args(["sh", "-c", &script])
-            .status()
-            .unwrap()
-            .success();
-        assert!(ok, "tmux new-session");
-        tmux.wait_for(&name, &["to review"]);
-        tmux.keys(&name, &["]"]);
-        tmux.wait_for(&name, &["5 x 3 min", "scores "]);
+        tmux.target = name.clone();
+        tmux.new_session(160, 48, &script);
+        tmux.wait_for_all(&["to review"], WAIT, POLL);
+        tmux.burst(&["]"]);
+        tmux.wait_for_all(&["5 x 3 min", "scores "], WAIT, POLL);
         let pid = std::fs::read_to_string(&pid_file)
             .unwrap()
             .trim()
@@ -244,7 +144,7 @@ fn killed_workstation_keeps_whole_keystrokes_only() {
         keys.push("v");
         let states = prefix_states(&current, &keys);
         // The burst, then SIGKILL somewhere in it (or just after it).
-        tmux.keys(&name, &keys);
+        tmux.burst(&keys);
         std::thread::sleep(Duration::from_micros(rng.below(120_000)));
         let killed = Command::new("kill")
             .args(["-KILL", &pid])

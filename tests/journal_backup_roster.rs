@@ -2,26 +2,10 @@
 //! be shared with athletes), however DEST is spelled: directly, through `..`, through a
 //! symbolic link to a folder inside the roster, or as a dangling link pointing into it.
 
+mod cli_support;
+
+use cli_support::run;
 use std::path::{Path, PathBuf};
-use std::process::{Command, Output};
-
-fn binary() -> PathBuf {
-    std::env::var_os("SPLITDESK_E2E_BIN")
-        .map(PathBuf::from)
-        .unwrap_or_else(|| PathBuf::from(env!("CARGO_BIN_EXE_splitdesk")))
-}
-
-fn run(roster: &Path, journal: &Path, args: &[&str]) -> Output {
-    Command::new(binary())
-        .env("SPLITDESK_CONFIG", "/nonexistent")
-        .arg("--roster")
-        .arg(roster)
-        .arg("--journal")
-        .arg(journal)
-        .args(args)
-        .output()
-        .unwrap()
-}
 
 #[test]
 fn backup_inside_the_roster_is_refused() {

@@ -3,19 +3,15 @@
 //! stay reachable, `journal check` names the session in one line, `journal backup` works, and
 //! the next command drops the row and makes the summary again.
 
+mod cli_support;
 mod tui_support;
 
 use std::path::{Path, PathBuf};
 use std::process::{Command, Output};
 
+use cli_support::binary;
 use splitdesk::journal::Journal;
 use tui_support::{build_roster, INTERVALS};
-
-fn binary() -> PathBuf {
-    std::env::var_os("SPLITDESK_E2E_BIN")
-        .map(PathBuf::from)
-        .unwrap_or_else(|| PathBuf::from(env!("CARGO_BIN_EXE_splitdesk")))
-}
 
 struct Setup {
     dir: tempfile::TempDir,

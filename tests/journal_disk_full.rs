@@ -8,18 +8,13 @@
 //! Also: `export intervals` warns about a score outside the journal's 1-5 rule (a
 //! hand-edited journal) instead of passing it on silently.
 
+mod cli_support;
 mod tui_support;
 
-use std::path::PathBuf;
 use std::process::Command;
 
+use cli_support::binary;
 use tui_support::{build_roster, INTERVALS};
-
-fn binary() -> PathBuf {
-    std::env::var_os("SPLITDESK_E2E_BIN")
-        .map(PathBuf::from)
-        .unwrap_or_else(|| PathBuf::from(env!("CARGO_BIN_EXE_splitdesk")))
-}
 
 fn q(p: &std::path::Path) -> String {
     format!("'{}'", p.display().to_string().replace('\'', r"'\''"))

@@ -6,19 +6,15 @@
 //! File permissions do not bind root, so under root the commands run as the user `nobody`
 //! (`setpriv`); without `setpriv` under root the test is skipped with a message.
 
+mod cli_support;
 mod tui_support;
 
 use std::os::unix::fs::PermissionsExt;
 use std::path::{Path, PathBuf};
 use std::process::{Command, Output};
 
+use cli_support::binary;
 use tui_support::{build_roster, INTERVALS};
-
-fn binary() -> PathBuf {
-    std::env::var_os("SPLITDESK_E2E_BIN")
-        .map(PathBuf::from)
-        .unwrap_or_else(|| PathBuf::from(env!("CARGO_BIN_EXE_splitdesk")))
-}
 
 fn is_root() -> bool {
     std::fs::read_to_string("/proc/self/status")

@@ -5,35 +5,18 @@
 //! modification time makes it read the file again; the same bytes under a new time only
 //! update the stat. The workstation's scan jobs follow the same rule.
 
+mod cli_support;
 mod tui_support;
 
 use std::path::{Path, PathBuf};
-use std::process::{Command, Output};
 use std::sync::Arc;
 use std::time::{Duration, SystemTime};
 
+use cli_support::run;
 use splitdesk::journal::{FileStat, Journal};
 use splitdesk::roster::Roster;
 use splitdesk::worker::{run_job, Job, JobKind, Outcome};
 use tui_support::{build_roster, INTERVALS};
-
-fn binary() -> PathBuf {
-    std::env::var_os("SPLITDESK_E2E_BIN")
-        .map(PathBuf::from)
-        .unwrap_or_else(|| PathBuf::from(env!("CARGO_BIN_EXE_splitdesk")))
-}
-
-fn run(roster: &Path, journal: &Path, args: &[&str]) -> Output {
-    Command::new(binary())
-        .env("SPLITDESK_CONFIG", "/nonexistent")
-        .arg("--roster")
-        .arg(roster)
-        .arg("--journal")
-        .arg(journal)
-        .args(args)
-        .output()
-        .unwrap()
-}
 
 fn activity(roster: &Path) -> PathBuf {
     roster.join("ines-aldana/activities/2024-03-04-intervals.fit")

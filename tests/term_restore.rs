@@ -8,134 +8,45 @@
 //! test build of the binary. Needs tmux: skipped with a message when it is missing, except
 //! under `CI=true`, where that is a failure.
 
+mod tmux_support;
+
 use std::path::{Path, PathBuf};
 use std::process::Command;
 use std::time::{Duration, Instant};
 
+use tmux_support::{binary, copy_dir, need_tmux, Tmux};
+
 const ATHLETE: &str = "tobias-wrenfield";
 
-fn binary() -> PathBuf {
-    std::env::var_os("SPLITDESK_E2E_BIN")
-        .map(PathBuf::from)
-        .unwrap_or_else(|| PathBuf::from(env!("CARGO_BIN_EXE_splitdesk")))
-}
-
-/// Skip (or, under `CI=true`, fail) without tmux.
-fn need_tmux() -> bool {
-    let ok = Command::new("tmux")
-        .arg("-V")
+/// A tmux format of the pane, e.g. `#{alternate_on}`.
+fn format(tmux: &Tmux, f: &str) -> String {
+    let out = tmux
+        .cmd()
+        .args(["display-message", "-p", "-t", &tmux.target, f])
         .output()
-        .map(|o| o.status.success())
-        .unwrap_or(false);
-    if ok {
-        return true;
-    }
-    assert!(
-        std::env::var("CI").as_deref() != Ok("true"),
-        "tmux is missing under CI=true; .ci/run installs it"
-    );
-    eprintln!("skipped: tmux is not installed");
-    false
+        .unwrap();
+    String::from_utf8_lossy(&out.stdout).trim().to_string()
 }
 
-fn copy_dir(from: &Path, to: &Path) {
-    std::fs::create_dir_all(to).unwrap();
-    for e in std::fs::read_dir(from).unwrap().flatten() {
-        let p = e.path();
-        let dest = to.join(e.file_name());
-        if p.is_dir() {
-            copy_dir(&p, &dest);
-        } else {
-            std::fs::copy(&p, &dest).unwrap();
-        }
-    }
-}
-
-struct Tmux {
-    socket: PathBuf,
-}
-
-impl Tmux {
-    fn cmd(&self) -> Command {
-        let mut c = Command::new("tmux");
-        c.arg("-S").arg(&self.socket);
-        c
-    }
-
-    fn keys(&self, keys: &[&str]) {
-        for k in keys {
-            let ok = self
-                .cmd()
-                .args(["send-keys", "-t", "t", k])
-                .status()
-                .unwrap()
-                .success();
-            assert!(ok, "send-keys {k}");
-            std::thread::sleep(Duration::from_millis(150));
-        }
-    }
-
-    /// The pane's text, wrapped lines joined.
-    fn screen(&self) -> String {
-        let out = self
-            .cmd()
-            .args(["capture-pane", "-p", "-J", "-t", "t"])
-            .output()
-            .unwrap();
-        String::from_utf8_lossy(&out.stdout).into_owned()
-    }
-
-    /// A tmux format of the pane, e.g. `#{alternate_on}`.
-    fn format(&self, f: &str) -> String {
-        let out = self
-            .cmd()
-            .args(["display-message", "-p", "-t", "t", f])
-            .output()
-            .unwrap();
-        String::from_utf8_lossy(&out.stdout).trim().to_string()
-    }
-
-    /// Press `key` until the screen shows `text` (a key pressed while the workstation is
-    /// still starting can go unseen on a busy machine).
-    fn press_until(&self, key: &str, text: &str) -> String {
-        let start = Instant::now();
-        loop {
-            self.keys(&[key]);
-            let pressed = Instant::now();
-            while pressed.elapsed() < Duration::from_secs(5) {
-                let s = self.screen();
-                if s.contains(text) {
-                    return s;
-                }
-                std::thread::sleep(Duration::from_millis(100));
-            }
-            assert!(
-                start.elapsed() < Duration::from_secs(40),
-                "timed out waiting for {text:?} after {key:?}; screen:\n{}",
-                self.screen()
-            );
-        }
-    }
-
-    fn wait_for(&self, text: &str) -> String {
-        let start = Instant::now();
-        loop {
-            let s = self.screen();
+/// Press `key` until the screen shows `text` (a key pressed while the workstation is
+/// still starting can go unseen on a busy machine).
+fn press_until(tmux: &Tmux, key: &str, text: &str) -> String {
+    let start = Instant::now();
+    loop {
+        tmux.keys(&[key]);
+        let pressed = Instant::now();
+        while pressed.elapsed() < Duration::from_secs(5) {
+            let s = tmux.screen();
             if s.contains(text) {
                 return s;
             }
-            assert!(
-                start.elapsed() < Duration::from_secs(30),
-                "timed out waiting for {text:?}; screen:\n{s}"
-            );
             std::thread::sleep(Duration::from_millis(100));
         }
-    }
-}
-
-impl Drop for Tmux {
-    fn drop(&mut self) {
-        let _ = self.cmd().arg("kill-server").status();
+        assert!(
+            start.elapsed() < Duration::from_secs(40),
+            "timed out waiting for {text:?} after {key:?}; screen:\n{}",
+            tmux.screen()
+        );
     }
 }
 
@@ -165,28 +76,10 @@ fn start(dir: &Path, env: &str) -> (Tmux, PathBuf) {
         "sh '{}'; echo exit=$?; stty -a; echo done; sleep 60",
         inner.display()
     );
-    let tmux = Tmux {
-        socket: dir.join("tmux.sock"),
-    };
-    let ok = tmux
-        .cmd()
-        .args([
-            "new-session",
-            "-d",
-            "-s",
-            "t",
-            "-x",
-            "120",
-            "-y",
-            "40",
-            "sh",
-            "-c",
-        ])
-        .arg(&script)
-        .status()
-        .unwrap()
-        .success();
-    assert!(ok, "tmux new-session");
+    let mut tmux = Tmux::new(dir.join("tmux.sock"), "t");
+    // The pane's text with wrapped lines joined.
+    tmux.join_wrapped = true;
+    tmux.new_session(120, 40, &script);
     (tmux, pid)
 }
 
@@ -195,12 +88,12 @@ fn start(dir: &Path, env: &str) -> (Tmux, PathBuf) {
 fn assert_restored(tmux: &Tmux) -> String {
     let s = tmux.wait_for("\ndone");
     assert_eq!(
-        tmux.format("#{alternate_on}"),
+        format(tmux, "#{alternate_on}"),
         "0",
         "still on the alternate screen:\n{s}"
     );
     assert_eq!(
-        tmux.format("#{cursor_flag}"),
+        format(tmux, "#{cursor_flag}"),
         "1",
         "the cursor is hidden:\n{s}"
     );
@@ -234,7 +127,7 @@ fn a_panic_in_the_middle_of_a_draw_restores_the_terminal_and_the_message_is_read
     let (tmux, _) = start(dir.path(), "SPLITDESK_TEST_PANIC_IN_DRAW=1");
     tmux.wait_for("to review");
     // Opening a session draws the frame that panics.
-    tmux.press_until("]", "\ndone");
+    press_until(&tmux, "]", "\ndone");
     let s = assert_restored(&tmux);
     assert!(s.contains("exit=101"), "{s}");
     let line = s
@@ -256,7 +149,7 @@ fn sigterm_restores_the_terminal() {
     let dir = tempfile::tempdir().unwrap();
     let (tmux, pid) = start(dir.path(), "");
     tmux.wait_for("to review");
-    tmux.press_until("]", "[blind]");
+    press_until(&tmux, "]", "[blind]");
     signal(&pid, "-TERM");
     let s = assert_restored(&tmux);
     assert!(s.contains("exit=0"), "{s}");
@@ -270,7 +163,7 @@ fn sighup_restores_the_terminal() {
     let dir = tempfile::tempdir().unwrap();
     let (tmux, pid) = start(dir.path(), "");
     tmux.wait_for("to review");
-    tmux.press_until("]", "[blind]");
+    press_until(&tmux, "]", "[blind]");
     signal(&pid, "-HUP");
     let s = assert_restored(&tmux);
     assert!(s.contains("exit=0"), "{s}");
@@ -284,7 +177,7 @@ fn the_test_panic_is_inert_without_the_variable() {
     let dir = tempfile::tempdir().unwrap();
     let (tmux, _) = start(dir.path(), "SPLITDESK_TEST_PANIC_IN_DRAW=0");
     tmux.wait_for("to review");
-    tmux.press_until("]", "[blind]");
+    press_until(&tmux, "]", "[blind]");
     tmux.keys(&["q"]);
     let s = assert_restored(&tmux);
     assert!(s.contains("exit=0"), "{s}");

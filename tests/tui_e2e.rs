@@ -7,110 +7,16 @@
 //! test build of the binary. Needs tmux: skipped with a message when it is missing, except
 //! under `CI=true`, where that is a failure.
 
+mod tmux_support;
+
 use std::path::{Path, PathBuf};
-use std::process::Command;
 use std::time::{Duration, Instant};
+
+use tmux_support::{binary, copy_dir, need_tmux, run, running, Tmux};
 
 const ATHLETE: &str = "tobias-wrenfield";
 const SESSION: &str = "tobias-wrenfield/2026-10-20-hill-repeats";
 const NOTE_START: &str = "Hills: all eight done";
-
-fn binary() -> PathBuf {
-    std::env::var_os("SPLITDESK_E2E_BIN")
-        .map(PathBuf::from)
-        .unwrap_or_else(|| PathBuf::from(env!("CARGO_BIN_EXE_splitdesk")))
-}
-
-fn have_tmux() -> bool {
-    Command::new("tmux")
-        .arg("-V")
-        .output()
-        .map(|o| o.status.success())
-        .unwrap_or(false)
-}
-
-fn copy_dir(from: &Path, to: &Path) {
-    std::fs::create_dir_all(to).unwrap();
-    for e in std::fs::read_dir(from).unwrap().flatten() {
-        let p = e.path();
-        let dest = to.join(e.file_name());
-        if p.is_dir() {
-            copy_dir(&p, &dest);
-        } else {
-            std::fs::copy(&p, &dest).unwrap();
-        }
-    }
-}
-
-struct Tmux {
-    name: String,
-    socket: PathBuf,
-}
-
-impl Tmux {
-    fn cmd(&self) -> Command {
-        let mut c = Command::new("tmux");
-        c.arg("-S").arg(&self.socket);
-        c
-    }
-
-    fn keys(&self, keys: &[&str]) {
-        for k in keys {
-            let ok = self
-                .cmd()
-                .args(["send-keys", "-t", &self.name, k])
-                .status()
-                .unwrap()
-                .success();
-            assert!(ok, "send-keys {k}");
-            std::thread::sleep(Duration::from_millis(150));
-        }
-    }
-
-    fn screen(&self) -> String {
-        let out = self
-            .cmd()
-            .args(["capture-pane", "-p", "-t", &self.name])
-            .output()
-            .unwrap();
-        String::from_utf8_lossy(&out.stdout).into_owned()
-    }
-
-    /// Wait until the screen shows `text` (or fail with the screen).
-    fn wait_for(&self, text: &str) -> String {
-        let start = Instant::now();
-        loop {
-            let s = self.screen();
-            if s.contains(text) {
-                return s;
-            }
-            assert!(
-                start.elapsed() < Duration::from_secs(30),
-                "timed out waiting for {text:?}; screen:\n{s}"
-            );
-            std::thread::sleep(Duration::from_millis(100));
-        }
-    }
-}
-
-impl Drop for Tmux {
-    fn drop(&mut self) {
-        let _ = self.cmd().arg("kill-server").status();
-    }
-}
-
-/// Skip (or, under `CI=true`, fail) without tmux.
-fn need_tmux() -> bool {
-    if have_tmux() {
-        return true;
-    }
-    assert!(
-        std::env::var("CI").as_deref() != Ok("true"),
-        "tmux is missing under CI=true; .ci/run installs it"
-    );
-    eprintln!("skipped: tmux is not installed");
-    false
-}
 
 /// A copy of one demo athlete in `dir`, and the workstation started on it in a detached
 /// tmux session of 160x48 with a fresh journal. `wrap` gets the command line of the
@@ -122,10 +28,7 @@ fn start(dir: &Path, wrap: impl FnOnce(&str) -> String) -> (Tmux, PathBuf, PathB
     std::fs::copy(demo.join("roster.toml"), roster.join("roster.toml")).unwrap();
     let journal = dir.join("coach/journal.sqlite");
     let data = dir.join("data");
-    let tmux = Tmux {
-        name: "e2e".into(),
-        socket: dir.join("tmux.sock"),
-    };
+    let tmux = Tmux::new(dir.join("tmux.sock"), "e2e");
     let command = format!(
         "SPLITDESK_CONFIG=/nonexistent XDG_DATA_HOME='{}' '{}' --roster '{}' --journal '{}'",
         data.display(),
@@ -134,37 +37,8 @@ fn start(dir: &Path, wrap: impl FnOnce(&str) -> String) -> (Tmux, PathBuf, PathB
         journal.display(),
     );
     let script = wrap(&command);
-    let ok = tmux
-        .cmd()
-        .args([
-            "new-session",
-            "-d",
-            "-s",
-            "e2e",
-            "-x",
-            "160",
-            "-y",
-            "48",
-            "sh",
-            "-c",
-            &script,
-        ])
-        .status()
-        .unwrap()
-        .success();
-    assert!(ok, "tmux new-session");
+    tmux.new_session(160, 48, &script);
     (tmux, roster, journal)
-}
-
-/// Whether process `pid` is still running (a zombie left for a parent that does not reap
-/// counts as ended).
-fn running(pid: &str) -> bool {
-    match std::fs::read_to_string(format!("/proc/{pid}/stat")) {
-        Ok(stat) => !stat
-            .rsplit_once(')')
-            .is_some_and(|(_, rest)| rest.trim_start().starts_with('Z')),
-        Err(_) => false,
-    }
 }
 
 #[test]
@@ -251,17 +125,7 @@ fn coach_reviews_a_session_blind_in_the_real_binary() {
     assert_eq!(std::fs::read_to_string(&done).unwrap().trim(), "0");
 
     // The headless commands see what the coach did.
-    let run = |args: &[&str]| {
-        Command::new(binary())
-            .env("SPLITDESK_CONFIG", "/nonexistent")
-            .arg("--roster")
-            .arg(&roster)
-            .arg("--journal")
-            .arg(&journal)
-            .args(args)
-            .output()
-            .unwrap()
-    };
+    let run = |args: &[&str]| run(&roster, &journal, args);
     let notes = run(&["notes", SESSION]);
     assert_eq!(notes.status.code(), Some(0));
     assert!(String::from_utf8_lossy(&notes.stdout).starts_with(NOTE_START));

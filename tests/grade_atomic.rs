@@ -7,6 +7,7 @@
 //!   the new ones, never a mix, and after the reveal never a part of the revisions.
 
 mod cli_support;
+mod rng_support;
 mod tui_support;
 
 use std::path::{Path, PathBuf};
@@ -14,6 +15,7 @@ use std::process::{Command, Output, Stdio};
 use std::time::{Duration, Instant};
 
 use cli_support::binary;
+use rng_support::Rng;
 use splitdesk::journal::Journal;
 use tui_support::{build_roster, INTERVALS};
 
@@ -154,23 +156,6 @@ fn a_refused_grade_saves_nothing() {
     );
     assert_eq!(out.status.code(), Some(2), "{out:?}");
     assert_eq!(grades(&s.journal), before);
-}
-
-/// Small deterministic generator (SplitMix64) so a failure can be replayed.
-struct Rng(u64);
-
-impl Rng {
-    fn next(&mut self) -> u64 {
-        self.0 = self.0.wrapping_add(0x9E37_79B9_7F4A_7C15);
-        let mut z = self.0;
-        z = (z ^ (z >> 30)).wrapping_mul(0xBF58_476D_1CE4_E5B9);
-        z = (z ^ (z >> 27)).wrapping_mul(0x94D0_49BB_1331_11EB);
-        z ^ (z >> 31)
-    }
-
-    fn below(&mut self, n: u64) -> u64 {
-        self.next() % n.max(1)
-    }
 }
 
 const VERDICTS: [&str; 3] = ["met", "partly", "missed"];

@@ -8,6 +8,7 @@
 //! test build of the binary. Needs tmux: skipped with a message when it is missing, except
 //! under `CI=true`, where that is a failure.
 
+mod rng_support;
 mod tmux_support;
 mod tui_support;
 
@@ -15,6 +16,7 @@ use std::path::Path;
 use std::process::Command;
 use std::time::{Duration, Instant};
 
+use rng_support::Rng;
 use splitdesk::journal::Journal;
 use tmux_support::{binary, need_tmux, run, running, Tmux};
 use tui_support::{build_roster, EASY, INTERVALS, LONG};
@@ -68,23 +70,6 @@ fn prefix_states(old: &Grades, keys: &[&str]) -> Vec<Grades> {
         out.push(g.clone());
     }
     out
-}
-
-/// Small deterministic generator (SplitMix64) so a failure can be replayed.
-struct Rng(u64);
-
-impl Rng {
-    fn next(&mut self) -> u64 {
-        self.0 = self.0.wrapping_add(0x9E37_79B9_7F4A_7C15);
-        let mut z = self.0;
-        z = (z ^ (z >> 30)).wrapping_mul(0xBF58_476D_1CE4_E5B9);
-        z = (z ^ (z >> 27)).wrapping_mul(0x94D0_49BB_1331_11EB);
-        z ^ (z >> 31)
-    }
-
-    fn below(&mut self, n: u64) -> u64 {
-        self.next() % n.max(1)
-    }
 }
 
 #[test]

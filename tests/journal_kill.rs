@@ -5,6 +5,8 @@
 //! The child is this test binary itself, run with `child_writer --exact --nocapture` and
 //! `SPLITDESK_KILL_CHILD_DB` set; without that variable `child_writer` does nothing.
 
+mod rng_support;
+
 use std::io::{BufRead, BufReader};
 use std::path::{Path, PathBuf};
 use std::process::{Command, Stdio};
@@ -12,6 +14,7 @@ use std::sync::mpsc;
 use std::time::{Duration, Instant};
 
 use chrono::{DateTime, TimeZone, Utc};
+use rng_support::Rng;
 use splitdesk::journal::{
     FeedbackEventKind, Journal, PurposeVerdict, RevisionChange, SessionRecord, SummaryCache,
 };
@@ -118,23 +121,6 @@ fn child_writer() {
         write_unit(&mut j, i);
         println!("committed {i}");
         i += 1;
-    }
-}
-
-/// Small deterministic generator (SplitMix64) so a failure can be replayed.
-struct Rng(u64);
-
-impl Rng {
-    fn next(&mut self) -> u64 {
-        self.0 = self.0.wrapping_add(0x9E37_79B9_7F4A_7C15);
-        let mut z = self.0;
-        z = (z ^ (z >> 30)).wrapping_mul(0xBF58_476D_1CE4_E5B9);
-        z = (z ^ (z >> 27)).wrapping_mul(0x94D0_49BB_1331_11EB);
-        z ^ (z >> 31)
-    }
-
-    fn below(&mut self, n: u64) -> u64 {
-        self.next() % n
     }
 }
 

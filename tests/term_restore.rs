@@ -141,8 +141,9 @@ fn a_panic_in_the_middle_of_a_draw_restores_the_terminal_and_the_message_is_read
     assert!(s.contains("panicked at"), "{s}");
 }
 
-#[test]
-fn sigterm_restores_the_terminal() {
+/// With a session open, `sig` ends the workstation with exit code 0 and the terminal is
+/// restored.
+fn signal_restores_the_terminal(sig: &str) {
     if !need_tmux() {
         return;
     }
@@ -150,23 +151,19 @@ fn sigterm_restores_the_terminal() {
     let (tmux, pid) = start(dir.path(), "");
     tmux.wait_for("to review");
     press_until(&tmux, "]", "[blind]");
-    signal(&pid, "-TERM");
+    signal(&pid, sig);
     let s = assert_restored(&tmux);
     assert!(s.contains("exit=0"), "{s}");
 }
 
 #[test]
+fn sigterm_restores_the_terminal() {
+    signal_restores_the_terminal("-TERM");
+}
+
+#[test]
 fn sighup_restores_the_terminal() {
-    if !need_tmux() {
-        return;
-    }
-    let dir = tempfile::tempdir().unwrap();
-    let (tmux, pid) = start(dir.path(), "");
-    tmux.wait_for("to review");
-    press_until(&tmux, "]", "[blind]");
-    signal(&pid, "-HUP");
-    let s = assert_restored(&tmux);
-    assert!(s.contains("exit=0"), "{s}");
+    signal_restores_the_terminal("-HUP");
 }
 
 #[test]

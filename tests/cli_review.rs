@@ -1,54 +1,16 @@
 //! The daily review from the shell, end to end through the real binary on a tiny roster:
 //! queue, blind grading, notes, revisions, feedback, exports, bias check, journal upkeep.
 
+mod cli_support;
 mod roster_support;
 
-use assert_cmd::Command;
+use cli_support::TempRoster;
 use roster_support::{write_roster, EASY_ID, NOTE_MARKER, REPS_ID};
 
-struct Env {
-    _dir: tempfile::TempDir,
-    roster: std::path::PathBuf,
-    journal: std::path::PathBuf,
-}
+type Env = TempRoster;
 
 fn env() -> Env {
-    let dir = tempfile::tempdir().unwrap();
-    let roster = dir.path().join("roster");
-    write_roster(&roster);
-    let journal = dir.path().join("coach/journal.sqlite");
-    Env {
-        _dir: dir,
-        roster,
-        journal,
-    }
-}
-
-impl Env {
-    fn run(&self, args: &[&str]) -> (i32, String, String) {
-        let out = Command::cargo_bin("splitdesk")
-            .unwrap()
-            .env("SPLITDESK_CONFIG", "/nonexistent/config.toml")
-            .env("EDITOR", "true")
-            .arg("--roster")
-            .arg(&self.roster)
-            .arg("--journal")
-            .arg(&self.journal)
-            .args(args)
-            .output()
-            .unwrap();
-        (
-            out.status.code().unwrap_or(-1),
-            String::from_utf8_lossy(&out.stdout).into_owned(),
-            String::from_utf8_lossy(&out.stderr).into_owned(),
-        )
-    }
-
-    fn ok(&self, args: &[&str]) -> String {
-        let (code, out, err) = self.run(args);
-        assert_eq!(code, 0, "{args:?}: {err}");
-        out
-    }
+    TempRoster::new(write_roster)
 }
 
 fn work_count(env: &Env) -> usize {

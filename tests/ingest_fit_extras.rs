@@ -2,11 +2,12 @@
 //! wrap), bytes after the end of the data named in a warning, and what `check` says about
 //! broken activity files.
 
+mod cli_support;
 mod fit_common;
 mod fitdecode_support;
 mod roster_support;
 
-use assert_cmd::Command;
+use cli_support::TempRoster;
 use splitdesk::demo::fit_writer::{self, FitOptions};
 use splitdesk::ingest;
 use splitdesk::model::{ChannelKind, FileFormat};
@@ -87,55 +88,22 @@ fn compressed_speed_and_distance_agree_with_fitdecode() {
     }
 }
 
-struct Roster {
-    _dir: tempfile::TempDir,
-    root: std::path::PathBuf,
-    journal: std::path::PathBuf,
+fn roster() -> TempRoster {
+    TempRoster::new(roster_support::write_roster)
 }
 
-fn roster() -> Roster {
-    let dir = tempfile::tempdir().unwrap();
-    let root = dir.path().join("roster");
-    roster_support::write_roster(&root);
-    let journal = dir.path().join("coach/journal.sqlite");
-    Roster {
-        _dir: dir,
-        root,
-        journal,
-    }
-}
-
-impl Roster {
-    fn run(&self, args: &[&str]) -> (i32, String) {
-        let out = Command::cargo_bin("splitdesk")
-            .unwrap()
-            .env("SPLITDESK_CONFIG", "/nonexistent/config.toml")
-            .arg("--roster")
-            .arg(&self.root)
-            .arg("--journal")
-            .arg(&self.journal)
-            .args(args)
-            .output()
-            .unwrap();
-        (
-            out.status.code().unwrap_or(-1),
-            String::from_utf8_lossy(&out.stdout).into_owned(),
-        )
-    }
-
-    fn activity(&self, name: &str) -> std::path::PathBuf {
-        self.root.join("tova-renn/activities").join(name)
-    }
+fn activity(r: &TempRoster, name: &str) -> std::path::PathBuf {
+    r.roster.join("tova-renn/activities").join(name)
 }
 
 #[test]
 fn check_names_trailing_bytes_without_failing_and_the_session_still_reads() {
     let r = roster();
-    let reps = r.activity("2026-11-03-reps.fit");
+    let reps = activity(&r, "2026-11-03-reps.fit");
     let mut bytes = std::fs::read(&reps).unwrap();
     bytes.extend_from_slice(b"garbage");
     std::fs::write(&reps, &bytes).unwrap();
-    let (code, out) = r.run(&["check", r.root.to_str().unwrap()]);
+    let (code, out, _) = r.run(&["check", r.roster.to_str().unwrap()]);
     assert_eq!(code, 0, "{out}");
     // Before: nothing was said.
     assert!(
@@ -147,7 +115,7 @@ fn check_names_trailing_bytes_without_failing_and_the_session_still_reads() {
     );
     assert!(out.contains("2 sessions, 2 readable"), "{out}");
     // The review says it too, where the coach reads the findings.
-    let (code, out) = r.run(&["analyze", reps.to_str().unwrap()]);
+    let (code, out, _) = r.run(&["analyze", reps.to_str().unwrap()]);
     assert_eq!(code, 0, "{out}");
     assert!(
         out.contains("While reading the file: 7 bytes after the end of the FIT data were ignored."),
@@ -158,12 +126,12 @@ fn check_names_trailing_bytes_without_failing_and_the_session_still_reads() {
 #[test]
 fn a_huge_file_in_the_roster_is_listed_by_check_and_queue_still_works() {
     let r = roster();
-    let huge = r.activity("2026-11-05-run.fit");
+    let huge = activity(&r, "2026-11-05-run.fit");
     std::fs::File::create(&huge)
         .unwrap()
         .set_len(2 * 1024 * 1024 * 1024)
         .unwrap();
-    let (code, out) = r.run(&["check", r.root.to_str().unwrap()]);
+    let (code, out, _) = r.run(&["check", r.roster.to_str().unwrap()]);
     assert_eq!(code, 1, "{out}");
     assert!(
         out.contains(&format!(
@@ -173,7 +141,7 @@ fn a_huge_file_in_the_roster_is_listed_by_check_and_queue_still_works() {
         )),
         "{out}"
     );
-    let (code, out) = r.run(&["queue"]);
+    let (code, out, _) = r.run(&["queue"]);
     assert_eq!(code, 0, "{out}");
     assert!(out.contains("2026-11-03-reps"), "{out}");
 }

@@ -24,3 +24,52 @@ pub fn run(roster: &Path, journal: &Path, args: &[&str]) -> Output {
         .output()
         .unwrap()
 }
+
+/// A roster in a temporary folder with a fresh journal beside it (under `coach/`).
+pub struct TempRoster {
+    _dir: tempfile::TempDir,
+    pub roster: PathBuf,
+    pub journal: PathBuf,
+}
+
+impl TempRoster {
+    /// `write` fills the roster folder.
+    pub fn new(write: impl FnOnce(&Path)) -> Self {
+        let dir = tempfile::tempdir().unwrap();
+        let roster = dir.path().join("roster");
+        write(&roster);
+        let journal = dir.path().join("coach/journal.sqlite");
+        TempRoster {
+            _dir: dir,
+            roster,
+            journal,
+        }
+    }
+
+    /// Run the binary here: exit code (-1 when ended by a signal), stdout, stderr.
+    /// `EDITOR=true`, so a command that would open an editor returns at once.
+    pub fn run(&self, args: &[&str]) -> (i32, String, String) {
+        let out = Command::new(binary())
+            .env("SPLITDESK_CONFIG", "/nonexistent/config.toml")
+            .env("EDITOR", "true")
+            .arg("--roster")
+            .arg(&self.roster)
+            .arg("--journal")
+            .arg(&self.journal)
+            .args(args)
+            .output()
+            .unwrap();
+        (
+            out.status.code().unwrap_or(-1),
+            String::from_utf8_lossy(&out.stdout).into_owned(),
+            String::from_utf8_lossy(&out.stderr).into_owned(),
+        )
+    }
+
+    /// Run the binary here, require exit code 0 and return stdout.
+    pub fn ok(&self, args: &[&str]) -> String {
+        let (code, out, err) = self.run(args);
+        assert_eq!(code, 0, "{args:?}: {err}");
+        out
+    }
+}

@@ -75,7 +75,7 @@ pub fn load() -> Result<Config, ConfigError> {
 
 /// Load a configuration file; a missing file is the empty configuration.
 pub fn load_from(path: &Path) -> Result<Config, ConfigError> {
-    let text = match std::fs::read_to_string(path) {
+    let text = match crate::ingest::read_text_file(path) {
         Ok(t) => t,
         Err(e) if e.kind() == std::io::ErrorKind::NotFound => return Ok(Config::default()),
         Err(source) => {

@@ -38,7 +38,7 @@ fn roster_of(file: &Path) -> Option<PathBuf> {
 }
 
 fn load_profile(path: &Path) -> anyhow::Result<AthleteProfile> {
-    let text = std::fs::read_to_string(path).with_context(|| path.display().to_string())?;
+    let text = crate::ingest::read_text_file(path).with_context(|| path.display().to_string())?;
     let id = path
         .parent()
         .and_then(|p| p.file_name())

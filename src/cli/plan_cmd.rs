@@ -93,7 +93,7 @@ fn load_athlete(path: &Path) -> anyhow::Result<KnownAthlete> {
             });
         }
     }
-    let text = std::fs::read_to_string(&profile_path)
+    let text = crate::ingest::read_text_file(&profile_path)
         .map_err(|e| anyhow::anyhow!("{}: {e}", printable(&profile_path.display().to_string())))?;
     let report = read_profile(&text, &id, Units::Km);
     Ok(KnownAthlete {
@@ -125,7 +125,7 @@ pub fn run_check(
     };
     let mut source_text = String::new();
     let parsed: Result<Plan, (String, Option<String>)> = match (file, line) {
-        (Some(path), None) => match std::fs::read_to_string(path) {
+        (Some(path), None) => match crate::ingest::read_text_file(path) {
             Err(source) => Err((
                 PlanFileError::Io {
                     path: path.to_path_buf(),

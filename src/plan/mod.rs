@@ -44,7 +44,7 @@ pub fn parse_line(text: &str) -> Result<Vec<Step>, PlanError> {
 /// file has none. Errors carry the path.
 pub fn load(path: impl AsRef<Path>) -> Result<Plan, PlanFileError> {
     let path = path.as_ref();
-    let text = std::fs::read_to_string(path).map_err(|source| PlanFileError::Io {
+    let text = crate::ingest::read_text_file(path).map_err(|source| PlanFileError::Io {
         path: path.to_path_buf(),
         source,
     })?;

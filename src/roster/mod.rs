@@ -233,7 +233,7 @@ impl Roster {
 }
 
 fn read_roster_file(path: &Path) -> Result<RosterFile, String> {
-    let text = std::fs::read_to_string(path).map_err(|e| e.to_string())?;
+    let text = crate::ingest::read_text_file(path).map_err(|e| e.to_string())?;
     toml::from_str(&text).map_err(|e| profile::toml_error_line(&text, &e))
 }
 
@@ -407,7 +407,7 @@ fn read_athlete(
     } else if resolve(&profile_path, inside, &mut folder_problems).is_none() {
         AthleteProfile::bare(&id)
     } else {
-        match std::fs::read_to_string(&profile_path) {
+        match crate::ingest::read_text_file(&profile_path) {
             Ok(text) => {
                 inputs.extend_from_slice(text.as_bytes());
                 let report = read_profile(&text, &id, units);
@@ -443,7 +443,11 @@ fn read_athlete(
         inputs.extend_from_slice(b"\0plan\0");
         inputs.extend_from_slice(p.to_string_lossy().as_bytes());
         inputs.push(0);
-        inputs.extend_from_slice(&std::fs::read(p).unwrap_or_default());
+        inputs.extend_from_slice(
+            crate::ingest::read_text_file(p)
+                .unwrap_or_default()
+                .as_bytes(),
+        );
     }
     Athlete {
         id,

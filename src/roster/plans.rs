@@ -118,7 +118,7 @@ pub fn check_plan_file(path: &Path, profile: &AthleteProfile) -> Vec<Problem> {
         path: path.to_path_buf(),
         message,
     };
-    let text = match std::fs::read_to_string(path) {
+    let text = match crate::ingest::read_text_file(path) {
         Ok(t) => t,
         Err(e) => return vec![problem(e.to_string())],
     };

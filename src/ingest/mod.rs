@@ -213,45 +213,67 @@ pub fn read_activity(path: &Path, limits: Limits) -> Result<Vec<u8>, IngestError
     Ok(bytes)
 }
 
-/// Fill `buf` as far as the reader allows; the number of bytes read.
 /// The largest profile, plan, roster or settings file read, bytes. Such files are a few
 /// kilobytes; the cap keeps a huge or endless file (a device node, a mistaken copy) from
 /// costing its whole size in memory.
 pub const TEXT_FILE_MAX_BYTES: u64 = 1024 * 1024;
 
+/// Why [`read_capped`] read nothing.
+#[derive(Debug)]
+pub enum CappedReadError {
+    /// A folder, device, pipe or socket.
+    NotAFile,
+    /// Larger than the cap (the size seen, bytes); also when it grew past it while read.
+    TooLarge(u64),
+    /// The file system's own error.
+    Io(std::io::Error),
+}
+
+/// Read a small file whole, refusing anything that is not a regular file or is above `cap`
+/// bytes before reading it, and reading with a hard bound so a file that grows meanwhile is
+/// refused too.
+pub fn read_capped(path: &Path, cap: u64) -> Result<Vec<u8>, CappedReadError> {
+    let meta = std::fs::metadata(path).map_err(CappedReadError::Io)?;
+    if !meta.is_file() {
+        return Err(CappedReadError::NotAFile);
+    }
+    if meta.len() > cap {
+        return Err(CappedReadError::TooLarge(meta.len()));
+    }
+    let mut bytes = Vec::new();
+    std::fs::File::open(path)
+        .map_err(CappedReadError::Io)?
+        .take(cap.saturating_add(1))
+        .read_to_end(&mut bytes)
+        .map_err(CappedReadError::Io)?;
+    let len = u64::try_from(bytes.len()).unwrap_or(u64::MAX);
+    if len > cap {
+        return Err(CappedReadError::TooLarge(len));
+    }
+    Ok(bytes)
+}
+
 /// Read one of the coach's small text files (profile, plan, `roster.toml`, config) as UTF-8,
-/// refusing anything that is not a regular file or is above [`TEXT_FILE_MAX_BYTES`] before
-/// reading it, and reading with a hard bound so a file that grows meanwhile is refused too.
+/// within [`TEXT_FILE_MAX_BYTES`] (see [`read_capped`]).
 pub fn read_text_file(path: &Path) -> std::io::Result<String> {
     use std::io::{Error, ErrorKind};
-    let too_large = |size: u64| {
-        Error::new(
+    let bytes = read_capped(path, TEXT_FILE_MAX_BYTES).map_err(|e| match e {
+        CappedReadError::NotAFile => Error::new(ErrorKind::InvalidInput, "not a regular file"),
+        CappedReadError::TooLarge(size) => Error::new(
             ErrorKind::InvalidData,
             format!(
                 "file is {} ({size} bytes), above the {} limit for profiles, plans and settings",
                 human_size(size),
                 human_size(TEXT_FILE_MAX_BYTES)
             ),
-        )
-    };
-    let meta = std::fs::metadata(path)?;
-    if !meta.is_file() {
-        return Err(Error::new(ErrorKind::InvalidInput, "not a regular file"));
-    }
-    if meta.len() > TEXT_FILE_MAX_BYTES {
-        return Err(too_large(meta.len()));
-    }
-    let mut bytes = Vec::new();
-    std::fs::File::open(path)?
-        .take(TEXT_FILE_MAX_BYTES.saturating_add(1))
-        .read_to_end(&mut bytes)?;
-    if bytes.len() as u64 > TEXT_FILE_MAX_BYTES {
-        return Err(too_large(bytes.len() as u64));
-    }
+        ),
+        CappedReadError::Io(e) => e,
+    })?;
     String::from_utf8(bytes)
         .map_err(|_| Error::new(ErrorKind::InvalidData, "stream did not contain valid UTF-8"))
 }
 
+/// Fill `buf` as far as the reader allows; the number of bytes read.
 fn read_up_to(r: &mut impl Read, buf: &mut [u8]) -> std::io::Result<usize> {
     let mut got = 0;
     while let Some(rest) = buf.get_mut(got..) {

@@ -17,7 +17,6 @@
 //! windows-1252). Text that had to be converted carries a marker when shown, so the coach
 //! knows it was not read exactly as written.
 
-use std::io::Read;
 use std::path::Path;
 
 /// Note files larger than this are not read (a note is a few lines; 1 MiB is a book).
@@ -120,23 +119,15 @@ pub fn decode(bytes: &[u8]) -> DecodedNote {
 /// Read and decode a note file, at most [`MAX_NOTE_BYTES`]. `Err` with a one-line reason
 /// when it cannot be read or is too large.
 pub fn read_file(path: &Path) -> Result<DecodedNote, String> {
-    let meta = std::fs::metadata(path).map_err(|e| e.to_string())?;
-    if !meta.is_file() {
-        return Err("not a regular file".to_string());
+    match super::read_capped(path, MAX_NOTE_BYTES) {
+        Ok(bytes) => Ok(decode(&bytes)),
+        Err(super::CappedReadError::NotAFile) => Err("not a regular file".to_string()),
+        Err(super::CappedReadError::TooLarge(_)) => Err(format!(
+            "note file is larger than {} KiB",
+            MAX_NOTE_BYTES / 1024
+        )),
+        Err(super::CappedReadError::Io(e)) => Err(e.to_string()),
     }
-    let too_large = || format!("note file is larger than {} KiB", MAX_NOTE_BYTES / 1024);
-    if meta.len() > MAX_NOTE_BYTES {
-        return Err(too_large());
-    }
-    let file = std::fs::File::open(path).map_err(|e| e.to_string())?;
-    let mut bytes = Vec::new();
-    file.take(MAX_NOTE_BYTES + 1)
-        .read_to_end(&mut bytes)
-        .map_err(|e| e.to_string())?;
-    if bytes.len() as u64 > MAX_NOTE_BYTES {
-        return Err(too_large());
-    }
-    Ok(decode(&bytes))
 }
 
 /// What `check` reports about a note file: `None` when it reads (converted or not), else the

@@ -22,6 +22,10 @@ pub struct Config {
     /// Bounds on reading activity files.
     #[serde(default)]
     pub ingest: IngestConfig,
+    /// The coach's voice in feedback drafts (`[feedback]`). Read leniently: a mistake in
+    /// it is reported by [`Config::feedback_style`] and the rest is used.
+    #[serde(default)]
+    pub feedback: toml::Table,
 }
 
 /// The `[ingest]` table.
@@ -41,6 +45,14 @@ impl Config {
                 .max_file_mb
                 .unwrap_or(crate::ingest::DEFAULT_MAX_FILE_MB),
         )
+    }
+}
+
+impl Config {
+    /// The coach's voice for drafts, with one line per problem in the `[feedback]` table
+    /// (the rest of the table is used).
+    pub fn feedback_style(&self) -> (crate::export::feedback::FeedbackStyle, Vec<String>) {
+        crate::export::feedback::style::from_table(&self.feedback)
     }
 }
 

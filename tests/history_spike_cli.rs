@@ -100,7 +100,34 @@ fn the_planted_spike_shows_in_trends_and_analyze_but_not_in_the_draft() {
     assert_eq!(code, 0, "{err}");
     assert!(!out.contains("load_spike"), "{out}");
 
-    // The draft is in the coach's words: the caution is not repeated verbatim.
+    // The draft is in the coach's words: the caution is not repeated verbatim. Drafts are
+    // written after the blind grading and the reveal.
+    let id = "oren-falkner/2026-11-19-tempo";
+    let (code, out, err) = run(&roster, &journal, &["queue", "--json"]);
+    assert_eq!(code, 0, "{err}");
+    let q: serde_json::Value = serde_json::from_str(&out).unwrap();
+    let n = q
+        .as_array()
+        .unwrap()
+        .iter()
+        .find(|e| e["session"] == id)
+        .and_then(|e| e["work_intervals"].as_u64())
+        .unwrap_or_else(|| panic!("{out}"));
+    let mut grade = vec![
+        "grade".to_string(),
+        id.to_string(),
+        "--verdict".into(),
+        "met".into(),
+    ];
+    for k in 1..=n {
+        grade.push("--score".into());
+        grade.push(format!("{k}=4"));
+    }
+    let grade: Vec<&str> = grade.iter().map(String::as_str).collect();
+    let (code, _, err) = run(&roster, &journal, &grade);
+    assert_eq!(code, 0, "{err}");
+    let (code, _, err) = run(&roster, &journal, &["notes", id]);
+    assert_eq!(code, 0, "{err}");
     let (code, out, err) = run(
         &roster,
         &journal,

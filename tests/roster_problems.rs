@@ -227,7 +227,13 @@ fn a_session_whose_plan_is_broken_is_analysed_without_it_and_says_why() {
     );
     assert!(!hr.text.contains("lacks"), "{}", hr.text);
     // The athlete's feedback draft is about the running, not the coach's files.
-    let draft = splitdesk::export::feedback::draft(&a.review, &athlete.profile, None);
+    let input = splitdesk::export::feedback::DraftInput {
+        review: &a.review,
+        profile: &athlete.profile,
+        grades: Default::default(),
+        note: None,
+    };
+    let draft = splitdesk::export::feedback::draft(&input, &Default::default());
     assert!(
         !draft.contains("Plan not used") && !draft.contains("athlete.toml"),
         "{draft}"

@@ -25,7 +25,7 @@ use super::zones::{hr_zones, pace_zones, time_in_zones};
 
 /// Bumped whenever a number in the review may change; cached summaries of another version
 /// are recomputed.
-pub const ANALYSIS_VERSION: u32 = 6;
+pub const ANALYSIS_VERSION: u32 = 7;
 
 /// The JSON schema name of [`Review`].
 pub const SCHEMA: &str = "splitdesk.analysis/1";
@@ -348,6 +348,13 @@ pub struct Review {
     pub avg_hr: Option<f64>,
     #[serde(default)]
     pub max_hr: Option<f64>,
+    /// What kind of session this was ([`super::kind::classify`]).
+    #[serde(default)]
+    pub kind: super::kind::SessionKind,
+    /// Per-km or per-mile splits in the athlete's units: over the race for a race or time
+    /// trial (its one work interval), else over the whole run. `None` without distance.
+    #[serde(default)]
+    pub splits: Option<super::splits::Splits>,
 }
 
 fn yes() -> bool {
@@ -757,9 +764,31 @@ pub fn review_moving(
                 .filter_map(|i| h.get(i).copied().flatten())
                 .reduce(f64::max)
         }),
+        kind: super::kind::SessionKind::default(),
+        splits: None,
     };
+    review.kind = super::kind::classify(&review, plan);
+    if running {
+        let (from_s, to_s) = splits_range(&review, session);
+        review.splits = super::splits::splits(session, &s, from_s, to_s, profile.units);
+    }
     review.findings = findings::findings(&review, session, set, profile, &whole, &hr_checks);
     review
+}
+
+/// The part of a run the splits cover: the one work interval of a race, tempo or time
+/// trial, else the whole session.
+fn splits_range(review: &Review, session: &Session) -> (f64, f64) {
+    let work: Vec<_> = review.work().collect();
+    match (review.kind, work.as_slice()) {
+        (super::kind::SessionKind::Race | super::kind::SessionKind::Tempo, [only]) => {
+            (only.start_s, only.end_s)
+        }
+        _ => (
+            session.t.first().copied().unwrap_or(0.0),
+            session.t.last().copied().unwrap_or(0.0),
+        ),
+    }
 }
 
 /// A pace band as `fast-slow/unit`, e.g. `4:00-4:10/km`.

@@ -300,7 +300,11 @@ pub fn run(cli: Cli) -> anyhow::Result<i32> {
         Some(cmd) => {
             let roster = crate::config::resolve_roster(cli.roster.as_deref(), &config);
             let journal = cli.journal.clone().or_else(|| config.journal.clone());
-            run_with_journal(cmd, &roster, journal.as_deref())
+            let (style, problems) = config.feedback_style();
+            for p in &problems {
+                eprintln!("warning: {p}");
+            }
+            run_with_journal(cmd, &roster, journal.as_deref(), &style)
         }
     }
 }
@@ -310,6 +314,7 @@ fn run_with_journal(
     cmd: Command,
     roster: &std::path::Path,
     journal: Option<&std::path::Path>,
+    style: &crate::export::feedback::FeedbackStyle,
 ) -> anyhow::Result<i32> {
     use review_cmds as rc;
     // Checking and backing up the journal take it as it is: no sync first, so they work
@@ -347,7 +352,7 @@ fn run_with_journal(
                 (_, _, true) => rc::FeedbackAction::Edit,
                 _ => rc::FeedbackAction::Show,
             };
-            rc::feedback(&mut ws, &session, action, json)
+            rc::feedback(&mut ws, &session, action, json, style)
         }
         Command::Export(ExportCommand::Feedback {
             date,
@@ -360,7 +365,7 @@ fn run_with_journal(
                 date: date.map(|d| rc::parse_date("--date", &d)).transpose()?,
                 since: since.map(|d| rc::parse_date("--since", &d)).transpose()?,
             };
-            rc::export_feedback(&mut ws, &filter, &format)
+            rc::export_feedback(&mut ws, &filter, &format, style)
         }
         Command::Export(ExportCommand::Intervals { athlete, since, .. }) => {
             let filter = rc::Filter {

@@ -11,6 +11,7 @@ use chrono::{NaiveDate, Utc};
 use serde::Serialize;
 
 use crate::analysis::review::Review;
+use crate::export::feedback::{DraftInput, FeedbackStyle, Grades};
 use crate::journal::{self, FeedbackEventKind, JournalError, PurposeVerdict, QueueEntry};
 use crate::workspace::Workspace;
 
@@ -273,28 +274,41 @@ pub fn notes(ws: &mut Workspace, id: &str, json: bool) -> anyhow::Result<i32> {
     Ok(0)
 }
 
-fn verdict_of(ws: &Workspace, id: &str) -> anyhow::Result<Option<&'static str>> {
-    Ok(ws
-        .journal
-        .review_state(id)?
-        .verdict
-        .map(|v| v.current.as_str()))
-}
-
-/// The draft for a session from its review and the coach's verdict.
-pub fn draft_for(ws: &mut Workspace, id: &str) -> anyhow::Result<String> {
+/// The draft for a session, after the reveal: from its review, the coach's grades and the
+/// athlete's note.
+pub fn draft_for(ws: &mut Workspace, id: &str, style: &FeedbackStyle) -> anyhow::Result<String> {
     let review = ws.refresh(id, Utc::now())?;
-    let (athlete, _) = ws.find(id)?;
+    let state = ws.journal.review_state(id)?;
+    if state.revealed_at.is_none() {
+        bail!("{id}: the draft is written after the reveal: grade the session blind and read the notes first (splitdesk notes {id})");
+    }
+    // Already revealed: this only hands back the permit to read the note.
+    let permit = ws.journal.reveal(id, Utc::now())?;
+    let (athlete, act) = ws.find(id)?;
     let profile = athlete.profile.clone();
-    let verdict = verdict_of(ws, id)?;
-    Ok(crate::export::feedback::draft(&review, &profile, verdict))
+    let act = act.clone();
+    let embedded = crate::ingest::ingest_file(&act.path, None)
+        .ok()
+        .and_then(|s| s.note);
+    let note = journal::read_note(&permit, act.note_file.as_deref(), embedded.as_deref());
+    let input = DraftInput {
+        review: &review,
+        profile: &profile,
+        grades: Grades::from_state(&state),
+        note: note.as_deref(),
+    };
+    Ok(crate::export::feedback::draft(&input, style))
 }
 
 /// The feedback to send: the saved text, else the draft.
-fn current_feedback(ws: &mut Workspace, id: &str) -> anyhow::Result<(String, bool)> {
+fn current_feedback(
+    ws: &mut Workspace,
+    id: &str,
+    style: &FeedbackStyle,
+) -> anyhow::Result<(String, bool)> {
     match ws.journal.feedback(id) {
         Ok(Some(v)) => Ok((v.body, true)),
-        Ok(None) | Err(JournalError::NotRevealed { .. }) => Ok((draft_for(ws, id)?, false)),
+        Ok(None) | Err(JournalError::NotRevealed { .. }) => Ok((draft_for(ws, id, style)?, false)),
         Err(e) => Err(e.into()),
     }
 }
@@ -338,10 +352,11 @@ pub fn feedback(
     id: &str,
     action: FeedbackAction,
     json: bool,
+    style: &FeedbackStyle,
 ) -> anyhow::Result<i32> {
     let text = match action {
-        FeedbackAction::Draft => draft_for(ws, id)?,
-        FeedbackAction::Show => current_feedback(ws, id)?.0,
+        FeedbackAction::Draft => draft_for(ws, id, style)?,
+        FeedbackAction::Show => current_feedback(ws, id, style)?.0,
         FeedbackAction::Set(path) => {
             let text =
                 std::fs::read_to_string(&path).with_context(|| path.display().to_string())?;
@@ -353,7 +368,7 @@ pub fn feedback(
             if ws.journal.review_state(id)?.revealed_at.is_none() {
                 bail!("{id}: feedback is written after the reveal: grade the session and read the notes first (splitdesk notes {id})");
             }
-            let (current, _) = current_feedback(ws, id)?;
+            let (current, _) = current_feedback(ws, id, style)?;
             let edited = edit_in_editor(&current)?;
             ws.journal.save_feedback(id, &edited, Utc::now())?;
             edited
@@ -406,7 +421,12 @@ struct FeedbackBlock {
 
 /// `splitdesk export feedback [--date D | --athlete A | --since D] [--format text|md|json]`.
 /// Only sessions whose notes were revealed (the review is done); the saved text, else the draft.
-pub fn export_feedback(ws: &mut Workspace, filter: &Filter, format: &str) -> anyhow::Result<i32> {
+pub fn export_feedback(
+    ws: &mut Workspace,
+    filter: &Filter,
+    format: &str,
+    style: &FeedbackStyle,
+) -> anyhow::Result<i32> {
     if !matches!(format, "text" | "md" | "json") {
         bail!("--format {format:?}: expected text, md or json");
     }
@@ -421,7 +441,7 @@ pub fn export_feedback(ws: &mut Workspace, filter: &Filter, format: &str) -> any
     let mut not_recorded = false;
     for e in &entries {
         let review = ws.refresh(&e.session_id, Utc::now())?;
-        let (text, saved) = current_feedback(ws, &e.session_id)?;
+        let (text, saved) = current_feedback(ws, &e.session_id, style)?;
         let name = ws
             .roster
             .athlete(&e.athlete)

@@ -487,6 +487,8 @@ pub struct App {
     pub progress: Progress,
     /// Files that could not be read.
     pub problems: Vec<String>,
+    /// The coach's voice for feedback drafts (`[feedback]` in `config.toml`).
+    pub feedback_style: crate::export::feedback::FeedbackStyle,
     failed: std::collections::HashSet<String>,
     /// The status line message.
     pub message: Option<Message>,
@@ -553,6 +555,7 @@ impl App {
             modal: None,
             progress: Progress::default(),
             problems: Vec::new(),
+            feedback_style: Default::default(),
             failed: Default::default(),
             message: None,
             scan_generation: 0,
@@ -1457,7 +1460,7 @@ impl App {
         };
         let saved = self.journal.feedback(&id).ok().flatten().map(|f| f.body);
         let was_saved = saved.is_some();
-        let draft = saved.unwrap_or_else(|| self.draft_text());
+        let draft = saved.unwrap_or_else(|| self.draft_text(note.as_deref()));
         if let Some(o) = self.open.as_mut() {
             o.note = Some(note);
             if o.feedback.is_none() {
@@ -1468,19 +1471,25 @@ impl App {
         }
     }
 
-    fn draft_text(&self) -> String {
+    /// The draft for the open session from its review, the coach's grades and the note.
+    fn draft_text(&self, note: Option<&str>) -> String {
         let Some(o) = self.open.as_ref() else {
             return String::new();
         };
         let (Some(review), Some(athlete)) = (o.review.as_ref(), self.athlete(o.athlete)) else {
             return String::new();
         };
-        let verdict = o
-            .state
-            .as_ref()
-            .and_then(|s| s.verdict.as_ref())
-            .map(|v| v.current.as_str());
-        crate::export::feedback::draft(review, &athlete.profile, verdict)
+        let input = crate::export::feedback::DraftInput {
+            review,
+            profile: &athlete.profile,
+            grades: o
+                .state
+                .as_ref()
+                .map(crate::export::feedback::Grades::from_state)
+                .unwrap_or_default(),
+            note,
+        };
+        crate::export::feedback::draft(&input, &self.feedback_style)
     }
 
     fn on_done(&mut self, done: Done) {
@@ -1773,7 +1782,8 @@ impl App {
             return false;
         }
         if self.open.as_ref().is_some_and(|o| o.feedback.is_none()) {
-            let draft = self.draft_text();
+            let note = self.open.as_ref().and_then(|o| o.note.clone()).flatten();
+            let draft = self.draft_text(note.as_deref());
             if let Some(o) = self.open.as_mut() {
                 o.feedback = Some(TextEditor::new(&draft));
             }

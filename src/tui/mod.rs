@@ -88,6 +88,9 @@ pub fn run(roster_dir: &Path, journal: Option<&Path>, config: &Config) -> anyhow
         feedback_dir: default_feedback_dir(),
     };
     let mut app = App::new(ws.roster, ws.journal, options);
+    let (style, style_problems) = config.feedback_style();
+    app.feedback_style = style;
+    app.problems.extend(style_problems);
 
     let term_flag = Arc::new(AtomicBool::new(false));
     for sig in [

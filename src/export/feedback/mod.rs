@@ -2,10 +2,93 @@
 //! whether it was met, the two or three facts that matter (in the athlete's units), and one
 //! thing to do next time. No medical claims; health cautions carry the usual wording.
 
+pub mod style;
+
 use crate::analysis::findings::{Finding, Severity, MEDICAL_CAUTION};
 use crate::analysis::review::Review;
+use crate::journal::PurposeVerdict;
 use crate::model::units::format_pace;
 use crate::model::AthleteProfile;
+
+pub use style::{FeedbackStyle, Format, Length};
+
+/// The coach's grading of a session as the draft uses it.
+#[derive(Debug, Clone, Default, PartialEq)]
+pub struct Grades {
+    /// `(work-interval number, score 1-5)` in force now.
+    pub scores: Vec<(u32, u8)>,
+    /// The purpose verdict in force now.
+    pub verdict: Option<PurposeVerdict>,
+}
+
+impl Grades {
+    /// The grades in force from a journal review state.
+    pub fn from_state(state: &crate::journal::ReviewState) -> Grades {
+        Grades {
+            scores: state
+                .scores
+                .iter()
+                .map(|c| (c.interval, c.current))
+                .collect(),
+            verdict: state.verdict.as_ref().map(|v| v.current),
+        }
+    }
+}
+
+/// Everything one session's draft is built from.
+#[derive(Debug, Clone)]
+pub struct DraftInput<'a> {
+    pub review: &'a Review,
+    pub profile: &'a AthleteProfile,
+    pub grades: Grades,
+    /// The athlete's note, once revealed (`None`: no note, or not revealed).
+    pub note: Option<&'a str>,
+}
+
+/// One session of a day's message: the feedback the coach saved (used as edited), or a
+/// draft to build.
+#[derive(Debug, Clone)]
+pub enum DayPart<'a> {
+    Saved(&'a str),
+    Draft(DraftInput<'a>),
+}
+
+/// The athlete's first name as the greeting uses it.
+pub fn first_name(profile: &AthleteProfile) -> String {
+    profile
+        .name
+        .split_whitespace()
+        .next()
+        .unwrap_or(&profile.name)
+        .to_string()
+}
+
+/// The draft for one session: greeting, body, sign-off.
+pub fn draft(input: &DraftInput<'_>, style: &FeedbackStyle) -> String {
+    let verdict = input.grades.verdict.map(PurposeVerdict::as_str);
+    let _ = style;
+    old_draft(input.review, input.profile, verdict)
+}
+
+/// One message for an athlete's day: one greeting, the sessions in order, one sign-off.
+/// A saved feedback text is used as the coach edited it.
+pub fn day_message(
+    profile: &AthleteProfile,
+    parts: &[DayPart<'_>],
+    style: &FeedbackStyle,
+) -> String {
+    let mut out = Vec::new();
+    for p in parts {
+        match p {
+            DayPart::Saved(t) => out.push(t.trim_end().to_string()),
+            DayPart::Draft(d) => out.push(draft(d, style).trim_end().to_string()),
+        }
+    }
+    let _ = profile;
+    let mut text = out.join("\n\n");
+    text.push('\n');
+    text
+}
 
 /// The coach's purpose verdict as the draft words it.
 pub fn verdict_words(verdict: Option<&str>) -> Option<&'static str> {
@@ -78,7 +161,7 @@ fn facts(findings: &[Finding]) -> Vec<String> {
 }
 
 /// The draft text for one session.
-pub fn draft(review: &Review, profile: &AthleteProfile, verdict: Option<&str>) -> String {
+fn old_draft(review: &Review, profile: &AthleteProfile, verdict: Option<&str>) -> String {
     let first = profile
         .name
         .split_whitespace()

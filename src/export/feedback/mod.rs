@@ -1,13 +1,25 @@
-//! The feedback draft: short, plain, in the coach's voice. What the workout was for,
-//! whether it was met, the two or three facts that matter (in the athlete's units), and one
-//! thing to do next time. No medical claims; health cautions carry the usual wording.
+//! The feedback draft: a message a coach would send, in the athlete's words and the coach's
+//! voice.
+//!
+//! Built after the reveal from four things: the kind of session (a race gets its finish
+//! time and splits, an interval set its reps, a long run its pacing and heart-rate drift,
+//! an easy run whether it stayed easy), the coach's grading (the verdict sentence, the reps
+//! scored high praised by number, the low ones where the advice goes), the athlete's note
+//! (a short reply that sets how they felt beside the numbers) and the coach's style
+//! (`[feedback]` in `config.toml`). One thing to do next time, a greeting and a sign-off.
+//! No coach-only words ([`words::COACH_ONLY_WORDS`]), no questions, numbers in the
+//! athlete's units. Health cautions carry the usual wording: a coaching aid, not medical
+//! advice.
 
+pub mod advice;
+pub mod body;
+pub mod reply;
 pub mod style;
+pub mod words;
 
-use crate::analysis::findings::{Finding, Severity, MEDICAL_CAUTION};
+use crate::analysis::findings::Severity;
 use crate::analysis::review::Review;
 use crate::journal::PurposeVerdict;
-use crate::model::units::format_pace;
 use crate::model::AthleteProfile;
 
 pub use style::{FeedbackStyle, Format, Length};
@@ -63,165 +75,290 @@ pub fn first_name(profile: &AthleteProfile) -> String {
         .to_string()
 }
 
+/// Which part of the draft a line belongs to.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
+pub enum Part {
+    /// What the session was and when.
+    Opening,
+    /// The coach's purpose verdict.
+    Verdict,
+    /// The numbers, by session kind.
+    Facts,
+    /// What the coach's scores say.
+    Scores,
+    /// The reply to the athlete's note.
+    NoteReply,
+    /// The one thing to do next time.
+    NextTime,
+    /// A health or load caution.
+    Caution,
+}
+
+/// One sentence of a draft.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Line {
+    pub part: Part,
+    pub text: String,
+}
+
+/// A draft before it is laid out: the greeting, the sentences by part, the sign-off.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Draft {
+    pub greeting: String,
+    pub lines: Vec<Line>,
+    pub sign_off: String,
+    pub signature: String,
+}
+
+impl Draft {
+    /// The sentences of one part, in order.
+    pub fn part(&self, part: Part) -> impl Iterator<Item = &str> {
+        self.lines
+            .iter()
+            .filter(move |l| l.part == part)
+            .map(|l| l.text.as_str())
+    }
+}
+
+/// Text from the roster (plan titles) without control characters.
+fn clean(text: &str) -> String {
+    text.chars()
+        .map(|c| if c.is_control() { ' ' } else { c })
+        .collect::<String>()
+        .split_whitespace()
+        .collect::<Vec<_>>()
+        .join(" ")
+}
+
+/// The opening: what the session was and when.
+fn opening(review: &Review, kind: crate::analysis::kind::SessionKind) -> String {
+    use crate::analysis::kind::SessionKind as K;
+    let day = words::day(&review.day());
+    match review.plan.as_ref().map(|p| clean(&p.title)) {
+        Some(t) if !t.is_empty() => format!("{t}, {day}."),
+        _ => {
+            let what = match kind {
+                K::Race => "race",
+                K::LongRun => "long run",
+                K::Intervals | K::Hills | K::Progression => "session",
+                K::Tempo => "tempo",
+                K::Treadmill => "treadmill run",
+                K::NotRunning => "session",
+                K::Easy => "run",
+            };
+            format!("Your {what} on {day}.")
+        }
+    }
+}
+
+/// The cautions, in athlete words.
+fn cautions(review: &Review) -> Vec<String> {
+    let mut out = Vec::new();
+    let caution = |code: &str| {
+        review
+            .findings
+            .iter()
+            .any(|f| f.code == code && f.severity == Severity::Caution)
+    };
+    if review
+        .findings
+        .iter()
+        .any(|f| f.severity == Severity::Caution && f.code.starts_with("hr_"))
+    {
+        out.push(format!(
+            "One more thing: your heart rate read unusually high in places. It is most likely \
+             the sensor, but if you felt anything odd (dizziness, a racing heart, chest \
+             discomfort), please get it checked. {}",
+            words::ATHLETE_CAUTION
+        ));
+    }
+    if caution("load_spike") {
+        out.push(
+            "Your training has stepped up quickly over the last week or so: keep the next few \
+             days easy and tell me how your body feels."
+                .to_string(),
+        );
+    }
+    out
+}
+
+/// The draft's sentences, by part.
+pub fn compose(input: &DraftInput<'_>, style: &FeedbackStyle) -> Draft {
+    let units = input.profile.units;
+    let review = input.review;
+    let c = body::Ctx::new(review, units, input.grades.verdict, &input.grades.scores);
+    let name = first_name(input.profile);
+    let title = review
+        .plan
+        .as_ref()
+        .map(|p| clean(&p.title))
+        .unwrap_or_else(|| "run".to_string());
+    let vars = [("{name}", name.as_str()), ("{title}", title.as_str())];
+    let mut lines = Vec::new();
+    let mut push = |part: Part, text: String| {
+        if !text.trim().is_empty() {
+            lines.push(Line { part, text });
+        }
+    };
+    push(Part::Opening, opening(review, c.kind));
+    if let Some(v) = input.grades.verdict {
+        push(Part::Verdict, style.phrase(v.as_str(), &vars));
+    }
+    for f in body::facts(&c) {
+        push(Part::Facts, f);
+    }
+    for s in advice::from_scores(&c) {
+        push(Part::Scores, s);
+    }
+    if let Some(r) = input.note.and_then(|n| reply::reply(n, &c)) {
+        push(Part::NoteReply, r);
+    }
+    let next = advice::next_time(&c).unwrap_or_else(|| {
+        if input.grades.verdict == Some(PurposeVerdict::Missed) {
+            "Let's talk it through before the next one.".to_string()
+        } else {
+            style.phrase("keep_going", &vars)
+        }
+    });
+    push(Part::NextTime, next);
+    for t in cautions(review) {
+        push(Part::Caution, t);
+    }
+    Draft {
+        greeting: style.phrase("greeting", &vars),
+        lines,
+        sign_off: style.phrase("sign_off", &vars),
+        signature: clean(style.signature()),
+    }
+}
+
+/// The draft laid out as text (or Markdown), without greeting and sign-off.
+fn body_text(d: &Draft, style: &FeedbackStyle) -> String {
+    let join = |parts: &[Part]| -> String {
+        d.lines
+            .iter()
+            .filter(|l| parts.contains(&l.part))
+            .map(|l| l.text.as_str())
+            .collect::<Vec<_>>()
+            .join(" ")
+    };
+    match style.length {
+        Length::Brief => {
+            // Two to four lines for a chat message: the verdict with the headline number,
+            // the reply to the note, the one thing for next time (with any caution).
+            let mut first = join(&[Part::Verdict]);
+            if let Some(h) = d.part(Part::Facts).next() {
+                if !first.is_empty() {
+                    first.push(' ');
+                }
+                first.push_str(h);
+            }
+            let mut out = vec![first];
+            let reply = join(&[Part::NoteReply]);
+            out.push(reply);
+            out.push(join(&[Part::NextTime, Part::Caution]));
+            out.retain(|l| !l.trim().is_empty());
+            out.join("\n")
+        }
+        Length::Full => {
+            let mut opening = join(&[Part::Opening, Part::Verdict]);
+            if style.format == Format::Markdown {
+                opening = format!("**{opening}**");
+            }
+            let paragraphs = [
+                opening,
+                join(&[Part::Facts]),
+                join(&[Part::NoteReply]),
+                join(&[Part::Scores, Part::NextTime]),
+                join(&[Part::Caution]),
+            ];
+            paragraphs
+                .into_iter()
+                .filter(|p| !p.trim().is_empty())
+                .collect::<Vec<_>>()
+                .join("\n\n")
+        }
+    }
+}
+
+/// The sign-off lines.
+fn sign_off_text(d: &Draft, style: &FeedbackStyle) -> String {
+    match (style.length, d.sign_off.trim().is_empty()) {
+        (_, true) => d.signature.clone(),
+        (Length::Brief, false) => format!("{} {}", d.sign_off.trim(), d.signature),
+        (Length::Full, false) => format!("{}\n{}", d.sign_off.trim(), d.signature),
+    }
+}
+
 /// The draft for one session: greeting, body, sign-off.
 pub fn draft(input: &DraftInput<'_>, style: &FeedbackStyle) -> String {
-    let verdict = input.grades.verdict.map(PurposeVerdict::as_str);
-    let _ = style;
-    old_draft(input.review, input.profile, verdict)
+    let d = compose(input, style);
+    let mut out = String::new();
+    if !d.greeting.trim().is_empty() {
+        out.push_str(d.greeting.trim());
+        out.push_str(if style.length == Length::Brief {
+            "\n"
+        } else {
+            "\n\n"
+        });
+    }
+    out.push_str(&body_text(&d, style));
+    out.push_str(if style.length == Length::Brief {
+        "\n"
+    } else {
+        "\n\n"
+    });
+    out.push_str(&sign_off_text(&d, style));
+    out.push('\n');
+    out
 }
 
 /// One message for an athlete's day: one greeting, the sessions in order, one sign-off.
-/// A saved feedback text is used as the coach edited it.
+/// Saved feedback is used as the coach edited it (a single saved session is the whole
+/// message; with several, each saved text goes in as it is).
 pub fn day_message(
     profile: &AthleteProfile,
     parts: &[DayPart<'_>],
     style: &FeedbackStyle,
 ) -> String {
-    let mut out = Vec::new();
-    for p in parts {
-        match p {
-            DayPart::Saved(t) => out.push(t.trim_end().to_string()),
-            DayPart::Draft(d) => out.push(draft(d, style).trim_end().to_string()),
+    match parts {
+        [] => String::new(),
+        [DayPart::Saved(t)] => format!("{}\n", t.trim_end()),
+        [DayPart::Draft(d)] => draft(d, style),
+        _ => {
+            let name = first_name(profile);
+            let greeting = style.phrase("greeting", &[("{name}", name.as_str())]);
+            let mut blocks = Vec::new();
+            let mut signature = None;
+            for p in parts {
+                match p {
+                    DayPart::Saved(t) => blocks.push(t.trim().to_string()),
+                    DayPart::Draft(d) => {
+                        let c = compose(d, style);
+                        signature.get_or_insert_with(|| sign_off_text(&c, style));
+                        blocks.push(body_text(&c, style));
+                    }
+                }
+            }
+            let mut out = String::new();
+            if !greeting.trim().is_empty() {
+                out.push_str(greeting.trim());
+                out.push_str("\n\n");
+            }
+            out.push_str(&blocks.join("\n\n"));
+            out.push_str("\n\n");
+            let sig = signature.unwrap_or_else(|| {
+                let probe = Draft {
+                    greeting: String::new(),
+                    lines: Vec::new(),
+                    sign_off: style.phrase("sign_off", &[("{name}", name.as_str())]),
+                    signature: clean(style.signature()),
+                };
+                sign_off_text(&probe, style)
+            });
+            out.push_str(&sig);
+            out.push('\n');
+            out
         }
     }
-    let _ = profile;
-    let mut text = out.join("\n\n");
-    text.push('\n');
-    text
-}
-
-/// The coach's purpose verdict as the draft words it.
-pub fn verdict_words(verdict: Option<&str>) -> Option<&'static str> {
-    match verdict? {
-        "met" => Some("You did what this session was for."),
-        "partly" => Some("This session partly did its job."),
-        "missed" => Some("This one missed what it was for, and that's fine to learn from."),
-        _ => None,
-    }
-}
-
-/// One thing to do next time, from the most important finding that has a remedy.
-fn next_time(findings: &[Finding]) -> &'static str {
-    for f in findings {
-        let advice = match f.code.as_str() {
-            "hr_above_max" | "hr_rate" => {
-                "Check the heart-rate strap or watch fit before the next hard session."
-            }
-            "missing_planned" => "Run the full set next time, or tell me early if it needs cutting.",
-            "fade_within" | "fade_set" | "uneven_pacing" => {
-                "Start each repeat a touch slower and hold it: aim for an even or slightly faster second half."
-            }
-            "targets" if f.severity >= Severity::Note && f.text.contains(" fast ") => {
-                "Hold back to the target pace, even when it feels easy early on."
-            }
-            "targets" if f.severity >= Severity::Note => {
-                "Settle into the target pace in the first 30 seconds of each repeat and check it once midway."
-            }
-            "troughs_rising" => {
-                "Take the recoveries fully and keep them truly easy, so each repeat starts fresh."
-            }
-            "decoupling_high" => {
-                "On long or warm days start slower, drink early, and let pace drift rather than heart rate."
-            }
-            "hr_drift" => "Keep the steady runs steady: ease off when heart rate creeps up.",
-            "cadence_lock" | "flagged" => {
-                "Wear the watch snug (or a chest strap) so the data is clean next time."
-            }
-            _ => continue,
-        };
-        return advice;
-    }
-    "Same again: keep the effort where it was."
-}
-
-/// The facts worth telling the athlete: the top findings that are about the running
-/// (not the data), at most three.
-fn facts(findings: &[Finding]) -> Vec<String> {
-    findings
-        .iter()
-        .filter(|f| {
-            !matches!(
-                f.code.as_str(),
-                "no_hr_profile"
-                    | "no_gps"
-                    | "no_altitude"
-                    | "decoupling_short"
-                    | "inferred"
-                    | "hr_drop_info"
-                    | "targets_on_hill"
-                    // Problems in the coach's own files, not about the running.
-                    | "plan_not_used"
-                    | "plan_pace_unknown"
-                    | "profile_problems"
-            ) && f.severity != Severity::Caution
-        })
-        .take(3)
-        .map(|f| f.text.clone())
-        .collect()
-}
-
-/// The draft text for one session.
-fn old_draft(review: &Review, profile: &AthleteProfile, verdict: Option<&str>) -> String {
-    let first = profile
-        .name
-        .split_whitespace()
-        .next()
-        .unwrap_or(&profile.name)
-        .to_string();
-    let mut out = format!("Hi {first},\n\n");
-    let date = review.day();
-    match &review.plan {
-        Some(p) if !p.purpose.is_empty() => {
-            out.push_str(&format!("{date} {}: {}\n", p.title, p.purpose));
-        }
-        Some(p) => out.push_str(&format!("{date} {}\n", p.title)),
-        None => {
-            let dist = review
-                .session
-                .distance_m
-                .map(|d| {
-                    format!(
-                        " of {:.1} {}",
-                        d / profile.units.metres(),
-                        profile.units.label()
-                    )
-                })
-                .unwrap_or_default();
-            out.push_str(&format!("{date} run{dist}\n"));
-        }
-    }
-    if let Some(v) = verdict_words(verdict) {
-        out.push_str(v);
-        out.push('\n');
-    }
-    let work: Vec<_> = review.work().collect();
-    if !work.is_empty() {
-        let paces: Vec<String> = work
-            .iter()
-            .filter_map(|m| m.avg_pace_s_per_km)
-            .map(|p| format_pace(1000.0 / p, profile.units))
-            .collect();
-        if !paces.is_empty() {
-            out.push_str(&format!("\nYour repeats: {}\n", paces.join(", ")));
-        }
-    }
-    let facts = facts(&review.findings);
-    if !facts.is_empty() {
-        out.push('\n');
-        for f in &facts {
-            out.push_str(&format!("- {f}\n"));
-        }
-    }
-    out.push_str(&format!("\nNext time: {}\n", next_time(&review.findings)));
-    if review
-        .findings
-        .iter()
-        .any(|f| f.severity == Severity::Caution)
-    {
-        out.push_str(&format!(
-            "\nOne more thing: your heart-rate data looked unusual in places. It is most likely the \
-             sensor, but if you felt anything odd, please get it checked. {MEDICAL_CAUTION}\n"
-        ));
-    }
-    out
 }

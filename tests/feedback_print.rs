@@ -27,3 +27,17 @@ fn print_every_kind() {
         }
     }
 }
+
+#[test]
+#[ignore]
+fn list_kinds() {
+    for s in demo() {
+        println!(
+            "{} {} work={} splits={}",
+            s.id,
+            s.review.kind.as_str(),
+            s.review.work().count(),
+            s.review.splits.is_some()
+        );
+    }
+}

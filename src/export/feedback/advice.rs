@@ -131,6 +131,39 @@ fn off_target(c: &Ctx<'_>) -> (usize, usize, usize) {
     (judged, fast, slow)
 }
 
+/// Advice for the reps the coach scored low, when nothing else asks for any.
+fn poor_reps_advice(c: &Ctx<'_>) -> Option<String> {
+    let read = read_scores(c)?;
+    if read.poor.is_empty() || read.poor.len() == c.reps.len() {
+        return None;
+    }
+    let mean = c.mean_pace()?;
+    let poor: Vec<_> = c
+        .reps
+        .iter()
+        .filter(|r| read.poor.contains(&r.number))
+        .collect();
+    let quicker = poor.iter().filter(|r| r.pace < mean).count();
+    if c.kind == SessionKind::Progression {
+        return Some(format!(
+            "Next time, keep each step up small, a few seconds {} quicker each rep, so the \
+             last one is still under control.",
+            per_unit(c.units)
+        ));
+    }
+    Some(if quicker * 2 > poor.len() {
+        "Next time, run every rep at the same effort: a rep run too quick costs the ones after \
+         it."
+        .to_string()
+    } else if poor_late(c) {
+        "Next time, start the first reps a touch slower so the last ones hold their pace."
+            .to_string()
+    } else {
+        "Next time, aim to make every rep look like your best ones: same effort, same rhythm."
+            .to_string()
+    })
+}
+
 /// The one thing to do next time: a full sentence, or `None` when there is nothing the
 /// numbers ask for (the caller then uses the coach's "keep going" wording).
 pub fn next_time(c: &Ctx<'_>) -> Option<String> {
@@ -175,7 +208,7 @@ pub fn next_time(c: &Ctx<'_>) -> Option<String> {
                         .to_string(),
                 );
             }
-            None
+            poor_reps_advice(c)
         }
         SessionKind::Race => c
             .halves_change()

@@ -195,6 +195,25 @@ fn band_words(band: (f64, f64), units: Units) -> String {
 /// The facts about the running, in order; the first is the headline (the brief draft
 /// keeps only it).
 pub fn facts(c: &Ctx<'_>) -> Vec<String> {
+    let mut out = kind_facts(c);
+    if c.kind != SessionKind::Treadmill && crate::analysis::kind::treadmill(c.review) {
+        out.push(
+            "On a treadmill the watch's pace can be a few percent off the belt's, so take these \
+             paces as a guide."
+                .to_string(),
+        );
+    }
+    if c.review.findings.iter().any(|f| f.code == "cadence_lock") {
+        out.push(
+            "For part of the run the watch picked up your steps instead of your heart, so \
+             those minutes are left out of the heart-rate numbers."
+                .to_string(),
+        );
+    }
+    out
+}
+
+fn kind_facts(c: &Ctx<'_>) -> Vec<String> {
     match c.kind {
         SessionKind::Race => race(c),
         SessionKind::Tempo if c.reps.len() == 1 => tempo(c),

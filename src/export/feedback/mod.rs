@@ -254,8 +254,11 @@ fn body_text(d: &Draft, style: &FeedbackStyle) -> String {
                 first.push_str(h);
             }
             let mut out = vec![first];
+            // A reply that only thanks is left out of a chat message.
             let reply = join(&[Part::NoteReply]);
-            out.push(reply);
+            if reply != reply::THANKS {
+                out.push(reply);
+            }
             out.push(join(&[Part::NextTime, Part::Caution]));
             out.retain(|l| !l.trim().is_empty());
             out.join("\n")
@@ -313,6 +316,36 @@ pub fn draft(input: &DraftInput<'_>, style: &FeedbackStyle) -> String {
     out
 }
 
+/// A saved text without the greeting and sign-off the day's message puts around it (only
+/// when they are exactly the style's; anything the coach wrote stays).
+fn unframed(text: &str, greeting: &str, style: &FeedbackStyle) -> String {
+    let mut lines: Vec<&str> = text.trim().lines().collect();
+    if lines
+        .first()
+        .is_some_and(|l| l.trim() == greeting.trim() && !greeting.trim().is_empty())
+    {
+        lines.remove(0);
+    }
+    let signature = clean(style.signature());
+    if lines.last().is_some_and(|l| l.trim() == signature) {
+        lines.pop();
+        let sign_off = style.phrase("sign_off", &[]);
+        if lines
+            .last()
+            .is_some_and(|l| !l.trim().is_empty() && l.trim() == sign_off.trim())
+        {
+            lines.pop();
+        }
+    } else if let Some(last) = lines.last() {
+        // The brief sign-off on one line.
+        let one_line = format!("{} {signature}", style.phrase("sign_off", &[]).trim());
+        if last.trim() == one_line.trim() {
+            lines.pop();
+        }
+    }
+    lines.join("\n").trim().to_string()
+}
+
 /// One message for an athlete's day: one greeting, the sessions in order, one sign-off.
 /// Saved feedback is used as the coach edited it (a single saved session is the whole
 /// message; with several, each saved text goes in as it is).
@@ -332,7 +365,7 @@ pub fn day_message(
             let mut signature = None;
             for p in parts {
                 match p {
-                    DayPart::Saved(t) => blocks.push(t.trim().to_string()),
+                    DayPart::Saved(t) => blocks.push(unframed(t, &greeting, style)),
                     DayPart::Draft(d) => {
                         let c = compose(d, style);
                         signature.get_or_insert_with(|| sign_off_text(&c, style));

@@ -134,6 +134,7 @@ fn note_words(note: &str) -> Vec<String> {
     note.to_lowercase()
         .replace('\u{2019}', "'")
         .split(|ch: char| !(ch.is_alphanumeric() || ch == '\''))
+        .map(|w| w.trim_matches('\''))
         .filter(|w| !w.is_empty())
         .map(str::to_string)
         .collect()
@@ -210,6 +211,20 @@ pub fn reply(note: &str, c: &Ctx<'_>) -> Option<String> {
             words::ATHLETE_CAUTION
         ));
     }
+    // A heart rate the athlete noticed that the analysis found to be the sensor.
+    let sensor = c.review.findings.iter().any(|f| {
+        f.code == "cadence_lock"
+            || f.code == "hr_above_max"
+                && f.severity != crate::analysis::findings::Severity::Caution
+    });
+    if sensor && (has_any(&w, &["heart", "hr", "bpm", "pulse"])) {
+        return Some(
+            "The high heart rate you saw was most likely the watch counting your steps \
+             rather than your heart: it happens with wrist sensors. Wearing the watch a little \
+             snugger, or a chest strap, helps."
+                .to_string(),
+        );
+    }
     let body = niggle(note).map(|(part, settled)| {
         if settled {
             format!(" Good that the {part} settled; keep an eye on it and tell me if it comes back.")
@@ -221,7 +236,13 @@ pub fn reply(note: &str, c: &Ctx<'_>) -> Option<String> {
 }
 
 fn main_reply(note: &str, w: &[String], c: &Ctx<'_>) -> Option<String> {
-    let tone = crate::bias::tone(note);
+    // "Good hurt" and "good pain" are how runners praise a hard effort.
+    let lower = note.to_lowercase();
+    let tone = crate::bias::tone(
+        &lower
+            .replace("good hurt", "good")
+            .replace("good pain", "good"),
+    );
     let tired = has_unnegated(w, TIRED_WORDS);
     let hard = has_unnegated(w, HARD_WORDS);
     let felt_slow = has_unnegated(w, SLOW_WORDS);
@@ -265,8 +286,8 @@ fn main_reply(note: &str, w: &[String], c: &Ctx<'_>) -> Option<String> {
                 format!("You said {feeling}, and it showed. Take the next day or two gently.")
             }
             _ => format!(
-                "You said {feeling}, but the run itself went as it should: easy miles like \
-                 these are how tired legs come round."
+                "You said {feeling}, but the run itself went as it should: easy running like \
+                 this is how tired legs come round."
             ),
         });
     }
@@ -299,5 +320,8 @@ fn main_reply(note: &str, w: &[String], c: &Ctx<'_>) -> Option<String> {
             (Outlook::Mixed, None) => "Glad you enjoyed it.".to_string(),
         });
     }
-    Some("Thanks for the note.".to_string())
+    Some(THANKS.to_string())
 }
+
+/// The reply to a note with nothing in it to answer.
+pub const THANKS: &str = "Thanks for the note.";

@@ -320,3 +320,47 @@ fn chart_export_as_svg_and_png_with_rulers() {
     assert_eq!(code, 2);
     assert!(err.contains(".svg or .png"), "{err}");
 }
+
+#[test]
+fn the_draft_comes_after_the_reveal_and_answers_the_note() {
+    let e = env();
+    // Before the blind grading is complete no draft can be made.
+    let (code, out, err) = e.run(&["feedback", REPS_ID, "--draft"]);
+    assert_ne!(code, 0, "{out}");
+    assert!(
+        err.contains("the draft is written after the reveal"),
+        "{err}"
+    );
+    assert!(!out.contains(NOTE_MARKER) && !err.contains(NOTE_MARKER));
+    let n = work_count(&e);
+    let mut grade = vec![
+        "grade".to_string(),
+        REPS_ID.into(),
+        "--verdict".into(),
+        "met".into(),
+    ];
+    for k in 1..=n {
+        grade.push("--score".into());
+        grade.push(format!("{k}={}", if k == 2 { 5 } else { 4 }));
+    }
+    let grade: Vec<&str> = grade.iter().map(String::as_str).collect();
+    e.ok(&grade);
+    // Graded but not revealed: still no draft.
+    let (code, _, err) = e.run(&["feedback", REPS_ID, "--draft"]);
+    assert_ne!(code, 0);
+    assert!(err.contains("after the reveal"), "{err}");
+    e.ok(&["notes", REPS_ID]);
+    let draft = e.ok(&["feedback", REPS_ID, "--draft"]);
+    // The coach's best rep is praised by number; the note gets a reply (the note text
+    // itself is not quoted back).
+    assert!(draft.contains("Rep 2 was the pick of the set."), "{draft}");
+    assert!(!draft.contains(NOTE_MARKER), "{draft}");
+    let replies = [
+        "Thanks for the note.",
+        "Glad",
+        "You said",
+        "You felt",
+        "You mentioned",
+    ];
+    assert!(replies.iter().any(|r| draft.contains(r)), "{draft}");
+}

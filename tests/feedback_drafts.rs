@@ -70,8 +70,15 @@ fn patterns() -> Vec<(&'static str, fn(u32) -> u8)> {
 
 #[test]
 fn every_draft_in_athlete_words_and_agreeing_with_its_verdict() {
-    let sessions = demo();
+    let sessions = every_kind();
     assert!(sessions.len() > 150, "the demo roster is analysed");
+    // Every kind is covered.
+    for k in SessionKind::ALL {
+        assert!(
+            sessions.iter().any(|s| s.review.kind == k),
+            "no {k:?} session"
+        );
+    }
     let mut checked = 0;
     for s in sessions {
         let units = s.profile.units;
@@ -450,4 +457,25 @@ fn kinds_without_demo_sessions_read_right() {
         "{text}"
     );
     assert!(!text.contains("/km"), "{text}");
+}
+
+#[test]
+fn the_coachs_ruler_marks_are_put_into_words() {
+    let roster =
+        splitdesk::roster::Roster::open(&splitdesk::config::demo_roster()).expect("demo roster");
+    let (a, act) = roster.find_session("keziah-brandt/2026-11-29-long-run").expect("session");
+    let an = splitdesk::workspace::analyse_activity(a, act).expect("analysed");
+    let fit = splitdesk::analysis::ruler::fit_window(&an.session, 600.0, 2400.0);
+    let s = session("keziah-brandt/2026-11-29-long-run");
+    let mut i = input(s, grades(&s.review, PurposeVerdict::Met, |_| 4), false);
+    i.marks = vec![fit];
+    let d = compose(&i, &style(Length::Full));
+    let facts: Vec<&str> = d.part(Part::Facts).collect();
+    let line = facts
+        .iter()
+        .find(|l| l.starts_with("From 10:00 to 40:00 into the run, your pace"))
+        .unwrap_or_else(|| panic!("{facts:?}"));
+    let p0 = pace(1000.0 / fit.speed_at(600.0).unwrap(), Units::Km);
+    assert!(line.contains(&p0), "{line} {p0}");
+    assert_eq!(coach_word_in(line), None);
 }

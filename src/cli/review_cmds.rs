@@ -284,18 +284,36 @@ pub fn draft_for(ws: &mut Workspace, id: &str, style: &FeedbackStyle) -> anyhow:
     }
     // Already revealed: this only hands back the permit to read the note.
     let permit = ws.journal.reveal(id, Utc::now())?;
+    let rulers = ws.journal.rulers(id)?;
     let (athlete, act) = ws.find(id)?;
     let profile = athlete.profile.clone();
-    let act = act.clone();
-    let embedded = crate::ingest::ingest_file(&act.path, None)
-        .ok()
-        .and_then(|s| s.note);
-    let note = journal::read_note(&permit, act.note_file.as_deref(), embedded.as_deref());
+    // The coach's ruler marks are fitted on the cleaned samples: the file is analysed again
+    // only when there are marks; otherwise it is read for an embedded note alone.
+    let (embedded, marks) = if rulers.is_empty() {
+        let note = crate::ingest::ingest_file(&act.path, None)
+            .ok()
+            .and_then(|s| s.note);
+        (note, Vec::new())
+    } else {
+        match crate::workspace::analyse_activity(athlete, act) {
+            Ok(a) => {
+                let marks = rulers
+                    .iter()
+                    .map(|r| crate::analysis::ruler::fit_window(&a.session, r.from_s, r.to_s))
+                    .collect();
+                (a.session.note, marks)
+            }
+            Err(_) => (None, Vec::new()),
+        }
+    };
+    let note_file = act.note_file.clone();
+    let note = journal::read_note(&permit, note_file.as_deref(), embedded.as_deref());
     let input = DraftInput {
         review: &review,
         profile: &profile,
         grades: Grades::from_state(&state),
         note: note.as_deref(),
+        marks,
     };
     Ok(crate::export::feedback::draft(&input, style))
 }

@@ -1488,6 +1488,16 @@ impl App {
                 .map(crate::export::feedback::Grades::from_state)
                 .unwrap_or_default(),
             note,
+            marks: o
+                .analysed
+                .as_ref()
+                .map(|a| {
+                    o.rulers
+                        .iter()
+                        .map(|r| crate::analysis::ruler::fit_window(&a.session, r.from_s, r.to_s))
+                        .collect()
+                })
+                .unwrap_or_default(),
         };
         crate::export::feedback::draft(&input, &self.feedback_style)
     }

@@ -45,6 +45,50 @@ pub fn demo() -> &'static [DemoSession] {
     })
 }
 
+/// The demo sessions plus kinds the demo roster does not have, made from a demo easy run:
+/// the same run on a treadmill (no positions, no plan) and a ride.
+pub fn every_kind() -> &'static [DemoSession] {
+    static ALL: OnceLock<Vec<DemoSession>> = OnceLock::new();
+    ALL.get_or_init(|| {
+        let mut out: Vec<DemoSession> = Vec::new();
+        for s in demo() {
+            out.push(DemoSession {
+                id: s.id.clone(),
+                profile: s.profile.clone(),
+                review: s.review.clone(),
+                note: s.note.clone(),
+            });
+        }
+        for base in [
+            "mira-castellan/2026-10-29-easy-run",
+            "ansel-marchetti/2026-11-06-easy-run",
+        ] {
+            let s = session(base);
+            let mut r = s.review.clone();
+            r.session.channels.retain(|c| c != "position");
+            r.plan = None;
+            r.kind = splitdesk::analysis::kind::classify(&r, None);
+            out.push(DemoSession {
+                id: format!("{base} (treadmill)"),
+                profile: s.profile.clone(),
+                review: r,
+                note: s.note.clone(),
+            });
+            let mut r = s.review.clone();
+            r.running = false;
+            r.session.sport = "cycling".into();
+            r.kind = splitdesk::analysis::kind::classify(&r, None);
+            out.push(DemoSession {
+                id: format!("{base} (ride)"),
+                profile: s.profile.clone(),
+                review: r,
+                note: s.note.clone(),
+            });
+        }
+        out
+    })
+}
+
 pub fn session(id: &str) -> &'static DemoSession {
     demo()
         .iter()
@@ -67,5 +111,6 @@ pub fn input<'a>(s: &'a DemoSession, grades: Grades, with_note: bool) -> DraftIn
         profile: &s.profile,
         grades,
         note: if with_note { s.note.as_deref() } else { None },
+        marks: Vec::new(),
     }
 }

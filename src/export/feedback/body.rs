@@ -670,3 +670,41 @@ fn lower_first(text: &str) -> String {
         None => String::new(),
     }
 }
+
+/// A stretch the coach marked with a ruler, in words: the pace (and heart rate) at its
+/// start and end along the fitted line.
+pub fn mark(m: &crate::analysis::ruler::RulerFit, units: Units) -> Option<String> {
+    let (a, b) = (m.from_s, m.to_s);
+    if !(b - a >= 60.0) {
+        return None;
+    }
+    let (v0, v1) = (m.speed_at(a)?, m.speed_at(b)?);
+    if !(v0 > 0.0 && v1 > 0.0) {
+        return None;
+    }
+    let (p0, p1) = (1000.0 / v0, 1000.0 / v1);
+    let span = format!(
+        "From {} to {} into the run",
+        format_clock(a),
+        format_clock(b)
+    );
+    let gap = pace_gap_s(p1 - p0, units);
+    let pace_words = if gap < 2.0 {
+        format!("your pace held at about {}", pace(p0, units))
+    } else {
+        format!(
+            "your pace went from {} to {}",
+            pace(p0, units),
+            pace(p1, units)
+        )
+    };
+    let hr_words = match (m.hr_at(a), m.hr_at(b)) {
+        (Some(h0), Some(h1)) if (h1 - h0).abs() >= 3.0 => format!(
+            " while your heart rate {} from {h0:.0} to {h1:.0} bpm",
+            if h1 > h0 { "rose" } else { "fell" }
+        ),
+        (Some(h0), Some(_)) => format!(" with your heart rate steady at about {h0:.0} bpm"),
+        _ => String::new(),
+    };
+    Some(format!("{span}, {pace_words}{hr_words}."))
+}

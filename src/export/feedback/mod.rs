@@ -55,6 +55,8 @@ pub struct DraftInput<'a> {
     pub grades: Grades,
     /// The athlete's note, once revealed (`None`: no note, or not revealed).
     pub note: Option<&'a str>,
+    /// The stretches the coach marked with rulers on the chart, fitted.
+    pub marks: Vec<crate::analysis::ruler::RulerFit>,
 }
 
 /// One session of a day's message: the feedback the coach saved (used as edited), or a
@@ -74,6 +76,9 @@ pub fn first_name(profile: &AthleteProfile) -> String {
         .unwrap_or(&profile.name)
         .to_string()
 }
+
+/// At most this many of the coach's ruler marks are put into words.
+pub const MAX_MARKS: usize = 2;
 
 /// Which part of the draft a line belongs to.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
@@ -206,6 +211,11 @@ pub fn compose(input: &DraftInput<'_>, style: &FeedbackStyle) -> Draft {
     }
     for f in body::facts(&c) {
         push(Part::Facts, f);
+    }
+    for m in input.marks.iter().take(MAX_MARKS) {
+        if let Some(t) = body::mark(m, units) {
+            push(Part::Facts, t);
+        }
     }
     for s in advice::from_scores(&c) {
         push(Part::Scores, s);

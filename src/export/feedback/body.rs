@@ -675,11 +675,11 @@ fn lower_first(text: &str) -> String {
 /// start and end along the fitted line.
 pub fn mark(m: &crate::analysis::ruler::RulerFit, units: Units) -> Option<String> {
     let (a, b) = (m.from_s, m.to_s);
-    if !(b - a >= 60.0) {
+    if b - a < 60.0 || !(b - a).is_finite() {
         return None;
     }
     let (v0, v1) = (m.speed_at(a)?, m.speed_at(b)?);
-    if !(v0 > 0.0 && v1 > 0.0) {
+    if v0 <= 0.0 || v1 <= 0.0 || !v0.is_finite() || !v1.is_finite() {
         return None;
     }
     let (p0, p1) = (1000.0 / v0, 1000.0 / v1);

@@ -51,7 +51,9 @@ fn style(length: Length) -> FeedbackStyle {
 }
 
 /// Score patterns a coach might give: all good, all poor, a set that faded, mixed.
-fn patterns() -> Vec<(&'static str, fn(u32) -> u8)> {
+type Pattern = (&'static str, fn(u32) -> u8);
+
+fn patterns() -> Vec<Pattern> {
     vec![
         ("all 4", |_| 4),
         ("all 2", |_| 2),

@@ -465,7 +465,9 @@ fn kinds_without_demo_sessions_read_right() {
 fn the_coachs_ruler_marks_are_put_into_words() {
     let roster =
         splitdesk::roster::Roster::open(&splitdesk::config::demo_roster()).expect("demo roster");
-    let (a, act) = roster.find_session("keziah-brandt/2026-11-29-long-run").expect("session");
+    let (a, act) = roster
+        .find_session("keziah-brandt/2026-11-29-long-run")
+        .expect("session");
     let an = splitdesk::workspace::analyse_activity(a, act).expect("analysed");
     let fit = splitdesk::analysis::ruler::fit_window(&an.session, 600.0, 2400.0);
     let s = session("keziah-brandt/2026-11-29-long-run");

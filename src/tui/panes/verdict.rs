@@ -503,18 +503,53 @@ fn render_revealed(app: &App, o: &OpenSession, area: Rect, buf: &mut Buffer) {
     if room == 0 {
         return;
     }
-    let first = if ed.editing && ed.row >= room {
-        ed.row + 1 - room
+    let rect = Rect::new(area.x, y, area.width, room as u16);
+    if !ed.editing {
+        // Read-only: word-wrapped, so a draft's long paragraphs are read whole.
+        let lines: Vec<Line> = ed
+            .lines
+            .iter()
+            .map(|l| Line::styled(printable(l), t.text))
+            .collect();
+        Paragraph::new(lines)
+            .wrap(Wrap { trim: false })
+            .render(rect, buf);
+        return;
+    }
+    // Editing: each line goes on over as many rows as it needs, cut at the width so the
+    // cursor maps to one row and column; nothing is cut off.
+    let w = (area.width as usize).max(1);
+    let mut rows: Vec<(usize, usize, Vec<char>)> = Vec::new();
+    let mut cursor_row = 0;
+    for (i, line) in ed.lines.iter().enumerate() {
+        // One stand-in per unsafe character: the cursor column stays right.
+        let chars: Vec<char> = printable(line).chars().collect();
+        let first_row = rows.len();
+        let mut start = 0;
+        loop {
+            let end = (start + w).min(chars.len());
+            rows.push((i, start, chars.get(start..end).unwrap_or_default().to_vec()));
+            start = end;
+            if start >= chars.len() {
+                break;
+            }
+        }
+        // A cursor after a line that fills its last row exactly sits on a row of its own.
+        if i == ed.row && !chars.is_empty() && chars.len() % w == 0 && ed.col >= chars.len() {
+            rows.push((i, chars.len(), Vec::new()));
+        }
+        if i == ed.row {
+            cursor_row = (first_row + ed.col / w).min(rows.len().saturating_sub(1));
+        }
+    }
+    let first = if cursor_row >= room {
+        cursor_row + 1 - room
     } else {
         0
     };
-    let w = area.width as usize;
-    for (i, line) in ed.lines.iter().enumerate().skip(first).take(room) {
-        // One stand-in per unsafe character: the cursor column stays right.
-        let text = fit(&printable(line), w);
-        let l = if ed.editing && i == ed.row {
-            let chars: Vec<char> = text.chars().collect();
-            let col = ed.col.min(chars.len());
+    for (k, (i, start, chars)) in rows.iter().enumerate().skip(first).take(room) {
+        let l = if k == cursor_row && *i == ed.row {
+            let col = ed.col.saturating_sub(*start).min(chars.len());
             let before: String = chars.iter().take(col).collect();
             let at: String = chars
                 .get(col)
@@ -527,7 +562,7 @@ fn render_revealed(app: &App, o: &OpenSession, area: Rect, buf: &mut Buffer) {
                 Span::styled(after, t.text),
             ])
         } else {
-            Line::styled(text, t.text)
+            Line::styled(chars.iter().collect::<String>(), t.text)
         };
         Paragraph::new(l).render(Rect::new(area.x, y, area.width, 1), buf);
         y += 1;

@@ -455,7 +455,7 @@ fn kinds_without_demo_sessions_read_right() {
     i.review = &r;
     let text = draft(&i, &style(Length::Full));
     assert!(
-        text.contains("Thanks for logging the cycling: 40 minutes."),
+        text.contains("Thanks for logging the ride: 40 minutes."),
         "{text}"
     );
     assert!(!text.contains("/km"), "{text}");

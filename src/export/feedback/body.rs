@@ -304,10 +304,14 @@ fn treadmill(c: &Ctx<'_>) -> Vec<String> {
 fn not_running(c: &Ctx<'_>) -> Vec<String> {
     let s = &c.review.session;
     let sport = s.sport.replace('_', " ");
-    let what = if sport.is_empty() || sport == "unknown" {
-        "session".to_string()
-    } else {
-        sport
+    let what = match sport.as_str() {
+        "" | "unknown" => "session".to_string(),
+        "cycling" => "ride".to_string(),
+        "walking" => "walk".to_string(),
+        _ => sport
+            .chars()
+            .filter(|c| c.is_alphanumeric() || *c == ' ')
+            .collect(),
     };
     vec![format!(
         "Thanks for logging the {what}: {}.",

@@ -327,3 +327,243 @@ pub(crate) fn splits(
         splits: list,
     })
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::model::{FileFormat, Flag, FlagKind};
+    use chrono::{TimeZone, Utc};
+
+    /// A 1 Hz session at the given per-second speeds, distance their running sum.
+    fn session(speeds: &[f64]) -> Session {
+        let start = Utc.with_ymd_and_hms(2026, 1, 1, 8, 0, 0).unwrap();
+        let mut s = Session::empty(FileFormat::Fit, start);
+        s.t = (0..speeds.len()).map(|i| i as f64).collect();
+        s.time =
+            s.t.iter()
+                .map(|&x| start + chrono::Duration::seconds(x as i64))
+                .collect();
+        s.speed = Some(Channel::from_values(speeds.iter().copied()));
+        let mut acc = 0.0;
+        s.distance = Some(Channel::from_values(speeds.iter().enumerate().map(
+            |(i, v)| {
+                if i > 0 {
+                    acc += v;
+                }
+                acc
+            },
+        )));
+        s
+    }
+
+    fn whole(s: &Session, units: Units) -> Option<Splits> {
+        let series = Series::new(s);
+        let end = s.t.last().copied().unwrap_or(0.0);
+        splits(s, &series, 0.0, end, units)
+    }
+
+    fn close(a: f64, b: f64, tol: f64) -> bool {
+        (a - b).abs() <= tol
+    }
+
+    #[test]
+    fn constant_speed_gives_exact_kilometres() {
+        // 4 m/s for 2600 s: 10 400 m, ten kilometres of 250 s and 400 m in 100 s.
+        let s = session(&[4.0; 2601]);
+        let sp = whole(&s, Units::Km).unwrap();
+        assert_eq!(sp.unit, "km");
+        assert!(close(sp.distance_m, 10_400.0, 1e-6));
+        assert_eq!(sp.splits.len(), 11);
+        for x in sp.splits.iter().take(10) {
+            assert!(close(x.time_s, 250.0, 1e-9), "{x:?}");
+            assert!(close(x.pace_s_per_km, 250.0, 1e-9));
+            assert!(close(x.distance_m, 1000.0, 1e-12));
+        }
+        let last = sp.splits.last().unwrap();
+        assert_eq!(last.number, 11);
+        assert!(close(last.distance_m, 400.0, 1e-6));
+        assert!(close(last.time_s, 100.0, 1e-6));
+        assert!(close(last.pace_s_per_km, 250.0, 1e-6));
+        assert!(close(sp.time_s, 2600.0, 1e-9));
+        assert!(close(sp.first_half_s.unwrap(), 1300.0, 1e-9));
+        assert!(close(sp.second_half_s.unwrap(), 1300.0, 1e-9));
+        assert!(close(sp.fastest_s_per_km.unwrap(), 250.0, 1e-9));
+        assert!(close(sp.slowest_s_per_km.unwrap(), 250.0, 1e-9));
+        assert_eq!(sp.full(Units::Km).count(), 10);
+        // The split times add up to the finish time.
+        let sum: f64 = sp.splits.iter().map(|x| x.time_s).sum();
+        assert!(close(sum, sp.time_s, 1e-9));
+    }
+
+    #[test]
+    fn miles_at_constant_speed() {
+        // 4 m/s: a mile (1609.344 m) takes 402.336 s; 1300 s covers 5200 m = 3 miles + 371.968 m.
+        let s = session(&[4.0; 1301]);
+        let sp = whole(&s, Units::Mi).unwrap();
+        assert_eq!(sp.unit, "mi");
+        assert_eq!(sp.splits.len(), 4);
+        for x in sp.splits.iter().take(3) {
+            assert!(close(x.time_s, 402.336, 1e-9), "{x:?}");
+            assert!(close(x.pace_s_per_km, 250.0, 1e-9));
+        }
+        let last = sp.splits.last().unwrap();
+        assert!(close(last.distance_m, 5200.0 - 3.0 * 1609.344, 1e-6));
+        assert!(close(last.time_s, 1300.0 - 3.0 * 402.336, 1e-6));
+    }
+
+    #[test]
+    fn faster_second_kilometre_and_halves() {
+        // 1000 m at 4 m/s (250 s), then 1000 m at 5 m/s (200 s).
+        let mut v = vec![4.0; 251];
+        v.extend(vec![5.0; 200]);
+        let s = session(&v);
+        let sp = whole(&s, Units::Km).unwrap();
+        assert_eq!(sp.splits.len(), 2);
+        assert!(close(sp.splits[0].time_s, 250.0, 1e-9));
+        assert!(close(sp.splits[1].time_s, 200.0, 1e-9));
+        assert!(close(sp.fastest_s_per_km.unwrap(), 200.0, 1e-9));
+        assert!(close(sp.slowest_s_per_km.unwrap(), 250.0, 1e-9));
+        // Half the distance (1000 m) is reached at 250 s: a negative split.
+        assert!(close(sp.first_half_s.unwrap(), 250.0, 1e-9));
+        assert!(close(sp.second_half_s.unwrap(), 200.0, 1e-9));
+    }
+
+    #[test]
+    fn a_short_leftover_is_left_out() {
+        // 252 s at 4 m/s: 1008 m; the last 8 m are not a split.
+        let s = session(&[4.0; 253]);
+        let sp = whole(&s, Units::Km).unwrap();
+        assert_eq!(sp.splits.len(), 1);
+        assert!(close(sp.splits[0].time_s, 250.0, 1e-9));
+        assert!(close(sp.distance_m, 1008.0, 1e-9));
+        assert!(close(sp.time_s, 252.0, 1e-9));
+        // One full split: no fastest or slowest.
+        assert_eq!(sp.fastest_s_per_km, None);
+        assert_eq!(sp.slowest_s_per_km, None);
+        // 60 m is kept.
+        let s = session(&[4.0; 266]);
+        let sp = whole(&s, Units::Km).unwrap();
+        assert_eq!(sp.splits.len(), 2);
+        assert!(close(sp.splits[1].distance_m, 60.0, 1e-9));
+        assert!(close(sp.splits[1].time_s, 15.0, 1e-9));
+    }
+
+    #[test]
+    fn a_run_shorter_than_one_unit_has_one_partial_split() {
+        // 150 s at 4 m/s: 600 m.
+        let s = session(&[4.0; 151]);
+        let sp = whole(&s, Units::Km).unwrap();
+        assert_eq!(sp.splits.len(), 1);
+        assert!(close(sp.splits[0].distance_m, 600.0, 1e-9));
+        assert!(close(sp.splits[0].time_s, 150.0, 1e-9));
+        assert!(close(sp.splits[0].pace_s_per_km, 250.0, 1e-9));
+        assert_eq!(sp.full(Units::Km).count(), 0);
+        assert!(close(sp.first_half_s.unwrap(), 75.0, 1e-9));
+    }
+
+    #[test]
+    fn no_splits_without_distance_or_with_too_little() {
+        let mut s = session(&[4.0; 600]);
+        s.distance = None;
+        assert_eq!(whole(&s, Units::Km), None);
+        // 10 s at 4 m/s: 40 m.
+        assert_eq!(whole(&session(&[4.0; 11]), Units::Km), None);
+        // Every distance sample missing.
+        let mut s = session(&[4.0; 600]);
+        s.distance = Some(Channel::new(vec![None; 600]));
+        assert_eq!(whole(&s, Units::Km), None);
+        // An empty or backwards range.
+        let s = session(&[4.0; 600]);
+        let series = Series::new(&s);
+        assert_eq!(splits(&s, &series, 300.0, 300.0, Units::Km), None);
+        assert_eq!(splits(&s, &series, 300.0, 100.0, Units::Km), None);
+        assert_eq!(splits(&s, &series, f64::NAN, 100.0, Units::Km), None);
+    }
+
+    #[test]
+    fn flagged_and_missing_distance_makes_no_jump() {
+        // 4 m/s for 2000 s; a 300-m spike at samples 400-404, flagged, and a stretch
+        // without distance at samples 1100-1130.
+        let mut s = session(&[4.0; 2001]);
+        if let Some(d) = s.distance.as_mut() {
+            for v in d.values.iter_mut().skip(400).take(5) {
+                *v = v.map(|x| x + 300.0);
+            }
+            for v in d.values.iter_mut().skip(1100).take(31) {
+                *v = None;
+            }
+        }
+        s.flags.push(Flag {
+            from_s: 400.0,
+            to_s: 404.0,
+            channel: ChannelKind::Distance,
+            kind: FlagKind::PositionJump,
+            reason: "test".into(),
+        });
+        let sp = whole(&s, Units::Km).unwrap();
+        assert!(close(sp.distance_m, 8000.0, 1e-6), "{}", sp.distance_m);
+        assert_eq!(sp.splits.len(), 8);
+        for x in &sp.splits {
+            assert!(close(x.time_s, 250.0, 1e-9), "{x:?}");
+        }
+    }
+
+    #[test]
+    fn a_range_inside_the_session() {
+        // 4 m/s; the splits of 100 s .. 700 s: 2400 m, two kilometres and 400 m.
+        let s = session(&[4.0; 1001]);
+        let series = Series::new(&s);
+        let sp = splits(&s, &series, 100.0, 700.0, Units::Km).unwrap();
+        assert!(close(sp.distance_m, 2400.0, 1e-9));
+        assert!(close(sp.time_s, 600.0, 1e-9));
+        assert_eq!(sp.splits.len(), 3);
+        assert!(close(sp.splits[0].time_s, 250.0, 1e-9));
+        assert!(close(sp.splits[2].time_s, 100.0, 1e-9));
+    }
+
+    #[test]
+    fn heart_rate_and_height_per_split() {
+        // HR 150 over the first kilometre (samples 1..=250), 160 after.
+        let mut s = session(&[4.0; 751]);
+        s.hr = Some(Channel::from_values(
+            (0..751).map(|i| if i <= 250 { 150.0 } else { 160.0 }),
+        ));
+        // A steady 1 % climb: 10 m per kilometre.
+        s.altitude = Some(Channel::from_values((0..751).map(|i| 0.04 * i as f64)));
+        let sp = whole(&s, Units::Km).unwrap();
+        assert_eq!(sp.splits.len(), 3);
+        assert!(close(sp.splits[0].avg_hr.unwrap(), 150.0, 1e-9));
+        assert!(close(sp.splits[1].avg_hr.unwrap(), 160.0, 1e-9));
+        // Away from the ends the smoothing of a straight line is the line.
+        assert!(close(sp.splits[1].elevation_change_m.unwrap(), 10.0, 1e-9));
+        assert!(close(sp.splits[1].moving_s, 250.0, 1e-9));
+        // Without HR or altitude: None, never a number.
+        let sp = whole(&session(&[4.0; 751]), Units::Km).unwrap();
+        assert!(sp.splits.iter().all(|x| x.avg_hr.is_none()));
+        assert!(sp.splits.iter().all(|x| x.elevation_change_m.is_none()));
+    }
+
+    #[test]
+    fn standing_adds_time_not_distance() {
+        // 125 s at 4 m/s (500 m), 60 s standing while the GPS wanders 0.3 m/s, 125 s at
+        // 4 m/s (500 m) more.
+        let mut v = vec![4.0; 126];
+        v.extend(vec![0.0; 60]);
+        v.extend(vec![4.0; 125]);
+        let mut s = session(&v);
+        let mut acc = 0.0;
+        s.distance = Some(Channel::from_values(v.iter().enumerate().map(|(i, x)| {
+            if i > 0 {
+                acc += if *x > 0.0 { *x } else { 0.3 };
+            }
+            acc
+        })));
+        let sp = whole(&s, Units::Km).unwrap();
+        // The motion classification places the stop within a few seconds of its edges:
+        // the wander it leaves in is at most 0.3 m/s times that.
+        assert!(close(sp.distance_m, 1000.0, 5.0), "{}", sp.distance_m);
+        let first = &sp.splits[0];
+        assert!(close(first.time_s, 310.0, 2.0), "{first:?}");
+        assert!(close(first.moving_s, 250.0, 10.0), "{first:?}");
+    }
+}

@@ -273,7 +273,10 @@ pub(crate) fn splits(
     let mut bounds: Vec<(f64, f64)> = Vec::with_capacity(full + 1);
     let mut at = from_s;
     for k in 1..=full {
-        let end = track.time_at(k as f64 * unit_m).unwrap_or(to_s).clamp(at, to_s);
+        let end = track
+            .time_at(k as f64 * unit_m)
+            .unwrap_or(to_s)
+            .clamp(at, to_s);
         bounds.push((end, unit_m));
         at = end;
     }
@@ -525,9 +528,13 @@ mod tests {
     fn heart_rate_and_height_per_split() {
         // HR 150 over the first kilometre (samples 1..=250), 160 after.
         let mut s = session(&[4.0; 751]);
-        s.hr = Some(Channel::from_values(
-            (0..751).map(|i| if i <= 250 { 150.0 } else { 160.0 }),
-        ));
+        s.hr = Some(Channel::from_values((0..751).map(|i| {
+            if i <= 250 {
+                150.0
+            } else {
+                160.0
+            }
+        })));
         // A steady 1 % climb: 10 m per kilometre.
         s.altitude = Some(Channel::from_values((0..751).map(|i| 0.04 * i as f64)));
         let sp = whole(&s, Units::Km).unwrap();

@@ -350,5 +350,14 @@ fn analyze_json_carries_kind_and_splits() {
         .unwrap();
     let text = String::from_utf8(out.stdout).unwrap();
     assert!(text.contains("Kind: race or time trial"), "{text}");
-    assert!(text.contains("Splits (mi)"), "{text}");
+    assert!(
+        text.contains("Splits (mi) from 15:00 to 45:17: 3.11 mi in 30:17, first half 15:11, second half 15:06"),
+        "{text}"
+    );
+    // The last part: 0.11 mi in 1:00, its pace per mile.
+    assert!(
+        text.contains("   4    0.11     1:00    9:22   162   +0 m"),
+        "{text}"
+    );
+    assert!(text.contains("Fastest 9:45/mi, slowest 9:47/mi"), "{text}");
 }

@@ -2,7 +2,8 @@
 //!
 //! For a race or time trial the splits cover the race itself (its one work interval), so
 //! the finish time is the time over the race distance; for any other run they cover the
-//! whole session. The last split is the part that is left (shorter than a full unit).
+//! whole session. The last split is the part that is left (shorter than a full unit), left
+//! out when shorter than [`MIN_LAST_SPLIT_M`]. The method is on [`splits`].
 
 use serde::{Deserialize, Serialize};
 

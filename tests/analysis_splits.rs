@@ -40,11 +40,14 @@ fn gpx_points(path: &Path) -> Vec<(f64, f64, f64)> {
     out
 }
 
+/// (seconds from the first record, (lat, lon), recorded distance in metres).
+type FitRecord = (f64, Option<(f64, f64)>, Option<f64>);
+
 /// Raw records of a FIT file, read with fitparser directly: (seconds from the first
 /// record, lat, lon, recorded distance). Positions in semicircles (degrees = x·180/2³¹).
 // Source: FIT SDK profile (record: timestamp, position_lat/long in semicircles, distance in
 // metres), read by the fitparser crate (independent of our framing and channel rules).
-fn fit_records(path: &Path) -> Vec<(f64, Option<(f64, f64)>, Option<f64>)> {
+fn fit_records(path: &Path) -> Vec<FitRecord> {
     use fitparser::profile::MesgNum;
     use fitparser::Value;
     let recs = fitparser::from_bytes(&std::fs::read(path).unwrap()).unwrap();

@@ -166,6 +166,101 @@ pub fn run(
             "{}",
             super::review_text::render(&review, &ctx.profile, plan_source.as_deref())
         );
+        print!("{}", kind_and_splits(&review, ctx.profile.units));
     }
     Ok(0)
+}
+
+/// The session's kind and, for a race or time trial, its splits table; for another run
+/// with splits, the split times on a few wrapped lines. Units are the splits' own (the
+/// athlete's), pace per unit.
+fn kind_and_splits(review: &crate::analysis::review::Review, units: Units) -> String {
+    use crate::analysis::kind::SessionKind;
+    use crate::model::units::{format_clock, format_distance};
+    use std::fmt::Write;
+    let mut o = String::new();
+    let _ = writeln!(o, "\n  Kind: {}", review.kind.label());
+    let Some(sp) = review.splits.as_ref().filter(|s| !s.splits.is_empty()) else {
+        return o;
+    };
+    let u = Units::parse(&sp.unit).unwrap_or(units);
+    let unit_m = u.metres();
+    let halves = match (sp.first_half_s, sp.second_half_s) {
+        (Some(a), Some(b)) => format!(
+            ", first half {}, second half {}",
+            format_clock(a),
+            format_clock(b)
+        ),
+        _ => String::new(),
+    };
+    let _ = writeln!(
+        o,
+        "  Splits ({}) from {} to {}: {} in {}{halves}",
+        u.label(),
+        format_clock(sp.from_s),
+        format_clock(sp.to_s),
+        format_distance(sp.distance_m, u),
+        format_clock(sp.time_s),
+    );
+    if review.kind != SessionKind::Race {
+        // Short: the times only, ten to a line.
+        let words: Vec<String> = sp
+            .splits
+            .iter()
+            .map(|x| match x.distance_m >= unit_m * 0.999 {
+                true => format!("{} {}", x.number, format_clock(x.time_s)),
+                false => format!(
+                    "{:.2} {} {}",
+                    x.distance_m / unit_m,
+                    u.label(),
+                    format_clock(x.time_s)
+                ),
+            })
+            .collect();
+        for chunk in words.chunks(10) {
+            let _ = writeln!(o, "    {}", chunk.join("  "));
+        }
+        return o;
+    }
+    let _ = writeln!(
+        o,
+        "     #  {:>6}  {:>7}  {:>6}  {:>4}  {:>5}",
+        u.label(),
+        "time",
+        format!("/{}", u.label()),
+        "HR",
+        "elev"
+    );
+    for x in &sp.splits {
+        let pace = format_clock(x.pace_s_per_km * unit_m / 1000.0);
+        let hr = x
+            .avg_hr
+            .map(|h| format!("{h:.0}"))
+            .unwrap_or_else(|| "-".into());
+        let elev = x
+            .elevation_change_m
+            // Rounded first, so a small fall reads +0 m, not -0 m.
+            .map(|e| format!("{:+.0} m", e.round() + 0.0))
+            .unwrap_or_else(|| "-".into());
+        let _ = writeln!(
+            o,
+            "  {:>4}  {:>6.2}  {:>7}  {:>6}  {:>4}  {:>5}",
+            x.number,
+            x.distance_m / unit_m,
+            format_clock(x.time_s),
+            pace,
+            hr,
+            elev
+        );
+    }
+    if let (Some(f), Some(s)) = (sp.fastest_s_per_km, sp.slowest_s_per_km) {
+        let _ = writeln!(
+            o,
+            "  Fastest {}/{u}, slowest {}/{u} (full splits)",
+            format_clock(f * unit_m / 1000.0),
+            format_clock(s * unit_m / 1000.0),
+            u = u.label()
+        );
+    }
+    o
 }

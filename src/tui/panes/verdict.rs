@@ -9,6 +9,7 @@ use ratatui::widgets::{Paragraph, Widget, Wrap};
 
 use super::{fit, pad};
 use crate::analysis::findings::Severity;
+use crate::analysis::kind::SessionKind;
 use crate::analysis::review::{IntervalMetrics, Review};
 use crate::journal::{ReviewState, Revision, RevisionChange};
 use crate::model::units::{format_clock, format_pace, Units};
@@ -232,6 +233,117 @@ fn rows_of(text: &str, w: usize, max_rows: usize) -> Vec<String> {
     rows
 }
 
+/// `words` joined by two spaces and wrapped into rows of at most `w` characters, the first
+/// row after `head`, at most `max_rows` rows (the last one ending in `…` when words are
+/// left over). Words are never cut, except one wider than a row.
+fn wrap_words(head: &str, words: &[String], w: usize, max_rows: usize) -> Vec<String> {
+    let mut rows: Vec<String> = Vec::new();
+    let mut cur = head.to_string();
+    let width = |s: &str| s.chars().count();
+    for word in words {
+        let sep = if width(&cur) == 0 || cur.ends_with(' ') {
+            ""
+        } else {
+            "  "
+        };
+        if width(&cur) + sep.len() + width(word) <= w || width(&cur) == 0 {
+            cur.push_str(sep);
+            cur.push_str(word);
+            continue;
+        }
+        if rows.len() + 1 == max_rows {
+            // No room for the rest: mark the cut.
+            cur.push_str("  …");
+            rows.push(fit(&cur, w));
+            return rows;
+        }
+        rows.push(fit(&cur, w));
+        cur = format!("  {word}");
+    }
+    if !cur.is_empty() && rows.len() < max_rows {
+        rows.push(fit(&cur, w));
+    }
+    rows
+}
+
+/// The splits block of a race or time trial: the finish time, the distance and the halves on
+/// one row, then the splits in the athlete's units (`1 3:08  2 3:07 …`), wrapped into at
+/// most `max_rows - 1` rows. Empty when `max_rows` is 0 or there are no splits.
+fn splits_lines<'a>(
+    app: &App,
+    review: &Review,
+    units: Units,
+    w: usize,
+    max_rows: usize,
+) -> Vec<Line<'a>> {
+    let t = &app.theme;
+    let Some(sp) = review.splits.as_ref().filter(|s| !s.splits.is_empty()) else {
+        return Vec::new();
+    };
+    if max_rows == 0 || w == 0 {
+        return Vec::new();
+    }
+    let units = Units::parse(&sp.unit).unwrap_or(units);
+    let unit_m = units.metres();
+    let halves = match (sp.first_half_s, sp.second_half_s) {
+        (Some(a), Some(b)) => format!(
+            " · first half {}, second half {}",
+            format_clock(a),
+            format_clock(b)
+        ),
+        _ => String::new(),
+    };
+    let mut lines = vec![Line::from(vec![
+        Span::styled("Finish ", t.heading),
+        Span::styled(
+            fit(
+                &format!(
+                    "{} · {}{halves}",
+                    format_clock(sp.time_s),
+                    crate::model::units::format_distance(sp.distance_m, units)
+                ),
+                w.saturating_sub(7),
+            ),
+            t.text,
+        ),
+    ])];
+    if max_rows < 2 {
+        return lines;
+    }
+    let words: Vec<String> = sp
+        .splits
+        .iter()
+        .map(|x| {
+            if x.distance_m >= unit_m * 0.999 {
+                format!("{} {}", x.number, format_clock(x.time_s))
+            } else {
+                format!(
+                    "{:.2} {} {}",
+                    x.distance_m / unit_m,
+                    units.label(),
+                    format_clock(x.time_s)
+                )
+            }
+        })
+        .collect();
+    let head = format!("Splits/{} ", units.label());
+    for (i, row) in wrap_words(&head, &words, w, max_rows - 1)
+        .into_iter()
+        .enumerate()
+    {
+        if i == 0 {
+            let rest: String = row.chars().skip(head.chars().count()).collect();
+            lines.push(Line::from(vec![
+                Span::styled(head.clone(), t.heading),
+                Span::styled(rest, t.text),
+            ]));
+        } else {
+            lines.push(Line::styled(row, t.text));
+        }
+    }
+    lines
+}
+
 /// Draw the verdict pane.
 pub fn render(app: &App, area: Rect, buf: &mut Buffer) {
     let t = &app.theme;
@@ -346,6 +458,24 @@ pub fn render(app: &App, area: Rect, buf: &mut Buffer) {
     // findings or notes + feedback.
     let grading = grading_lines(app, o, review);
     let editing = o.feedback.as_ref().is_some_and(|e| e.editing);
+    // A race or time trial: the finish time, the halves and the splits, before the table,
+    // in the rows the table, grading and findings leave (at most four rows of splits; the
+    // finish row always).
+    if review.kind == SessionKind::Race {
+        let table_min = if editing || review.intervals.is_empty() {
+            0
+        } else {
+            2
+        };
+        let lower_min = if o.revealed() { 4 } else { 2 };
+        let room = (bottom.saturating_sub(y) as usize)
+            .saturating_sub(grading.len() + lower_min + table_min)
+            // The finish time at least, even in a short pane (before the findings).
+            .clamp(1, 5);
+        for l in splits_lines(app, review, units, w, room) {
+            put(l, &mut y);
+        }
+    }
     let rows_left = bottom.saturating_sub(y) as usize;
     let grading_h = grading.len();
     let lower_min = if o.revealed() { 4 } else { 2 };

@@ -483,3 +483,29 @@ fn the_coachs_ruler_marks_are_put_into_words() {
     assert!(line.contains(&p0), "{line} {p0}");
     assert_eq!(coach_word_in(line), None);
 }
+
+#[test]
+fn a_long_race_gives_the_range_of_its_splits() {
+    // A half marathon's 21 splits, made from the demo 10 km race's first split.
+    let s = session("tobias-wrenfield/2026-11-29-race");
+    let mut r = s.review.clone();
+    let sp = r.splits.as_mut().unwrap();
+    let one = sp.splits[0].clone();
+    sp.splits = (1..=21)
+        .map(|k| {
+            let mut x = one.clone();
+            x.number = k;
+            x.time_s = 180.0 + k as f64;
+            x.distance_m = 1000.0;
+            x
+        })
+        .collect();
+    let mut i = input(s, grades(&r, PurposeVerdict::Met, |_| 4), false);
+    i.review = &r;
+    let text = draft(&i, &style(Length::Full));
+    assert!(
+        text.contains("Your km splits ranged from 3:01 (km 1) to 3:21 (km 21)."),
+        "{text}"
+    );
+    assert!(text.contains("Keep the next few days easy"), "{text}");
+}

@@ -47,7 +47,9 @@ fn list_kinds() {
 fn list_cautions() {
     for s in demo() {
         for f in &s.review.findings {
-            if f.severity == splitdesk::analysis::findings::Severity::Caution || f.code == "cadence_lock" {
+            if f.severity == splitdesk::analysis::findings::Severity::Caution
+                || f.code == "cadence_lock"
+            {
                 println!("{} {} {}", s.id, f.code, &f.text[..f.text.len().min(100)]);
             }
         }

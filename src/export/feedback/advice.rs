@@ -210,14 +210,17 @@ pub fn next_time(c: &Ctx<'_>) -> Option<String> {
             }
             poor_reps_advice(c)
         }
-        SessionKind::Race => c
-            .halves_change()
-            .filter(|x| *x >= PACE_CHANGE_SHARE)
-            .map(|_| {
+        SessionKind::Race => Some(
+            if c.halves_change().is_some_and(|x| x >= PACE_CHANGE_SHARE) {
                 "Next time, go out a little more patiently: an even first half leaves more for \
-             the finish."
-                    .to_string()
-            }),
+                 the finish."
+            } else {
+                // Common coaching practice (no published source): easy running only for a
+                // few days after a race or time trial.
+                "Keep the next few days easy: a race takes more out of you than it feels like."
+            }
+            .to_string(),
+        ),
         SessionKind::Tempo => {
             if c.faded()
                 || r.work()

@@ -34,6 +34,9 @@ pub const DRIFT_PCT: f64 = 5.0;
 // Common coaching practice (no published source).
 pub const ABOVE_EASY_ADVICE_S: f64 = 10.0 * 60.0;
 
+/// Up to this many full splits are listed one by one; a longer race gives the range.
+pub const MAX_LISTED_SPLITS: usize = 13;
+
 /// Which side of its target range a rep was.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 pub enum Side {
@@ -420,7 +423,22 @@ fn race(c: &Ctx<'_>) -> Vec<String> {
         format_clock(s.time_s),
         pace(s.time_s / s.distance_m * 1000.0, c.units)
     ));
-    if !s.splits.is_empty() {
+    let full: Vec<_> = s.full(c.units).collect();
+    if full.len() > MAX_LISTED_SPLITS {
+        // A marathon's 42 splits do not fit a message: the range says it.
+        let fastest = full.iter().min_by(|a, b| a.time_s.total_cmp(&b.time_s));
+        let slowest = full.iter().max_by(|a, b| a.time_s.total_cmp(&b.time_s));
+        if let (Some(f), Some(w)) = (fastest, slowest) {
+            let noun = words::unit_noun(c.units);
+            out.push(format!(
+                "Your {noun} splits ranged from {} ({noun} {}) to {} ({noun} {}).",
+                format_clock(f.time_s),
+                f.number,
+                format_clock(w.time_s),
+                w.number
+            ));
+        }
+    } else if !s.splits.is_empty() {
         out.push(format!(
             "Your {} splits: {}.",
             words::unit_noun(c.units),

@@ -509,3 +509,31 @@ fn a_long_race_gives_the_range_of_its_splits() {
     );
     assert!(text.contains("Keep the next few days easy"), "{text}");
 }
+
+#[test]
+fn the_readme_examples_are_what_splitdesk_drafts() {
+    let readme =
+        std::fs::read_to_string(concat!(env!("CARGO_MANIFEST_DIR"), "/README.md")).unwrap();
+    let section = readme
+        .split("### The feedback draft")
+        .nth(1)
+        .expect("README section");
+    let blocks: Vec<&str> = section
+        .split("```text\n")
+        .skip(1)
+        .take(2)
+        .map(|b| b.split("```").next().unwrap())
+        .collect();
+    let st = FeedbackStyle {
+        coach: Some("Sam".into()),
+        ..Default::default()
+    };
+    let mira = session("mira-castellan/2026-11-17-intervals");
+    let g = grades(&mira.review, PurposeVerdict::Partly, |k| {
+        [4, 4, 3, 3, 2, 2][(k - 1) as usize]
+    });
+    assert_eq!(blocks[0], draft(&input(mira, g, true), &st));
+    let tobias = session("tobias-wrenfield/2026-11-29-race");
+    let g = grades(&tobias.review, PurposeVerdict::Met, |_| 5);
+    assert_eq!(blocks[1], draft(&input(tobias, g, true), &st));
+}

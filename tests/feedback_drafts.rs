@@ -537,3 +537,22 @@ fn the_readme_examples_are_what_splitdesk_drafts() {
     let g = grades(&tobias.review, PurposeVerdict::Met, |_| 5);
     assert_eq!(blocks[1], draft(&input(tobias, g, true), &st));
 }
+
+#[test]
+fn hostile_or_coachy_plan_titles_stay_out_of_the_draft() {
+    let s = session("mira-castellan/2026-10-27-intervals");
+    for (title, shown) in [
+        ("Decoupling check \u{1b}]52;c;AAAA\u{7}", false),
+        ("Reps \u{202E}evil\u{202C} day", true),
+    ] {
+        let mut r = s.review.clone();
+        r.plan.as_mut().unwrap().title = title.to_string();
+        let mut i = input(s, grades(&r, PurposeVerdict::Met, |_| 4), false);
+        i.review = &r;
+        let text = draft(&i, &style(Length::Full));
+        assert!(!text.chars().any(|c| c.is_control() && c != '\n'), "{text:?}");
+        assert!(!text.contains('\u{202E}'), "{text:?}");
+        assert_eq!(coach_word_in(&text), None, "{text}");
+        assert_eq!(text.contains("Reps evil day"), shown, "{text}");
+    }
+}

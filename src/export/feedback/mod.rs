@@ -125,10 +125,17 @@ impl Draft {
     }
 }
 
-/// Text from the roster (plan titles) without control characters.
+/// Text from the roster (plan titles) without control or bidi-format characters.
 fn clean(text: &str) -> String {
+    let format_char = |c: char| matches!(c, '\u{200B}'..='\u{200F}' | '\u{202A}'..='\u{202E}' | '\u{2066}'..='\u{2069}' | '\u{FEFF}');
     text.chars()
-        .map(|c| if c.is_control() { ' ' } else { c })
+        .map(|c| {
+            if c.is_control() || format_char(c) {
+                ' '
+            } else {
+                c
+            }
+        })
         .collect::<String>()
         .split_whitespace()
         .collect::<Vec<_>>()
@@ -139,8 +146,11 @@ fn clean(text: &str) -> String {
 fn opening(review: &Review, kind: crate::analysis::kind::SessionKind) -> String {
     use crate::analysis::kind::SessionKind as K;
     let day = words::day(&review.day());
+    // A plan title in the coach's shorthand ("Decoupling check") is left for the kind.
     match review.plan.as_ref().map(|p| clean(&p.title)) {
-        Some(t) if !t.is_empty() => format!("{t}, {day}."),
+        Some(t) if !t.is_empty() && words::coach_word_in(&t).is_none() => {
+            format!("{t}, {day}.")
+        }
         _ => {
             let what = match kind {
                 K::Race => "race",
@@ -197,6 +207,7 @@ pub fn compose(input: &DraftInput<'_>, style: &FeedbackStyle) -> Draft {
         .plan
         .as_ref()
         .map(|p| clean(&p.title))
+        .filter(|t| !t.is_empty() && words::coach_word_in(t).is_none())
         .unwrap_or_else(|| "run".to_string());
     let vars = [("{name}", name.as_str()), ("{title}", title.as_str())];
     let mut lines = Vec::new();

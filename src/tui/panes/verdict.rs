@@ -665,7 +665,11 @@ fn render_revealed(app: &App, o: &OpenSession, area: Rect, buf: &mut Buffer) {
             }
         }
         // A cursor after a line that fills its last row exactly sits on a row of its own.
-        if i == ed.row && !chars.is_empty() && chars.len().is_multiple_of(w) && ed.col >= chars.len() {
+        if i == ed.row
+            && !chars.is_empty()
+            && chars.len().is_multiple_of(w)
+            && ed.col >= chars.len()
+        {
             rows.push((i, chars.len(), Vec::new()));
         }
         if i == ed.row {

@@ -161,4 +161,64 @@ mod tests {
         let uncommented = example.replace("# max_file_mb = 64", "max_file_mb = 64");
         assert_eq!(parse(&uncommented).unwrap().ingest.max_file_mb, Some(64));
     }
+
+    #[test]
+    fn the_example_documents_every_feedback_key_and_slot_with_its_default() {
+        use crate::export::feedback::style::{Format, Length, KEYS, SLOTS};
+        let example = include_str!("../config.example.toml");
+        let cfg = parse(example).unwrap();
+        let (style, problems) = cfg.feedback_style();
+        assert!(problems.is_empty(), "{problems:?}");
+        assert_eq!(style, Default::default());
+        let (head, rest) = example
+            .split_once("[feedback]\n")
+            .expect("[feedback] table");
+        let (top, rest) = rest
+            .split_once("[feedback.phrases]\n")
+            .expect("[feedback.phrases] table");
+        let (phrases, _) = rest.split_once("\n[keys]").expect("[keys] after it");
+        assert!(!head.contains("[feedback"));
+        for key in KEYS.iter().filter(|k| **k != "phrases") {
+            assert!(
+                top.lines().any(|l| l.starts_with(&format!("# {key} = "))),
+                "[feedback] {key} is not documented"
+            );
+        }
+        for slot in SLOTS {
+            let line = format!("# {} = {:?}", slot.name, slot.default);
+            assert!(
+                phrases.lines().any(|l| l == line),
+                "[feedback.phrases] {} is not documented with its default: {line}",
+                slot.name
+            );
+        }
+        // Uncommented, the phrasebook and the other keys read without a problem, and the
+        // phrasebook gives the default wordings.
+        let mut text = String::new();
+        text.push_str(head);
+        text.push_str("[feedback]\n");
+        for l in top.lines() {
+            let keep = ["coach", "length", "format"]
+                .iter()
+                .any(|k| l.starts_with(&format!("# {k} = ")));
+            text.push_str(if keep { l.trim_start_matches("# ") } else { l });
+            text.push('\n');
+        }
+        text.push_str("[feedback.phrases]\n");
+        for l in phrases.lines() {
+            let keep = SLOTS
+                .iter()
+                .any(|s| l.starts_with(&format!("# {} = ", s.name)));
+            text.push_str(if keep { l.trim_start_matches("# ") } else { l });
+            text.push('\n');
+        }
+        let (style, problems) = parse(&text).unwrap().feedback_style();
+        assert!(problems.is_empty(), "{problems:?}");
+        assert_eq!(style.signature(), "Sam Ostrander");
+        assert_eq!((style.length, style.format), (Length::Full, Format::Text));
+        assert_eq!(style.phrases.len(), SLOTS.len());
+        for slot in SLOTS {
+            assert_eq!(style.phrase(slot.name, &[]), slot.default, "{}", slot.name);
+        }
+    }
 }

@@ -182,9 +182,10 @@ pub enum Command {
 
 #[derive(Debug, Subcommand)]
 pub enum ExportCommand {
-    /// Feedback of reviewed sessions, one block per session.
+    /// Feedback of reviewed sessions, one block per session; with --date, one message per
+    /// athlete holding the sessions of that day in order.
     Feedback {
-        /// Sessions of this day (YYYY-MM-DD).
+        /// The day's messages (YYYY-MM-DD): one per athlete, that day's sessions in order.
         #[arg(long, conflicts_with = "since")]
         date: Option<String>,
         #[arg(long)]

@@ -11,7 +11,7 @@ use chrono::{NaiveDate, Utc};
 use serde::Serialize;
 
 use crate::analysis::review::Review;
-use crate::export::feedback::{DraftInput, FeedbackStyle, Grades};
+use crate::export::feedback::{DayPart, DraftInput, FeedbackStyle, Grades};
 use crate::journal::{self, FeedbackEventKind, JournalError, PurposeVerdict, QueueEntry};
 use crate::workspace::Workspace;
 
@@ -448,6 +448,14 @@ pub fn export_feedback(
     if !matches!(format, "text" | "md" | "json") {
         bail!("--format {format:?}: expected text, md or json");
     }
+    let mut style = style.clone();
+    if format == "md" {
+        style.format = crate::export::feedback::Format::Markdown;
+    }
+    let style = &style;
+    if let Some(day) = filter.date {
+        return export_day(ws, filter, day, format, style);
+    }
     let entries: Vec<QueueEntry> = ws
         .journal
         .sessions(None)?
@@ -512,6 +520,199 @@ pub fn export_feedback(
         eprintln!("no reviewed sessions match (feedback is exported once the notes were revealed)");
     }
     Ok(0)
+}
+
+/// One athlete's message for a day, as `export feedback --date` prints it.
+#[derive(Debug, Serialize)]
+struct DayBlock {
+    athlete: String,
+    name: String,
+    date: String,
+    /// The sessions in the message, in start order.
+    sessions: Vec<String>,
+    titles: Vec<String>,
+    /// Sessions whose saved (edited) feedback was used as it is; the others were drafted.
+    saved: Vec<String>,
+    message: String,
+}
+
+/// What one session of the day brings to the message.
+struct DaySession {
+    id: String,
+    title: String,
+    review: Review,
+    grades: Grades,
+    note: Option<String>,
+    saved: Option<String>,
+}
+
+/// A revealed session's part of the day: its saved feedback, else what its draft is made
+/// of (the review, the grades in force, the note read through the reveal permit).
+fn day_session(ws: &mut Workspace, id: &str) -> anyhow::Result<DaySession> {
+    let review = ws.refresh(id, Utc::now())?;
+    let title = title(&review);
+    let saved = match ws.journal.feedback(id) {
+        Ok(v) => v.map(|v| v.body),
+        Err(JournalError::NotRevealed { .. }) => None,
+        Err(e) => return Err(e.into()),
+    };
+    let state = ws.journal.review_state(id)?;
+    let note = if saved.is_some() {
+        None
+    } else {
+        // Revealed already: this only hands back the permit to read the note.
+        let permit = ws.journal.reveal(id, Utc::now())?;
+        let (_, act) = ws.find(id)?;
+        let act = act.clone();
+        let embedded = crate::ingest::ingest_file(&act.path, None)
+            .ok()
+            .and_then(|s| s.note);
+        journal::read_note(&permit, act.note_file.as_deref(), embedded.as_deref())
+    };
+    Ok(DaySession {
+        id: id.to_string(),
+        title,
+        review,
+        grades: Grades::from_state(&state),
+        note,
+        saved,
+    })
+}
+
+/// `splitdesk export feedback --date D`: one message per athlete (roster order) with the
+/// day's revealed sessions in start order; saved feedback is used as the coach edited it,
+/// the other sessions are drafted. The sessions of the day not reviewed yet are named on
+/// stderr. Each message is recorded as exported in one transaction.
+fn export_day(
+    ws: &mut Workspace,
+    filter: &Filter,
+    day: NaiveDate,
+    format: &str,
+    style: &FeedbackStyle,
+) -> anyhow::Result<i32> {
+    let mut entries: Vec<QueueEntry> = ws
+        .journal
+        .sessions(None)?
+        .into_iter()
+        .filter(|e| filter.keeps(e))
+        .collect();
+    entries.sort_by(|a, b| (a.start, &a.session_id).cmp(&(b.start, &b.session_id)));
+    let (pending, done): (Vec<QueueEntry>, Vec<QueueEntry>) =
+        entries.into_iter().partition(|e| e.stage.is_unreviewed());
+    // Athletes in roster order; any the roster no longer lists after them, by id.
+    let mut athletes: Vec<String> = ws
+        .roster
+        .athletes
+        .iter()
+        .map(|a| a.id.clone())
+        .filter(|id| done.iter().any(|e| &e.athlete == id))
+        .collect();
+    let mut strays: Vec<String> = done
+        .iter()
+        .map(|e| e.athlete.clone())
+        .filter(|a| !athletes.contains(a))
+        .collect();
+    strays.sort();
+    strays.dedup();
+    athletes.extend(strays);
+
+    let mut blocks = Vec::new();
+    let mut not_recorded = false;
+    for athlete in &athletes {
+        let mut sessions = Vec::new();
+        for e in done.iter().filter(|e| &e.athlete == athlete) {
+            sessions.push(day_session(ws, &e.session_id)?);
+        }
+        let profile = match ws.roster.athlete(athlete) {
+            Some(a) => a.profile.clone(),
+            None => match sessions.first() {
+                Some(s) => ws.find(&s.id)?.0.profile.clone(),
+                None => continue,
+            },
+        };
+        let parts: Vec<DayPart<'_>> = sessions
+            .iter()
+            .map(|s| match &s.saved {
+                Some(text) => DayPart::Saved(text),
+                None => DayPart::Draft(DraftInput {
+                    review: &s.review,
+                    profile: &profile,
+                    grades: s.grades.clone(),
+                    note: s.note.as_deref(),
+                }),
+            })
+            .collect();
+        let message = crate::export::feedback::day_message(&profile, &parts, style);
+        let ids: Vec<&str> = sessions.iter().map(|s| s.id.as_str()).collect();
+        match ws
+            .journal
+            .record_feedback_events(&ids, FeedbackEventKind::Exported, Utc::now())
+        {
+            Ok(()) => {}
+            Err(JournalError::ReadOnly { .. }) => not_recorded = true,
+            Err(e) => return Err(e.into()),
+        }
+        blocks.push(DayBlock {
+            athlete: athlete.clone(),
+            name: profile.name.clone(),
+            date: day.to_string(),
+            sessions: sessions.iter().map(|s| s.id.clone()).collect(),
+            titles: sessions.iter().map(|s| s.title.clone()).collect(),
+            saved: sessions
+                .iter()
+                .filter(|s| s.saved.is_some())
+                .map(|s| s.id.clone())
+                .collect(),
+            message,
+        });
+    }
+    match format {
+        "json" => crate::cli::out::json(&blocks)?,
+        "md" => {
+            for b in &blocks {
+                println!("## {} — {} ({})\n", b.name, b.titles.join(", "), b.date);
+                println!("{}\n", b.message.trim_end());
+            }
+        }
+        _ => {
+            for (k, b) in blocks.iter().enumerate() {
+                if k > 0 {
+                    println!("\n----------------------------------------\n");
+                }
+                println!("To {} | {} | {}\n", b.name, b.date, b.titles.join(", "));
+                println!("{}", b.message.trim_end());
+            }
+        }
+    }
+    if not_recorded {
+        eprintln!(
+            "note: {}: this export was not recorded as sent (nothing can be saved there)",
+            ws.journal.path().display()
+        );
+    }
+    for e in &pending {
+        let title = ws
+            .refresh(&e.session_id, Utc::now())
+            .map(|r| title(&r))
+            .unwrap_or_default();
+        eprintln!(
+            "not reviewed yet, left out: {} ({title}; {})",
+            e.session_id,
+            e.stage.label()
+        );
+    }
+    let sessions: usize = blocks.iter().map(|b| b.sessions.len()).sum();
+    eprintln!(
+        "{day}: {} for {sessions} reviewed {}; {} of that day not reviewed yet",
+        plural(blocks.len(), "message", "messages"),
+        if sessions == 1 { "session" } else { "sessions" },
+        plural(pending.len(), "session", "sessions"),
+    );
+    Ok(0)
+}
+
+fn plural(n: usize, one: &str, many: &str) -> String {
+    format!("{n} {}", if n == 1 { one } else { many })
 }
 
 /// `splitdesk export intervals [--athlete A] [--since D] --csv`: one row per interval.

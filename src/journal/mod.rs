@@ -1139,6 +1139,27 @@ impl Journal {
         })
     }
 
+    /// Record that the feedback of several sessions left together (one message for an
+    /// athlete's day), in one transaction: every session or none. Each needs the reveal.
+    pub fn record_feedback_events(
+        &mut self,
+        session_ids: &[&str],
+        kind: FeedbackEventKind,
+        now: DateTime<Utc>,
+    ) -> Result<()> {
+        self.write(|tx, path| {
+            for id in session_ids {
+                let rid = revealed_review(tx, path, id)?;
+                tx.execute(
+                    "INSERT INTO feedback_event (review_id, kind, at) VALUES (?1, ?2, ?3)",
+                    params![rid, kind.as_str(), ts(now)],
+                )
+                .sq(path)?;
+            }
+            Ok(())
+        })
+    }
+
     /// Save the feedback text (when `body` is given) and record that it was copied, exported
     /// or printed, in one transaction: both or neither. Needs the reveal first.
     pub fn send_feedback(

@@ -71,13 +71,16 @@ pub enum Action {
     CopyFeedback,
     /// Save the feedback text to a file.
     ExportFeedback,
+    /// The day's messages (the day of the open or selected session, every athlete): to a
+    /// file in the feedback folder and to the clipboard.
+    ExportDay,
     /// Switch to the athlete's history view and back.
     History,
 }
 
 impl Action {
     /// Every action, in help-overlay order.
-    pub const ALL: [Action; 35] = [
+    pub const ALL: [Action; 36] = [
         Action::Help,
         Action::Quit,
         Action::Cancel,
@@ -112,6 +115,7 @@ impl Action {
         Action::SaveFeedback,
         Action::CopyFeedback,
         Action::ExportFeedback,
+        Action::ExportDay,
         Action::History,
     ];
 
@@ -152,6 +156,7 @@ impl Action {
             Action::SaveFeedback => "save_feedback",
             Action::CopyFeedback => "copy_feedback",
             Action::ExportFeedback => "export_feedback",
+            Action::ExportDay => "export_day",
             Action::History => "history",
         }
     }
@@ -193,6 +198,7 @@ impl Action {
             Action::SaveFeedback => "save feedback",
             Action::CopyFeedback => "copy feedback",
             Action::ExportFeedback => "feedback to file",
+            Action::ExportDay => "day's messages out",
             Action::History => "history view",
         }
     }

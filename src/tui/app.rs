@@ -52,6 +52,13 @@ pub enum Effect {
         /// What.
         text: String,
     },
+    /// Write the day's messages to a file, then copy them (see [`App::export_day`]).
+    WriteDay {
+        /// Where.
+        path: PathBuf,
+        /// What.
+        text: String,
+    },
     /// Leave the workstation.
     Quit,
 }
@@ -489,6 +496,10 @@ pub struct App {
     pub problems: Vec<String>,
     /// The coach's voice for feedback drafts (`[feedback]` in `config.toml`).
     pub feedback_style: crate::export::feedback::FeedbackStyle,
+    /// Problems in `config.toml` the coach should see (the `[feedback]` table), one line each.
+    pub config_problems: Vec<String>,
+    /// The day's messages on their way out (written, then copied).
+    day_export: Option<DayExport>,
     failed: std::collections::HashSet<String>,
     /// The status line message.
     pub message: Option<Message>,
@@ -501,6 +512,19 @@ pub struct App {
     pub history: Option<HistoryView>,
     /// The journal's `data_version` when last looked at (see [`App::poll_journal`]).
     journal_version: Option<i64>,
+}
+
+/// The day's messages between the key press and the clipboard.
+#[derive(Debug, Clone)]
+struct DayExport {
+    day: NaiveDate,
+    text: String,
+    /// The sessions of each message, in order.
+    messages: Vec<Vec<String>>,
+    /// Sessions of that day not reviewed yet (left out).
+    unreviewed: usize,
+    /// Where the file was written.
+    path: Option<PathBuf>,
 }
 
 /// The built history of one athlete and how far the week bars are scrolled.
@@ -556,6 +580,8 @@ impl App {
             progress: Progress::default(),
             problems: Vec::new(),
             feedback_style: Default::default(),
+            config_problems: Vec::new(),
+            day_export: None,
             failed: Default::default(),
             message: None,
             scan_generation: 0,
@@ -934,8 +960,13 @@ impl App {
                 self.on_written(r);
                 Vec::new()
             }
+            AppEvent::DayWritten(r) => self.on_day_written(r),
             AppEvent::Copied(how) => {
-                self.say(Tone::Done, format!("feedback copied: {how}"));
+                if self.day_export.is_some() {
+                    self.on_day_copied(&how);
+                } else {
+                    self.say(Tone::Done, format!("feedback copied: {how}"));
+                }
                 Vec::new()
             }
         };
@@ -1176,6 +1207,7 @@ impl App {
                     return self.export_feedback();
                 }
             }
+            Action::ExportDay => return self.export_day(),
             Action::History => {
                 self.view = match self.view {
                     View::History => View::Review,
@@ -1921,6 +1953,264 @@ impl App {
         }
     }
 
+    // ----- the day's messages -----
+
+    /// Problems in `config.toml` (the `[feedback]` table): kept for the start pane, and
+    /// said on the status line.
+    pub fn set_config_problems(&mut self, problems: Vec<String>) {
+        if let Some(first) = problems.first() {
+            let more = match problems.len() {
+                1 => String::new(),
+                n => format!(" (and {} more: see the start pane)", n - 1),
+            };
+            self.say(Tone::Warn, format!("{first}{more}"));
+        }
+        self.config_problems = problems;
+    }
+
+    /// Where the day's messages are written.
+    pub fn day_path(&self, day: NaiveDate) -> PathBuf {
+        let name = format!("day-{day}.txt");
+        match &self.feedback_dir {
+            Some(d) => d.join(name),
+            None => PathBuf::from(name),
+        }
+    }
+
+    /// A review the workstation holds for a session: the open one's, else the cached one.
+    fn review_of(&mut self, id: &str) -> Option<Review> {
+        if let Some(r) = self
+            .open
+            .as_ref()
+            .filter(|o| o.session_id == id)
+            .and_then(|o| o.review.clone())
+        {
+            return Some(r);
+        }
+        if let Some(r) = self.reviews.get(id) {
+            return Some(r.clone());
+        }
+        let json = self.journal.cached_summary(id, ANALYSIS_VERSION).ok()??;
+        let r: Review = serde_json::from_str(&json).ok()?;
+        self.reviews.insert(id.to_string(), r.clone());
+        Some(r)
+    }
+
+    /// The athlete's note of a revealed session, through the reveal permit (the embedded
+    /// note of a file other than the open one is read from the file only when the session
+    /// has no notes file).
+    fn note_of(&mut self, id: &str) -> Option<String> {
+        if let Some(Some(n)) = self
+            .open
+            .as_ref()
+            .filter(|o| o.session_id == id)
+            .and_then(|o| o.note.clone())
+        {
+            return Some(n);
+        }
+        let permit = self.journal.reveal(id, now()).ok()?;
+        let act = self.roster.find_session(id).map(|(_, a)| a.clone())?;
+        let embedded = if act.note_file.is_none() {
+            crate::ingest::ingest_file(&act.path, None)
+                .ok()
+                .and_then(|s| s.note)
+        } else {
+            None
+        };
+        read_note(&permit, act.note_file.as_deref(), embedded.as_deref())
+    }
+
+    /// The day's messages: for the day of the open (else selected) session, one message per
+    /// athlete (roster order) with that day's revealed sessions in start order; saved
+    /// feedback as the coach edited it, a draft for the others. Written to
+    /// `day-<date>.txt` in the feedback folder, then copied to the clipboard.
+    pub fn export_day(&mut self) -> Vec<Effect> {
+        // What is typed in the editor is saved first: it is the coach's text for its session.
+        if self.unsaved() {
+            self.save_feedback();
+        }
+        let Some(id) = self
+            .open
+            .as_ref()
+            .map(|o| o.session_id.clone())
+            .or_else(|| self.cursor.session.clone())
+        else {
+            self.say(
+                Tone::Info,
+                "open or select a session first: its day's messages are made",
+            );
+            return Vec::new();
+        };
+        let all = match self.journal.sessions(None) {
+            Ok(v) => v,
+            Err(e) => {
+                self.say(Tone::Warn, short_error(&e));
+                return Vec::new();
+            }
+        };
+        let day_of = |e: &QueueEntry| crate::model::session::session_day(&e.session_id, e.start);
+        let Some(day) = all.iter().find(|e| e.session_id == id).map(day_of) else {
+            self.say(
+                Tone::Info,
+                "this session is still being read; try again in a moment",
+            );
+            return Vec::new();
+        };
+        let mut of_day: Vec<QueueEntry> = all.into_iter().filter(|e| day_of(e) == day).collect();
+        of_day.sort_by(|a, b| (a.start, &a.session_id).cmp(&(b.start, &b.session_id)));
+        let mut unreviewed = of_day.iter().filter(|e| e.stage.is_unreviewed()).count();
+        let athletes: Vec<(String, crate::model::AthleteProfile)> = self
+            .roster
+            .athletes
+            .iter()
+            .map(|a| (a.id.clone(), a.profile.clone()))
+            .collect();
+        let mut blocks = Vec::new();
+        let mut messages = Vec::new();
+        for (athlete, profile) in &athletes {
+            let mut sessions = Vec::new();
+            for e in of_day
+                .iter()
+                .filter(|e| &e.athlete == athlete && !e.stage.is_unreviewed())
+            {
+                let Some(review) = self.review_of(&e.session_id) else {
+                    // Not analysed under this version yet: left out like an unreviewed one.
+                    unreviewed += 1;
+                    continue;
+                };
+                let saved = self
+                    .journal
+                    .feedback(&e.session_id)
+                    .ok()
+                    .flatten()
+                    .map(|f| f.body);
+                let (grades, note) = if saved.is_some() {
+                    (Default::default(), None)
+                } else {
+                    let grades = self
+                        .journal
+                        .review_state(&e.session_id)
+                        .map(|s| crate::export::feedback::Grades::from_state(&s))
+                        .unwrap_or_default();
+                    (grades, self.note_of(&e.session_id))
+                };
+                let title = self.session_title(&e.session_id);
+                sessions.push((e.session_id.clone(), title, review, grades, note, saved));
+            }
+            if sessions.is_empty() {
+                continue;
+            }
+            let parts: Vec<crate::export::feedback::DayPart<'_>> = sessions
+                .iter()
+                .map(|(_, _, review, grades, note, saved)| match saved {
+                    Some(text) => crate::export::feedback::DayPart::Saved(text),
+                    None => crate::export::feedback::DayPart::Draft(
+                        crate::export::feedback::DraftInput {
+                            review,
+                            profile,
+                            grades: grades.clone(),
+                            note: note.as_deref(),
+                        },
+                    ),
+                })
+                .collect();
+            let message =
+                crate::export::feedback::day_message(profile, &parts, &self.feedback_style);
+            let titles: Vec<&str> = sessions.iter().map(|s| s.1.as_str()).collect();
+            blocks.push(format!(
+                "To {} | {day} | {}\n\n{}\n",
+                profile.name,
+                titles.join(", "),
+                message.trim_end()
+            ));
+            messages.push(sessions.into_iter().map(|s| s.0).collect::<Vec<_>>());
+        }
+        if messages.is_empty() {
+            self.say(
+                Tone::Info,
+                format!(
+                    "{day}: no reviewed session yet ({}); nothing written",
+                    count(unreviewed, "session", "sessions") + " not reviewed"
+                ),
+            );
+            return Vec::new();
+        }
+        let text = blocks.join("\n----------------------------------------\n\n");
+        let path = self.day_path(day);
+        self.day_export = Some(DayExport {
+            day,
+            text: text.clone(),
+            messages,
+            unreviewed,
+            path: None,
+        });
+        vec![Effect::WriteDay { path, text }]
+    }
+
+    /// Record that each message of the day left, one transaction per message.
+    fn record_day(&mut self, kind: FeedbackEventKind) -> Option<String> {
+        let messages = self.day_export.as_ref()?.messages.clone();
+        let mut problem = None;
+        for ids in &messages {
+            let ids: Vec<&str> = ids.iter().map(String::as_str).collect();
+            if let Err(e) = self.journal.record_feedback_events(&ids, kind, now()) {
+                problem.get_or_insert_with(|| short_error(&e));
+            }
+        }
+        self.reload_grades();
+        self.lists_dirty = true;
+        problem
+    }
+
+    fn on_day_written(&mut self, r: Result<PathBuf, String>) -> Vec<Effect> {
+        match r {
+            Ok(path) => {
+                let problem = self.record_day(FeedbackEventKind::Exported);
+                let Some(d) = self.day_export.as_mut() else {
+                    return Vec::new();
+                };
+                d.path = Some(path);
+                let text = d.text.clone();
+                if let Some(p) = problem {
+                    self.say(Tone::Warn, format!("not recorded as sent: {p}"));
+                }
+                vec![Effect::Copy(text)]
+            }
+            Err(e) => {
+                self.day_export = None;
+                self.say(
+                    Tone::Warn,
+                    format!("the day's messages were not saved: {e}"),
+                );
+                Vec::new()
+            }
+        }
+    }
+
+    fn on_day_copied(&mut self, how: &str) {
+        let problem = self.record_day(FeedbackEventKind::Copied);
+        let Some(d) = self.day_export.take() else {
+            return;
+        };
+        let sessions: usize = d.messages.iter().map(Vec::len).sum();
+        let path = d
+            .path
+            .as_ref()
+            .map(|p| p.display().to_string())
+            .unwrap_or_default();
+        let text = format!(
+            "{}: {} ({}) saved to {path} and copied ({how}); {} of that day not reviewed yet",
+            d.day,
+            count(d.messages.len(), "message", "messages"),
+            count(sessions, "session", "sessions"),
+            count(d.unreviewed, "session", "sessions"),
+        );
+        match problem {
+            Some(p) => self.say(Tone::Warn, format!("{text}; not recorded as sent: {p}")),
+            None => self.say(Tone::Done, text),
+        }
+    }
+
     // ----- for the panes -----
 
     /// Title of a session for lists: the plan title, else sport and distance, else the file.
@@ -1945,6 +2235,11 @@ impl App {
             None => r.session.sport.clone(),
         }
     }
+}
+
+/// `1 message`, `2 messages`.
+fn count(n: usize, one: &str, many: &str) -> String {
+    format!("{n} {}", if n == 1 { one } else { many })
 }
 
 /// A journal error without the journal path (the status line is short).

@@ -17,6 +17,8 @@ pub enum AppEvent {
     EditorDone(Result<String, String>),
     /// The feedback file was written (the path), or why not.
     FileWritten(Result<PathBuf, String>),
+    /// The day's messages were written (the path), or why not.
+    DayWritten(Result<PathBuf, String>),
     /// The clipboard copy was done; how.
     Copied(String),
 }

@@ -242,6 +242,7 @@ impl Default for KeyMap {
                 b(Action::SaveFeedback, &[Key::ctrl('s')]),
                 b(Action::CopyFeedback, &[Key::ch('y')]),
                 b(Action::ExportFeedback, &[Key::ch('s')]),
+                b(Action::ExportDay, &[Key::ch('D')]),
                 b(Action::History, &[Key::ch('t')]),
             ],
         }

@@ -90,7 +90,8 @@ pub fn run(roster_dir: &Path, journal: Option<&Path>, config: &Config) -> anyhow
     let mut app = App::new(ws.roster, ws.journal, options);
     let (style, style_problems) = config.feedback_style();
     app.feedback_style = style;
-    app.problems.extend(style_problems);
+    app.problems.extend(style_problems.iter().cloned());
+    app.set_config_problems(style_problems);
 
     let term_flag = Arc::new(AtomicBool::new(false));
     for sig in [
@@ -398,6 +399,11 @@ where
             Effect::WriteFile { path, text } => {
                 let r = write_file(&path, &text);
                 queue.extend(app.handle(AppEvent::FileWritten(r)));
+                redraw = true;
+            }
+            Effect::WriteDay { path, text } => {
+                let r = write_file(&path, &text);
+                queue.extend(app.handle(AppEvent::DayWritten(r)));
                 redraw = true;
             }
         }

@@ -217,6 +217,20 @@ fn draw_welcome(app: &App, area: Rect, buf: &mut Buffer) {
     let mut lines = lines;
     lines.extend(panes::roster::athlete_problems(app));
     lines.extend(panes::roster::roster_problems(app));
+    if !app.config_problems.is_empty() {
+        let n = app.config_problems.len();
+        lines.push(Line::raw(""));
+        lines.push(Line::styled(
+            format!(
+                "! {n} problem{} in config.toml (the rest of it is used):",
+                if n == 1 { "" } else { "s" }
+            ),
+            t.warn,
+        ));
+        for p in &app.config_problems {
+            lines.push(Line::styled(printable(p), t.text));
+        }
+    }
     Paragraph::new(lines)
         .wrap(Wrap { trim: false })
         .render(inner, buf);

@@ -550,7 +550,10 @@ fn hostile_or_coachy_plan_titles_stay_out_of_the_draft() {
         let mut i = input(s, grades(&r, PurposeVerdict::Met, |_| 4), false);
         i.review = &r;
         let text = draft(&i, &style(Length::Full));
-        assert!(!text.chars().any(|c| c.is_control() && c != '\n'), "{text:?}");
+        assert!(
+            !text.chars().any(|c| c.is_control() && c != '\n'),
+            "{text:?}"
+        );
         assert!(!text.contains('\u{202E}'), "{text:?}");
         assert_eq!(coach_word_in(&text), None, "{text}");
         assert_eq!(text.contains("Reps evil day"), shown, "{text}");

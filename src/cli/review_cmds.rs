@@ -282,13 +282,30 @@ pub fn draft_for(ws: &mut Workspace, id: &str, style: &FeedbackStyle) -> anyhow:
     if state.revealed_at.is_none() {
         bail!("{id}: the draft is written after the reveal: grade the session blind and read the notes first (splitdesk notes {id})");
     }
-    // Already revealed: this only hands back the permit to read the note.
+    let (note, marks) = note_and_marks(ws, id)?;
+    let (athlete, _) = ws.find(id)?;
+    let profile = athlete.profile.clone();
+    let input = DraftInput {
+        review: &review,
+        profile: &profile,
+        grades: Grades::from_state(&state),
+        note: note.as_deref(),
+        marks,
+    };
+    Ok(crate::export::feedback::draft(&input, style))
+}
+
+/// The athlete's note (through the reveal permit: the session must be revealed) and the
+/// coach's ruler marks fitted on the cleaned samples. The file is analysed again only when
+/// there are marks; otherwise it is read for an embedded note alone.
+fn note_and_marks(
+    ws: &mut Workspace,
+    id: &str,
+) -> anyhow::Result<(Option<String>, Vec<crate::analysis::ruler::RulerFit>)> {
+    // Revealed already: this only hands back the permit to read the note.
     let permit = ws.journal.reveal(id, Utc::now())?;
     let rulers = ws.journal.rulers(id)?;
     let (athlete, act) = ws.find(id)?;
-    let profile = athlete.profile.clone();
-    // The coach's ruler marks are fitted on the cleaned samples: the file is analysed again
-    // only when there are marks; otherwise it is read for an embedded note alone.
     let (embedded, marks) = if rulers.is_empty() {
         let note = crate::ingest::ingest_file(&act.path, None)
             .ok()
@@ -308,14 +325,7 @@ pub fn draft_for(ws: &mut Workspace, id: &str, style: &FeedbackStyle) -> anyhow:
     };
     let note_file = act.note_file.clone();
     let note = journal::read_note(&permit, note_file.as_deref(), embedded.as_deref());
-    let input = DraftInput {
-        review: &review,
-        profile: &profile,
-        grades: Grades::from_state(&state),
-        note: note.as_deref(),
-        marks,
-    };
-    Ok(crate::export::feedback::draft(&input, style))
+    Ok((note, marks))
 }
 
 /// The feedback to send: the saved text, else the draft.
@@ -543,6 +553,7 @@ struct DaySession {
     review: Review,
     grades: Grades,
     note: Option<String>,
+    marks: Vec<crate::analysis::ruler::RulerFit>,
     saved: Option<String>,
 }
 
@@ -557,17 +568,10 @@ fn day_session(ws: &mut Workspace, id: &str) -> anyhow::Result<DaySession> {
         Err(e) => return Err(e.into()),
     };
     let state = ws.journal.review_state(id)?;
-    let note = if saved.is_some() {
-        None
+    let (note, marks) = if saved.is_some() {
+        (None, Vec::new())
     } else {
-        // Revealed already: this only hands back the permit to read the note.
-        let permit = ws.journal.reveal(id, Utc::now())?;
-        let (_, act) = ws.find(id)?;
-        let act = act.clone();
-        let embedded = crate::ingest::ingest_file(&act.path, None)
-            .ok()
-            .and_then(|s| s.note);
-        journal::read_note(&permit, act.note_file.as_deref(), embedded.as_deref())
+        note_and_marks(ws, id)?
     };
     Ok(DaySession {
         id: id.to_string(),
@@ -575,6 +579,7 @@ fn day_session(ws: &mut Workspace, id: &str) -> anyhow::Result<DaySession> {
         review,
         grades: Grades::from_state(&state),
         note,
+        marks,
         saved,
     })
 }
@@ -639,6 +644,7 @@ fn export_day(
                     profile: &profile,
                     grades: s.grades.clone(),
                     note: s.note.as_deref(),
+                    marks: s.marks.clone(),
                 }),
             })
             .collect();

@@ -2110,6 +2110,9 @@ impl App {
                             profile,
                             grades: grades.clone(),
                             note: note.as_deref(),
+                            // Ruler marks need the samples: only the open session's own
+                            // draft has them.
+                            marks: Vec::new(),
                         },
                     ),
                 })

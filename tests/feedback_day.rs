@@ -9,7 +9,6 @@
 mod cli_support;
 
 use std::path::{Path, PathBuf};
-use std::process::Command;
 
 const DAY: &str = "2026-11-28";
 const TT: &str = "mira-castellan/2026-11-28-time-trial";
@@ -86,21 +85,7 @@ fn env(config: &str) -> Option<Env> {
 
 impl Env {
     fn run(&self, args: &[&str]) -> (i32, String, String) {
-        let out = Command::new(cli_support::binary())
-            .env("SPLITDESK_CONFIG", &self.config)
-            .env("EDITOR", "true")
-            .arg("--roster")
-            .arg(&self.roster)
-            .arg("--journal")
-            .arg(&self.journal)
-            .args(args)
-            .output()
-            .unwrap();
-        (
-            out.status.code().unwrap_or(-1),
-            String::from_utf8_lossy(&out.stdout).into_owned(),
-            String::from_utf8_lossy(&out.stderr).into_owned(),
-        )
+        cli_support::run_with_config(&self.roster, &self.journal, &self.config, args)
     }
 
     fn ok(&self, args: &[&str]) -> (String, String) {

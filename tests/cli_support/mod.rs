@@ -25,6 +25,31 @@ pub fn run(roster: &Path, journal: &Path, args: &[&str]) -> Output {
         .unwrap()
 }
 
+/// Run the binary on `roster` and `journal` with the config file `config` and
+/// `EDITOR=true`: exit code (-1 when ended by a signal), stdout, stderr.
+pub fn run_with_config(
+    roster: &Path,
+    journal: &Path,
+    config: &Path,
+    args: &[&str],
+) -> (i32, String, String) {
+    let out = Command::new(binary())
+        .env("SPLITDESK_CONFIG", config)
+        .env("EDITOR", "true")
+        .arg("--roster")
+        .arg(roster)
+        .arg("--journal")
+        .arg(journal)
+        .args(args)
+        .output()
+        .unwrap();
+    (
+        out.status.code().unwrap_or(-1),
+        String::from_utf8_lossy(&out.stdout).into_owned(),
+        String::from_utf8_lossy(&out.stderr).into_owned(),
+    )
+}
+
 /// A roster in a temporary folder with a fresh journal beside it (under `coach/`).
 pub struct TempRoster {
     _dir: tempfile::TempDir,
@@ -49,20 +74,11 @@ impl TempRoster {
     /// Run the binary here: exit code (-1 when ended by a signal), stdout, stderr.
     /// `EDITOR=true`, so a command that would open an editor returns at once.
     pub fn run(&self, args: &[&str]) -> (i32, String, String) {
-        let out = Command::new(binary())
-            .env("SPLITDESK_CONFIG", "/nonexistent/config.toml")
-            .env("EDITOR", "true")
-            .arg("--roster")
-            .arg(&self.roster)
-            .arg("--journal")
-            .arg(&self.journal)
-            .args(args)
-            .output()
-            .unwrap();
-        (
-            out.status.code().unwrap_or(-1),
-            String::from_utf8_lossy(&out.stdout).into_owned(),
-            String::from_utf8_lossy(&out.stderr).into_owned(),
+        run_with_config(
+            &self.roster,
+            &self.journal,
+            Path::new("/nonexistent/config.toml"),
+            args,
         )
     }
 

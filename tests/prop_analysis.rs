@@ -776,3 +776,39 @@ proptest! {
         }
     }
 }
+
+/// Found by the property above (a random case shrank to it): a session of one sample is
+/// covered by one interval, and its review stays finite, with or without channels and plan.
+#[test]
+fn a_single_sample_session_is_covered_and_finite() {
+    for (speed, hr, plan_on) in [(false, false, false), (true, true, true), (true, false, true)] {
+        let sh = Shape {
+            n: 1,
+            seed: 0,
+            rhythm: 0,
+            speed,
+            distance: u8::from(speed),
+            hr,
+            cadence: false,
+            altitude: false,
+            positions: false,
+            missing: 0.0,
+            pauses: 0,
+            laps: 0,
+            extra_flags: 0,
+            sport: 0,
+            plan: plan_on,
+            full_profile: true,
+            wild: 0.0,
+        };
+        let s = cleaned(&sh);
+        assert_eq!(s.len(), 1);
+        let p = profile(sh.full_profile);
+        let pl = plan(sh.plan);
+        let set = find_intervals(&s, pl.as_ref(), &p);
+        assert_eq!(set.intervals.len(), 1, "{:?}", set.intervals);
+        assert_eq!((set.intervals[0].start, set.intervals[0].end), (0, 0));
+        let r = analyze(&s, pl.as_ref(), &p);
+        assert_all_finite(&r).unwrap();
+    }
+}

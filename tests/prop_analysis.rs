@@ -781,7 +781,11 @@ proptest! {
 /// covered by one interval, and its review stays finite, with or without channels and plan.
 #[test]
 fn a_single_sample_session_is_covered_and_finite() {
-    for (speed, hr, plan_on) in [(false, false, false), (true, true, true), (true, false, true)] {
+    for (speed, hr, plan_on) in [
+        (false, false, false),
+        (true, true, true),
+        (true, false, true),
+    ] {
         let sh = Shape {
             n: 1,
             seed: 0,

@@ -471,7 +471,9 @@ proptest! {
         let pl = plan(sh.plan);
         let set = find_intervals(&s, pl.as_ref(), &p);
         let n = s.len();
-        if n == 0 {
+        if n < 2 {
+            // One sample spans no time: no interval (tests/intervals_behaviour.rs says so
+            // for a one-sample session with a plan too).
             prop_assert!(set.intervals.is_empty());
         } else {
             prop_assert!(!set.intervals.is_empty(), "no interval for {} samples", n);
@@ -777,8 +779,9 @@ proptest! {
     }
 }
 
-/// Found by the property above (a random case shrank to it): a session of one sample is
-/// covered by one interval, and its review stays finite, with or without channels and plan.
+/// Found by the property above (a random case shrank to it): a session of one sample has no
+/// interval (it spans no time), and its review stays finite, with or without channels and
+/// plan.
 #[test]
 fn a_single_sample_session_is_covered_and_finite() {
     for (speed, hr, plan_on) in [
@@ -810,8 +813,7 @@ fn a_single_sample_session_is_covered_and_finite() {
         let p = profile(sh.full_profile);
         let pl = plan(sh.plan);
         let set = find_intervals(&s, pl.as_ref(), &p);
-        assert_eq!(set.intervals.len(), 1, "{:?}", set.intervals);
-        assert_eq!((set.intervals[0].start, set.intervals[0].end), (0, 0));
+        assert!(set.intervals.is_empty(), "{:?}", set.intervals);
         let r = analyze(&s, pl.as_ref(), &p);
         assert_all_finite(&r).unwrap();
     }

@@ -197,20 +197,6 @@ pub fn find_intervals_moving(
     if n < 2 {
         set.notes.push("too few samples to find intervals".into());
         set.missing = (0..expected.len()).collect();
-        // A single sample is still covered: one steady interval of no length.
-        if n == 1 {
-            let t0 = session.t.first().copied().unwrap_or(0.0);
-            set.intervals = vec![Interval {
-                kind: SegmentKind::Steady,
-                source: IntervalSource::Detected,
-                start: 0,
-                end: 0,
-                start_s: t0,
-                end_s: t0,
-                expected: None,
-                mode: None,
-            }];
-        }
         return set;
     }
     let Some(trace) = Trace::with_gradients(session, grads, motion) else {

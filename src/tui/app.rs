@@ -271,6 +271,8 @@ pub struct OpenSession {
     pub chart: Option<ChartView>,
     /// Selected work interval (0-based among the work intervals).
     pub selected_work: usize,
+    /// How the verdict pane's document is scrolled.
+    pub verdict: super::panes::verdict_state::VerdictView,
     /// The athlete's note: `Some` only after the reveal (`Some(None)`: there is no note).
     pub note: Option<Option<String>>,
     /// The feedback text (after the reveal).
@@ -826,7 +828,29 @@ impl App {
         if self.lists_dirty && (!self.busy() || self.progress.done.is_multiple_of(16)) {
             self.refresh_lists();
         }
+        self.settle_verdict();
         out
+    }
+
+    /// The verdict pane's document extent at the current terminal size (`None` when the
+    /// pane is not shown).
+    fn verdict_extent(&self) -> Option<super::panes::verdict_state::Extent> {
+        let area = ratatui::layout::Rect::new(0, 0, self.size.0, self.size.1);
+        let rect = super::ui::areas(area, self).verdict?;
+        let (w, h) = super::panes::verdict::inner_size(rect);
+        Some(super::panes::verdict::document(self, w).extent(h))
+    }
+
+    /// Keep the verdict pane's scroll inside its document and its working row in view.
+    fn settle_verdict(&mut self) {
+        if self.open.is_none() {
+            return;
+        }
+        if let Some(e) = self.verdict_extent() {
+            if let Some(o) = self.open.as_mut() {
+                o.verdict.settle(e);
+            }
+        }
     }
 
     fn on_paste(&mut self, text: &str) {
@@ -893,8 +917,11 @@ impl App {
                     }
                 }
                 _ => {
-                    if let Some(ed) = self.open.as_mut().and_then(|o| o.feedback.as_mut()) {
-                        ed.key(&k);
+                    if let Some(o) = self.open.as_mut() {
+                        if let Some(ed) = o.feedback.as_mut() {
+                            ed.key(&k);
+                        }
+                        o.verdict.follow();
                     }
                 }
             }
@@ -972,6 +999,15 @@ impl App {
             Action::Up | Action::Down | Action::Left | Action::Right | Action::Open => {
                 return self.on_move(action)
             }
+            Action::PageUp | Action::PageDown | Action::ScrollTop | Action::ScrollEnd => {
+                if self.focus == Focus::Verdict {
+                    if let Some(e) = self.verdict_extent() {
+                        if let Some(o) = self.open.as_mut() {
+                            o.verdict.on_action(action, e);
+                        }
+                    }
+                }
+            }
             Action::Filter => {
                 self.show_roster = true;
                 self.focus = Focus::Roster;
@@ -1033,6 +1069,7 @@ impl App {
                         if let Some(ed) = o.feedback.as_mut() {
                             ed.editing = true;
                         }
+                        o.verdict.follow();
                     }
                     self.focus = Focus::Verdict;
                     self.say(Tone::Info, "editing feedback: Esc stops, C-s saves");
@@ -1169,6 +1206,7 @@ impl App {
                         }
                         _ => {}
                     }
+                    o.verdict.follow();
                 }
             }
         }
@@ -1222,6 +1260,7 @@ impl App {
             pending_ruler: None,
             chart,
             selected_work: 0,
+            verdict: Default::default(),
             note: None,
             feedback: None,
             load_spike: None,
@@ -1516,6 +1555,7 @@ impl App {
                 let advanced = match self.open.as_mut() {
                     Some(o) if o.selected_work + 1 < n => {
                         o.selected_work += 1;
+                        o.verdict.follow();
                         true
                     }
                     _ => false,

@@ -855,3 +855,111 @@ pub fn revision_words(r: &Revision) -> String {
         RevisionChange::Verdict { old, new } => format!("verdict: {old}→{new}"),
     }
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn interval(
+        kind: &str,
+        work: Option<usize>,
+        start: f64,
+        dur: f64,
+        target: &str,
+    ) -> IntervalMetrics {
+        serde_json::from_value(serde_json::json!({
+            "index": 1,
+            "work_number": work,
+            "kind": kind,
+            "source": "plan",
+            "start_s": start,
+            "end_s": start + dur,
+            "duration_s": dur,
+            "moving_s": dur,
+            "avg_pace_s_per_km": 330.0,
+            "hill_adjusted_pace_s_per_km": 325.0,
+            "avg_hr": 150.0,
+            "max_hr": 171.0,
+            "avg_cadence_spm": 172.0,
+            "target": target,
+            "in_target_pct": 81.0,
+        }))
+        .expect("metrics")
+    }
+
+    fn text(l: &Line) -> String {
+        l.spans.iter().map(|s| s.content.as_ref()).collect()
+    }
+
+    #[test]
+    fn wrapping_keeps_words_whole_and_every_character() {
+        let line = Line::from(vec![
+            Span::raw("- "),
+            Span::raw("Recoveries got less complete: trough up 4 bpm over the set"),
+        ]);
+        let rows: Vec<String> = wrap_line(line, 20, 2).iter().map(text).collect();
+        assert_eq!(
+            rows,
+            [
+                "- Recoveries got",
+                "  less complete:",
+                "  trough up 4 bpm",
+                "  over the set"
+            ]
+        );
+        // A word wider than a row is cut across rows, nothing lost.
+        let rows: Vec<String> = wrap_line(Line::raw("abcdefghij"), 4, 0)
+            .iter()
+            .map(text)
+            .collect();
+        assert_eq!(rows, ["abcd", "efgh", "ij"]);
+        assert_eq!(wrap_line(Line::raw(""), 10, 0).len(), 1);
+    }
+
+    #[test]
+    fn long_clocks_stay_apart() {
+        // A steady block starting at 0:00 and lasting 1:50:00 (point 7 of the issue).
+        let rows = vec![interval("steady", None, 0.0, 6600.0, "easy (5:10-5:20/km)")];
+        for w in [40, 60, 78, 118] {
+            let t = Table::new(&rows, Units::Km, true, w);
+            let row = t.row(0, &rows[0], "", false);
+            assert!(row.chars().count() <= w, "{w}: {row}");
+            assert!(t.header().chars().count() <= w, "{w}");
+            assert!(!row.contains("0:001:50:00"), "{w}: {row}");
+            assert!(row.contains(" 1:50:00"), "{w}: {row}");
+        }
+    }
+
+    #[test]
+    fn columns_are_abbreviated_before_they_are_dropped_and_no_room_is_left() {
+        let rows = vec![
+            interval("warmup", None, 0.0, 600.0, "easy (5:10-5:20/km)"),
+            interval("work", Some(1), 600.0, 180.0, "5k (3:45-3:55/km)"),
+        ];
+        let widths: Vec<usize> = (30..=120).collect();
+        for w in widths {
+            let t = Table::new(&rows, Units::Km, true, w);
+            let used = t.header().chars().count();
+            assert!(used <= w, "{w}");
+            // Nothing left out that would fit in the room left.
+            let room = w - used;
+            let all = Table::new(&rows, Units::Km, true, 1000);
+            for (c, _) in &all.cols {
+                if !t.has(c.head) {
+                    assert!(c.width(c.narrowest()) + 1 > room, "{w}: {} fits", c.head);
+                }
+            }
+        }
+        // At 78 columns (an 80-wide pane) the target is kept, whole.
+        let t = Table::new(&rows, Units::Km, true, 78);
+        assert!(t.has("target") && t.has("in") && t.has("hill"));
+        assert!(t
+            .row(0, &rows[0], "", false)
+            .contains("easy (5:10-5:20/km)"));
+        // Narrower: the target's name alone before it is dropped.
+        let t = Table::new(&rows, Units::Km, true, 56);
+        assert!(t.has("target"), "{}", t.header());
+        let row = t.row(1, &rows[1], "3", false);
+        assert!(row.contains(" 5k ") && !row.contains("3:45-3:55"), "{row}");
+    }
+}

@@ -832,13 +832,14 @@ impl App {
         out
     }
 
-    /// The verdict pane's document extent at the current terminal size (`None` when the
-    /// pane is not shown).
-    fn verdict_extent(&self) -> Option<super::panes::verdict_state::Extent> {
+    /// The verdict pane's document extent at the current terminal size, and the row of
+    /// the athlete's notes (`None` when the pane is not shown).
+    fn verdict_extent(&self) -> Option<(super::panes::verdict_state::Extent, Option<usize>)> {
         let area = ratatui::layout::Rect::new(0, 0, self.size.0, self.size.1);
         let rect = super::ui::areas(area, self).verdict?;
         let (w, h) = super::panes::verdict::inner_size(rect);
-        Some(super::panes::verdict::document(self, w).extent(h))
+        let doc = super::panes::verdict::document(self, w);
+        Some((doc.extent(h), doc.notes))
     }
 
     /// Keep the verdict pane's scroll inside its document and its working row in view.
@@ -846,9 +847,10 @@ impl App {
         if self.open.is_none() {
             return;
         }
-        if let Some(e) = self.verdict_extent() {
+        if let Some((e, notes)) = self.verdict_extent() {
             if let Some(o) = self.open.as_mut() {
-                o.verdict.settle(e);
+                let revealed = o.revealed();
+                o.verdict.settle(e, revealed, notes);
             }
         }
     }
@@ -1001,7 +1003,7 @@ impl App {
             }
             Action::PageUp | Action::PageDown | Action::ScrollTop | Action::ScrollEnd => {
                 if self.focus == Focus::Verdict {
-                    if let Some(e) = self.verdict_extent() {
+                    if let Some((e, _)) = self.verdict_extent() {
                         if let Some(o) = self.open.as_mut() {
                             o.verdict.on_action(action, e);
                         }

@@ -508,6 +508,8 @@ pub struct Document {
     pub lines: Vec<Line<'static>>,
     /// The row to keep in view.
     pub focus: Option<usize>,
+    /// The row of the athlete's notes (after the reveal).
+    pub notes: Option<usize>,
 }
 
 impl Document {
@@ -540,6 +542,7 @@ pub fn document(app: &App, w: usize) -> Document {
     let mut d = Document {
         lines: Vec::new(),
         focus: None,
+        notes: None,
     };
     let t = &app.theme;
     let w = w.max(1);
@@ -745,6 +748,7 @@ fn revealed_lines(d: &mut Document, app: &App, o: &OpenSession, w: usize) {
     let k = &app.keymap;
     let editing = o.feedback.as_ref().is_some_and(|e| e.editing);
     if !editing {
+        d.notes = Some(d.lines.len());
         d.push(
             Line::from(vec![
                 Span::styled("Athlete's notes ", t.heading),

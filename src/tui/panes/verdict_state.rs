@@ -14,6 +14,9 @@ pub struct VerdictView {
     pub scroll: usize,
     /// Keep the working row (selected interval or editor cursor) in view.
     pub follow: bool,
+    /// Whether the notes were revealed when last settled (`None`: not settled yet). A
+    /// reveal seen while the session is open scrolls to the athlete's notes.
+    pub revealed: Option<bool>,
 }
 
 /// What the scroll needs to know of the laid-out document.
@@ -53,8 +56,17 @@ impl VerdictView {
         top
     }
 
-    /// Store the row actually shown (after a key, a resize or new content).
-    pub fn settle(&mut self, e: Extent) {
+    /// Store the row actually shown (after a key, a resize or new content). `revealed`
+    /// and `notes` (the row of the athlete's notes) bring the notes into view once, right
+    /// after the reveal.
+    pub fn settle(&mut self, e: Extent, revealed: bool, notes: Option<usize>) {
+        if self.revealed == Some(false) && revealed {
+            if let Some(row) = notes {
+                self.scroll = row;
+                self.follow = false;
+            }
+        }
+        self.revealed = Some(revealed);
         self.scroll = self.top(e);
     }
 
@@ -118,7 +130,7 @@ mod tests {
         v.follow();
         // Row 12 of 40 in a 10-row pane: it becomes the last row shown.
         assert_eq!(v.top(ext(40, 10, Some(12))), 3);
-        v.settle(ext(40, 10, Some(12)));
+        v.settle(ext(40, 10, Some(12)), false, None);
         assert_eq!(v.scroll, 3);
         // Within view: no move.
         assert_eq!(v.top(ext(40, 10, Some(8))), 3);
@@ -127,5 +139,20 @@ mod tests {
         // An explicit scroll stops following.
         v.on_action(Action::ScrollEnd, ext(40, 10, Some(1)));
         assert_eq!(v.top(ext(40, 10, Some(1))), 30);
+    }
+
+    #[test]
+    fn the_reveal_brings_the_notes_into_view_once() {
+        let mut v = VerdictView::default();
+        // Opened already revealed: no jump.
+        v.settle(ext(40, 10, None), true, Some(25));
+        assert_eq!(v.scroll, 0);
+        let mut v = VerdictView::default();
+        v.settle(ext(40, 10, None), false, None);
+        v.settle(ext(40, 10, None), true, Some(25));
+        assert_eq!(v.scroll, 25);
+        v.on_action(Action::ScrollTop, ext(40, 10, None));
+        v.settle(ext(40, 10, None), true, Some(25));
+        assert_eq!(v.scroll, 0);
     }
 }

@@ -1003,10 +1003,9 @@ impl App {
             }
             Action::PageUp | Action::PageDown | Action::ScrollTop | Action::ScrollEnd => {
                 if self.focus == Focus::Verdict {
-                    if let Some((e, _)) = self.verdict_extent() {
-                        if let Some(o) = self.open.as_mut() {
-                            o.verdict.on_action(action, e);
-                        }
+                    let e = self.verdict_extent().map(|(e, _)| e);
+                    if let Some(o) = self.open.as_mut() {
+                        super::panes::verdict_state::on_action(o, action, e);
                     }
                 }
             }
@@ -1198,17 +1197,7 @@ impl App {
             }
             Focus::Verdict => {
                 if let Some(o) = self.open.as_mut() {
-                    let n = o.work_count();
-                    match action {
-                        Action::Up | Action::Left => {
-                            o.selected_work = o.selected_work.saturating_sub(1)
-                        }
-                        Action::Down | Action::Right if o.selected_work + 1 < n => {
-                            o.selected_work += 1;
-                        }
-                        _ => {}
-                    }
-                    o.verdict.follow();
+                    super::panes::verdict_state::on_action(o, action, None);
                 }
             }
         }

@@ -6,6 +6,7 @@
 //! while `follow` is set, which any move of that row sets and an explicit scroll clears.
 
 use crate::tui::action::Action;
+use crate::tui::app::OpenSession;
 
 /// How the verdict document sits in the pane.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
@@ -89,6 +90,32 @@ impl VerdictView {
     pub fn follow(&mut self) {
         self.follow = true;
     }
+}
+
+/// The verdict pane's keys while it has focus: the arrows move the selected work interval
+/// (keeping it in view), the page keys scroll the document (`extent`: the document as laid
+/// out at the current size). `false` for any other action.
+pub fn on_action(o: &mut OpenSession, action: Action, extent: Option<Extent>) -> bool {
+    let n = o.work_count();
+    match action {
+        Action::Up | Action::Left => {
+            o.selected_work = o.selected_work.saturating_sub(1);
+            o.verdict.follow();
+        }
+        Action::Down | Action::Right => {
+            if o.selected_work + 1 < n {
+                o.selected_work += 1;
+            }
+            o.verdict.follow();
+        }
+        Action::PageUp | Action::PageDown | Action::ScrollTop | Action::ScrollEnd => {
+            if let Some(e) = extent {
+                o.verdict.on_action(action, e);
+            }
+        }
+        _ => return false,
+    }
+    true
 }
 
 #[cfg(test)]

@@ -1,5 +1,9 @@
 //! The verdict pane: the plan's purpose first, then the interval table (the objective facts),
 //! the grading cells, the findings; after the reveal, the athlete's notes and the feedback.
+//!
+//! All of it is one document ([`document`]), every line wrapped at the pane's width, shown
+//! from the row [`super::verdict_state::VerdictView`] keeps; nothing is cut off, so what
+//! the analysis says is always reachable by scrolling.
 
 use ratatui::buffer::Buffer;
 use ratatui::layout::Rect;
@@ -256,7 +260,7 @@ impl Table {
         s
     }
 
-    /// Row `i`: the text, and where the score cell starts (in characters), if shown.
+    /// The text of row `i` (interval `m`, its score cell `score`).
     fn row(&self, i: usize, m: &IntervalMetrics, score: &str, selected: bool) -> String {
         let mark = if selected { "▶" } else { " " };
         let num = m.work_number.map(|n| n.to_string()).unwrap_or_default();

@@ -9,7 +9,7 @@ use splitdesk::roster::Roster;
 use splitdesk::tui::app::{App, Options};
 use splitdesk::tui::keymap::KeyMap;
 use splitdesk::tui::theme::Theme;
-use tui_support::{run_effects, screen};
+use tui_support::{ch, run_effects, screen};
 
 fn copy_dir(from: &Path, to: &Path) {
     std::fs::create_dir_all(to).unwrap();
@@ -76,11 +76,14 @@ fn a_race_shows_its_finish_time_and_splits_at_80x24() {
         "{text}"
     );
     assert!(text.contains("Splits/km 1 3:08  2 3:07"), "{text}");
-    // All ten, wrapped to the width, and still the grading and the findings below.
+    // All ten, wrapped to the width, and still the grading below; the findings at the
+    // end of the pane's document.
     assert!(text.contains("10 3:05"), "{text}");
     assert!(text.contains("Grading"), "{text}");
-    assert!(text.contains("Findings"), "{text}");
     assert!(text.contains("▶  1 work"), "{text}");
+    ch(&mut app, 'G');
+    let text = verdict_rows(&screen(&mut app, 80, 24));
+    assert!(text.contains("Findings"), "{text}");
 }
 
 #[test]
@@ -112,21 +115,27 @@ fn other_sessions_show_no_splits_block() {
 }
 
 #[test]
-fn a_short_or_narrow_pane_keeps_the_finish_and_cuts_the_splits_with_a_mark() {
+fn a_short_or_narrow_pane_wraps_the_splits_and_scrolls_to_the_rest() {
     let dir = tempfile::tempdir().unwrap();
     let mut app = app_on(dir.path(), "tobias-wrenfield/2026-11-29-race");
-    // 60x20: no room for the splits; the finish row stays, the grading too.
+    // 40 columns: the splits wrap over rows, words never split, none left out.
+    app.size = (40, 24);
+    let text = verdict_rows(&screen(&mut app, 40, 24));
+    assert!(text.contains("Finish 31:11 · 10.00 km"), "{text}");
+    assert!(text.contains("Splits/km 1 3:08  2 3:07  3 3:06"), "{text}");
+    assert!(text.contains("  4 3:07  5 3:07  6 3:07  7 3:08"), "{text}");
+    assert!(text.contains("  8 3:06  9 3:08  10 3:05"), "{text}");
+    assert!(!text.contains('…'), "{text}");
+    // The grading and the findings are further down: the end of the document shows them.
+    ch(&mut app, 'G');
+    let text = verdict_rows(&screen(&mut app, 40, 24));
+    assert!(text.contains("Findings"), "{text}");
+    // 60x20: the finish row, then the rest by scrolling.
+    app.size = (60, 20);
+    ch(&mut app, 'g');
     let text = verdict_rows(&screen(&mut app, 60, 20));
     assert!(text.contains("Finish 31:11 · 10.00 km"), "{text}");
-    assert!(!text.contains("Splits/km"), "{text}");
-    assert!(text.contains("Grading"), "{text}");
-    // 40 columns: two rows of splits, the rest cut with a mark, words never split.
-    let text = verdict_rows(&screen(&mut app, 40, 24));
-    assert!(text.contains("Splits/km 1 3:08  2 3:07  3 3:06"), "{text}");
-    assert!(
-        text.contains("  4 3:07  5 3:07  6 3:07  7 3:08  …"),
-        "{text}"
-    );
-    assert!(!text.contains("10 3:05"), "{text}");
+    ch(&mut app, 'G');
+    let text = verdict_rows(&screen(&mut app, 60, 20));
     assert!(text.contains("Findings"), "{text}");
 }

@@ -23,6 +23,14 @@ pub enum Action {
     Right,
     /// Open the selected session.
     Open,
+    /// Scroll the verdict pane up by a page.
+    PageUp,
+    /// Scroll the verdict pane down by a page.
+    PageDown,
+    /// Scroll the verdict pane to its top.
+    ScrollTop,
+    /// Scroll the verdict pane to its end.
+    ScrollEnd,
     /// Filter athletes by name.
     Filter,
     /// Show only unreviewed sessions.
@@ -80,7 +88,7 @@ pub enum Action {
 
 impl Action {
     /// Every action, in help-overlay order.
-    pub const ALL: [Action; 36] = [
+    pub const ALL: [Action; 40] = [
         Action::Help,
         Action::Quit,
         Action::Cancel,
@@ -91,6 +99,10 @@ impl Action {
         Action::Left,
         Action::Right,
         Action::Open,
+        Action::PageUp,
+        Action::PageDown,
+        Action::ScrollTop,
+        Action::ScrollEnd,
         Action::Filter,
         Action::ToggleUnreviewed,
         Action::NextUnreviewed,
@@ -132,6 +144,10 @@ impl Action {
             Action::Left => "left",
             Action::Right => "right",
             Action::Open => "open",
+            Action::PageUp => "page_up",
+            Action::PageDown => "page_down",
+            Action::ScrollTop => "scroll_top",
+            Action::ScrollEnd => "scroll_end",
             Action::Filter => "filter",
             Action::ToggleUnreviewed => "only_unreviewed",
             Action::NextUnreviewed => "next_unreviewed",
@@ -174,6 +190,10 @@ impl Action {
             Action::Left => "left / cursor back",
             Action::Right => "right / cursor on",
             Action::Open => "open session",
+            Action::PageUp => "verdict page up",
+            Action::PageDown => "verdict page down",
+            Action::ScrollTop => "verdict top",
+            Action::ScrollEnd => "verdict end",
             Action::Filter => "filter athletes",
             Action::ToggleUnreviewed => "only unreviewed",
             Action::NextUnreviewed => "next in queue",

@@ -25,6 +25,7 @@ use crate::worker::{Done, Job, JobKind, Outcome};
 use crate::workspace::Analysed;
 
 use super::action::Action;
+pub use super::editor::TextEditor;
 use super::event::AppEvent;
 use super::keymap::{Key, KeyMap};
 use super::theme::Theme;
@@ -243,154 +244,6 @@ impl ChartView {
 /// Shortest chart window, seconds.
 pub const MIN_SPAN_S: f64 = 60.0;
 
-/// A small multi-line text editor for the feedback.
-#[derive(Debug, Clone, PartialEq, Eq)]
-pub struct TextEditor {
-    /// The text, one entry per line.
-    pub lines: Vec<String>,
-    /// Cursor line.
-    pub row: usize,
-    /// Cursor column, in characters.
-    pub col: usize,
-    /// Keys go to the editor.
-    pub editing: bool,
-    /// Changed since last saved to the journal.
-    pub dirty: bool,
-    /// The journal holds a saved version.
-    pub saved: bool,
-}
-
-impl TextEditor {
-    /// An editor holding `text`, not editing.
-    pub fn new(text: &str) -> TextEditor {
-        let mut lines: Vec<String> = text.split('\n').map(str::to_string).collect();
-        if lines.len() > 1 && lines.last().is_some_and(String::is_empty) {
-            lines.pop();
-        }
-        TextEditor {
-            lines,
-            row: 0,
-            col: 0,
-            editing: false,
-            dirty: false,
-            saved: false,
-        }
-    }
-
-    /// The text, lines joined with newlines and a final newline.
-    pub fn text(&self) -> String {
-        let mut s = self.lines.join("\n");
-        s.push('\n');
-        s
-    }
-
-    fn line_len(&self) -> usize {
-        self.lines
-            .get(self.row)
-            .map(|l| l.chars().count())
-            .unwrap_or(0)
-    }
-
-    fn byte_at(line: &str, col: usize) -> usize {
-        line.char_indices()
-            .nth(col)
-            .map(|(b, _)| b)
-            .unwrap_or(line.len())
-    }
-
-    /// Apply one key; returns `false` when the key is not an editing key.
-    pub fn key(&mut self, key: &KeyEvent) -> bool {
-        if self.lines.is_empty() {
-            self.lines.push(String::new());
-        }
-        self.row = self.row.min(self.lines.len() - 1);
-        self.col = self.col.min(self.line_len());
-        let ctrl = key.modifiers.contains(KeyModifiers::CONTROL);
-        match key.code {
-            KeyCode::Char(c) if !ctrl => {
-                if let Some(line) = self.lines.get_mut(self.row) {
-                    let b = Self::byte_at(line, self.col);
-                    line.insert(b, c);
-                    self.col += 1;
-                    self.dirty = true;
-                }
-            }
-            KeyCode::Enter => {
-                if let Some(line) = self.lines.get_mut(self.row) {
-                    let b = Self::byte_at(line, self.col);
-                    let rest = line.split_off(b);
-                    self.lines.insert(self.row + 1, rest);
-                    self.row += 1;
-                    self.col = 0;
-                    self.dirty = true;
-                }
-            }
-            KeyCode::Backspace => {
-                if self.col > 0 {
-                    if let Some(line) = self.lines.get_mut(self.row) {
-                        let b = Self::byte_at(line, self.col - 1);
-                        line.remove(b);
-                        self.col -= 1;
-                        self.dirty = true;
-                    }
-                } else if self.row > 0 {
-                    let line = self.lines.remove(self.row);
-                    self.row -= 1;
-                    self.col = self.line_len();
-                    if let Some(prev) = self.lines.get_mut(self.row) {
-                        prev.push_str(&line);
-                    }
-                    self.dirty = true;
-                }
-            }
-            KeyCode::Delete => {
-                let len = self.line_len();
-                if self.col < len {
-                    if let Some(line) = self.lines.get_mut(self.row) {
-                        let b = Self::byte_at(line, self.col);
-                        line.remove(b);
-                        self.dirty = true;
-                    }
-                } else if self.row + 1 < self.lines.len() {
-                    let next = self.lines.remove(self.row + 1);
-                    if let Some(line) = self.lines.get_mut(self.row) {
-                        line.push_str(&next);
-                    }
-                    self.dirty = true;
-                }
-            }
-            KeyCode::Left => {
-                if self.col > 0 {
-                    self.col -= 1;
-                } else if self.row > 0 {
-                    self.row -= 1;
-                    self.col = self.line_len();
-                }
-            }
-            KeyCode::Right => {
-                if self.col < self.line_len() {
-                    self.col += 1;
-                } else if self.row + 1 < self.lines.len() {
-                    self.row += 1;
-                    self.col = 0;
-                }
-            }
-            KeyCode::Up => {
-                self.row = self.row.saturating_sub(1);
-                self.col = self.col.min(self.line_len());
-            }
-            KeyCode::Down => {
-                self.row = (self.row + 1).min(self.lines.len() - 1);
-                self.col = self.col.min(self.line_len());
-            }
-            KeyCode::Home => self.col = 0,
-            KeyCode::End => self.col = self.line_len(),
-            _ => return false,
-        }
-        true
-    }
-}
-
 /// The session the coach is reviewing.
 #[derive(Debug)]
 pub struct OpenSession {
@@ -418,6 +271,8 @@ pub struct OpenSession {
     pub chart: Option<ChartView>,
     /// Selected work interval (0-based among the work intervals).
     pub selected_work: usize,
+    /// How the verdict pane's document is scrolled.
+    pub verdict: super::panes::verdict_state::VerdictView,
     /// The athlete's note: `Some` only after the reveal (`Some(None)`: there is no note).
     pub note: Option<Option<String>>,
     /// The feedback text (after the reveal).
@@ -973,7 +828,31 @@ impl App {
         if self.lists_dirty && (!self.busy() || self.progress.done.is_multiple_of(16)) {
             self.refresh_lists();
         }
+        self.settle_verdict();
         out
+    }
+
+    /// The verdict pane's document extent at the current terminal size, and the row of
+    /// the athlete's notes (`None` when the pane is not shown).
+    fn verdict_extent(&self) -> Option<(super::panes::verdict_state::Extent, Option<usize>)> {
+        let area = ratatui::layout::Rect::new(0, 0, self.size.0, self.size.1);
+        let rect = super::ui::areas(area, self).verdict?;
+        let (w, h) = super::panes::verdict::inner_size(rect);
+        let doc = super::panes::verdict::document(self, w);
+        Some((doc.extent(h), doc.notes))
+    }
+
+    /// Keep the verdict pane's scroll inside its document and its working row in view.
+    fn settle_verdict(&mut self) {
+        if self.open.is_none() {
+            return;
+        }
+        if let Some((e, notes)) = self.verdict_extent() {
+            if let Some(o) = self.open.as_mut() {
+                let revealed = o.revealed();
+                o.verdict.settle(e, revealed, notes);
+            }
+        }
     }
 
     fn on_paste(&mut self, text: &str) {
@@ -1040,8 +919,11 @@ impl App {
                     }
                 }
                 _ => {
-                    if let Some(ed) = self.open.as_mut().and_then(|o| o.feedback.as_mut()) {
-                        ed.key(&k);
+                    if let Some(o) = self.open.as_mut() {
+                        if let Some(ed) = o.feedback.as_mut() {
+                            ed.key(&k);
+                        }
+                        o.verdict.follow();
                     }
                 }
             }
@@ -1119,6 +1001,14 @@ impl App {
             Action::Up | Action::Down | Action::Left | Action::Right | Action::Open => {
                 return self.on_move(action)
             }
+            Action::PageUp | Action::PageDown | Action::ScrollTop | Action::ScrollEnd => {
+                if self.focus == Focus::Verdict {
+                    let e = self.verdict_extent().map(|(e, _)| e);
+                    if let Some(o) = self.open.as_mut() {
+                        super::panes::verdict_state::on_action(o, action, e);
+                    }
+                }
+            }
             Action::Filter => {
                 self.show_roster = true;
                 self.focus = Focus::Roster;
@@ -1180,6 +1070,7 @@ impl App {
                         if let Some(ed) = o.feedback.as_mut() {
                             ed.editing = true;
                         }
+                        o.verdict.follow();
                     }
                     self.focus = Focus::Verdict;
                     self.say(Tone::Info, "editing feedback: Esc stops, C-s saves");
@@ -1306,16 +1197,7 @@ impl App {
             }
             Focus::Verdict => {
                 if let Some(o) = self.open.as_mut() {
-                    let n = o.work_count();
-                    match action {
-                        Action::Up | Action::Left => {
-                            o.selected_work = o.selected_work.saturating_sub(1)
-                        }
-                        Action::Down | Action::Right if o.selected_work + 1 < n => {
-                            o.selected_work += 1;
-                        }
-                        _ => {}
-                    }
+                    super::panes::verdict_state::on_action(o, action, None);
                 }
             }
         }
@@ -1369,6 +1251,7 @@ impl App {
             pending_ruler: None,
             chart,
             selected_work: 0,
+            verdict: Default::default(),
             note: None,
             feedback: None,
             load_spike: None,
@@ -1663,6 +1546,7 @@ impl App {
                 let advanced = match self.open.as_mut() {
                     Some(o) if o.selected_work + 1 < n => {
                         o.selected_work += 1;
+                        o.verdict.follow();
                         true
                     }
                     _ => false,

@@ -12,6 +12,7 @@
 
 pub mod action;
 pub mod app;
+pub mod editor;
 pub mod event;
 pub mod hangup;
 pub mod keymap;

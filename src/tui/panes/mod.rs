@@ -4,6 +4,7 @@ pub mod chart;
 pub mod history;
 pub mod roster;
 pub mod verdict;
+pub mod verdict_state;
 
 /// Cut a string to at most `w` characters, marking the cut with `…`.
 pub fn fit(s: &str, w: usize) -> String {

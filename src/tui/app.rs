@@ -1445,7 +1445,9 @@ impl App {
         match target.map(|e| e.session_id.clone()) {
             Some(id) => self.open_session(&id),
             None => {
-                let text = if self.queue.is_empty() {
+                let text = if self.queue.is_empty() && self.roster.activities().next().is_none() {
+                    "no sessions in this roster: nothing to review"
+                } else if self.queue.is_empty() {
                     "the queue is empty: every session is reviewed"
                 } else if forward {
                     "no later unreviewed session"

@@ -291,7 +291,7 @@ pub fn run(cli: Cli) -> anyhow::Result<i32> {
     let result = run_command(cli);
     if json {
         if let Err(e) = &result {
-            out::json_error(&format!("{e:#}"), 2, serde_json::Value::Null)?;
+            out::json_error(&out::error_text(e), 2, serde_json::Value::Null)?;
         }
     }
     result

@@ -146,6 +146,22 @@ pub fn json_error(message: &str, code: i32, extra: serde_json::Value) -> anyhow:
     json(&serde_json::Value::Object(doc))
 }
 
+/// An error and its causes on one line, `outer: cause: cause`, leaving out a cause whose
+/// text the line already ends with (errors that name their source in their own message).
+pub fn error_text(e: &anyhow::Error) -> String {
+    let mut line = String::new();
+    for cause in e.chain() {
+        let text = cause.to_string();
+        if line.is_empty() {
+            line = text;
+        } else if !line.ends_with(&text) {
+            line.push_str(": ");
+            line.push_str(&text);
+        }
+    }
+    line
+}
+
 /// The English plural for CLI counts: `1 athlete`, `2 athletes`, `0 sessions`.
 pub fn count<N: std::fmt::Display + PartialEq + From<u8>>(n: N, one: &str, many: &str) -> String {
     let word = if n == N::from(1) { one } else { many };
@@ -174,6 +190,16 @@ mod tests {
             &[b"a\x1b]52;c;SGVsbG8=\x07\n", b"\xc3", b"\xa9\xff"],
         );
         assert_eq!(s, "a␛]52;c;SGVsbG8=␇\né\u{FFFD}");
+    }
+
+    #[test]
+    fn error_text_names_a_cause_once() {
+        let io = std::io::Error::new(std::io::ErrorKind::NotFound, "gone");
+        let e = anyhow::Error::new(io).context("a.fit: gone");
+        assert_eq!(error_text(&e), "a.fit: gone");
+        let io = std::io::Error::new(std::io::ErrorKind::NotFound, "gone");
+        let e = anyhow::Error::new(io).context("a.fit");
+        assert_eq!(error_text(&e), "a.fit: gone");
     }
 
     #[test]

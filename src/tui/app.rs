@@ -965,7 +965,8 @@ impl App {
                 if self.day_export.is_some() {
                     self.on_day_copied(&how);
                 } else {
-                    self.say(Tone::Done, format!("feedback copied: {how}"));
+                    // `how` says what was done ("sent to the terminal (OSC 52)", ...).
+                    self.say(Tone::Done, format!("feedback {how}"));
                 }
                 Vec::new()
             }
@@ -1900,7 +1901,7 @@ impl App {
             return Vec::new();
         };
         if self.mark_sent(FeedbackEventKind::Copied) {
-            self.say(Tone::Done, "feedback copied");
+            self.say(Tone::Info, "copying the feedback");
             vec![Effect::Copy(text)]
         } else {
             Vec::new()
@@ -2204,7 +2205,7 @@ impl App {
             .map(|p| p.display().to_string())
             .unwrap_or_default();
         let text = format!(
-            "{}: {} ({}) saved to {path} and copied ({how}); {} of that day not reviewed yet",
+            "{}: {} ({}) saved to {path} and {how}; {} of that day not reviewed yet",
             d.day,
             count(d.messages.len(), "message", "messages"),
             count(sessions, "session", "sessions"),

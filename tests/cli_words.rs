@@ -88,9 +88,22 @@ fn any_json_command_that_fails_prints_a_json_error() {
     let e = TempRoster::new(write_roster);
     for args in [
         &["notes", "tova-renn/no-such-run", "--json"][..],
-        &["grade", "tova-renn/no-such-run", "--verdict", "met", "--json"][..],
+        &[
+            "grade",
+            "tova-renn/no-such-run",
+            "--verdict",
+            "met",
+            "--json",
+        ][..],
         &["trends", "nobody", "--json"][..],
-        &["export", "feedback", "--since", "yesterday", "--format", "json"][..],
+        &[
+            "export",
+            "feedback",
+            "--since",
+            "yesterday",
+            "--format",
+            "json",
+        ][..],
     ] {
         let (code, out, err) = e.run(args);
         assert_eq!(code, 2, "{args:?}: {err}");

@@ -619,7 +619,40 @@ impl App {
         {
             self.load_revealed();
         }
+        self.reload_feedback();
         true
+    }
+
+    /// After another process wrote the journal: the open session's feedback follows the
+    /// journal (text saved elsewhere, or a draft rebuilt from grades revised elsewhere),
+    /// unless the coach is editing it or has unsaved changes here.
+    fn reload_feedback(&mut self) {
+        let Some(o) = self.open.as_ref() else { return };
+        let Some(ed) = o.feedback.as_ref() else {
+            return;
+        };
+        if ed.dirty || ed.editing || o.note.is_none() {
+            return;
+        }
+        let id = o.session_id.clone();
+        let current = ed.text();
+        let saved = self.journal.feedback(&id).ok().flatten().map(|f| f.body);
+        let was_saved = saved.is_some();
+        let text = match saved {
+            Some(body) => body,
+            None => {
+                let note = o.note.clone().flatten();
+                self.draft_text(note.as_deref())
+            }
+        };
+        let ed = TextEditor::new(&text);
+        if ed.text() != current {
+            if let Some(o) = self.open.as_mut() {
+                let mut ed = ed;
+                ed.saved = was_saved;
+                o.feedback = Some(ed);
+            }
+        }
     }
 
     /// Whether the start-up scan has begun (before it, the session counts are not known).

@@ -527,24 +527,8 @@ struct DayExport {
     path: Option<PathBuf>,
 }
 
-/// The built history of one athlete and how far the week bars are scrolled.
-#[derive(Debug, Clone)]
-pub struct HistoryView {
-    /// Athlete id the history belongs to.
-    pub athlete: String,
-    /// Everything the view shows.
-    pub history: crate::analysis::history::History,
-    /// Weeks scrolled back from the latest week (0: the latest week is at the right edge).
-    pub week_offset: usize,
-}
-
-impl HistoryView {
-    /// Scroll the week bars by `delta` weeks (negative: back in time).
-    pub fn scroll(&mut self, delta: i64) {
-        let max = self.history.weekly.len().saturating_sub(1) as i64;
-        self.week_offset = (self.week_offset as i64 - delta).clamp(0, max) as usize;
-    }
-}
+/// The history view's state lives beside its pane.
+pub use super::panes::history_window::{HistoryView, HistoryWindow};
 
 fn now() -> DateTime<Utc> {
     Utc::now()
@@ -805,23 +789,34 @@ impl App {
             .collect();
         let latest = sums.iter().map(SessionSummary::date).max();
         let today = now().date_naive().max(latest.unwrap_or(NaiveDate::MIN));
-        let history = crate::analysis::history::build(
-            &sums,
-            &a.profile,
-            &crate::analysis::history::HistoryParams::default(),
-            today,
-        );
-        let week_offset = self
-            .history
-            .as_ref()
-            .filter(|h| h.athlete == id)
-            .map(|h| h.week_offset.min(history.weekly.len().saturating_sub(1)))
-            .unwrap_or(0);
-        self.history = Some(HistoryView {
-            athlete: id,
-            history,
-            week_offset,
-        });
+        let mut view = HistoryView::new(id.clone(), sums, a.profile.clone(), today);
+        if let Some(old) = self.history.as_ref().filter(|h| h.athlete == id) {
+            view.keep_window(&old.window);
+        }
+        self.history = Some(view);
+    }
+
+    /// Pan (`pan` weeks) or zoom the history window; at the edge, say why nothing moved.
+    fn move_history(&mut self, pan: i64, zoom: Option<bool>) {
+        let Some(h) = self.history.as_mut() else {
+            return;
+        };
+        let moved = match zoom {
+            Some(in_) => h.zoom(in_),
+            None => h.pan(pan),
+        };
+        if moved {
+            return;
+        }
+        let w = h.window;
+        let text = match (zoom, w.first) {
+            (Some(true), _) => format!("the history shows {} weeks at the narrowest", w.weeks),
+            (Some(false), _) => "the history shows every week of data".to_string(),
+            (None, _) if pan > 0 => "the history ends today".to_string(),
+            (None, Some(f)) => format!("the history starts here: first data in the week of {f}"),
+            (None, None) => "no data yet".to_string(),
+        };
+        self.say(Tone::Info, text);
     }
 
     /// Work out whether the open session's day took the athlete's acute/chronic ratio to
@@ -1194,9 +1189,22 @@ impl App {
             Action::Ruler => self.ruler(),
             Action::ClearRulers => self.clear_rulers(),
             Action::PanLeft | Action::PanRight if self.view == View::History => {
-                if let Some(h) = self.history.as_mut() {
-                    h.scroll(if action == Action::PanLeft { -1 } else { 1 });
-                }
+                // A half window at a time (←/→ move a week).
+                let half = self
+                    .history
+                    .as_ref()
+                    .map_or(1, |h| i64::from(h.window.shown_weeks().div_ceil(2)));
+                self.move_history(
+                    if action == Action::PanLeft {
+                        -half
+                    } else {
+                        half
+                    },
+                    None,
+                );
+            }
+            Action::ZoomIn | Action::ZoomOut if self.view == View::History => {
+                self.move_history(0, Some(action == Action::ZoomIn));
             }
             Action::ZoomIn | Action::ZoomOut | Action::PanLeft | Action::PanRight => {
                 if let Some(c) = self.open.as_mut().and_then(|o| o.chart.as_mut()) {
@@ -1286,9 +1294,7 @@ impl App {
 
     fn on_move(&mut self, action: Action) -> Vec<Effect> {
         if self.view == View::History && matches!(action, Action::Left | Action::Right) {
-            if let Some(h) = self.history.as_mut() {
-                h.scroll(if action == Action::Left { -1 } else { 1 });
-            }
+            self.move_history(if action == Action::Left { -1 } else { 1 }, None);
             return Vec::new();
         }
         let before = self.cursor.athlete.clone();

@@ -232,3 +232,21 @@ fn queue_columns_line_up_on_long_session_ids() {
         assert!(id == EASY_ID || id == REPS_ID || id == long_id, "{l}");
     }
 }
+
+#[test]
+fn analyze_and_plan_check_refuse_in_json_too() {
+    let e = TempRoster::new(write_with_damage);
+    let damaged = e.roster.join(DAMAGED);
+    for args in [
+        &["analyze", damaged.to_str().unwrap(), "--json"][..],
+        &["plan", "check", "--line", "5 x @@ nonsense", "--json"][..],
+    ] {
+        let (code, out, err) = e.run(args);
+        assert_eq!(code, 2, "{args:?}: {err}");
+        let v: serde_json::Value =
+            serde_json::from_str(&out).unwrap_or_else(|_| panic!("{args:?}: stdout {out:?}"));
+        assert_eq!(v["exit_code"], 2);
+        let text = v["error"].as_str().unwrap();
+        assert!(err.contains(text), "{args:?}: {text} / {err}");
+    }
+}

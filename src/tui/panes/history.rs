@@ -508,7 +508,7 @@ fn date_axis(t: &Theme, days: &[NaiveDate], x: u16, width: u16, y: u16, buf: &mu
     let labels = usize::from((width / GAP).max(1)).min(n.saturating_sub(1).max(1));
     let mut next_free = x;
     for k in 0..=labels {
-        let idx = if labels == 0 { 0 } else { k * (n - 1) / labels };
+        let idx = (k * (n - 1)).checked_div(labels).unwrap_or(0);
         let Some(day) = days.get(idx) else { continue };
         let text = day.format("%-d %b").to_string();
         let w = text.chars().count() as u16;

@@ -9,7 +9,9 @@ fn main() {
         Ok(code) => std::process::exit(code),
         Err(e) => {
             // Error messages embed paths and text from the roster: made safe for a terminal.
-            splitdesk::cli::out::eprint_text(format_args!("error: {e:#}\n"));
+            // A cause the message already names is not repeated.
+            let text = splitdesk::cli::out::error_text(&e);
+            splitdesk::cli::out::eprint_text(format_args!("error: {text}\n"));
             std::process::exit(2);
         }
     }

@@ -107,9 +107,9 @@ fn coach_reviews_a_session_blind_in_the_real_binary() {
     tmux.keys(&["o"]);
     let s = tmux.wait_for(NOTE_START);
     assert!(s.contains("notes revealed"), "{s}");
-    // Copy (OSC 52 inside tmux) and save the feedback draft.
+    // Copy (inside tmux: tmux's buffer and OSC 52) and save the feedback draft.
     tmux.keys(&["Escape", "y"]);
-    tmux.wait_for("feedback copied");
+    tmux.wait_for("feedback put in tmux's buffer");
     tmux.keys(&["s"]);
     let s = tmux.wait_for("feedback saved to");
     assert!(s.contains("feedback done") || s.contains("saved"), "{s}");

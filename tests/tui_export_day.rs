@@ -124,11 +124,11 @@ fn the_day_key_writes_and_copies_one_message_per_athlete() {
         [Effect::Copy(copied)] => assert_eq!(copied, &text),
         other => panic!("{other:?}"),
     }
-    app.handle(AppEvent::Copied("terminal (OSC 52)".into()));
+    app.handle(AppEvent::Copied("sent to the terminal (OSC 52)".into()));
     assert_eq!(
         message(&app),
         format!(
-            "2024-03-04: 1 message (2 sessions) saved to {} and copied (terminal (OSC 52)); \
+            "2024-03-04: 1 message (2 sessions) saved to {} and sent to the terminal (OSC 52); \
              1 session of that day not reviewed yet",
             path.display()
         )

@@ -215,11 +215,14 @@ fn history_view_with_a_load_jump() {
         history_support::day(35),
     );
     assert_eq!(h.cautions.len(), 1);
-    app.history = Some(HistoryView {
-        athlete: app.cursor.athlete.clone().unwrap(),
-        history: h,
-        week_offset: 0,
-    });
+    let view = HistoryView::new(
+        app.cursor.athlete.clone().unwrap(),
+        sums,
+        history_support::profile(),
+        history_support::day(35),
+    );
+    assert_eq!(view.history.cautions, h.cautions);
+    app.history = Some(view);
     for (w, hgt) in SIZES {
         let text = screen(&mut app, w, hgt);
         assert!(text.contains("CAUTION: Training load rose"), "{text}");
@@ -232,9 +235,15 @@ fn history_view_with_a_load_jump() {
     assert!(big.contains("Riegel"), "{big}");
     assert!(big.contains("line 5 %"), "{big}");
     snap("history_load_jump", &mut app);
-    // Scrolling back a week moves the bars.
+    // The window holds every week of data (five); zoomed in to three weeks, going back a
+    // week moves the bars.
+    ch(&mut app, '+');
+    assert_eq!(app.history.as_ref().unwrap().window.shown_weeks(), 3);
     key(&mut app, KeyCode::Left);
-    assert_eq!(app.history.as_ref().unwrap().week_offset, 1);
+    assert_eq!(
+        app.history.as_ref().unwrap().window.end,
+        history_support::day(28)
+    );
     let back = screen(&mut app, 160, 48);
     assert!(back.contains("to 2026-W13"), "{back}");
 }

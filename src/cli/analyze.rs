@@ -124,6 +124,9 @@ pub fn run(
         Ok(s) => s,
         Err(e) => {
             eprintln!("error: {e}");
+            if json {
+                crate::cli::out::json_error(&e.to_string(), 2, serde_json::Value::Null)?;
+            }
             return Ok(2);
         }
     };

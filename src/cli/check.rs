@@ -95,14 +95,14 @@ pub fn run(root: &Path, json: bool) -> anyhow::Result<i32> {
         for p in &out.problems {
             println!("{}: {}", p.path, p.problem);
         }
+        use crate::cli::out::count;
         println!(
-            "{}: {} athletes, {} sessions, {} readable, {} problem{}",
+            "{}: {}, {}, {} readable, {}",
             out.roster,
-            out.athletes,
-            out.sessions,
+            count(out.athletes, "athlete", "athletes"),
+            count(out.sessions, "session", "sessions"),
             out.readable,
-            out.problems.len(),
-            if out.problems.len() == 1 { "" } else { "s" }
+            count(out.problems.len(), "problem", "problems"),
         );
     }
     Ok(if failing { 1 } else { 0 })

@@ -37,22 +37,23 @@ pub fn run(out: &Path, seed: u64) -> anyhow::Result<i32> {
         Err(e) if e.kind() == std::io::ErrorKind::NotFound => {}
         Err(e) => anyhow::bail!("{}: {e}", out.display()),
     }
+    use crate::cli::out::count;
     let scenario = Scenario::build(seed);
     let s = roster_writer::write_roster(&scenario, out)
         .map_err(|e| anyhow::anyhow!("{}: {e}", out.display()))?;
     println!(
-        "{}: {} ({}), {} athletes, {} sessions ({} FIT, {} TCX, {} GPX), {} plans, {} notes, \
+        "{}: {} ({}), {}, {} ({} FIT, {} TCX, {} GPX), {}, {}, \
          {:.1} MB, seed {seed}",
         out.display(),
         scenario.club,
         scenario.place,
-        s.athletes,
-        s.sessions,
+        count(s.athletes, "athlete", "athletes"),
+        count(s.sessions, "session", "sessions"),
         s.fit,
         s.tcx,
         s.gpx,
-        s.plans,
-        s.notes,
+        count(s.plans, "plan", "plans"),
+        count(s.notes, "note", "notes"),
         s.bytes as f64 / 1e6,
     );
     Ok(0)

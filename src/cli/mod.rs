@@ -100,6 +100,7 @@ pub enum Command {
         /// Only this athlete (id, e.g. mara-lindqvist).
         #[arg(long)]
         athlete: Option<String>,
+        /// Print JSON instead of text.
         #[arg(long)]
         json: bool,
     },
@@ -114,6 +115,7 @@ pub enum Command {
         /// Did the session serve its purpose: met, partly or missed.
         #[arg(long, value_name = "met|partly|missed")]
         verdict: Option<String>,
+        /// Print JSON instead of text.
         #[arg(long)]
         json: bool,
     },
@@ -121,6 +123,7 @@ pub enum Command {
     Notes {
         /// Session id: <athlete-id>/<activity-file-stem>.
         session: String,
+        /// Print JSON instead of text.
         #[arg(long)]
         json: bool,
     },
@@ -137,6 +140,7 @@ pub enum Command {
         /// Edit the feedback in $EDITOR and save it (after the reveal).
         #[arg(long)]
         edit: bool,
+        /// Print JSON instead of text.
         #[arg(long)]
         json: bool,
     },
@@ -146,8 +150,10 @@ pub enum Command {
     /// How often and how far grades moved after reading the notes, against the notes' tone.
     /// Tone is a simple word-list measure (positive minus negative words, negations flip).
     BiasCheck {
+        /// Only this athlete (id, e.g. mara-lindqvist).
         #[arg(long)]
         athlete: Option<String>,
+        /// Print JSON instead of text.
         #[arg(long)]
         json: bool,
     },
@@ -159,6 +165,7 @@ pub enum Command {
         /// ISO weeks to show, the current one last (default 12).
         #[arg(long)]
         weeks: Option<u32>,
+        /// Print JSON instead of text.
         #[arg(long)]
         json: bool,
     },
@@ -188,6 +195,7 @@ pub enum ExportCommand {
         /// The day's messages (YYYY-MM-DD): one per athlete, that day's sessions in order.
         #[arg(long, conflicts_with = "since")]
         date: Option<String>,
+        /// Only this athlete (id, e.g. mara-lindqvist).
         #[arg(long)]
         athlete: Option<String>,
         /// Sessions from this day on (YYYY-MM-DD).
@@ -198,6 +206,7 @@ pub enum ExportCommand {
     },
     /// One CSV row per interval with the analysis columns and the scores.
     Intervals {
+        /// Only this athlete (id, e.g. mara-lindqvist).
         #[arg(long)]
         athlete: Option<String>,
         /// Sessions from this day on (YYYY-MM-DD).
@@ -223,6 +232,7 @@ pub enum JournalCommand {
     Backup { file: PathBuf },
     /// Run SQLite's integrity checks and count what the journal holds.
     Check {
+        /// Print JSON instead of text.
         #[arg(long)]
         json: bool,
     },
@@ -252,8 +262,42 @@ pub enum PlanCommand {
     },
 }
 
-/// Run a parsed command line; returns the process exit code.
+/// Whether the command line asked for JSON (`--json`, or `--format json` for an export).
+fn wants_json(cmd: Option<&Command>) -> bool {
+    match cmd {
+        Some(
+            Command::Inspect { json, .. }
+            | Command::Check { json, .. }
+            | Command::Analyze { json, .. }
+            | Command::Queue { json, .. }
+            | Command::Grade { json, .. }
+            | Command::Notes { json, .. }
+            | Command::Feedback { json, .. }
+            | Command::BiasCheck { json, .. }
+            | Command::Trends { json, .. }
+            | Command::Plan(PlanCommand::Check { json, .. })
+            | Command::Journal(JournalCommand::Check { json }),
+        ) => *json,
+        Some(Command::Export(ExportCommand::Feedback { format, .. })) => format == "json",
+        _ => false,
+    }
+}
+
+/// Run a parsed command line; returns the process exit code. With `--json`, a command that
+/// fails also prints its error as a JSON object on stdout (see [`out::json_error`]); the
+/// error line on stderr and the exit code stay as they are.
 pub fn run(cli: Cli) -> anyhow::Result<i32> {
+    let json = wants_json(cli.command.as_ref());
+    let result = run_command(cli);
+    if json {
+        if let Err(e) = &result {
+            out::json_error(&out::error_text(e), 2, serde_json::Value::Null)?;
+        }
+    }
+    result
+}
+
+fn run_command(cli: Cli) -> anyhow::Result<i32> {
     let config = crate::config::load()?;
     crate::ingest::set_limits(config.ingest_limits());
     match cli.command {
@@ -327,7 +371,22 @@ fn run_with_journal(
             JournalCommand::Check { json } => rc::journal_check(&ws, *json),
         };
     }
-    let mut ws = rc::open_synced(roster, journal)?;
+    let (mut ws, damaged) = rc::open_synced(roster, journal)?;
+    // Files that cannot be read are named where they matter: in the queue, and to a
+    // command about their session or athlete; `check` lists every one.
+    let concern = match &cmd {
+        Command::Queue { athlete: None, .. } => rc::Concern::All,
+        Command::Queue {
+            athlete: Some(a), ..
+        }
+        | Command::Trends { athlete: a, .. } => rc::Concern::Athlete(a),
+        Command::Grade { session, .. }
+        | Command::Notes { session, .. }
+        | Command::Feedback { session, .. }
+        | Command::Export(ExportCommand::Chart { session, .. }) => rc::Concern::Session(session),
+        _ => rc::Concern::Nothing,
+    };
+    rc::say_sync_problems(&damaged, concern);
     match cmd {
         Command::Queue { athlete, json } => rc::queue(&mut ws, athlete.as_deref(), json),
         Command::Grade {

@@ -131,6 +131,43 @@ pub fn json<T: serde::Serialize + ?Sized>(value: &T) -> anyhow::Result<()> {
     Ok(())
 }
 
+/// A refusal as JSON on stdout, for a command run with `--json`: `{"error": MESSAGE,
+/// "exit_code": CODE}` plus the fields of `extra` (an object). The process still exits with
+/// `code`; the one-line `error:` text goes to stderr as without `--json`.
+pub fn json_error(message: &str, code: i32, extra: serde_json::Value) -> anyhow::Result<()> {
+    let mut doc = serde_json::Map::new();
+    doc.insert("error".into(), serde_json::Value::from(message));
+    doc.insert("exit_code".into(), serde_json::Value::from(code));
+    if let serde_json::Value::Object(more) = extra {
+        for (k, v) in more {
+            doc.entry(k).or_insert(v);
+        }
+    }
+    json(&serde_json::Value::Object(doc))
+}
+
+/// An error and its causes on one line, `outer: cause: cause`, leaving out a cause whose
+/// text the line already ends with (errors that name their source in their own message).
+pub fn error_text(e: &anyhow::Error) -> String {
+    let mut line = String::new();
+    for cause in e.chain() {
+        let text = cause.to_string();
+        if line.is_empty() {
+            line = text;
+        } else if !line.ends_with(&text) {
+            line.push_str(": ");
+            line.push_str(&text);
+        }
+    }
+    line
+}
+
+/// The English plural for CLI counts: `1 athlete`, `2 athletes`, `0 sessions`.
+pub fn count<N: std::fmt::Display + PartialEq + From<u8>>(n: N, one: &str, many: &str) -> String {
+    let word = if n == N::from(1) { one } else { many };
+    format!("{n} {word}")
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -153,6 +190,23 @@ mod tests {
             &[b"a\x1b]52;c;SGVsbG8=\x07\n", b"\xc3", b"\xa9\xff"],
         );
         assert_eq!(s, "a␛]52;c;SGVsbG8=␇\né\u{FFFD}");
+    }
+
+    #[test]
+    fn error_text_names_a_cause_once() {
+        let io = std::io::Error::new(std::io::ErrorKind::NotFound, "gone");
+        let e = anyhow::Error::new(io).context("a.fit: gone");
+        assert_eq!(error_text(&e), "a.fit: gone");
+        let io = std::io::Error::new(std::io::ErrorKind::NotFound, "gone");
+        let e = anyhow::Error::new(io).context("a.fit");
+        assert_eq!(error_text(&e), "a.fit: gone");
+    }
+
+    #[test]
+    fn count_agrees_in_number() {
+        assert_eq!(count(1, "athlete", "athletes"), "1 athlete");
+        assert_eq!(count(0, "athlete", "athletes"), "0 athletes");
+        assert_eq!(count(2, "session", "sessions"), "2 sessions");
     }
 
     #[test]

@@ -170,6 +170,9 @@ pub fn run_check(
         Ok(p) => p,
         Err((message, snippet)) => {
             report(&message, snippet);
+            if json {
+                super::out::json_error(&message, 2, serde_json::Value::Null)?;
+            }
             return Ok(2);
         }
     };
@@ -180,8 +183,19 @@ pub fn run_check(
                 Some(p) => format!("{}: ", p.display()),
                 None => "--line: ".to_string(),
             };
-            for u in &unknown {
-                report(&format!("{at}{}", u.message(&k.profile)), None);
+            let messages: Vec<String> = unknown
+                .iter()
+                .map(|u| format!("{at}{}", u.message(&k.profile)))
+                .collect();
+            for m in &messages {
+                report(m, None);
+            }
+            if json {
+                super::out::json_error(
+                    &messages.join("; "),
+                    2,
+                    serde_json::json!({ "errors": messages }),
+                )?;
             }
             let mut err = super::out::stderr();
             for p in &k.problems {

@@ -18,17 +18,74 @@ use crate::workspace::Workspace;
 /// Exit code when the blind protocol refuses (notes asked for before grading is complete).
 pub const EXIT_BLIND: i32 = 3;
 
+/// A file the sync could not read or analyse, with the session it belongs to (when the
+/// message names a roster file).
+#[derive(Debug, Clone)]
+pub struct SyncProblem {
+    pub session: Option<String>,
+    pub athlete: Option<String>,
+    pub text: String,
+}
+
+/// What a command is about, for the sync problems worth saying to it.
+#[derive(Debug, Clone, Copy)]
+pub enum Concern<'a> {
+    /// Every session (the queue of the whole roster).
+    All,
+    /// One athlete's sessions.
+    Athlete(&'a str),
+    /// One session.
+    Session(&'a str),
+    /// Nothing a sync problem changes.
+    Nothing,
+}
+
+impl SyncProblem {
+    fn concerns(&self, c: Concern<'_>) -> bool {
+        match c {
+            Concern::All => true,
+            Concern::Athlete(a) => self.athlete.as_deref() == Some(a),
+            Concern::Session(id) => self.session.as_deref() == Some(id),
+            Concern::Nothing => false,
+        }
+    }
+}
+
+/// Say the sync problems that concern the command, once each, on stderr.
+pub fn say_sync_problems(problems: &[SyncProblem], concern: Concern<'_>) {
+    for p in problems.iter().filter(|p| p.concerns(concern)) {
+        eprintln!("warning: {}", p.text);
+    }
+}
+
 /// Open the workspace and bring the journal up to date with the roster (progress on stderr).
-pub fn open_synced(roster: &Path, journal: Option<&Path>) -> anyhow::Result<Workspace> {
+/// The files that could not be read are handed back, not printed: each command says the
+/// ones that concern it ([`say_sync_problems`]).
+pub fn open_synced(
+    roster: &Path,
+    journal: Option<&Path>,
+) -> anyhow::Result<(Workspace, Vec<SyncProblem>)> {
     let mut ws = open_noting_read_only(roster, journal)?;
     let total = ws.roster.activities().count() as u64;
     let bar = super::progress_bar(total, "analysing");
     let report = ws.sync(Utc::now(), |done, _| bar.set_position(done as u64))?;
     bar.finish_and_clear();
-    for p in &report.problems {
-        eprintln!("warning: {p}");
-    }
-    Ok(ws)
+    let problems = report
+        .problems
+        .into_iter()
+        .map(|text| {
+            let owner = ws.roster.activities().find(|(_, act)| {
+                let path = act.path.display().to_string();
+                text.starts_with(&format!("{path}:"))
+            });
+            SyncProblem {
+                session: owner.map(|(a, act)| a.session_id(act)),
+                athlete: owner.map(|(a, _)| a.id.clone()),
+                text,
+            }
+        })
+        .collect();
+    Ok((ws, problems))
 }
 
 /// Open the workspace; when the journal cannot be written, say so once on stderr (reading
@@ -116,23 +173,42 @@ pub fn queue(ws: &mut Workspace, athlete: Option<&str>, json: bool) -> anyhow::R
         return Ok(0);
     }
     if rows.is_empty() {
-        println!("nothing to review");
+        let any = ws.journal.sessions(athlete)?.len();
+        match (any, athlete) {
+            (0, Some(a)) => println!("no sessions for {a}: nothing to review"),
+            (0, None) => println!("no sessions in this roster: nothing to review"),
+            _ => println!("nothing to review"),
+        }
+        return Ok(0);
     }
-    for r in &rows {
+    print!("{}", queue_table(&rows));
+    Ok(0)
+}
+
+/// The queue as a table: each column as wide as its longest cell (characters, not bytes),
+/// two spaces between columns, the title last and unpadded.
+fn queue_table(rows: &[QueueOut]) -> String {
+    let chars = |s: &str| s.chars().count();
+    let id_w = rows.iter().map(|r| chars(&r.session)).max().unwrap_or(0);
+    let stage_w = rows.iter().map(|r| chars(r.stage)).max().unwrap_or(0);
+    let mut out = String::new();
+    for r in rows {
         let grade = if r.work_intervals == 0 {
             "  [verdict only]"
         } else {
             ""
         };
-        println!(
-            "{:<40} {}  {:<8} {}{grade}",
+        let line = format!(
+            "{:<id_w$}  {:<10}  {:<stage_w$}  {}{grade}",
             r.session,
             r.start.get(..10).unwrap_or(""),
             r.stage,
             r.title
         );
+        out.push_str(line.trim_end());
+        out.push('\n');
     }
-    Ok(0)
+    out
 }
 
 /// Parse `N=S` score arguments.
@@ -251,7 +327,15 @@ pub fn notes(ws: &mut Workspace, id: &str, json: bool) -> anyhow::Result<i32> {
     let permit = match ws.journal.reveal(id, Utc::now()) {
         Ok(p) => p,
         Err(JournalError::NotYetGraded { missing, .. }) => {
-            eprintln!("error: {id}: notes stay hidden until grading is complete: {missing}");
+            let message = format!("{id}: notes stay hidden until grading is complete: {missing}");
+            eprintln!("error: {message}");
+            if json {
+                crate::cli::out::json_error(
+                    &message,
+                    EXIT_BLIND,
+                    serde_json::json!({ "session": id, "missing": missing.to_string() }),
+                )?;
+            }
             return Ok(EXIT_BLIND);
         }
         Err(e) => return Err(e.into()),
@@ -866,7 +950,11 @@ pub fn export_chart(ws: &mut Workspace, id: &str, out: &Path) -> anyhow::Result<
             .map_err(|e| anyhow::anyhow!("{}: {e}", out.display()))?
     };
     std::fs::write(out, bytes).with_context(|| out.display().to_string())?;
-    println!("{}: chart of {id} ({} rulers)", out.display(), rulers.len());
+    println!(
+        "{}: chart of {id} ({})",
+        out.display(),
+        crate::cli::out::count(rulers.len(), "ruler", "rulers")
+    );
     Ok(0)
 }
 
@@ -941,17 +1029,18 @@ pub fn journal_check(ws: &Workspace, json: bool) -> anyhow::Result<i32> {
             "rulers": r.rulers,
         }))?;
     } else {
+        use crate::cli::out::count;
         println!(
-            "{}: {} (schema {}; {} sessions, {} reviews, {} scores, {} revisions, {} feedback versions, {} rulers)",
+            "{}: {} (schema {}; {}, {}, {}, {}, {}, {})",
             ws.journal.path().display(),
             if r.is_ok() { "ok" } else { "PROBLEMS" },
             r.schema_version,
-            r.sessions,
-            r.reviews,
-            r.scores,
-            r.revisions,
-            r.feedback_versions,
-            r.rulers
+            count(r.sessions, "session", "sessions"),
+            count(r.reviews, "review", "reviews"),
+            count(r.scores, "score", "scores"),
+            count(r.revisions, "revision", "revisions"),
+            count(r.feedback_versions, "feedback version", "feedback versions"),
+            count(r.rulers, "ruler", "rulers"),
         );
         for p in &r.problems {
             println!("  {p}");

@@ -29,14 +29,23 @@ pub use safe_text::{is_unsafe, json_text, printable, printable_text};
 /// The roster root itself could not be read.
 #[derive(Debug, thiserror::Error)]
 pub enum RosterError {
-    #[error("{path}: {source}")]
+    /// The reason is said in the message itself (not as a source as well, so an error
+    /// chain names it once).
+    #[error("{path}: {reason}")]
     Io {
         path: PathBuf,
-        #[source]
-        source: std::io::Error,
+        reason: std::io::Error,
     },
+    #[error("{path}: no such folder (the roster is read from this folder)")]
+    Missing { path: PathBuf },
     #[error("{path}: not a folder")]
     NotADir { path: PathBuf },
+    /// The folder holds an `athlete.toml`: it is one athlete, not a roster of them.
+    #[error(
+        "{path}: this looks like an athlete folder (it has an athlete.toml), not a roster; \
+         use the folder that holds it as the roster: --roster {parent}"
+    )]
+    AthleteFolder { path: PathBuf, parent: PathBuf },
 }
 
 /// Something in the roster that could not be used; the rest of the roster still works.
@@ -174,13 +183,33 @@ impl Roster {
 
     /// Discover a roster folder.
     pub fn open(root: &Path) -> Result<Roster, RosterError> {
-        let meta = std::fs::metadata(root).map_err(|source| RosterError::Io {
-            path: root.to_path_buf(),
-            source,
+        let meta = std::fs::metadata(root).map_err(|reason| {
+            if reason.kind() == std::io::ErrorKind::NotFound {
+                RosterError::Missing {
+                    path: root.to_path_buf(),
+                }
+            } else {
+                RosterError::Io {
+                    path: root.to_path_buf(),
+                    reason,
+                }
+            }
         })?;
         if !meta.is_dir() {
             return Err(RosterError::NotADir {
                 path: root.to_path_buf(),
+            });
+        }
+        if root.join("athlete.toml").is_file() {
+            // The parent as the coach would type it: `..`-free when the path allows.
+            let parent = std::fs::canonicalize(root)
+                .ok()
+                .and_then(|p| p.parent().map(Path::to_path_buf))
+                .or_else(|| root.parent().map(Path::to_path_buf))
+                .unwrap_or_else(|| PathBuf::from(".."));
+            return Err(RosterError::AthleteFolder {
+                path: root.to_path_buf(),
+                parent,
             });
         }
         let mut problems = Vec::new();
@@ -212,9 +241,9 @@ impl Roster {
             }
         }
 
-        let inside = std::fs::canonicalize(root).map_err(|source| RosterError::Io {
+        let inside = std::fs::canonicalize(root).map_err(|reason| RosterError::Io {
             path: root.to_path_buf(),
-            source,
+            reason,
         })?;
         let mut athletes = Vec::new();
         for found in athlete_folders(root, &inside, &mut problems) {

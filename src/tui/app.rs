@@ -382,24 +382,8 @@ struct DayExport {
     path: Option<PathBuf>,
 }
 
-/// The built history of one athlete and how far the week bars are scrolled.
-#[derive(Debug, Clone)]
-pub struct HistoryView {
-    /// Athlete id the history belongs to.
-    pub athlete: String,
-    /// Everything the view shows.
-    pub history: crate::analysis::history::History,
-    /// Weeks scrolled back from the latest week (0: the latest week is at the right edge).
-    pub week_offset: usize,
-}
-
-impl HistoryView {
-    /// Scroll the week bars by `delta` weeks (negative: back in time).
-    pub fn scroll(&mut self, delta: i64) {
-        let max = self.history.weekly.len().saturating_sub(1) as i64;
-        self.week_offset = (self.week_offset as i64 - delta).clamp(0, max) as usize;
-    }
-}
+/// The history view's state lives beside its pane.
+pub use super::panes::history_window::{HistoryView, HistoryWindow};
 
 fn now() -> DateTime<Utc> {
     Utc::now()
@@ -474,7 +458,40 @@ impl App {
         {
             self.load_revealed();
         }
+        self.reload_feedback();
         true
+    }
+
+    /// After another process wrote the journal: the open session's feedback follows the
+    /// journal (text saved elsewhere, or a draft rebuilt from grades revised elsewhere),
+    /// unless the coach is editing it or has unsaved changes here.
+    fn reload_feedback(&mut self) {
+        let Some(o) = self.open.as_ref() else { return };
+        let Some(ed) = o.feedback.as_ref() else {
+            return;
+        };
+        if ed.dirty || ed.editing || o.note.is_none() {
+            return;
+        }
+        let id = o.session_id.clone();
+        let current = ed.text();
+        let saved = self.journal.feedback(&id).ok().flatten().map(|f| f.body);
+        let was_saved = saved.is_some();
+        let text = match saved {
+            Some(body) => body,
+            None => {
+                let note = o.note.clone().flatten();
+                self.draft_text(note.as_deref())
+            }
+        };
+        let ed = TextEditor::new(&text);
+        if ed.text() != current {
+            if let Some(o) = self.open.as_mut() {
+                let mut ed = ed;
+                ed.saved = was_saved;
+                o.feedback = Some(ed);
+            }
+        }
     }
 
     /// Whether the start-up scan has begun (before it, the session counts are not known).
@@ -627,23 +644,34 @@ impl App {
             .collect();
         let latest = sums.iter().map(SessionSummary::date).max();
         let today = now().date_naive().max(latest.unwrap_or(NaiveDate::MIN));
-        let history = crate::analysis::history::build(
-            &sums,
-            &a.profile,
-            &crate::analysis::history::HistoryParams::default(),
-            today,
-        );
-        let week_offset = self
-            .history
-            .as_ref()
-            .filter(|h| h.athlete == id)
-            .map(|h| h.week_offset.min(history.weekly.len().saturating_sub(1)))
-            .unwrap_or(0);
-        self.history = Some(HistoryView {
-            athlete: id,
-            history,
-            week_offset,
-        });
+        let mut view = HistoryView::new(id.clone(), sums, a.profile.clone(), today);
+        if let Some(old) = self.history.as_ref().filter(|h| h.athlete == id) {
+            view.keep_window(&old.window);
+        }
+        self.history = Some(view);
+    }
+
+    /// Pan (`pan` weeks) or zoom the history window; at the edge, say why nothing moved.
+    fn move_history(&mut self, pan: i64, zoom: Option<bool>) {
+        let Some(h) = self.history.as_mut() else {
+            return;
+        };
+        let moved = match zoom {
+            Some(in_) => h.zoom(in_),
+            None => h.pan(pan),
+        };
+        if moved {
+            return;
+        }
+        let w = h.window;
+        let text = match (zoom, w.first) {
+            (Some(true), _) => format!("the history shows {} weeks at the narrowest", w.weeks),
+            (Some(false), _) => "the history shows every week of data".to_string(),
+            (None, _) if pan > 0 => "the history ends today".to_string(),
+            (None, Some(f)) => format!("the history starts here: first data in the week of {f}"),
+            (None, None) => "no data yet".to_string(),
+        };
+        self.say(Tone::Info, text);
     }
 
     /// Work out whether the open session's day took the athlete's acute/chronic ratio to
@@ -820,7 +848,8 @@ impl App {
                 if self.day_export.is_some() {
                     self.on_day_copied(&how);
                 } else {
-                    self.say(Tone::Done, format!("feedback copied: {how}"));
+                    // `how` says what was done ("sent to the terminal (OSC 52)", ...).
+                    self.say(Tone::Done, format!("feedback {how}"));
                 }
                 Vec::new()
             }
@@ -1050,9 +1079,22 @@ impl App {
             Action::Ruler => self.ruler(),
             Action::ClearRulers => self.clear_rulers(),
             Action::PanLeft | Action::PanRight if self.view == View::History => {
-                if let Some(h) = self.history.as_mut() {
-                    h.scroll(if action == Action::PanLeft { -1 } else { 1 });
-                }
+                // A half window at a time (←/→ move a week).
+                let half = self
+                    .history
+                    .as_ref()
+                    .map_or(1, |h| i64::from(h.window.shown_weeks().div_ceil(2)));
+                self.move_history(
+                    if action == Action::PanLeft {
+                        -half
+                    } else {
+                        half
+                    },
+                    None,
+                );
+            }
+            Action::ZoomIn | Action::ZoomOut if self.view == View::History => {
+                self.move_history(0, Some(action == Action::ZoomIn));
             }
             Action::ZoomIn | Action::ZoomOut | Action::PanLeft | Action::PanRight => {
                 if let Some(c) = self.open.as_mut().and_then(|o| o.chart.as_mut()) {
@@ -1143,9 +1185,7 @@ impl App {
 
     fn on_move(&mut self, action: Action) -> Vec<Effect> {
         if self.view == View::History && matches!(action, Action::Left | Action::Right) {
-            if let Some(h) = self.history.as_mut() {
-                h.scroll(if action == Action::Left { -1 } else { 1 });
-            }
+            self.move_history(if action == Action::Left { -1 } else { 1 }, None);
             return Vec::new();
         }
         let before = self.cursor.athlete.clone();
@@ -1328,7 +1368,9 @@ impl App {
         match target.map(|e| e.session_id.clone()) {
             Some(id) => self.open_session(&id),
             None => {
-                let text = if self.queue.is_empty() {
+                let text = if self.queue.is_empty() && self.roster.activities().next().is_none() {
+                    "no sessions in this roster: nothing to review"
+                } else if self.queue.is_empty() {
                     "the queue is empty: every session is reviewed"
                 } else if forward {
                     "no later unreviewed session"
@@ -1782,7 +1824,7 @@ impl App {
             return Vec::new();
         };
         if self.mark_sent(FeedbackEventKind::Copied) {
-            self.say(Tone::Done, "feedback copied");
+            self.say(Tone::Info, "copying the feedback");
             vec![Effect::Copy(text)]
         } else {
             Vec::new()
@@ -2086,7 +2128,7 @@ impl App {
             .map(|p| p.display().to_string())
             .unwrap_or_default();
         let text = format!(
-            "{}: {} ({}) saved to {path} and copied ({how}); {} of that day not reviewed yet",
+            "{}: {} ({}) saved to {path} and {how}; {} of that day not reviewed yet",
             d.day,
             count(d.messages.len(), "message", "messages"),
             count(sessions, "session", "sessions"),

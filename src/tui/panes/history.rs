@@ -3,6 +3,7 @@
 //! critical-speed fit, and race predictions. Everything comes from the `History` the app
 //! built when the view opened; drawing only reads it.
 
+use chrono::NaiveDate;
 use ratatui::buffer::Buffer;
 use ratatui::layout::{Constraint, Layout, Rect};
 use ratatui::style::{Color, Style};
@@ -89,21 +90,33 @@ pub fn render(app: &App, area: Rect, buf: &mut Buffer) {
     let roomy = inner.width >= ROOMY_W && inner.height >= ROOMY_H;
 
     // Top: the window, the cautions (always shown, in full) and the criticism note.
+    let weeks = hv.window.shown_weeks();
     let mut top = vec![Line::from(vec![
         Span::styled(
-            format!("{} to {}: {} session(s)", h.from, h.to, h.sessions),
+            format!(
+                "{} to {}: {} week{}, {} session{}",
+                h.from,
+                h.to,
+                weeks,
+                if weeks == 1 { "" } else { "s" },
+                h.sessions,
+                if h.sessions == 1 { "" } else { "s" }
+            ),
             t.text,
         ),
         Span::styled(
             format!(
-                "   {}/{} weeks, {} back",
+                "   {}/{} pan, {}/{} zoom, {} back",
                 app.keymap.first(Action::Left),
                 app.keymap.first(Action::Right),
+                app.keymap.first(Action::ZoomIn),
+                app.keymap.first(Action::ZoomOut),
                 app.keymap.first(Action::History)
             ),
             t.dim,
         ),
     ])];
+    let when = when(hv);
     for c in &h.cautions {
         let text = if roomy {
             c.clone()
@@ -184,8 +197,8 @@ pub fn render(app: &App, area: Rect, buf: &mut Buffer) {
         ])
         .areas(left);
         volume(t, hv, u, vol, buf);
-        load_chart(t, h, load, buf);
-        fitness_chart(t, h, fit, buf);
+        load_chart(t, h, &when, load, buf);
+        fitness_chart(t, h, &when, fit, buf);
         let [eff, best, pred] = Layout::vertical([
             Constraint::Ratio(1, 3),
             Constraint::Ratio(1, 3),
@@ -205,7 +218,7 @@ pub fn render(app: &App, area: Rect, buf: &mut Buffer) {
         let [vol, text] =
             Layout::vertical([Constraint::Length(bars_h), Constraint::Min(0)]).areas(rest);
         volume(t, hv, u, vol, buf);
-        Paragraph::new(collapsed(t, h, u))
+        Paragraph::new(collapsed(t, h, u, &when))
             .wrap(Wrap { trim: false })
             .render(text, buf);
     }
@@ -242,24 +255,33 @@ fn section_title(t: &Theme, text: String, area: Rect, buf: &mut Buffer) -> Rect 
     }
 }
 
-fn ratio_line(h: &History) -> String {
+/// "today", or "on DATE" when the window was panned back: the day the latest values are of.
+fn when(hv: &HistoryView) -> String {
+    if hv.at_today() {
+        "today".to_string()
+    } else {
+        format!("on {}", hv.window.end)
+    }
+}
+
+fn ratio_line(h: &History, when: &str) -> String {
     let b = &h.acute_chronic_bands;
     match &h.acute_chronic_latest {
         Some(l) => format!(
-            "ratio {:.2} today ({}), band {:.1}-{:.1}, caution {:.1}+",
+            "ratio {:.2} {when} ({}), band {:.1}-{:.1}, caution {:.1}+",
             l.value, l.band, b.low, b.high, b.caution
         ),
         None => format!(
-            "no ratio today; band {:.1}-{:.1}, caution {:.1}+",
+            "no ratio {when}; band {:.1}-{:.1}, caution {:.1}+",
             b.low, b.high, b.caution
         ),
     }
 }
 
-fn readiness_line(h: &History) -> String {
+fn readiness_line(h: &History, when: &str) -> String {
     let last = |s: &[DailyValue]| s.last().map(|v| v.value);
     format!(
-        "fitness {}  fatigue {}  readiness today {}",
+        "fitness {}  fatigue {}  readiness {when} {}",
         opt(last(&h.fitness), |v| fixed(v, 0)),
         opt(last(&h.fatigue), |v| fixed(v, 0)),
         opt(last(&h.readiness), |v| {
@@ -288,14 +310,14 @@ fn cs_line(h: &History, u: Units) -> String {
 }
 
 /// Every section after the week bars as a few lines (small panes).
-fn collapsed(t: &Theme, h: &History, u: Units) -> Vec<Line<'static>> {
+fn collapsed(t: &Theme, h: &History, u: Units, when: &str) -> Vec<Line<'static>> {
     let mut v = vec![Line::styled(cs_line(h, u), t.text)];
     if let Some(c) = &h.critical_speed_fit.caution {
         v.push(Line::styled(format!("Careful: {c}."), t.warn));
     }
     v.extend([
-        Line::styled(ratio_line(h), t.text),
-        Line::styled(readiness_line(h), t.text),
+        Line::styled(ratio_line(h, when), t.text),
+        Line::styled(readiness_line(h, when), t.text),
         Line::styled(format!("Efficiency: {}", h.efficiency_trend.text), t.text),
     ]);
     let l = &h.long_run_decoupling;
@@ -330,19 +352,17 @@ fn collapsed(t: &Theme, h: &History, u: Units) -> Vec<Line<'static>> {
     v
 }
 
-/// Weekly volume bars, scrolled by the view's week offset.
+/// Weekly volume bars of the window's weeks: columns as wide as fit (3 to 5 cells); when
+/// even 3 do not fit, the latest weeks of the window.
 fn volume(t: &Theme, hv: &HistoryView, u: Units, area: Rect, buf: &mut Buffer) {
     let weeks = &hv.history.weekly;
     if area.height < 3 || area.width < 6 {
         return;
     }
-    const COL: usize = 5;
-    let fit = (usize::from(area.width) / COL).max(1);
-    let end = weeks
-        .len()
-        .saturating_sub(hv.week_offset.min(weeks.len().saturating_sub(1)));
-    let start = end.saturating_sub(fit);
-    let shown = weeks.get(start..end).unwrap_or(&[]);
+    let col = (usize::from(area.width) / weeks.len().max(1)).clamp(3, 5);
+    let fit = (usize::from(area.width) / col).max(1);
+    let start = weeks.len().saturating_sub(fit);
+    let shown = weeks.get(start..).unwrap_or(&[]);
     let range = match (shown.first(), shown.last()) {
         (Some(a), Some(b)) => format!(" {} to {}", a.week, b.week),
         _ => String::new(),
@@ -367,7 +387,7 @@ fn volume(t: &Theme, hv: &HistoryView, u: Units, area: Rect, buf: &mut Buffer) {
     let full = if t.ascii { "#" } else { "█" };
     const EIGHTHS: [&str; 8] = [" ", "▁", "▂", "▃", "▄", "▅", "▆", "▇"];
     for (k, w) in shown.iter().enumerate() {
-        let x = body.x + (k * COL) as u16;
+        let x = body.x + (k * col) as u16;
         let eighths = (w.distance_m / max * f64::from(bar_rows) * 8.0).round() as u32;
         for r in 0..bar_rows {
             let y = body.y + bar_rows - 1 - r;
@@ -383,16 +403,22 @@ fn volume(t: &Theme, hv: &HistoryView, u: Units, area: Rect, buf: &mut Buffer) {
             } else {
                 EIGHTHS.get(filled as usize).copied().unwrap_or(full)
             };
-            for dx in 0..(COL as u16 - 1) {
+            for dx in 0..(col as u16 - 1) {
                 if let Some(c) = buf.cell_mut((x + dx, y)) {
                     c.set_symbol(sym).set_style(t.pace);
                 }
             }
         }
         let value = format!("{:.0}", (w.distance_m / u.metres()).max(0.0) + 0.0);
-        let label = w.week.rsplit('-').next().unwrap_or(&w.week).to_string();
-        buf.set_stringn(x, body.y + bar_rows, value, COL - 1, t.text);
-        buf.set_stringn(x, body.y + bar_rows + 1, label, COL - 1, t.dim);
+        let label = w.week.rsplit('-').next().unwrap_or(&w.week);
+        // Narrow columns drop the `W`: `44` for `W44`.
+        let label = if col - 1 < label.chars().count() {
+            label.trim_start_matches('W')
+        } else {
+            label
+        };
+        buf.set_stringn(x, body.y + bar_rows, value, col - 1, t.text);
+        buf.set_stringn(x, body.y + bar_rows + 1, label, col - 1, t.dim);
     }
 }
 
@@ -403,11 +429,17 @@ fn series_bounds<'a>(series: impl Iterator<Item = &'a f64>) -> (f64, f64) {
 }
 
 /// Daily load (vertical strokes) under the acute/chronic ratio line with its bands.
-fn load_chart(t: &Theme, h: &History, area: Rect, buf: &mut Buffer) {
-    let body = section_title(t, format!("Load · {}", ratio_line(h)), area, buf);
-    if body.height < 2 || h.daily_load.is_empty() {
+fn load_chart(t: &Theme, h: &History, when: &str, area: Rect, buf: &mut Buffer) {
+    let body = section_title(t, format!("Load · {}", ratio_line(h, when)), area, buf);
+    if body.height < 3 || h.daily_load.is_empty() {
         return;
     }
+    // The last row is the time axis: dates under the days they name.
+    let axis_y = body.y + body.height - 1;
+    let body = Rect {
+        height: body.height - 1,
+        ..body
+    };
     let b = &h.acute_chronic_bands;
     let n = h.daily_load.len() as f64;
     let max_load = h
@@ -459,11 +491,41 @@ fn load_chart(t: &Theme, h: &History, area: Rect, buf: &mut Buffer) {
             }
         })
         .render(plot, buf);
+    let days: Vec<NaiveDate> = h.daily_load.iter().map(|d| d.date).collect();
+    date_axis(t, &days, plot.x, plot.width, axis_y, buf);
+}
+
+/// Dates under a daily chart of `days` drawn `width` cells wide from `x`: the first and the
+/// last day, and days between where they fit (one label per 14 cells or more), each
+/// centred on its day's column and kept inside the chart.
+fn date_axis(t: &Theme, days: &[NaiveDate], x: u16, width: u16, y: u16, buf: &mut Buffer) {
+    const LABEL: u16 = 6; // "12 Oct"
+    const GAP: u16 = 14;
+    let n = days.len();
+    if n == 0 || width < LABEL {
+        return;
+    }
+    let labels = usize::from((width / GAP).max(1)).min(n.saturating_sub(1).max(1));
+    let mut next_free = x;
+    for k in 0..=labels {
+        let idx = (k * (n - 1)).checked_div(labels).unwrap_or(0);
+        let Some(day) = days.get(idx) else { continue };
+        let text = day.format("%-d %b").to_string();
+        let w = text.chars().count() as u16;
+        let centre = f64::from(x) + (idx as f64 + 0.5) / n as f64 * f64::from(width);
+        let at = (centre - f64::from(w) / 2.0).round().max(f64::from(x)) as u16;
+        let at = at.min((x + width).saturating_sub(w));
+        if at < next_free {
+            continue;
+        }
+        buf.set_stringn(at, y, &text, usize::from(w), t.dim);
+        next_free = at + w + 1;
+    }
 }
 
 /// Fitness and fatigue lines, readiness today in the title.
-fn fitness_chart(t: &Theme, h: &History, area: Rect, buf: &mut Buffer) {
-    let body = section_title(t, readiness_line(h), area, buf);
+fn fitness_chart(t: &Theme, h: &History, when: &str, area: Rect, buf: &mut Buffer) {
+    let body = section_title(t, readiness_line(h, when), area, buf);
     if body.height < 2 || h.fitness.is_empty() {
         return;
     }

@@ -2,6 +2,7 @@
 
 pub mod chart;
 pub mod history;
+pub mod history_window;
 pub mod roster;
 pub mod verdict;
 pub mod verdict_state;

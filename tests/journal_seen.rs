@@ -81,8 +81,14 @@ fn seen_leaves_the_queue_and_undo_brings_it_back() {
     let st = j.review_state(REPS).unwrap();
     assert_eq!(st.stage, ReviewStage::New);
     assert_eq!(st.seen_at, None);
-    assert!(!j.unmark_seen(REPS, t(41)).unwrap(), "not seen: nothing to undo");
-    assert!(!j.unmark_seen(LONG, t(41)).unwrap(), "never reviewed: nothing to undo");
+    assert!(
+        !j.unmark_seen(REPS, t(41)).unwrap(),
+        "not seen: nothing to undo"
+    );
+    assert!(
+        !j.unmark_seen(LONG, t(41)).unwrap(),
+        "never reviewed: nothing to undo"
+    );
     // Every mark and undo is kept.
     let check = j.check().unwrap();
     assert!(check.is_ok());

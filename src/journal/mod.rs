@@ -161,9 +161,10 @@ pub fn unreadable_record(
     file_path: &Path,
     now: DateTime<Utc>,
 ) -> SessionRecord {
-    let content_hash = crate::ingest::read_activity(file_path, crate::ingest::limits())
-        .map(|b| crate::ingest::hash::sha256_hex(&b))
-        .unwrap_or_else(|_| format!("unreadable:{session_id}"));
+    let content_hash =
+        crate::ingest::read_capped(file_path, crate::ingest::limits().max_file_bytes)
+            .map(|b| crate::ingest::hash::sha256_hex(&b))
+            .unwrap_or_else(|_| format!("unreadable:{session_id}"));
     let stem = session_id.rsplit('/').next().unwrap_or(session_id);
     let from_name = stem
         .get(..10)
@@ -1666,42 +1667,42 @@ fn upsert_row(
     stat: Option<&FileStat>,
     now: DateTime<Utc>,
 ) -> Result<SessionChange> {
-            let existing = session_row(tx, path, &record.session_id)?;
-            let (mut change, review_id) = match &existing {
-                None => match latest_review_for_hash(tx, path, &record.content_hash)? {
-                    Some(id) => (SessionChange::FoundReview, Some(id)),
-                    None => (SessionChange::New, None),
-                },
-                Some(row) if row.content_hash == record.content_hash => {
-                    (SessionChange::Same, row.review_id)
-                }
-                Some(row) => (SessionChange::ContentChanged, row.review_id),
-            };
-            let review_id = match review_id {
-                Some(id) => Some(id),
-                None => {
-                    let found = latest_review_for_hash(tx, path, &record.content_hash)?;
-                    if found.is_some() && change == SessionChange::New {
-                        change = SessionChange::FoundReview;
-                    }
-                    found
-                }
-            };
-            // The summary: the one given, else the one kept (same content), else one cached for
-            // the same content under another session id (a renamed file).
-            let summary = match &record.summary {
-                Some(s) => Some((s.json.clone(), s.analysis_version, s.work_intervals)),
-                None => match &existing {
-                    Some(row) if row.content_hash == record.content_hash => row.summary.clone(),
-                    _ => summary_for_hash(tx, path, &record.content_hash)?,
-                },
-            };
-            let (json, version, intervals) = match summary {
-                Some((j, v, n)) => (Some(j), Some(v), Some(n)),
-                None => (None, None, None),
-            };
-            let summary_hash = json.as_ref().map(|_| record.content_hash.as_str());
-            tx.execute(
+    let existing = session_row(tx, path, &record.session_id)?;
+    let (mut change, review_id) = match &existing {
+        None => match latest_review_for_hash(tx, path, &record.content_hash)? {
+            Some(id) => (SessionChange::FoundReview, Some(id)),
+            None => (SessionChange::New, None),
+        },
+        Some(row) if row.content_hash == record.content_hash => {
+            (SessionChange::Same, row.review_id)
+        }
+        Some(row) => (SessionChange::ContentChanged, row.review_id),
+    };
+    let review_id = match review_id {
+        Some(id) => Some(id),
+        None => {
+            let found = latest_review_for_hash(tx, path, &record.content_hash)?;
+            if found.is_some() && change == SessionChange::New {
+                change = SessionChange::FoundReview;
+            }
+            found
+        }
+    };
+    // The summary: the one given, else the one kept (same content), else one cached for
+    // the same content under another session id (a renamed file).
+    let summary = match &record.summary {
+        Some(s) => Some((s.json.clone(), s.analysis_version, s.work_intervals)),
+        None => match &existing {
+            Some(row) if row.content_hash == record.content_hash => row.summary.clone(),
+            _ => summary_for_hash(tx, path, &record.content_hash)?,
+        },
+    };
+    let (json, version, intervals) = match summary {
+        Some((j, v, n)) => (Some(j), Some(v), Some(n)),
+        None => (None, None, None),
+    };
+    let summary_hash = json.as_ref().map(|_| record.content_hash.as_str());
+    tx.execute(
                 "INSERT INTO session (session_id, athlete_id, file_path, content_hash, start_time,
                      seen_at, review_id, summary_json, summary_version, summary_hash, work_intervals)
                  VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7, ?8, ?9, ?10, ?11)
@@ -1734,12 +1735,11 @@ fn upsert_row(
                 ],
             )
             .sq(path)?;
-            if let Some(st) = stat {
-                write_file_stat(tx, path, &record.session_id, st)?;
-            }
-            Ok(change)
+    if let Some(st) = stat {
+        write_file_stat(tx, path, &record.session_id, st)?;
+    }
+    Ok(change)
 }
-
 
 struct SessionRow {
     content_hash: String,

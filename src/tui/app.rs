@@ -454,7 +454,9 @@ impl OpenSession {
 
     /// Why the session's file cannot be read, as the journal holds it.
     pub fn unreadable(&self) -> Option<&str> {
-        self.state.as_ref().and_then(|s| s.file_unreadable.as_deref())
+        self.state
+            .as_ref()
+            .and_then(|s| s.file_unreadable.as_deref())
     }
 }
 
@@ -1456,7 +1458,11 @@ impl App {
             return Vec::new();
         };
         if self.unsaved() {
-            if self.open.as_ref().is_some_and(|o| o.session_id == session_id) {
+            if self
+                .open
+                .as_ref()
+                .is_some_and(|o| o.session_id == session_id)
+            {
                 // Already open, with the edit in it: nothing to leave.
                 self.view = View::Review;
                 self.focus = Focus::Verdict;
@@ -1786,7 +1792,12 @@ impl App {
         };
         if n == 0 {
             let v = self.keymap.first(Action::CycleVerdict);
-            let text = if self.open.as_ref().and_then(OpenSession::unreadable).is_some() {
+            let text = if self
+                .open
+                .as_ref()
+                .and_then(OpenSession::unreadable)
+                .is_some()
+            {
                 format!("the file cannot be read, so there is nothing to score: give the purpose verdict ({v})")
             } else {
                 format!("no work intervals to score: give the purpose verdict ({v})")
@@ -1951,7 +1962,11 @@ impl App {
         };
         let v = self.keymap.first(Action::CycleVerdict);
         let r = self.keymap.first(Action::RevealNotes);
-        let text = if o.state.as_ref().is_some_and(|s| s.unreadable_seen.is_some()) {
+        let text = if o
+            .state
+            .as_ref()
+            .is_some_and(|s| s.unreadable_seen.is_some())
+        {
             format!("the file cannot be read: {why} · closed with the verdict; {r} reads the notes")
         } else {
             format!("the file cannot be read: {why} · {v} closes it with the purpose verdict alone, then {r} reads the notes")
@@ -1974,7 +1989,10 @@ impl App {
         let seen = match self.journal.review_state(&id) {
             Ok(st) => st.seen_at.is_some(),
             Err(JournalError::UnknownSession { .. }) => {
-                self.say(Tone::Info, "still reading this session; try again in a moment");
+                self.say(
+                    Tone::Info,
+                    "still reading this session; try again in a moment",
+                );
                 return;
             }
             Err(e) => {

@@ -1890,9 +1890,8 @@ impl App {
             Err(JournalError::NotYetGraded { missing, .. }) => {
                 let v = self.keymap.first(Action::CycleVerdict);
                 let text = match self.open.as_ref().and_then(OpenSession::unreadable) {
-                    Some(why) => format!(
-                        "the file cannot be read ({}): give the purpose verdict ({v}) first; it records that you saw this",
-                        crate::roster::printable(why)
+                    Some(_) => format!(
+                        "the file cannot be read: give the purpose verdict ({v}) first; it records that you saw this"
                     ),
                     None => format!("notes stay hidden until grading is complete: {missing}"),
                 };

@@ -394,8 +394,8 @@ fn tmux_unsaved_edit_prompt_on_next_unreviewed() {
     tmux.keys(&["]"]);
     tmux.wait_for(LEAVE_TITLE);
     tmux.keys(&["s"]);
-    // The next session is open (its name in the title bar), the edit saved on the way.
-    tmux.wait_for("2026-10-23-easy-run · [blind]");
+    // The next session is open (the roster's open mark), the edit saved on the way.
+    tmux.wait_for("•2026-10-23");
     quit(&tmux, &done);
     let out = run(&roster, &journal, &["feedback", EASY_RUN]);
     let text = String::from_utf8_lossy(&out.stdout);

@@ -280,6 +280,16 @@ fn cli_damaged_file_says_why_and_closes_with_the_verdict() {
         "{title}"
     );
     assert_eq!(broken["work_intervals"], 0);
+    assert!(broken["file_unreadable"]
+        .as_str()
+        .unwrap()
+        .starts_with("FIT: truncated"));
+    let reps = q
+        .as_array()
+        .unwrap()
+        .iter()
+        .find(|r| r["session"] == REPS_ID);
+    assert!(reps.unwrap()["file_unreadable"].is_null());
     // The note stays hidden, and the refusal says why and what to do.
     let (code, out, err) = e.run(&["notes", CLI_BROKEN]);
     assert_eq!(code, 3);

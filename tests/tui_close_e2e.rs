@@ -141,8 +141,10 @@ fn a_damaged_file_says_so_and_closes_with_the_verdict() {
     open(&mut app, BROKEN);
     let m = message(&app);
     assert!(
-        m.starts_with("the file cannot be read: FIT: truncated")
-            && m.ends_with("v closes it with the purpose verdict alone, then o reads the notes"),
+        m.starts_with(
+            "the file cannot be read: v closes it with the purpose verdict alone, \
+             then o reads the notes · FIT: truncated: header declares"
+        ),
         "{m}"
     );
     assert!(!m.contains("still analysing"), "{m}");
@@ -352,7 +354,7 @@ fn tmux_damaged_file_close_out() {
     let (tmux, roster, journal, done) = start(dir.path(), &["2026-11-06-easy-run"]);
     tmux.wait_for("1 to review");
     tmux.keys(&["]"]);
-    let s = tmux.wait_for("the file cannot be read: FIT: truncated");
+    let s = tmux.wait_for("the file cannot be read: v closes it with the purpose verdict alone");
     assert!(!s.contains("still analysing"), "{s}");
     assert!(!s.contains("Watch died"), "the note leaked:\n{s}");
     tmux.keys(&["o"]);

@@ -118,6 +118,9 @@ struct QueueOut {
     sport: String,
     /// Work intervals to score (0 for another sport: the purpose verdict is the grade).
     work_intervals: usize,
+    /// Why the session's file cannot be read (`null` when it can): such a session closes
+    /// with the purpose verdict alone.
+    file_unreadable: Option<String>,
 }
 
 fn queue_out(ws: &mut Workspace, e: &QueueEntry) -> QueueOut {
@@ -151,6 +154,7 @@ fn queue_out(ws: &mut Workspace, e: &QueueEntry) -> QueueOut {
         title,
         stage: e.stage.label(),
         content_changed: e.content_changed,
+        file_unreadable: e.file_unreadable.clone(),
     }
 }
 

@@ -1966,9 +1966,9 @@ impl App {
             .as_ref()
             .is_some_and(|s| s.unreadable_seen.is_some())
         {
-            format!("the file cannot be read: {why} · closed with the verdict; {r} reads the notes")
+            format!("the file cannot be read, closed with the verdict: {r} reads the notes · {why}")
         } else {
-            format!("the file cannot be read: {why} · {v} closes it with the purpose verdict alone, then {r} reads the notes")
+            format!("the file cannot be read: {v} closes it with the purpose verdict alone, then {r} reads the notes · {why}")
         };
         self.say(Tone::Warn, text);
     }

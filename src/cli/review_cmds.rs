@@ -42,7 +42,11 @@ fn record_unreadable_sessions(ws: &mut Workspace) -> anyhow::Result<()> {
         .collect();
     for id in ids {
         if ws.journal.session_hash(&id)?.is_none() {
-            refresh_or_unreadable(ws, &id)?;
+            // Any other failure was said by the sync already; only the journal's own stops.
+            match refresh_or_unreadable(ws, &id) {
+                Err(e) if e.downcast_ref::<JournalError>().is_some() => return Err(e),
+                _ => {}
+            }
         }
     }
     Ok(())

@@ -184,11 +184,14 @@ pub struct BiasSummary {
     pub with_tone: usize,
     /// Changed reviews whose move went against the note's tone.
     pub against_tone: usize,
+    /// Sessions marked seen without a grade: not in the check (their notes stay hidden, so
+    /// nothing could move after reading them), counted so the coach sees how many.
+    pub seen_without_grade: usize,
     /// Plain-words summary.
     pub text: String,
 }
 
-fn summarise(cases: &[&BiasCase]) -> BiasSummary {
+fn summarise(cases: &[&BiasCase], seen_without_grade: usize) -> BiasSummary {
     let reviews = cases.len();
     let changed: Vec<&&BiasCase> = cases.iter().filter(|c| c.moved()).collect();
     let mean_shift = (!changed.is_empty())
@@ -219,6 +222,11 @@ fn summarise(cases: &[&BiasCase]) -> BiasSummary {
             mean_shift.unwrap_or(0.0)
         )
     };
+    let text = match seen_without_grade {
+        0 => text,
+        1 => format!("{text}; 1 session seen without grading (not counted)"),
+        n => format!("{text}; {n} sessions seen without grading (not counted)"),
+    };
     BiasSummary {
         reviews,
         changed: changed.len(),
@@ -226,6 +234,7 @@ fn summarise(cases: &[&BiasCase]) -> BiasSummary {
         mean_shift,
         with_tone,
         against_tone,
+        seen_without_grade,
         text,
     }
 }
@@ -238,14 +247,31 @@ pub struct BiasReport {
 }
 
 pub fn report(cases: &[BiasCase]) -> BiasReport {
+    report_with_seen(cases, &[])
+}
+
+/// The bias check, also counting the sessions marked seen without a grade (`seen`: the
+/// athlete id of each such session).
+pub fn report_with_seen(cases: &[BiasCase], seen: &[String]) -> BiasReport {
     let all: Vec<&BiasCase> = cases.iter().collect();
     let mut by: BTreeMap<String, Vec<&BiasCase>> = BTreeMap::new();
     for c in cases {
         by.entry(c.input.athlete.clone()).or_default().push(c);
     }
+    let mut seen_by: BTreeMap<String, usize> = BTreeMap::new();
+    for a in seen {
+        *seen_by.entry(a.clone()).or_insert(0) += 1;
+        by.entry(a.clone()).or_default();
+    }
     BiasReport {
-        overall: summarise(&all),
-        athletes: by.into_iter().map(|(a, cs)| (a, summarise(&cs))).collect(),
+        overall: summarise(&all, seen.len()),
+        athletes: by
+            .into_iter()
+            .map(|(a, cs)| {
+                let n = seen_by.get(&a).copied().unwrap_or(0);
+                (a, summarise(&cs, n))
+            })
+            .collect(),
     }
 }
 
@@ -262,5 +288,52 @@ mod tests {
         assert_eq!(tone("ran 10k"), 0.0);
         assert_eq!(tone_label(0.5), "positive");
         assert_eq!(tone_label(0.0), "neutral");
+    }
+
+    fn case(athlete: &str, blind: u8, revised: u8) -> BiasCase {
+        let t = chrono::DateTime::<chrono::Utc>::from_timestamp(1_700_000_000, 0).unwrap();
+        BiasCase {
+            input: BiasInput {
+                session_id: format!("{athlete}/s"),
+                athlete: athlete.into(),
+                start: t,
+                revealed_at: t,
+                blind_scores: vec![(1, blind)],
+                revised_scores: vec![(1, revised)],
+                blind_verdict: Some(PurposeVerdict::Met),
+                revised_verdict: Some(PurposeVerdict::Met),
+                revisions: u32::from(blind != revised),
+            },
+            tone: Some(1.0),
+        }
+    }
+
+    #[test]
+    fn seen_sessions_are_counted_apart_from_the_reviews() {
+        let cases = [case("ana", 3, 4), case("ben", 3, 3)];
+        let seen = ["ana".to_string(), "ana".to_string(), "cleo".to_string()];
+        let r = report_with_seen(&cases, &seen);
+        assert_eq!(r.overall.reviews, 2);
+        assert_eq!(r.overall.changed, 1);
+        assert_eq!(r.overall.seen_without_grade, 3);
+        assert!(
+            r.overall
+                .text
+                .ends_with("; 3 sessions seen without grading (not counted)"),
+            "{}",
+            r.overall.text
+        );
+        assert_eq!(r.athletes["ana"].seen_without_grade, 2);
+        assert_eq!(r.athletes["ben"].seen_without_grade, 0);
+        assert!(!r.athletes["ben"].text.contains("seen"));
+        // An athlete with only seen sessions is listed, with no reviews.
+        assert_eq!(r.athletes["cleo"].reviews, 0);
+        assert_eq!(
+            r.athletes["cleo"].text,
+            "no revealed reviews yet; 1 session seen without grading (not counted)"
+        );
+        // Without seen sessions the report is the plain one.
+        assert_eq!(report(&cases).overall.seen_without_grade, 0);
+        assert_eq!(report(&cases), report_with_seen(&cases, &[]));
     }
 }

@@ -127,6 +127,17 @@ pub enum Command {
         #[arg(long)]
         json: bool,
     },
+    /// Mark a session seen: looked at, no grade. It leaves the queue and its notes stay
+    /// hidden; counted apart in the queue and the bias check. --undo brings it back.
+    Seen {
+        /// Session id: <athlete-id>/<activity-file-stem>.
+        session: String,
+        /// Bring the session back to the queue.
+        #[arg(long)]
+        undo: bool,
+        #[arg(long)]
+        json: bool,
+    },
     /// The feedback for a session: the saved text, or the draft built from the findings.
     Feedback {
         /// Session id: <athlete-id>/<activity-file-stem>.
@@ -399,6 +410,11 @@ fn run_with_journal(
             rc::grade(&mut ws, &session, &scores, verdict.as_deref(), json)
         }
         Command::Notes { session, json } => rc::notes(&mut ws, &session, json),
+        Command::Seen {
+            session,
+            undo,
+            json,
+        } => rc::seen(&mut ws, &session, undo, json),
         Command::Feedback {
             session,
             draft,

@@ -85,7 +85,50 @@ pub fn open_synced(
             }
         })
         .collect();
+    record_unreadable_sessions(&mut ws)?;
     Ok((ws, problems))
+}
+
+/// Keep in the journal every roster session whose file cannot be read, with the reason, so
+/// that it shows in the queue and the coach can close it with the verdict alone.
+fn record_unreadable_sessions(ws: &mut Workspace) -> anyhow::Result<()> {
+    let ids: Vec<String> = ws
+        .roster
+        .activities()
+        .map(|(a, x)| a.session_id(x))
+        .collect();
+    for id in ids {
+        if ws.journal.session_hash(&id)?.is_none() {
+            // Any other failure was said by the sync already; only the journal's own stops.
+            match refresh_or_unreadable(ws, &id) {
+                Err(e) if e.downcast_ref::<JournalError>().is_some() => return Err(e),
+                _ => {}
+            }
+        }
+    }
+    Ok(())
+}
+
+/// Bring one session up to date in the journal. When its file cannot be read, the session
+/// is kept in the journal as unreadable and the reason (one line, without the path) is
+/// returned: such a session closes with the purpose verdict alone.
+fn refresh_or_unreadable(ws: &mut Workspace, id: &str) -> anyhow::Result<Option<String>> {
+    use crate::workspace::WorkspaceError;
+    match ws.refresh(id, Utc::now()) {
+        Ok(_) => Ok(None),
+        Err(WorkspaceError::Ingest(e)) => {
+            let reason = e.reason();
+            let (athlete, act) = ws.find(id)?;
+            let record =
+                journal::unreadable_record(id, &athlete.id.clone(), &act.path.clone(), Utc::now());
+            match ws.journal.record_unreadable(&record, &reason, Utc::now()) {
+                // A read-only journal keeps the mark in its copy only: fine for this run.
+                Ok(_) | Err(JournalError::ReadOnly { .. }) => Ok(Some(reason)),
+                Err(e) => Err(e.into()),
+            }
+        }
+        Err(e) => Err(e.into()),
+    }
 }
 
 /// Open the workspace; when the journal cannot be written, say so once on stderr (reading
@@ -136,11 +179,22 @@ struct QueueOut {
     sport: String,
     /// Work intervals to score (0 for another sport: the purpose verdict is the grade).
     work_intervals: usize,
+    /// Why the session's file cannot be read (`null` when it can): such a session closes
+    /// with the purpose verdict alone.
+    file_unreadable: Option<String>,
 }
 
 fn queue_out(ws: &mut Workspace, e: &QueueEntry) -> QueueOut {
-    let review = ws.refresh(&e.session_id, Utc::now()).ok();
-    let title = review.as_ref().map(title).unwrap_or_default();
+    let review = if e.file_unreadable.is_some() {
+        None
+    } else {
+        ws.refresh(&e.session_id, Utc::now()).ok()
+    };
+    let title = match (&review, &e.file_unreadable) {
+        (Some(r), _) => title(r),
+        (None, Some(why)) => format!("file cannot be read: {why}"),
+        (None, None) => String::new(),
+    };
     let sport = review
         .as_ref()
         .map(|r| {
@@ -161,6 +215,7 @@ fn queue_out(ws: &mut Workspace, e: &QueueEntry) -> QueueOut {
         title,
         stage: e.stage.label(),
         content_changed: e.content_changed,
+        file_unreadable: e.file_unreadable.clone(),
     }
 }
 
@@ -179,9 +234,16 @@ pub fn queue(ws: &mut Workspace, athlete: Option<&str>, json: bool) -> anyhow::R
             (0, None) => println!("no sessions in this roster: nothing to review"),
             _ => println!("nothing to review"),
         }
-        return Ok(0);
+    } else {
+        print!("{}", queue_table(&rows));
     }
-    print!("{}", queue_table(&rows));
+    let seen = ws.journal.seen_sessions(athlete)?.len();
+    if seen > 0 {
+        println!(
+            "({} marked seen without a grade, not listed; `splitdesk seen SESSION --undo` brings one back)",
+            plural(seen, "session", "sessions")
+        );
+    }
     Ok(0)
 }
 
@@ -277,13 +339,19 @@ pub fn grade(
     verdict: Option<&str>,
     json: bool,
 ) -> anyhow::Result<i32> {
-    ws.refresh(id, Utc::now())?;
+    let unreadable = refresh_or_unreadable(ws, id)?;
     let verdict = match verdict {
         Some(v) => Some(PurposeVerdict::parse(v).with_context(|| {
             format!("--verdict {v:?}: expected met, partly or missed; nothing was saved")
         })?),
         None => None,
     };
+    if let (Some(why), false) = (&unreadable, scores.is_empty()) {
+        bail!(
+            "{id}: the file cannot be read ({why}), so it has no work intervals to score; \
+             close it with the purpose verdict alone (--verdict met|partly|missed); nothing was saved"
+        );
+    }
     // Checked as a whole, then written in one transaction: all of it or nothing.
     ws.journal
         .grade(id, scores, verdict, Utc::now())
@@ -314,20 +382,53 @@ pub fn grade(
                 _ => "not set".into(),
             }
         );
-        if !out.missing.is_empty() {
+        if out.missing != journal::Missing::default().to_string() {
             println!("still needed before the notes: {}", out.missing);
+        }
+        if let Some(line) = close_line(ws, id)? {
+            println!("{line}");
         }
     }
     Ok(0)
 }
 
+/// After a verdict-only grade: what it closed and what comes next, in one line.
+fn close_line(ws: &Workspace, id: &str) -> anyhow::Result<Option<String>> {
+    let st = ws.journal.review_state(id)?;
+    if st.revealed_at.is_some() || !st.missing.is_empty() || st.work_intervals != Some(0) {
+        return Ok(None);
+    }
+    Ok(Some(match &st.unreadable_seen {
+        Some(why) => format!(
+            "closed with the verdict alone: the file cannot be read ({why}), and the verdict \
+             records that you saw this; the notes can be read now (splitdesk notes {id})"
+        ),
+        None => format!(
+            "quick close: no work intervals, so the purpose verdict is the whole blind grade; \
+             the notes can be read now (splitdesk notes {id})"
+        ),
+    }))
+}
+
 /// `splitdesk notes SESSION`: the athlete's note, once grading is complete (else exit 3).
 pub fn notes(ws: &mut Workspace, id: &str, json: bool) -> anyhow::Result<i32> {
-    ws.refresh(id, Utc::now())?;
+    let unreadable = refresh_or_unreadable(ws, id)?;
     let permit = match ws.journal.reveal(id, Utc::now()) {
         Ok(p) => p,
         Err(JournalError::NotYetGraded { missing, .. }) => {
-            let message = format!("{id}: notes stay hidden until grading is complete: {missing}");
+            let st = ws.journal.review_state(id)?;
+            let message = match (&unreadable, st.work_intervals) {
+                (Some(why), _) => format!(
+                    "{id}: the file cannot be read ({why}); the notes stay hidden until \
+                     you give the purpose verdict, which records that you saw this \
+                     (splitdesk grade {id} --verdict met|partly|missed)"
+                ),
+                (None, Some(0)) => format!(
+                    "{id}: notes stay hidden until grading is complete: {missing} \
+                     (no work intervals: splitdesk grade {id} --verdict met|partly|missed closes it)"
+                ),
+                _ => format!("{id}: notes stay hidden until grading is complete: {missing}"),
+            };
             eprintln!("error: {message}");
             if json {
                 crate::cli::out::json_error(
@@ -354,6 +455,45 @@ pub fn notes(ws: &mut Workspace, id: &str, json: bool) -> anyhow::Result<i32> {
             Some(n) => println!("{}", n.trim_end()),
             None => println!("(no note from the athlete)"),
         }
+    }
+    Ok(0)
+}
+
+/// `splitdesk seen SESSION [--undo]`: mark a session as looked at without a grade (out of
+/// the queue, notes hidden), or bring it back.
+pub fn seen(ws: &mut Workspace, id: &str, undo: bool, json: bool) -> anyhow::Result<i32> {
+    refresh_or_unreadable(ws, id)?;
+    let result = if undo {
+        ws.journal.unmark_seen(id, Utc::now())
+    } else {
+        ws.journal.mark_seen(id, Utc::now())
+    };
+    let changed = match result {
+        Ok(c) => c,
+        Err(JournalError::AlreadyRevealed { .. }) => bail!(
+            "{id}: the notes are revealed already, so the session is reviewed; \
+             nothing to mark (nothing was saved)"
+        ),
+        Err(e) => return Err(nothing_saved(e)),
+    };
+    let st = ws.journal.review_state(id)?;
+    if json {
+        crate::cli::out::json(&serde_json::json!({
+            "session": id,
+            "seen": st.seen_at.is_some(),
+            "changed": changed,
+            "stage": st.stage.label(),
+        }))?;
+        return Ok(0);
+    }
+    match (undo, changed) {
+        (false, true) => println!(
+            "{id}: marked seen without a grade; it is out of the queue and its notes stay \
+             hidden (undo: splitdesk seen {id} --undo)"
+        ),
+        (false, false) => println!("{id}: already marked seen; nothing changed"),
+        (true, true) => println!("{id}: back in the queue ({})", st.stage.label()),
+        (true, false) => println!("{id}: was not marked seen; nothing changed"),
     }
     Ok(0)
 }
@@ -555,7 +695,7 @@ pub fn export_feedback(
         .sessions(None)?
         .into_iter()
         .rev()
-        .filter(|e| filter.keeps(e) && !e.stage.is_unreviewed())
+        .filter(|e| filter.keeps(e) && e.stage.is_revealed())
         .collect();
     let mut blocks = Vec::new();
     let mut not_recorded = false;
@@ -687,7 +827,7 @@ fn export_day(
         .collect();
     entries.sort_by(|a, b| (a.start, &a.session_id).cmp(&(b.start, &b.session_id)));
     let (pending, done): (Vec<QueueEntry>, Vec<QueueEntry>) =
-        entries.into_iter().partition(|e| e.stage.is_unreviewed());
+        entries.into_iter().partition(|e| !e.stage.is_revealed());
     // Athletes in roster order; any the roster no longer lists after them, by id.
     let mut athletes: Vec<String> = ws
         .roster
@@ -984,7 +1124,13 @@ pub fn bias_check(ws: &mut Workspace, athlete: Option<&str>, json: bool) -> anyh
         };
         cases.push(crate::bias::BiasCase { input, tone });
     }
-    let report = crate::bias::report(&cases);
+    let seen: Vec<String> = ws
+        .journal
+        .seen_sessions(athlete)?
+        .into_iter()
+        .map(|e| e.athlete)
+        .collect();
+    let report = crate::bias::report_with_seen(&cases, &seen);
     if json {
         crate::cli::out::json(&report)?;
     } else {

@@ -134,6 +134,10 @@ pub enum JournalError {
     #[error("{path}: {session_id}: the notes have not been revealed yet")]
     NotRevealed { path: PathBuf, session_id: String },
 
+    /// Marking seen belongs before the reveal: a revealed session is reviewed already.
+    #[error("{path}: {session_id}: the notes are revealed already; the session is reviewed")]
+    AlreadyRevealed { path: PathBuf, session_id: String },
+
     /// The session id is not in the journal (call `upsert_session` first).
     #[error("{path}: unknown session {session_id}")]
     UnknownSession { path: PathBuf, session_id: String },

@@ -24,6 +24,12 @@
 //! [`Revision`] beside the blind value, which is never overwritten. Feedback can be saved and
 //! sent only after the reveal.
 //!
+//! A session whose file cannot be read has no analysis: its number of work intervals is
+//! taken as zero, so the purpose verdict alone completes its blind grading, and that verdict
+//! also records that the coach saw the problem ([`ReviewState::unreadable_seen`]). Any
+//! session can instead be marked *seen* ([`Journal::mark_seen`]): it leaves the queue, its
+//! note stays hidden.
+//!
 //! # Reviews follow the content
 //!
 //! A review is created for the content hash of the session's file at the time of the first
@@ -142,6 +148,43 @@ fn parse_score(path: &Path, s: &str) -> Result<u8> {
             path: path.to_path_buf(),
             detail: format!("score {s:?}"),
         })
+}
+
+/// The journal record of a session whose file cannot be read (for
+/// [`Journal::record_unreadable`]): the content hash of its bytes when they can be read at
+/// all (within the size cap), else a stand-in naming the session; the start from the date
+/// at the head of the file name (`2026-11-06-easy-run`), else the file's modification time,
+/// else `now`.
+pub fn unreadable_record(
+    session_id: &str,
+    athlete_id: &str,
+    file_path: &Path,
+    now: DateTime<Utc>,
+) -> SessionRecord {
+    let content_hash =
+        crate::ingest::read_capped(file_path, crate::ingest::limits().max_file_bytes)
+            .map(|b| crate::ingest::hash::sha256_hex(&b))
+            .unwrap_or_else(|_| format!("unreadable:{session_id}"));
+    let stem = session_id.rsplit('/').next().unwrap_or(session_id);
+    let from_name = stem
+        .get(..10)
+        .and_then(|d| chrono::NaiveDate::parse_from_str(d, "%Y-%m-%d").ok())
+        .and_then(|d| d.and_hms_opt(12, 0, 0))
+        .map(|d| d.and_utc());
+    let from_mtime = || {
+        fs::metadata(file_path)
+            .and_then(|m| m.modified())
+            .ok()
+            .map(DateTime::<Utc>::from)
+    };
+    SessionRecord {
+        session_id: session_id.to_string(),
+        athlete_id: athlete_id.to_string(),
+        file_path: file_path.to_path_buf(),
+        content_hash,
+        start: from_name.or_else(from_mtime).unwrap_or(now),
+        summary: None,
+    }
 }
 
 /// What an existing file turned out to be.
@@ -651,79 +694,40 @@ impl Journal {
         stat: Option<&FileStat>,
         now: DateTime<Utc>,
     ) -> Result<SessionChange> {
+        self.write_cache(|tx, path| upsert_row(tx, path, record, stat, now))
+    }
+
+    /// Record a session whose file cannot be read (`reason`, one line), so that the coach can
+    /// see it and close it with the purpose verdict alone. `record.content_hash` is the hash
+    /// of the bytes when they could be read (see [`unreadable_record`]) and
+    /// `record.start` the best known start (the date in the file name); its summary is
+    /// ignored. A later successful [`Journal::upsert_session`] clears the mark.
+    pub fn record_unreadable(
+        &mut self,
+        record: &SessionRecord,
+        reason: &str,
+        now: DateTime<Utc>,
+    ) -> Result<SessionChange> {
+        let record = SessionRecord {
+            summary: None,
+            ..record.clone()
+        };
         self.write_cache(|tx, path| {
-            let existing = session_row(tx, path, &record.session_id)?;
-            let (mut change, review_id) = match &existing {
-                None => match latest_review_for_hash(tx, path, &record.content_hash)? {
-                    Some(id) => (SessionChange::FoundReview, Some(id)),
-                    None => (SessionChange::New, None),
-                },
-                Some(row) if row.content_hash == record.content_hash => {
-                    (SessionChange::Same, row.review_id)
-                }
-                Some(row) => (SessionChange::ContentChanged, row.review_id),
-            };
-            let review_id = match review_id {
-                Some(id) => Some(id),
-                None => {
-                    let found = latest_review_for_hash(tx, path, &record.content_hash)?;
-                    if found.is_some() && change == SessionChange::New {
-                        change = SessionChange::FoundReview;
-                    }
-                    found
-                }
-            };
-            // The summary: the one given, else the one kept (same content), else one cached for
-            // the same content under another session id (a renamed file).
-            let summary = match &record.summary {
-                Some(s) => Some((s.json.clone(), s.analysis_version, s.work_intervals)),
-                None => match &existing {
-                    Some(row) if row.content_hash == record.content_hash => row.summary.clone(),
-                    _ => summary_for_hash(tx, path, &record.content_hash)?,
-                },
-            };
-            let (json, version, intervals) = match summary {
-                Some((j, v, n)) => (Some(j), Some(v), Some(n)),
-                None => (None, None, None),
-            };
-            let summary_hash = json.as_ref().map(|_| record.content_hash.as_str());
+            let change = upsert_row(tx, path, &record, None, now)?;
             tx.execute(
-                "INSERT INTO session (session_id, athlete_id, file_path, content_hash, start_time,
-                     seen_at, review_id, summary_json, summary_version, summary_hash, work_intervals)
-                 VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7, ?8, ?9, ?10, ?11)
-                 ON CONFLICT (session_id) DO UPDATE SET
-                     athlete_id = excluded.athlete_id, file_path = excluded.file_path,
-                     content_hash = excluded.content_hash, start_time = excluded.start_time,
-                     seen_at = excluded.seen_at, review_id = excluded.review_id,
-                     summary_json = excluded.summary_json,
-                     summary_version = excluded.summary_version,
-                     summary_hash = excluded.summary_hash,
-                     work_intervals = excluded.work_intervals,
-                     file_size = CASE WHEN session.content_hash = excluded.content_hash
-                         AND session.file_path = excluded.file_path THEN session.file_size END,
-                     file_mtime_ns = CASE WHEN session.content_hash = excluded.content_hash
-                         AND session.file_path = excluded.file_path
-                         THEN session.file_mtime_ns END",
-                params![
-                    record.session_id,
-                    record.athlete_id,
-                    record.file_path.to_string_lossy(),
-                    record.content_hash,
-                    ts(record.start),
-                    ts(now),
-                    review_id,
-                    json,
-                    version,
-                    summary_hash,
-                    intervals,
-                ],
+                "UPDATE session SET unreadable = ?2, summary_json = NULL, summary_version = NULL,
+                     summary_hash = NULL, work_intervals = NULL
+                 WHERE session_id = ?1",
+                params![record.session_id, reason],
             )
             .sq(path)?;
-            if let Some(st) = stat {
-                write_file_stat(tx, path, &record.session_id, st)?;
-            }
             Ok(change)
         })
+    }
+
+    /// Whether the journal holds the session as unreadable, and why.
+    pub fn unreadable(&self, session_id: &str) -> Result<Option<String>> {
+        self.read(|conn, path| Ok(require_session(conn, path, session_id)?.unreadable))
     }
 
     /// Store an analysis summary computed for `content_hash`. Ignored (returns `false`) when
@@ -919,7 +923,7 @@ impl Journal {
                 let n = if revealed {
                     review.as_ref().and_then(|r| r.work_intervals).unwrap_or(0)
                 } else {
-                    row.work_intervals
+                    row.intervals_to_grade()
                         .ok_or_else(|| JournalError::NotAnalysed {
                             path: path.to_path_buf(),
                             session_id: session_id.to_string(),
@@ -943,6 +947,15 @@ impl Journal {
             }
             if let Some(v) = verdict {
                 write_verdict(tx, path, session_id, rid, revealed, v, now)?;
+                // The blind verdict of a file that cannot be read records that the coach was
+                // shown the problem.
+                if let (false, Some(why)) = (revealed, &row.unreadable) {
+                    tx.execute(
+                        "UPDATE review SET file_unreadable = ?2 WHERE id = ?1",
+                        params![rid, why],
+                    )
+                    .sq(path)?;
+                }
             }
             Ok(())
         })
@@ -964,13 +977,13 @@ impl Journal {
                 }
             }
             let n = row
-                .work_intervals
+                .intervals_to_grade()
                 .ok_or_else(|| JournalError::NotAnalysed {
                     path: path.to_path_buf(),
                     session_id: session_id.to_string(),
                 })?;
             let (scored, has_verdict) = match (&review, row.review_id) {
-                (Some(r), Some(rid)) => (scored_intervals(tx, path, rid)?, r.verdict.is_some()),
+                (Some(r), Some(rid)) => (scored_intervals(tx, path, rid)?, r.verdict_counts(&row)),
                 _ => (BTreeMap::new(), false),
             };
             let missing = missing_of(n, &scored, has_verdict);
@@ -998,15 +1011,18 @@ impl Journal {
                 return Ok(ReviewState {
                     stage: ReviewStage::New,
                     content_changed: false,
-                    work_intervals: row.work_intervals,
+                    work_intervals: row.intervals_to_grade(),
                     scores: Vec::new(),
                     verdict: None,
                     revealed_at: None,
                     missing: missing_of(
-                        row.work_intervals.unwrap_or(0),
+                        row.intervals_to_grade().unwrap_or(0),
                         &BTreeMap::<u32, ()>::new(),
                         false,
                     ),
+                    file_unreadable: row.unreadable.clone(),
+                    unreadable_seen: None,
+                    seen_at: None,
                 });
             };
             let review = review_row(conn, path, rid)?;
@@ -1017,7 +1033,7 @@ impl Journal {
             let n = if revealed_at.is_some() {
                 review.work_intervals
             } else {
-                row.work_intervals
+                row.intervals_to_grade()
             };
             let blind = scored_intervals(conn, path, rid)?;
             let mut scores = Vec::with_capacity(blind.len());
@@ -1044,14 +1060,19 @@ impl Journal {
             let missing = if revealed_at.is_some() {
                 Missing::default()
             } else {
-                missing_of(n.unwrap_or(0), &blind, verdict.is_some())
+                missing_of(n.unwrap_or(0), &blind, review.verdict_counts(&row))
             };
             let sent = feedback_sent(conn, path, rid)?;
+            let seen_at = match seen_mark(conn, path, rid)? {
+                Some((true, at)) => Some(parse_ts(path, &at)?),
+                _ => None,
+            };
             let stage = stage_of(
                 !blind.is_empty() || verdict.is_some(),
                 n.is_some() && missing.is_empty(),
                 revealed_at.is_some(),
                 sent,
+                seen_at.is_some(),
             );
             Ok(ReviewState {
                 stage,
@@ -1061,6 +1082,9 @@ impl Journal {
                 verdict,
                 revealed_at,
                 missing,
+                file_unreadable: row.unreadable.clone(),
+                unreadable_seen: review.file_unreadable.clone(),
+                seen_at,
             })
         })
     }
@@ -1274,6 +1298,58 @@ impl Journal {
         })
     }
 
+    // ----- seen -----
+
+    /// Mark a session as looked at without a grade: it leaves the daily queue and its note
+    /// stays hidden (no reveal permit comes of it). Grades already given are kept. Returns
+    /// `false` when it was marked seen already (nothing recorded). Refused with
+    /// [`JournalError::AlreadyRevealed`] once the notes are revealed. Undo with
+    /// [`Journal::unmark_seen`]; every mark and undo is kept.
+    pub fn mark_seen(&mut self, session_id: &str, now: DateTime<Utc>) -> Result<bool> {
+        self.set_seen(session_id, true, now)
+    }
+
+    /// Bring a session marked seen back to the queue. Returns `false` when it was not marked
+    /// seen (nothing recorded).
+    pub fn unmark_seen(&mut self, session_id: &str, now: DateTime<Utc>) -> Result<bool> {
+        self.set_seen(session_id, false, now)
+    }
+
+    fn set_seen(&mut self, session_id: &str, seen: bool, now: DateTime<Utc>) -> Result<bool> {
+        self.write(|tx, path| {
+            let row = require_session(tx, path, session_id)?;
+            if let Some(rid) = row.review_id {
+                if review_row(tx, path, rid)?.revealed_at.is_some() {
+                    return Err(JournalError::AlreadyRevealed {
+                        path: path.to_path_buf(),
+                        session_id: session_id.to_string(),
+                    });
+                }
+                let now_seen = matches!(seen_mark(tx, path, rid)?, Some((true, _)));
+                if now_seen == seen {
+                    return Ok(false);
+                }
+            } else if !seen {
+                return Ok(false);
+            }
+            let rid = ensure_review(tx, path, &row, now)?;
+            tx.execute(
+                "INSERT INTO seen_event (review_id, seen, at) VALUES (?1, ?2, ?3)",
+                params![rid, i64::from(seen), ts(now)],
+            )
+            .sq(path)?;
+            Ok(true)
+        })
+    }
+
+    /// Sessions marked seen without a grade (stage `Seen`), oldest first, optionally for one
+    /// athlete.
+    pub fn seen_sessions(&self, athlete: Option<&str>) -> Result<Vec<QueueEntry>> {
+        let mut all = self.overview(athlete)?;
+        all.retain(|e| e.stage == ReviewStage::Seen);
+        Ok(all)
+    }
+
     // ----- lists -----
 
     /// Sessions with their review stage, newest first (the roster pane), optionally for one
@@ -1284,7 +1360,8 @@ impl Journal {
         Ok(all)
     }
 
-    /// The review queue: sessions not yet reviewed (stage below `Revealed`), oldest first.
+    /// The review queue: sessions not yet reviewed (stage `New`, `Grading` or `Graded`; a
+    /// session marked seen is out of it), oldest first.
     pub fn unreviewed(&self, athlete: Option<&str>) -> Result<Vec<QueueEntry>> {
         let mut all = self.overview(athlete)?;
         all.retain(|e| e.stage.is_unreviewed());
@@ -1310,13 +1387,18 @@ impl Journal {
                     r.id IS NOT NULL AND r.content_hash <> s.content_hash,
                     r.revealed_at IS NOT NULL,
                     coalesce(CASE WHEN r.revealed_at IS NOT NULL THEN r.work_intervals END,
-                             s.work_intervals),
+                             s.work_intervals,
+                             CASE WHEN s.unreadable IS NOT NULL THEN 0 END),
                     r.verdict IS NOT NULL,
                     (SELECT count(*) FROM score c WHERE c.review_id = r.id),
                     (SELECT count(*) FROM score c WHERE c.review_id = r.id AND c.interval_no <=
                         coalesce(CASE WHEN r.revealed_at IS NOT NULL THEN r.work_intervals END,
                                  s.work_intervals, 0)),
-                    EXISTS (SELECT 1 FROM feedback_event e WHERE e.review_id = r.id)
+                    EXISTS (SELECT 1 FROM feedback_event e WHERE e.review_id = r.id),
+                    coalesce((SELECT v.seen FROM seen_event v WHERE v.review_id = r.id
+                              ORDER BY v.id DESC LIMIT 1), 0) = 1,
+                    s.unreadable,
+                    r.file_unreadable IS NOT NULL
                  FROM session s LEFT JOIN review r ON r.id = s.review_id
                  WHERE ?1 IS NULL OR s.athlete_id = ?1
                  ORDER BY s.start_time, s.session_id",
@@ -1334,6 +1416,9 @@ impl Journal {
             u32,
             u32,
             bool,
+            bool,
+            Option<String>,
+            bool,
         );
         let raw: Vec<Raw> = stmt
             .query_map([athlete], |r| Raw::try_from(r))
@@ -1342,15 +1427,34 @@ impl Journal {
             .sq(path)?;
         raw.into_iter()
             .map(
-                |(id, athlete, start, file, changed, revealed, n, verdict, any, scored, sent)| {
-                    let complete = n.is_some_and(|n| scored >= n) && verdict;
+                |(
+                    id,
+                    athlete,
+                    start,
+                    file,
+                    changed,
+                    revealed,
+                    n,
+                    verdict,
+                    any,
+                    scored,
+                    sent,
+                    seen,
+                    unreadable,
+                    unreadable_seen,
+                )| {
+                    // As in `ReviewRow::verdict_counts`: for a file that cannot be read, only
+                    // a verdict given while the problem was shown counts.
+                    let verdict_counts = verdict && (unreadable.is_none() || unreadable_seen);
+                    let complete = n.is_some_and(|n| scored >= n) && verdict_counts;
                     Ok(QueueEntry {
                         session_id: id,
                         athlete,
                         start: parse_ts(path, &start)?,
                         file_path: PathBuf::from(file),
-                        stage: stage_of(any > 0 || verdict, complete, revealed, sent),
+                        stage: stage_of(any > 0 || verdict, complete, revealed, sent, seen),
                         content_changed: changed,
+                        file_unreadable: unreadable,
                     })
                 },
             )
@@ -1554,6 +1658,89 @@ impl Journal {
 
 // ----- row helpers (shared by read and write paths) -----
 
+/// Insert or refresh a session row (see [`Journal::upsert_session_with_stat`]); a session
+/// row written here is readable again, so its unreadable mark is cleared.
+fn upsert_row(
+    tx: &Connection,
+    path: &Path,
+    record: &SessionRecord,
+    stat: Option<&FileStat>,
+    now: DateTime<Utc>,
+) -> Result<SessionChange> {
+    let existing = session_row(tx, path, &record.session_id)?;
+    let (mut change, review_id) = match &existing {
+        None => match latest_review_for_hash(tx, path, &record.content_hash)? {
+            Some(id) => (SessionChange::FoundReview, Some(id)),
+            None => (SessionChange::New, None),
+        },
+        Some(row) if row.content_hash == record.content_hash => {
+            (SessionChange::Same, row.review_id)
+        }
+        Some(row) => (SessionChange::ContentChanged, row.review_id),
+    };
+    let review_id = match review_id {
+        Some(id) => Some(id),
+        None => {
+            let found = latest_review_for_hash(tx, path, &record.content_hash)?;
+            if found.is_some() && change == SessionChange::New {
+                change = SessionChange::FoundReview;
+            }
+            found
+        }
+    };
+    // The summary: the one given, else the one kept (same content), else one cached for
+    // the same content under another session id (a renamed file).
+    let summary = match &record.summary {
+        Some(s) => Some((s.json.clone(), s.analysis_version, s.work_intervals)),
+        None => match &existing {
+            Some(row) if row.content_hash == record.content_hash => row.summary.clone(),
+            _ => summary_for_hash(tx, path, &record.content_hash)?,
+        },
+    };
+    let (json, version, intervals) = match summary {
+        Some((j, v, n)) => (Some(j), Some(v), Some(n)),
+        None => (None, None, None),
+    };
+    let summary_hash = json.as_ref().map(|_| record.content_hash.as_str());
+    tx.execute(
+                "INSERT INTO session (session_id, athlete_id, file_path, content_hash, start_time,
+                     seen_at, review_id, summary_json, summary_version, summary_hash, work_intervals)
+                 VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7, ?8, ?9, ?10, ?11)
+                 ON CONFLICT (session_id) DO UPDATE SET
+                     athlete_id = excluded.athlete_id, file_path = excluded.file_path,
+                     content_hash = excluded.content_hash, start_time = excluded.start_time,
+                     seen_at = excluded.seen_at, review_id = excluded.review_id,
+                     summary_json = excluded.summary_json,
+                     summary_version = excluded.summary_version,
+                     summary_hash = excluded.summary_hash,
+                     work_intervals = excluded.work_intervals,
+                     file_size = CASE WHEN session.content_hash = excluded.content_hash
+                         AND session.file_path = excluded.file_path THEN session.file_size END,
+                     file_mtime_ns = CASE WHEN session.content_hash = excluded.content_hash
+                         AND session.file_path = excluded.file_path
+                         THEN session.file_mtime_ns END,
+                     unreadable = NULL",
+                params![
+                    record.session_id,
+                    record.athlete_id,
+                    record.file_path.to_string_lossy(),
+                    record.content_hash,
+                    ts(record.start),
+                    ts(now),
+                    review_id,
+                    json,
+                    version,
+                    summary_hash,
+                    intervals,
+                ],
+            )
+            .sq(path)?;
+    if let Some(st) = stat {
+        write_file_stat(tx, path, &record.session_id, st)?;
+    }
+    Ok(change)
+}
+
 struct SessionRow {
     content_hash: String,
     file_path: PathBuf,
@@ -1561,6 +1748,17 @@ struct SessionRow {
     review_id: Option<i64>,
     work_intervals: Option<u32>,
     summary: Option<(String, u32, u32)>,
+    /// Why the file cannot be read, when it cannot.
+    unreadable: Option<String>,
+}
+
+impl SessionRow {
+    /// Work intervals to score before the reveal: the analysis's count, or zero for a file
+    /// that cannot be read (it has no analysis; the purpose verdict alone grades it).
+    fn intervals_to_grade(&self) -> Option<u32> {
+        self.work_intervals
+            .or_else(|| self.unreadable.as_ref().map(|_| 0))
+    }
 }
 
 fn session_row(conn: &Connection, path: &Path, session_id: &str) -> Result<Option<SessionRow>> {
@@ -1568,7 +1766,7 @@ fn session_row(conn: &Connection, path: &Path, session_id: &str) -> Result<Optio
         "SELECT content_hash, file_path, review_id,
             CASE WHEN summary_hash = content_hash THEN work_intervals END,
             CASE WHEN summary_hash = content_hash THEN summary_json END,
-            summary_version, work_intervals
+            summary_version, work_intervals, unreadable
          FROM session WHERE session_id = ?1",
         [session_id],
         |r| {
@@ -1594,6 +1792,7 @@ fn session_row(conn: &Connection, path: &Path, session_id: &str) -> Result<Optio
                     (Some(j), Some(v), Some(n)) => Some((j, v, n)),
                     _ => None,
                 },
+                unreadable: cache_text(r.get_ref(7)?),
             })
         },
     )
@@ -1698,11 +1897,20 @@ struct ReviewRow {
     verdict_at: Option<String>,
     revealed_at: Option<String>,
     work_intervals: Option<u32>,
+    file_unreadable: Option<String>,
+}
+
+impl ReviewRow {
+    /// The blind verdict counts toward the reveal: always for a readable file; for one that
+    /// cannot be read, only when it was given while the coach was shown that problem.
+    fn verdict_counts(&self, row: &SessionRow) -> bool {
+        self.verdict.is_some() && (row.unreadable.is_none() || self.file_unreadable.is_some())
+    }
 }
 
 fn review_row(conn: &Connection, path: &Path, id: i64) -> Result<ReviewRow> {
     conn.query_row(
-        "SELECT content_hash, verdict, verdict_at, revealed_at, work_intervals
+        "SELECT content_hash, verdict, verdict_at, revealed_at, work_intervals, file_unreadable
          FROM review WHERE id = ?1",
         [id],
         |r| {
@@ -1712,6 +1920,7 @@ fn review_row(conn: &Connection, path: &Path, id: i64) -> Result<ReviewRow> {
                 verdict_at: r.get(2)?,
                 revealed_at: r.get(3)?,
                 work_intervals: r.get(4)?,
+                file_unreadable: r.get(5)?,
             })
         },
     )
@@ -1906,6 +2115,17 @@ fn write_verdict(
     Ok(())
 }
 
+/// The latest seen mark of a review: (seen, at); `None` when never marked.
+fn seen_mark(conn: &Connection, path: &Path, rid: i64) -> Result<Option<(bool, String)>> {
+    conn.query_row(
+        "SELECT seen, at FROM seen_event WHERE review_id = ?1 ORDER BY id DESC LIMIT 1",
+        [rid],
+        |r| Ok((r.get::<_, i64>(0)? == 1, r.get::<_, String>(1)?)),
+    )
+    .optional()
+    .sq(path)
+}
+
 fn feedback_sent(conn: &Connection, path: &Path, rid: i64) -> Result<bool> {
     conn.query_row(
         "SELECT EXISTS (SELECT 1 FROM feedback_event WHERE review_id = ?1)",
@@ -1936,10 +2156,17 @@ fn missing_of<V>(n: u32, scored: &BTreeMap<u32, V>, has_verdict: bool) -> Missin
     }
 }
 
-fn stage_of(any_grade: bool, complete: bool, revealed: bool, sent: bool) -> ReviewStage {
+fn stage_of(
+    any_grade: bool,
+    complete: bool,
+    revealed: bool,
+    sent: bool,
+    seen: bool,
+) -> ReviewStage {
     match (revealed, sent) {
         (true, true) => ReviewStage::FeedbackDone,
         (true, false) => ReviewStage::Revealed,
+        _ if seen => ReviewStage::Seen,
         _ if complete => ReviewStage::Graded,
         _ if any_grade => ReviewStage::Grading,
         _ => ReviewStage::New,

@@ -99,6 +99,27 @@ CREATE INDEX ruler_by_review ON ruler (review_id, id);
 ALTER TABLE session ADD COLUMN file_size INTEGER CHECK (file_size >= 0);
 ALTER TABLE session ADD COLUMN file_mtime_ns INTEGER;
 "#,
+    // 3: closing sessions without a full grading.
+    // - `session.unreadable`: why the session's file cannot be read (derived, like the
+    //   analysis cache: cleared when the file reads again). Such a session has no analysis;
+    //   its number of work intervals is taken as zero, so its blind grade is the purpose
+    //   verdict alone.
+    // - `review.file_unreadable`: the problem the coach was shown when giving the blind
+    //   verdict of a session whose file could not be read: the record that they saw it.
+    // - `seen_event`: a session marked as looked at without a grade (`seen = 1`) or brought
+    //   back to the queue (`seen = 0`); the latest event is in force, none kept is unseen.
+    //   Events are only added, never changed, like every other record of the coach's.
+    r#"
+ALTER TABLE session ADD COLUMN unreadable TEXT;
+ALTER TABLE review ADD COLUMN file_unreadable TEXT;
+CREATE TABLE seen_event (
+    id         INTEGER PRIMARY KEY,
+    review_id  INTEGER NOT NULL REFERENCES review (id) ON DELETE RESTRICT,
+    seen       INTEGER NOT NULL CHECK (seen IN (0, 1)),
+    at         TEXT NOT NULL
+);
+CREATE INDEX seen_event_by_review ON seen_event (review_id, id);
+"#,
 ];
 
 /// The schema version this build writes and reads.

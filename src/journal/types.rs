@@ -94,11 +94,13 @@ impl fmt::Display for PurposeVerdict {
 /// - `New`: nothing graded yet (rulers do not count).
 /// - `Grading`: some scores or the verdict given, blind grading not complete.
 /// - `Graded`: every work interval scored and the verdict set; notes still hidden.
+/// - `Seen`: marked as looked at without a grade ([`super::Journal::mark_seen`]); the notes
+///   stay hidden. Reversible; grades given before or after are kept.
 /// - `Revealed`: the notes were revealed; no feedback sent yet.
 /// - `FeedbackDone`: feedback copied, exported or printed at least once.
 ///
-/// A session is *unreviewed* while its stage is below `Revealed`: the coach has not yet
-/// finished the blind grading and read the athlete's notes.
+/// A session is *unreviewed* while its stage is `New`, `Grading` or `Graded`: the coach has
+/// neither finished the blind grading and read the athlete's notes nor marked it seen.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord, Hash)]
 pub enum ReviewStage {
     /// Nothing graded yet.
@@ -107,6 +109,8 @@ pub enum ReviewStage {
     Grading,
     /// Blind grading complete, notes not revealed.
     Graded,
+    /// Marked seen without a grade; notes not revealed.
+    Seen,
     /// Notes revealed, no feedback sent.
     Revealed,
     /// Feedback copied, exported or printed.
@@ -114,21 +118,30 @@ pub enum ReviewStage {
 }
 
 impl ReviewStage {
-    /// Short lowercase label for lists and JSON: `new`, `grading`, `graded`, `revealed`,
-    /// `feedback done`.
+    /// Short lowercase label for lists and JSON: `new`, `grading`, `graded`, `seen`,
+    /// `revealed`, `feedback done`.
     pub fn label(self) -> &'static str {
         match self {
             ReviewStage::New => "new",
             ReviewStage::Grading => "grading",
             ReviewStage::Graded => "graded",
+            ReviewStage::Seen => "seen",
             ReviewStage::Revealed => "revealed",
             ReviewStage::FeedbackDone => "feedback done",
         }
     }
 
-    /// `true` below `Revealed`.
+    /// `true` for `Revealed` and `FeedbackDone`: the notes were read; feedback belongs here.
+    pub fn is_revealed(self) -> bool {
+        self >= ReviewStage::Revealed
+    }
+
+    /// `true` for `New`, `Grading` and `Graded`: in the daily queue.
     pub fn is_unreviewed(self) -> bool {
-        self < ReviewStage::Revealed
+        matches!(
+            self,
+            ReviewStage::New | ReviewStage::Grading | ReviewStage::Graded
+        )
     }
 }
 
@@ -175,6 +188,15 @@ pub struct ReviewState {
     pub revealed_at: Option<DateTime<Utc>>,
     /// What still blocks the reveal (empty once graded or revealed).
     pub missing: Missing,
+    /// Why the session's file cannot be read, when it cannot. Such a session has no
+    /// analysis; its work intervals count as zero, so the purpose verdict alone closes it.
+    pub file_unreadable: Option<String>,
+    /// The problem the coach was shown when giving the blind verdict of an unreadable
+    /// session (the record that they saw it).
+    pub unreadable_seen: Option<String>,
+    /// When the session was marked seen without a grade, while it is (see
+    /// [`super::Journal::mark_seen`]).
+    pub seen_at: Option<DateTime<Utc>>,
 }
 
 /// What a revision changed.
@@ -283,6 +305,8 @@ pub struct QueueEntry {
     pub stage: ReviewStage,
     /// The content changed after the review began.
     pub content_changed: bool,
+    /// The file cannot be read (the reason); the session closes with the verdict alone.
+    pub file_unreadable: Option<String>,
 }
 
 /// Inputs of the bias check for one revealed review: blind grades and the grades in force.

@@ -55,6 +55,9 @@ pub enum Action {
     CycleVerdict,
     /// Reveal the athlete's notes (only once grading is complete).
     RevealNotes,
+    /// Mark the session seen without a grade (out of the queue, notes stay hidden), or
+    /// bring it back.
+    ToggleSeen,
     /// Show or hide the elevation trace.
     ToggleElevation,
     /// Mark a ruler point (first press: start, second: end).
@@ -88,7 +91,7 @@ pub enum Action {
 
 impl Action {
     /// Every action, in help-overlay order.
-    pub const ALL: [Action; 40] = [
+    pub const ALL: [Action; 41] = [
         Action::Help,
         Action::Quit,
         Action::Cancel,
@@ -115,6 +118,7 @@ impl Action {
         Action::Score5,
         Action::CycleVerdict,
         Action::RevealNotes,
+        Action::ToggleSeen,
         Action::ToggleElevation,
         Action::Ruler,
         Action::ClearRulers,
@@ -160,6 +164,7 @@ impl Action {
             Action::Score5 => "score_5",
             Action::CycleVerdict => "verdict",
             Action::RevealNotes => "reveal_notes",
+            Action::ToggleSeen => "seen",
             Action::ToggleElevation => "elevation",
             Action::Ruler => "ruler",
             Action::ClearRulers => "clear_rulers",
@@ -206,6 +211,7 @@ impl Action {
             Action::Score5 => "score 5",
             Action::CycleVerdict => "purpose verdict",
             Action::RevealNotes => "reveal notes",
+            Action::ToggleSeen => "seen, no grade / undo",
             Action::ToggleElevation => "elevation",
             Action::Ruler => "ruler point",
             Action::ClearRulers => "clear rulers",

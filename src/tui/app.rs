@@ -102,6 +102,19 @@ pub enum Modal {
     },
 }
 
+/// An action that leaves the open session, held while the coach answers whether to keep an
+/// unsaved feedback edit (see [`App::pending_leave`]).
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub enum Leave {
+    /// Open another session (Enter, or `]` / `[` through the queue).
+    Open(String),
+    /// Switch to the athlete's history view.
+    History,
+}
+
+/// Title of the question asked before leaving a session with an unsaved feedback edit.
+pub const LEAVE_TITLE: &str = "Leave this session?";
+
 /// How a status message should look.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 pub enum Tone {
@@ -293,6 +306,13 @@ impl OpenSession {
     pub fn revealed(&self) -> bool {
         self.state.as_ref().is_some_and(|s| s.revealed_at.is_some())
     }
+
+    /// Why the session's file cannot be read, as the journal holds it.
+    pub fn unreadable(&self) -> Option<&str> {
+        self.state
+            .as_ref()
+            .and_then(|s| s.file_unreadable.as_deref())
+    }
 }
 
 /// How the workstation is set up.
@@ -367,6 +387,11 @@ pub struct App {
     pub history: Option<HistoryView>,
     /// The journal's `data_version` when last looked at (see [`App::poll_journal`]).
     journal_version: Option<i64>,
+    /// Where the coach was going when asked about an unsaved feedback edit (the question is
+    /// the `Modal::Message` titled [`LEAVE_TITLE`]).
+    pub pending_leave: Option<Leave>,
+    /// Sessions marked seen without a grade (counted apart from the queue).
+    pub seen_count: usize,
 }
 
 /// The day's messages between the key press and the clipboard.
@@ -429,6 +454,8 @@ impl App {
             feedback_dir: options.feedback_dir,
             history: None,
             journal_version: None,
+            pending_leave: None,
+            seen_count: 0,
         };
         app.problems = app.roster.problems.iter().map(|p| p.to_string()).collect();
         app.refresh_lists();
@@ -580,6 +607,7 @@ impl App {
         };
         self.counts = self.journal.unreviewed_counts().unwrap_or_default();
         self.queue = self.journal.unreviewed(None).unwrap_or_default();
+        self.seen_count = self.journal.seen_sessions(None).map_or(0, |v| v.len());
         let mut rows: HashMap<String, Vec<SessionRow>> = HashMap::new();
         let mut known = std::collections::HashSet::new();
         for e in all {
@@ -965,6 +993,9 @@ impl App {
     }
 
     fn on_modal_key(&mut self, modal: &Modal, key: Key, action: Option<Action>) -> Vec<Effect> {
+        if self.pending_leave.is_some() {
+            return self.on_leave_key(key);
+        }
         match modal {
             Modal::ConfirmQuit => match key.code {
                 KeyCode::Char('y') | KeyCode::Char('Y') => return vec![Effect::Quit],
@@ -1071,6 +1102,7 @@ impl App {
             }
             Action::CycleVerdict => self.cycle_verdict(),
             Action::RevealNotes => self.reveal(),
+            Action::ToggleSeen => self.toggle_seen(),
             Action::ToggleElevation => {
                 if let Some(c) = self.open.as_mut().and_then(|o| o.chart.as_mut()) {
                     c.elevation = !c.elevation;
@@ -1142,19 +1174,105 @@ impl App {
             }
             Action::ExportDay => return self.export_day(),
             Action::History => {
-                self.view = match self.view {
-                    View::History => View::Review,
-                    View::Review => View::History,
-                };
-                if let Some(a) = self.cursor.athlete.clone() {
-                    self.ensure_reviews(&a);
+                if self.view == View::Review && self.ask_before_leaving(Leave::History) {
+                    return Vec::new();
                 }
-                if self.view == View::History {
-                    self.build_history();
-                }
+                self.toggle_history();
             }
         }
         Vec::new()
+    }
+
+    fn toggle_history(&mut self) {
+        self.view = match self.view {
+            View::History => View::Review,
+            View::Review => View::History,
+        };
+        if let Some(a) = self.cursor.athlete.clone() {
+            self.ensure_reviews(&a);
+        }
+        if self.view == View::History {
+            self.build_history();
+        }
+    }
+
+    // ----- leaving a session with an unsaved feedback edit -----
+
+    /// When the open session's feedback edit is unsaved, ask before going `to` (the same
+    /// question as quitting, with a third answer: save and go on) and return `true`: the
+    /// action waits for the answer. `false`: nothing to ask, go on.
+    fn ask_before_leaving(&mut self, to: Leave) -> bool {
+        if !self.unsaved() {
+            return false;
+        }
+        let save = self.keymap.first(Action::SaveFeedback);
+        self.pending_leave = Some(to);
+        self.modal = Some(Modal::Message {
+            title: LEAVE_TITLE.to_string(),
+            text: format!(
+                "The feedback edit is not saved.\n\
+                 s = save it and go on ({save} saves too)\n\
+                 y = go on without saving (the edit is dropped)\n\
+                 n = stay"
+            ),
+        });
+        true
+    }
+
+    /// The answer to [`App::ask_before_leaving`]: `s` saves and goes on, `y` drops the edit
+    /// and goes on, `n` or Esc stays; other keys wait.
+    fn on_leave_key(&mut self, key: Key) -> Vec<Effect> {
+        let save = self.keymap.action(key) == Some(Action::SaveFeedback);
+        match key.code {
+            KeyCode::Char('s') | KeyCode::Char('S') => self.leave_saving(),
+            _ if save => self.leave_saving(),
+            KeyCode::Char('y') | KeyCode::Char('Y') => {
+                if let Some(o) = self.open.as_mut() {
+                    o.feedback = None;
+                }
+                self.modal = None;
+                let to = self.pending_leave.take();
+                let fx = self.go(to);
+                if self.message.is_none() {
+                    self.say(Tone::Info, "the feedback edit was dropped");
+                }
+                fx
+            }
+            KeyCode::Char('n') | KeyCode::Char('N') | KeyCode::Esc => {
+                self.pending_leave = None;
+                self.modal = None;
+                let save = self.keymap.first(Action::SaveFeedback);
+                self.say(
+                    Tone::Info,
+                    format!("stayed: the feedback edit is still not saved ({save} saves)"),
+                );
+                Vec::new()
+            }
+            _ => Vec::new(),
+        }
+    }
+
+    fn leave_saving(&mut self) -> Vec<Effect> {
+        self.modal = None;
+        self.save_feedback();
+        if self.unsaved() {
+            // The save was refused (its reason is on the status line): stay.
+            self.pending_leave = None;
+            return Vec::new();
+        }
+        let to = self.pending_leave.take();
+        self.go(to)
+    }
+
+    fn go(&mut self, to: Option<Leave>) -> Vec<Effect> {
+        match to {
+            Some(Leave::Open(id)) => self.open_session(&id),
+            Some(Leave::History) => {
+                self.toggle_history();
+                Vec::new()
+            }
+            None => Vec::new(),
+        }
     }
 
     /// The panes that can take focus now, in Tab order.
@@ -1262,7 +1380,18 @@ impl App {
             return Vec::new();
         };
         if self.unsaved() {
-            self.save_feedback();
+            if self
+                .open
+                .as_ref()
+                .is_some_and(|o| o.session_id == session_id)
+            {
+                // Already open, with the edit in it: nothing to leave.
+                self.view = View::Review;
+                self.focus = Focus::Verdict;
+                return Vec::new();
+            }
+            self.ask_before_leaving(Leave::Open(session_id.to_string()));
+            return Vec::new();
         }
         self.open_generation += 1;
         let generation = self.open_generation;
@@ -1302,6 +1431,7 @@ impl App {
         self.view = View::Review;
         self.focus = Focus::Verdict;
         self.message = None;
+        self.say_unreadable();
         let Some(athlete) = self.athletes.get(aidx).cloned() else {
             return Vec::new();
         };
@@ -1490,12 +1620,15 @@ impl App {
                 self.failed.insert(done.session_id.clone());
                 self.problems.push(why.clone());
                 self.lists_dirty = true;
+                self.note_unreadable(&done.session_id, &why);
                 if let Some(o) = self
                     .open
                     .as_mut()
                     .filter(|o| o.session_id == done.session_id && o.analysed.is_none())
                 {
                     o.load_error = Some(why);
+                    self.reload_grades();
+                    self.say_unreadable();
                 }
             }
             Outcome::Analysed(a) => {
@@ -1544,7 +1677,7 @@ impl App {
     // ----- grading -----
 
     fn open_graded(&mut self) -> Option<String> {
-        let (id, ready) = match self.open.as_ref() {
+        let (id, ready, failed) = match self.open.as_ref() {
             None => {
                 self.say(
                     Tone::Info,
@@ -1554,10 +1687,19 @@ impl App {
             }
             Some(o) => (
                 o.session_id.clone(),
-                o.review.is_some() && o.state.is_some(),
+                // A file that cannot be read has no review: the verdict alone closes it.
+                o.state.is_some() && (o.review.is_some() || o.unreadable().is_some()),
+                o.load_error.clone(),
             ),
         };
         if !ready {
+            if let Some(why) = failed {
+                // The journal could not keep the session as unreadable (its reason is said
+                // there); the file's problem is said plainly, never "still analysing".
+                let why = self.reason_of(&id, &why);
+                self.say(Tone::Warn, format!("the file cannot be read: {why}"));
+                return None;
+            }
             self.say(
                 Tone::Info,
                 "still analysing this session; grading opens in a moment",
@@ -1574,10 +1716,18 @@ impl App {
             None => return,
         };
         if n == 0 {
-            self.say(
-                Tone::Info,
-                "no work intervals to score: give the purpose verdict (v)",
-            );
+            let v = self.keymap.first(Action::CycleVerdict);
+            let text = if self
+                .open
+                .as_ref()
+                .and_then(OpenSession::unreadable)
+                .is_some()
+            {
+                format!("the file cannot be read, so there is nothing to score: give the purpose verdict ({v})")
+            } else {
+                format!("no work intervals to score: give the purpose verdict ({v})")
+            };
+            self.say(Tone::Info, text);
             return;
         }
         let interval = sel.min(n - 1) as u32 + 1;
@@ -1628,7 +1778,8 @@ impl App {
         match self.journal.set_verdict(&id, next, now()) {
             Ok(()) => {
                 self.reload_grades();
-                self.say(Tone::Done, format!("purpose verdict: {next}"));
+                let text = format!("purpose verdict: {next}{}", self.close_hint());
+                self.say(Tone::Done, text);
                 self.lists_dirty = true;
             }
             Err(e) => self.say(Tone::Warn, short_error(&e)),
@@ -1663,11 +1814,143 @@ impl App {
                 }
             }
             Err(JournalError::NotYetGraded { missing, .. }) => {
-                self.say(
-                    Tone::Warn,
-                    format!("notes stay hidden until grading is complete: {missing}"),
-                );
+                let v = self.keymap.first(Action::CycleVerdict);
+                let text = match self.open.as_ref().and_then(OpenSession::unreadable) {
+                    Some(_) => format!(
+                        "the file cannot be read: give the purpose verdict ({v}) first; it records that you saw this"
+                    ),
+                    None => format!("notes stay hidden until grading is complete: {missing}"),
+                };
+                self.say(Tone::Warn, text);
             }
+            Err(e) => self.say(Tone::Warn, short_error(&e)),
+        }
+    }
+
+    // ----- quick close, seen, unreadable files -----
+
+    /// After a verdict: when it alone completes the blind grading (no work intervals, or a
+    /// file that cannot be read), say so and what comes next.
+    fn close_hint(&self) -> String {
+        let Some(st) = self.open.as_ref().and_then(|o| o.state.as_ref()) else {
+            return String::new();
+        };
+        if st.revealed_at.is_some() || !st.missing.is_empty() || st.work_intervals != Some(0) {
+            return String::new();
+        }
+        let o = self.keymap.first(Action::RevealNotes);
+        if st.unreadable_seen.is_some() {
+            format!(" · closed with the verdict alone (the file cannot be read; noted); {o} reads the notes")
+        } else {
+            format!(" · quick close: no work intervals, so the verdict is the blind grade; {o} reads the notes")
+        }
+    }
+
+    /// The failure of a session's file without the file's path (the status line is short).
+    fn reason_of(&self, session_id: &str, why: &str) -> String {
+        let path = self
+            .roster
+            .find_session(session_id)
+            .map(|(_, act)| format!("{}: ", act.path.display()));
+        let why = match path {
+            Some(p) => why.strip_prefix(p.as_str()).unwrap_or(why),
+            None => why,
+        };
+        crate::roster::printable(why)
+    }
+
+    /// A session's file could not be read: keep it in the journal as unreadable, so it can
+    /// be closed with the verdict alone.
+    fn note_unreadable(&mut self, session_id: &str, why: &str) {
+        let Some((athlete, path)) = self
+            .roster
+            .find_session(session_id)
+            .map(|(a, act)| (a.id.clone(), act.path.clone()))
+        else {
+            return;
+        };
+        let reason = self.reason_of(session_id, why);
+        let record = crate::journal::unreadable_record(session_id, &athlete, &path, now());
+        if let Err(e) = self.journal.record_unreadable(&record, &reason, now()) {
+            self.say(Tone::Warn, short_error(&e));
+        }
+    }
+
+    /// Say plainly that the open session's file cannot be read, and how to close it.
+    fn say_unreadable(&mut self) {
+        let Some(o) = self.open.as_ref() else { return };
+        if o.revealed() {
+            return;
+        }
+        let Some(why) = o.unreadable().map(crate::roster::printable) else {
+            return;
+        };
+        let v = self.keymap.first(Action::CycleVerdict);
+        let r = self.keymap.first(Action::RevealNotes);
+        let text = if o
+            .state
+            .as_ref()
+            .is_some_and(|s| s.unreadable_seen.is_some())
+        {
+            format!("the file cannot be read, closed with the verdict: {r} reads the notes · {why}")
+        } else {
+            format!("the file cannot be read: {v} closes it with the purpose verdict alone, then {r} reads the notes · {why}")
+        };
+        self.say(Tone::Warn, text);
+    }
+
+    /// Mark the open session (or the one under the roster cursor) seen without a grade, or
+    /// bring it back to the queue.
+    fn toggle_seen(&mut self) {
+        let target = match (self.focus, &self.cursor.session, &self.open) {
+            (Focus::Roster, Some(id), _) => Some(id.clone()),
+            (_, _, Some(o)) => Some(o.session_id.clone()),
+            (_, id, None) => id.clone(),
+        };
+        let Some(id) = target else {
+            self.say(Tone::Info, "open or select a session first");
+            return;
+        };
+        let seen = match self.journal.review_state(&id) {
+            Ok(st) => st.seen_at.is_some(),
+            Err(JournalError::UnknownSession { .. }) => {
+                self.say(
+                    Tone::Info,
+                    "still reading this session; try again in a moment",
+                );
+                return;
+            }
+            Err(e) => {
+                self.say(Tone::Warn, short_error(&e));
+                return;
+            }
+        };
+        let result = if seen {
+            self.journal.unmark_seen(&id, now())
+        } else {
+            self.journal.mark_seen(&id, now())
+        };
+        match result {
+            Ok(_) => {
+                self.refresh_lists();
+                self.reload_grades();
+                let m = self.keymap.first(Action::ToggleSeen);
+                let counts = format!(
+                    "{} to review, {} seen without a grade",
+                    self.queue.len(),
+                    self.seen_count
+                );
+                let text = if seen {
+                    format!("back in the queue · {counts}")
+                } else {
+                    format!("marked seen: out of the queue, the notes stay hidden ({m} again brings it back) · {counts}")
+                };
+                self.say(Tone::Done, text);
+            }
+            Err(JournalError::AlreadyRevealed { .. }) => self.say(
+                Tone::Info,
+                "the notes are revealed already: the session is reviewed",
+            ),
             Err(e) => self.say(Tone::Warn, short_error(&e)),
         }
     }
@@ -1984,7 +2267,7 @@ impl App {
         };
         let mut of_day: Vec<QueueEntry> = all.into_iter().filter(|e| day_of(e) == day).collect();
         of_day.sort_by(|a, b| (a.start, &a.session_id).cmp(&(b.start, &b.session_id)));
-        let mut unreviewed = of_day.iter().filter(|e| e.stage.is_unreviewed()).count();
+        let mut unreviewed = of_day.iter().filter(|e| !e.stage.is_revealed()).count();
         let athletes: Vec<(String, crate::model::AthleteProfile)> = self
             .roster
             .athletes
@@ -1997,7 +2280,7 @@ impl App {
             let mut sessions = Vec::new();
             for e in of_day
                 .iter()
-                .filter(|e| &e.athlete == athlete && !e.stage.is_unreviewed())
+                .filter(|e| &e.athlete == athlete && e.stage.is_revealed())
             {
                 let Some(review) = self.review_of(&e.session_id) else {
                     // Not analysed under this version yet: left out like an unreviewed one.

@@ -234,6 +234,7 @@ impl Default for KeyMap {
                 b(Action::Score5, &[Key::ch('5')]),
                 b(Action::CycleVerdict, &[Key::ch('v')]),
                 b(Action::RevealNotes, &[Key::ch('o')]),
+                b(Action::ToggleSeen, &[Key::ch('m')]),
                 b(Action::ToggleElevation, &[Key::ch('e')]),
                 b(Action::Ruler, &[Key::ch('r')]),
                 b(Action::ClearRulers, &[Key::ch('R')]),

@@ -8,7 +8,7 @@ use ratatui::widgets::{Paragraph, Widget};
 use super::{fit, pad};
 use crate::roster::printable;
 use crate::tui::app::{App, Focus, RosterRow};
-use crate::tui::ui::pane_block;
+use crate::tui::ui::{pane_block, shorten_words};
 
 /// Draw the roster pane.
 pub fn render(app: &App, area: Rect, buf: &mut Buffer) {
@@ -55,6 +55,16 @@ pub fn render(app: &App, area: Rect, buf: &mut Buffer) {
     let first = cur.saturating_sub(visible.saturating_sub(1).min(visible / 2 + visible / 4));
     let first = first.min(rows.len().saturating_sub(visible));
     let open_id = app.open.as_ref().map(|o| o.session_id.as_str());
+    // The stage column is as wide as the longest stage shown, so the title keeps the rest.
+    let stage_w = rows
+        .iter()
+        .filter_map(|r| match r {
+            RosterRow::Session(s) => Some(stage_label(s).chars().count()),
+            RosterRow::Athlete(_) => None,
+        })
+        .max()
+        .unwrap_or(0)
+        .min(w / 3);
     for (i, row) in rows.iter().enumerate().skip(first).take(visible) {
         let selected = i == cur;
         let line = match row {
@@ -96,22 +106,14 @@ pub fn render(app: &App, area: Rect, buf: &mut Buffer) {
                     Some(d) => d.format("%m-%d").to_string(),
                     None => "  …  ".to_string(),
                 };
-                let stage = if s.failed {
-                    "unreadable".to_string()
-                } else {
-                    match s.stage {
-                        Some(st) => st.label().to_string(),
-                        None => "analysing".to_string(),
-                    }
-                };
-                let stage_w = 13.min(w / 3);
+                let stage = stage_label(s);
                 let open_mark = if open_id == Some(s.session_id.as_str()) {
                     "•"
                 } else {
                     " "
                 };
                 let title_w = w.saturating_sub(2 + date.chars().count() + 1 + stage_w + 1);
-                let title = printable(&app.session_title(&s.session_id));
+                let title = row_title(app, &s.session_id, title_w);
                 let base = if selected { t.selected } else { t.text };
                 let stage_style = if selected {
                     t.selected
@@ -138,6 +140,59 @@ pub fn render(app: &App, area: Rect, buf: &mut Buffer) {
         let area = Rect::new(inner.x, inner.y + inner.height - h, inner.width, h);
         Paragraph::new(footer).render(area, buf);
     }
+}
+
+/// A session row's stage word.
+fn stage_label(s: &crate::tui::app::SessionRow) -> String {
+    if s.failed {
+        "unreadable".to_string()
+    } else {
+        match s.stage {
+            Some(st) => st.label().to_string(),
+            None => "analysing".to_string(),
+        }
+    }
+}
+
+/// A session's title for a roster row of `w` characters: the plan's title cut at a word
+/// boundary; for a session without a plan, its sport and distance with the distance
+/// rounded to what fits (`running 2.66 km`, `running 2.7 km`, `running 3 km`, `2.7 km`),
+/// never cut into a different number.
+pub fn row_title(app: &App, session_id: &str, w: usize) -> String {
+    let full = printable(&app.session_title(session_id));
+    if full.chars().count() <= w {
+        return full;
+    }
+    let unplanned = app
+        .reviews
+        .get(session_id)
+        .filter(|r| r.plan.is_none())
+        .and_then(|r| {
+            r.session
+                .distance_m
+                .map(|d| (printable(&r.session.sport), d))
+        });
+    if let Some((sport, d)) = unplanned {
+        let units = app
+            .roster
+            .find_session(session_id)
+            .map(|(a, _)| a.profile.units)
+            .unwrap_or_default();
+        let x = d / units.metres();
+        let u = units.label();
+        let tries = [
+            format!("{sport} {x:.1} {u}"),
+            format!("{sport} {x:.0} {u}"),
+            format!("{x:.2} {u}"),
+            format!("{x:.1} {u}"),
+            format!("{x:.0} {u}"),
+        ];
+        if let Some(t) = tries.into_iter().find(|t| t.chars().count() <= w) {
+            return t;
+        }
+        return shorten_words(&sport, w);
+    }
+    shorten_words(&full, w)
 }
 
 /// The athlete under the roster cursor.

@@ -856,4 +856,69 @@ mod tests {
             })
         );
     }
+
+    #[test]
+    fn smoothed_speed_is_the_exact_centred_mean() {
+        // Irregular sampling (1 s, a 4 s gap, 2 s steps), missing values and unusable
+        // samples: invented data, checked against the mean computed the slow way.
+        let mut t: Vec<f64> = (0..60).map(f64::from).collect();
+        t.extend((0..20).map(|k| 64.0 + 2.0 * f64::from(k)));
+        let values: Vec<Option<f64>> = t
+            .iter()
+            .enumerate()
+            .map(|(i, &x)| (i % 17 != 5).then(|| 3.0 + (x * 0.7).sin() + 0.01 * x))
+            .collect();
+        let usable: Vec<bool> = (0..t.len()).map(|i| !(20..24).contains(&i)).collect();
+        let got = smoothed_speed(&t, &values, &usable);
+        let half = PACE_SMOOTH_S / 2.0;
+        assert_eq!(got.len(), t.len());
+        for i in 0..t.len() {
+            let own = usable[i].then_some(values[i]).flatten();
+            let window: Vec<f64> = (0..t.len())
+                .filter(|&j| (t[j] - t[i]).abs() <= half && usable[j])
+                .filter_map(|j| values[j])
+                .collect();
+            match own {
+                None => assert_eq!(got[i], None, "sample {i} not usable stays a gap"),
+                Some(_) => {
+                    let want = window.iter().sum::<f64>() / window.len() as f64;
+                    let g = got[i].expect("a usable sample has a mean");
+                    assert!((g - want).abs() < 1e-9, "sample {i}: {g} vs {want}");
+                }
+            }
+        }
+        // At 1 Hz the window holds 15 samples: a lone spike is diluted fifteenfold.
+        let t: Vec<f64> = (0..41).map(f64::from).collect();
+        let mut v = vec![Some(3.0); 41];
+        v[20] = Some(18.0);
+        let got = smoothed_speed(&t, &v, &[true; 41]);
+        assert!((got[20].unwrap() - 4.0).abs() < 1e-12);
+        assert!((got[13].unwrap() - 4.0).abs() < 1e-12);
+        assert_eq!(got[12], Some(3.0));
+    }
+
+    #[test]
+    fn layout_folds_readout_then_strip() {
+        // 80x24: six inner rows, two traces: both folds, three rows each.
+        let l = chart_layout(6, 2, 0);
+        assert!(!l.readout_line && !l.strip_line && !l.axis);
+        assert_eq!(l.canvas, 6);
+        // Seven rows: the readout folds, the strip keeps its line.
+        let l = chart_layout(7, 2, 0);
+        assert!(!l.readout_line && l.strip_line);
+        assert_eq!(l.canvas, 6);
+        // Eight rows: nothing folds.
+        let l = chart_layout(8, 2, 0);
+        assert!(l.readout_line && l.strip_line);
+        assert_eq!(l.canvas, 6);
+        // Tall: the axis shows and rulers take rows the traces can spare (at most 4).
+        let l = chart_layout(18, 2, 6);
+        assert!(l.axis && l.readout_line && l.strip_line);
+        assert_eq!(l.ruler_rows, 4);
+        assert_eq!(l.canvas, 11);
+        // Rulers never take a trace's rows.
+        let l = chart_layout(9, 2, 3);
+        assert_eq!(l.ruler_rows, 1);
+        assert_eq!(l.canvas, 6);
+    }
 }

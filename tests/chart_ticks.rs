@@ -86,7 +86,10 @@ fn demo_sessions_export_round_ticks() {
         assert!(pace.len() <= MAX_TICKS && hr.len() <= MAX_TICKS);
         for p in &pace {
             assert_eq!(p % ps, 0.0, "{id}: pace tick {p} on a multiple of {ps}");
-            assert!(*p >= m.pace_range.1 && *p <= m.pace_range.0, "{id}: {p} on the axis");
+            assert!(
+                *p >= m.pace_range.1 && *p <= m.pace_range.0,
+                "{id}: {p} on the axis"
+            );
         }
         for h in &hr {
             assert_eq!(h % hs, 0.0, "{id}: HR tick {h}");

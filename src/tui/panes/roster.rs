@@ -192,7 +192,27 @@ pub fn row_title(app: &App, session_id: &str, w: usize) -> String {
         }
         return shorten_words(&sport, w);
     }
-    shorten_words(&full, w)
+    // Cut at a word boundary; a cut right after a number would read as a cut number
+    // (`10…`), so that word goes too.
+    let mut room = w;
+    loop {
+        let cut = shorten_words(&full, room);
+        let kept = cut.trim_end_matches('…');
+        let whole = kept == full || full.starts_with(&format!("{kept} "));
+        if !kept.ends_with(|c: char| c.is_ascii_digit()) || kept == full {
+            if whole || !kept.contains(|c: char| c.is_ascii_digit()) {
+                return cut;
+            }
+        }
+        if room <= 1 {
+            return if w > 0 {
+                "…".to_string()
+            } else {
+                String::new()
+            };
+        }
+        room = kept.chars().count().min(room - 1);
+    }
 }
 
 /// The athlete under the roster cursor.

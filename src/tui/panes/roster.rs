@@ -65,6 +65,20 @@ pub fn render(app: &App, area: Rect, buf: &mut Buffer) {
         .max()
         .unwrap_or(0)
         .min(w / 3);
+    // Dates with the year only when every title still fits beside them: the title gets
+    // the room there is.
+    let longest = rows
+        .iter()
+        .filter_map(|r| match r {
+            RosterRow::Session(s) => {
+                Some(printable(&app.session_title(&s.session_id)).chars().count())
+            }
+            RosterRow::Athlete(_) => None,
+        })
+        .max()
+        .unwrap_or(0);
+    let long_dates = w.saturating_sub(2 + 10 + 1 + stage_w + 1) >= longest;
+    let date_w = if long_dates { 10 } else { 5 };
     for (i, row) in rows.iter().enumerate().skip(first).take(visible) {
         let selected = i == cur;
         let line = match row {
@@ -102,9 +116,9 @@ pub fn render(app: &App, area: Rect, buf: &mut Buffer) {
                     .start
                     .map(|d| crate::model::session::session_day(&s.session_id, d));
                 let date = match day {
-                    Some(d) if w >= 38 => d.format("%Y-%m-%d").to_string(),
+                    Some(d) if long_dates => d.format("%Y-%m-%d").to_string(),
                     Some(d) => d.format("%m-%d").to_string(),
-                    None => "  …  ".to_string(),
+                    None => format!("{:^date_w$}", "…"),
                 };
                 let stage = stage_label(s);
                 let open_mark = if open_id == Some(s.session_id.as_str()) {

@@ -584,7 +584,7 @@ pub fn render(app: &App, area: Rect, buf: &mut Buffer) {
     };
     let title_w = title_line.width();
     let mut block = pane_block(app, title_line, app.focus == Focus::Chart);
-    if title_w + legend_w + 1 <= border_room {
+    if title_w + legend_w < border_room {
         let mut spans = vec![Span::raw(" ")];
         spans.extend(legend_spans);
         spans.push(Span::raw(" "));

@@ -213,10 +213,10 @@ pub fn row_title(app: &App, session_id: &str, w: usize) -> String {
         let cut = shorten_words(&full, room);
         let kept = cut.trim_end_matches('…');
         let whole = kept == full || full.starts_with(&format!("{kept} "));
-        if !kept.ends_with(|c: char| c.is_ascii_digit()) || kept == full {
-            if whole || !kept.contains(|c: char| c.is_ascii_digit()) {
-                return cut;
-            }
+        let after_number = kept.ends_with(|c: char| c.is_ascii_digit()) && kept != full;
+        let number_cut = !whole && kept.contains(|c: char| c.is_ascii_digit());
+        if !after_number && !number_cut {
+            return cut;
         }
         if room <= 1 {
             return if w > 0 {

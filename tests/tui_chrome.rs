@@ -252,7 +252,7 @@ fn without_colour_pace_and_hr_have_different_marks() {
     }
     // The legend carries the marks (where it has room).
     let text = screen(&mut app, 160, 48);
-    assert!(text.contains("⠒ pace (15 s mean) · • HR"), "{text}");
+    assert!(text.contains("⠒ pace (15 s mean)  • HR"), "{text}");
     // In colour both traces are Braille lines told apart by colour.
     app.theme = Theme::colour();
     let text = screen(&mut app, 160, 48);
@@ -282,15 +282,23 @@ fn ascii_footer_has_no_key_clash_and_empty_verdict_is_a_dash() {
             .expect("grading line");
         assert!(grading.contains("purpose verdict - (v)"), "{grading}");
         assert!(text.is_ascii(), "{w}x{h}: every cell ASCII");
+        // The work intervals on the chart's strip stand apart from the border line.
+        let strip = text
+            .lines()
+            .find(|l| l.contains("work"))
+            .expect("work/flag strip");
+        for n in 1..=5 {
+            assert!(strip.contains(&format!("{n}==")), "{w}x{h}: {strip}");
+        }
     }
     // The ASCII pass maps dashes to `-` and arrows to plain marks.
-    let mut buf = Buffer::empty(Rect::new(0, 0, 4, 1));
-    buf.set_string(0, 0, "—–▸▾", ratatui::style::Style::new());
+    let mut buf = Buffer::empty(Rect::new(0, 0, 5, 1));
+    buf.set_string(0, 0, "—–▸▾━", ratatui::style::Style::new());
     asciify(&mut buf);
-    let got: String = (0..4)
+    let got: String = (0..5)
         .map(|x| buf.cell((x, 0)).unwrap().symbol().to_string())
         .collect();
-    assert_eq!(got, "-->v");
+    assert_eq!(got, "-->v=");
 }
 
 /// Every number in `shown` is `true_value` rounded to as many decimals as it shows.

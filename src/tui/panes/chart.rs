@@ -368,9 +368,10 @@ pub fn legend(running: bool, plain: bool) -> Vec<(String, LegendPart)> {
     let pace = if running { "pace" } else { "speed" };
     let mean = format!("{pace} ({:.0} s mean)", PACE_SMOOTH_S);
     if plain {
+        // No `·` between them: in ASCII mode it would read as the HR mark.
         vec![
             (format!("⠒ {mean}"), LegendPart::Pace),
-            (" · ".to_string(), LegendPart::Sep),
+            ("  ".to_string(), LegendPart::Sep),
             ("• HR".to_string(), LegendPart::Hr),
         ]
     } else {

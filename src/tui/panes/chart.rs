@@ -352,6 +352,25 @@ fn render_band(
         .render(plot, buf);
 }
 
+/// As many leading parts as fit in `w` characters, joined by `sep` (at least the first,
+/// which the pane then cuts): a line of values loses whole values from its end, never half
+/// a number.
+pub fn leading_parts(parts: &[String], sep: &str, w: usize) -> String {
+    let mut out = String::new();
+    for p in parts {
+        let next = if out.is_empty() {
+            p.clone()
+        } else {
+            format!("{out}{sep}{p}")
+        };
+        if !out.is_empty() && next.chars().count() > w {
+            break;
+        }
+        out = next;
+    }
+    out
+}
+
 /// The marker HR is drawn with: Braille like pace in colour; dots without colour
 /// (`NO_COLOR`), so the two traces never look alike.
 pub fn hr_marker(plain: bool) -> Marker {
@@ -549,7 +568,8 @@ pub fn render(app: &App, area: Rect, buf: &mut Buffer) {
     // The readout: its own line, or on the top border when the traces need the row.
     let mut read = readout_parts(s, view.cursor, units);
     if let Some(p) = o.pending_ruler {
-        read.push(format!("ruler from {}", format_clock(p)));
+        // Before cadence and altitude: it is what the coach is doing.
+        read.insert(3.min(read.len()), format!("ruler from {}", format_clock(p)));
     }
     let legend_spans: Vec<Span> = legend(running, t.plain)
         .into_iter()
@@ -598,8 +618,11 @@ pub fn render(app: &App, area: Rect, buf: &mut Buffer) {
     }
     let mut y = inner.y;
     if lay.readout_line {
-        Paragraph::new(Line::styled(read.join(" · "), t.cursor))
-            .render(Rect::new(inner.x, y, inner.width, 1), buf);
+        Paragraph::new(Line::styled(
+            leading_parts(&read, " · ", inner.width as usize),
+            t.cursor,
+        ))
+        .render(Rect::new(inner.x, y, inner.width, 1), buf);
         y += 1;
     }
     let canvas_h = lay.canvas;
@@ -695,8 +718,13 @@ pub fn render(app: &App, area: Rect, buf: &mut Buffer) {
     }
     let skip = stats.len().saturating_sub(lay.ruler_rows as usize);
     for (k, (a, b, st)) in stats.iter().enumerate().skip(skip) {
-        Paragraph::new(Line::styled(ruler_line(k + 1, *a, *b, st, units), t.ruler))
-            .render(Rect::new(inner.x, y, inner.width, 1), buf);
+        let line = ruler_line(k + 1, *a, *b, st, units);
+        let parts: Vec<String> = line.split("  ").map(str::to_string).collect();
+        Paragraph::new(Line::styled(
+            leading_parts(&parts, "  ", inner.width as usize),
+            t.ruler,
+        ))
+        .render(Rect::new(inner.x, y, inner.width, 1), buf);
         y += 1;
     }
 }
@@ -921,5 +949,22 @@ mod tests {
         let l = chart_layout(9, 2, 3);
         assert_eq!(l.ruler_rows, 1);
         assert_eq!(l.canvas, 6);
+    }
+
+    #[test]
+    fn lines_of_values_lose_whole_values() {
+        let parts: Vec<String> = ["16:56", "pace 3:47/km", "HR 184", "cad 170"]
+            .map(String::from)
+            .to_vec();
+        assert_eq!(
+            leading_parts(&parts, " · ", 80),
+            "16:56 · pace 3:47/km · HR 184 · cad 170"
+        );
+        assert_eq!(
+            leading_parts(&parts, " · ", 30),
+            "16:56 · pace 3:47/km · HR 184"
+        );
+        assert_eq!(leading_parts(&parts, " · ", 28), "16:56 · pace 3:47/km");
+        assert_eq!(leading_parts(&parts, " · ", 3), "16:56");
     }
 }

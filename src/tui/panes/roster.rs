@@ -251,7 +251,7 @@ fn problem_lines(app: &App, w: usize, height: usize) -> Vec<Line<'static>> {
         return Vec::new();
     }
     let mut out = vec![Line::styled(
-        fit(
+        shorten_words(
             &format!(
                 "! {} file problem{}:",
                 problems.len(),
@@ -273,13 +273,13 @@ fn problem_lines(app: &App, w: usize, height: usize) -> Vec<Line<'static>> {
             .map(|n| n.to_string_lossy().into_owned())
             .unwrap_or_default();
         out.push(Line::styled(
-            fit(&printable(&format!("{file}: {}", p.message)), w),
+            shorten_words(&printable(&format!("{file}: {}", p.message)), w),
             t.text,
         ));
     }
     if shown < problems.len() {
         out.push(Line::styled(
-            fit(
+            shorten_words(
                 &format!(
                     "… {} more: splitdesk check lists them all",
                     problems.len() - shown

@@ -184,8 +184,8 @@ pub fn state_tag(app: &App) -> Option<&'static str> {
 
 /// The title bar's text at a width, shortened by priority so it is never cut mid-word and
 /// the state tag stays whole: first the club name goes, then the athlete's name is cut to
-/// the first name and initial, then the session title is cut at a word boundary, then the
-/// athlete goes, then the program name.
+/// the first name and initial, then the session title is cut at a word boundary (the
+/// program name, then the athlete making room for it), then the session title goes.
 pub fn title_text(app: &App, width: usize) -> String {
     let club = printable(&app.roster.name);
     let Some(o) = &app.open else {
@@ -431,7 +431,8 @@ fn draw_status(app: &App, area: Rect, buf: &mut Buffer) {
     Paragraph::new(Line::styled(right, t.dim)).render(Rect::new(r.x, r.y, r.width, 1), buf);
 }
 
-/// The footer hints for the current context, from the key map.
+/// The footer hints for the current context, from the key map, most important first
+/// ([`footer_hints`] drops from the end of the context's list when the line is short).
 pub fn hints(app: &App) -> Vec<(String, &'static str)> {
     let k = &app.keymap;
     let h = |a: Action, what: &'static str| (k.first(a), what);

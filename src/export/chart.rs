@@ -162,10 +162,53 @@ impl Frame {
     }
 }
 
-fn ticks(lo: f64, hi: f64, n: usize) -> Vec<f64> {
-    (0..=n)
-        .map(|k| lo + (hi - lo) * k as f64 / n as f64)
-        .collect()
+/// Steps of the pace axis, seconds per unit: the first that gives at most
+/// [`MAX_TICKS`] ticks is used.
+// Common coaching practice (no published source): paces are read in 10 or 15 s steps;
+// wider ranges step by the half or whole minute.
+pub const PACE_STEPS: [f64; 6] = [10.0, 15.0, 30.0, 60.0, 120.0, 300.0];
+/// Steps of the HR axis, bpm.
+// Common coaching practice (no published source): heart rates are read in 5 or 10 bpm steps.
+pub const HR_STEPS: [f64; 4] = [5.0, 10.0, 20.0, 50.0];
+/// Most ticks on an axis.
+pub const MAX_TICKS: usize = 7;
+
+/// Ticks at round values: every multiple of the first step in `steps` that puts at most
+/// [`MAX_TICKS`] ticks in `[lo, hi]` (the last step if none does). Empty for an empty or
+/// non-finite range.
+pub fn round_ticks(lo: f64, hi: f64, steps: &[f64]) -> Vec<f64> {
+    if !(lo.is_finite() && hi.is_finite()) {
+        return Vec::new();
+    }
+    let (lo, hi) = (lo.min(hi), lo.max(hi));
+    let in_range = |step: f64| -> Vec<f64> {
+        let first = (lo / step).ceil() as i64;
+        let last = (hi / step).floor() as i64;
+        (first..=last).map(|k| k as f64 * step).collect()
+    };
+    for &step in steps {
+        if step > 0.0 && (hi - lo) / step <= MAX_TICKS as f64 + 1.0 {
+            let t = in_range(step);
+            if t.len() <= MAX_TICKS {
+                return t;
+            }
+        }
+    }
+    steps
+        .last()
+        .filter(|s| **s > 0.0)
+        .map(|&s| in_range(s).into_iter().take(MAX_TICKS).collect())
+        .unwrap_or_default()
+}
+
+/// The pace axis ticks of a chart, seconds per unit, fastest first.
+pub fn pace_ticks(m: &ChartModel) -> Vec<f64> {
+    round_ticks(m.pace_range.1, m.pace_range.0, &PACE_STEPS)
+}
+
+/// The HR axis ticks of a chart, bpm, lowest first.
+pub fn hr_ticks(m: &ChartModel) -> Vec<f64> {
+    round_ticks(m.hr_range.0, m.hr_range.1, &HR_STEPS)
 }
 
 fn pace_label(p: f64) -> String {
@@ -220,10 +263,7 @@ pub fn svg(m: &ChartModel, w: u32, h: u32) -> String {
         );
     }
     let u = m.units.label();
-    for (k, p) in ticks(m.pace_range.1, m.pace_range.0, 4)
-        .into_iter()
-        .enumerate()
-    {
+    for p in pace_ticks(m) {
         let y = f.y_pace(m, p);
         let _ = writeln!(
             o,
@@ -236,7 +276,8 @@ pub fn svg(m: &ChartModel, w: u32, h: u32) -> String {
             hex(PACE),
             pace_label(p)
         );
-        let hv = m.hr_range.0 + (m.hr_range.1 - m.hr_range.0) * k as f64 / 4.0;
+    }
+    for hv in hr_ticks(m) {
         let _ = writeln!(
             o,
             r#"<text x="{:.1}" y="{:.1}" fill="{}">{hv:.0}</text>"#,
@@ -475,10 +516,7 @@ pub fn png(m: &ChartModel, w: u32, h: u32) -> Result<Vec<u8>, png::EncodingError
     for (a, b) in &m.flags {
         c.rect(f.x(m, *a), f.bottom - 6.0, f.x(m, *b), f.bottom, FLAG);
     }
-    for (k, p) in ticks(m.pace_range.1, m.pace_range.0, 4)
-        .into_iter()
-        .enumerate()
-    {
+    for p in pace_ticks(m) {
         let y = f.y_pace(m, p);
         c.line(f.left, y, f.right, y, GRID, false);
         let label = pace_label(p);
@@ -488,7 +526,8 @@ pub fn png(m: &ChartModel, w: u32, h: u32) -> Result<Vec<u8>, png::EncodingError
             &label,
             PACE,
         );
-        let hv = m.hr_range.0 + (m.hr_range.1 - m.hr_range.0) * k as f64 / 4.0;
+    }
+    for hv in hr_ticks(m) {
         c.text(f.right + 5.0, f.y_hr(m, hv) - 3.0, &format!("{hv:.0}"), HR);
     }
     c.text(

@@ -158,7 +158,8 @@ pub const ASCII_BORDER: border::Set<'static> = border::Set {
 };
 
 /// Replace every non-ASCII symbol in the buffer by an ASCII stand-in (the ASCII mode's
-/// last drawing step): Braille and block marks become `*`, line drawing `-`/`|`/`+`.
+/// last drawing step): Braille and block marks become `*`, line drawing `-`/`|`/`+`, the
+/// chart's work-interval marks `=`.
 pub fn asciify(buf: &mut Buffer) {
     for cell in buf.content.iter_mut() {
         let sym = cell.symbol();
@@ -169,7 +170,9 @@ pub fn asciify(buf: &mut Buffer) {
         let rep = match c {
             '\u{2800}' => " ",
             '\u{2801}'..='\u{28FF}' => "*",
-            '─' | '━' | '╌' | '┄' | '▔' | '▁' => "-",
+            '─' | '╌' | '┄' | '▔' | '▁' | '—' | '–' => "-",
+            // Work-interval marks: apart from a border line even without colour.
+            '━' => "=",
             '│' | '┃' | '╎' | '┆' | '▏' | '▕' => "|",
             '┌' | '┐' | '└' | '┘' | '├' | '┤' | '┬' | '┴' | '┼' | '╭' | '╮' | '╰' | '╯' => {
                 "+"
@@ -181,6 +184,8 @@ pub fn asciify(buf: &mut Buffer) {
             '·' | '•' => ".",
             '…' => "~",
             '▲' => "^",
+            '▸' | '▶' => ">",
+            '▾' => "v",
             '▼' => "v",
             '×' => "x",
             _ if c.is_alphanumeric() => continue,

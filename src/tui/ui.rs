@@ -33,10 +33,11 @@ pub const WIDE: u16 = 120;
 
 /// Lay the screen out for the app's state.
 pub fn areas(area: Rect, app: &App) -> Areas {
+    let status_h = status_rows(app, area.width);
     let [title, body, status, footer] = Layout::vertical([
         Constraint::Length(1),
         Constraint::Min(0),
-        Constraint::Length(1),
+        Constraint::Length(status_h),
         Constraint::Length(1),
     ])
     .areas(area);
@@ -166,22 +167,147 @@ use crate::roster::{is_unsafe, printable};
 fn draw_title(app: &App, area: Rect, buf: &mut Buffer) {
     let t = &app.theme;
     buf.set_style(area, t.bar);
-    let mut parts = vec![format!(" splitdesk · {}", app.roster.name)];
-    if let Some(o) = &app.open {
-        if let Some(a) = app.athlete(o.athlete) {
-            parts.push(a.profile.name.clone());
-        }
-        parts.push(app.session_title(&o.session_id));
-        let mode = if o.revealed() {
-            "notes revealed"
-        } else {
-            "blind"
-        };
-        parts.push(format!("[{mode}]"));
-    }
-    Paragraph::new(printable(&parts.join(" · ")))
+    Paragraph::new(title_text(app, area.width as usize))
         .style(t.bar)
         .render(area, buf);
+}
+
+/// The state tag of the open session in the title bar.
+pub fn state_tag(app: &App) -> Option<&'static str> {
+    let o = app.open.as_ref()?;
+    Some(if o.revealed() {
+        "[notes revealed]"
+    } else {
+        "[blind]"
+    })
+}
+
+/// The title bar's text at a width, shortened by priority so it is never cut mid-word and
+/// the state tag stays whole: first the club name goes, then the athlete's name is cut to
+/// the first name and initial, then the session title is cut at a word boundary (the
+/// program name, then the athlete making room for it), then the session title goes.
+pub fn title_text(app: &App, width: usize) -> String {
+    let club = printable(&app.roster.name);
+    let Some(o) = &app.open else {
+        let full = format!(" splitdesk · {club}");
+        return if full.chars().count() <= width {
+            full
+        } else {
+            " splitdesk".chars().take(width).collect()
+        };
+    };
+    let tag = state_tag(app).unwrap_or("");
+    let athlete = app
+        .athlete(o.athlete)
+        .map(|a| printable(&a.profile.name))
+        .unwrap_or_default();
+    let short_athlete = abbreviate_name(&athlete);
+    let session = printable(&app.session_title(&o.session_id));
+    let join = |parts: &[&str]| {
+        let kept: Vec<&str> = parts.iter().copied().filter(|p| !p.is_empty()).collect();
+        format!(" {}", kept.join(" · "))
+    };
+    let fits = |s: &String| s.chars().count() <= width;
+    let tries = [
+        join(&["splitdesk", &club, &athlete, &session, tag]),
+        join(&["splitdesk", &athlete, &session, tag]),
+        join(&["splitdesk", &short_athlete, &session, tag]),
+    ];
+    if let Some(t) = tries.into_iter().find(fits) {
+        return t;
+    }
+    // The session title takes what is left, cut at a word boundary.
+    let whole_words = |cut: &str| {
+        let kept = cut.trim_end_matches('…');
+        !kept.is_empty() && (cut == session || session.starts_with(&format!("{kept} ")))
+    };
+    let prefixes: [&[&str]; 3] = [&["splitdesk", &short_athlete], &[&short_athlete], &[]];
+    for prefix in prefixes {
+        let mut parts: Vec<&str> = prefix.to_vec();
+        parts.push(tag);
+        let room = width.saturating_sub(join(&parts).chars().count() + 3);
+        let cut = shorten_words(&session, room);
+        if whole_words(&cut) {
+            parts.insert(parts.len() - 1, &cut);
+            let t = join(&parts);
+            if fits(&t) {
+                return t;
+            }
+        }
+    }
+    let sa = short_athlete.as_str();
+    [
+        join(&["splitdesk", sa, tag]),
+        join(&[sa, tag]),
+        join(&["splitdesk", tag]),
+    ]
+    .into_iter()
+    .find(fits)
+    .unwrap_or_else(|| tag.to_string())
+}
+
+/// `Ines Aldana` → `Ines A.`; a one-word name stays.
+fn abbreviate_name(name: &str) -> String {
+    let mut words = name.split_whitespace();
+    match (words.next(), words.next_back()) {
+        (Some(first), Some(last)) => match last.chars().next() {
+            Some(c) => format!("{first} {c}."),
+            None => first.to_string(),
+        },
+        (Some(first), None) => first.to_string(),
+        _ => String::new(),
+    }
+}
+
+/// Shorten text to at most `w` characters at a word boundary, marking the cut with `…`.
+/// A first word longer than `w` is cut with `…` (there is no boundary to cut at).
+pub fn shorten_words(s: &str, w: usize) -> String {
+    if s.chars().count() <= w {
+        return s.to_string();
+    }
+    if w == 0 {
+        return String::new();
+    }
+    let mut out = String::new();
+    for word in s.split(' ') {
+        let candidate = if out.is_empty() {
+            word.to_string()
+        } else {
+            format!("{out} {word}")
+        };
+        if candidate.chars().count() + 1 > w {
+            break;
+        }
+        out = candidate;
+    }
+    let out = out.trim_end_matches([' ', ',', ';', ':', '·']).to_string();
+    if out.is_empty() {
+        return panes::fit(s, w);
+    }
+    format!("{out}…")
+}
+
+/// Wrap text into lines of at most `w` characters at word boundaries (a word longer than
+/// a line is cut with `…`).
+pub fn wrap_words(s: &str, w: usize) -> Vec<String> {
+    let mut lines: Vec<String> = Vec::new();
+    let mut cur = String::new();
+    for word in s.split_whitespace() {
+        let word = panes::fit(word, w);
+        if cur.is_empty() {
+            cur = word;
+        } else if cur.chars().count() + 1 + word.chars().count() <= w {
+            cur.push(' ');
+            cur.push_str(&word);
+        } else {
+            lines.push(std::mem::take(&mut cur));
+            cur = word;
+        }
+    }
+    if !cur.is_empty() {
+        lines.push(cur);
+    }
+    lines
 }
 
 fn draw_welcome(app: &App, area: Rect, buf: &mut Buffer) {
@@ -236,10 +362,10 @@ fn draw_welcome(app: &App, area: Rect, buf: &mut Buffer) {
         .render(inner, buf);
 }
 
-fn draw_status(app: &App, area: Rect, buf: &mut Buffer) {
-    let t = &app.theme;
+/// The right end of the status line: progress or the queue.
+fn status_right(app: &App) -> String {
     let p = app.progress;
-    let right = if !app.scan_started() {
+    if !app.scan_started() {
         // The very first frame, drawn before the scan starts: no count to show yet.
         " reading the roster ".to_string()
     } else if p.done < p.total {
@@ -252,7 +378,42 @@ fn draw_status(app: &App, area: Rect, buf: &mut Buffer) {
         )
     } else {
         format!(" {} to review ", app.queue.len())
+    }
+}
+
+/// Most rows the status line takes: a message longer than one line wraps onto a second.
+pub const STATUS_MAX_ROWS: u16 = 2;
+
+/// The status message laid out at a width: wrapped at word boundaries into at most
+/// [`STATUS_MAX_ROWS`] lines, the last one shortened at a word boundary when it still does
+/// not fit. Each line starts with a space.
+pub fn status_lines(app: &App, width: u16) -> Vec<String> {
+    let Some(m) = &app.message else {
+        return Vec::new();
     };
+    let rw = status_right(app).chars().count();
+    let w = (width as usize).saturating_sub(rw + 1);
+    if w < 4 {
+        return Vec::new();
+    }
+    let text = printable(&m.text);
+    let mut lines = wrap_words(&text, w);
+    let max = STATUS_MAX_ROWS as usize;
+    if lines.len() > max {
+        let rest = lines.split_off(max - 1).join(" ");
+        lines.push(shorten_words(&rest, w));
+    }
+    lines.into_iter().map(|l| format!(" {l}")).collect()
+}
+
+/// Rows of the status line at a width.
+fn status_rows(app: &App, width: u16) -> u16 {
+    (status_lines(app, width).len() as u16).clamp(1, STATUS_MAX_ROWS)
+}
+
+fn draw_status(app: &App, area: Rect, buf: &mut Buffer) {
+    let t = &app.theme;
+    let right = status_right(app);
     let rw = right.chars().count() as u16;
     let [l, r] = Layout::horizontal([Constraint::Min(0), Constraint::Length(rw)]).areas(area);
     if let Some(m) = &app.message {
@@ -261,12 +422,17 @@ fn draw_status(app: &App, area: Rect, buf: &mut Buffer) {
             Tone::Done => t.good,
             Tone::Warn => t.warn,
         };
-        Paragraph::new(Line::styled(format!(" {}", printable(&m.text)), style)).render(l, buf);
+        let lines: Vec<Line> = status_lines(app, area.width)
+            .into_iter()
+            .map(|s| Line::styled(s, style))
+            .collect();
+        Paragraph::new(lines).render(l, buf);
     }
-    Paragraph::new(Line::styled(right, t.dim)).render(r, buf);
+    Paragraph::new(Line::styled(right, t.dim)).render(Rect::new(r.x, r.y, r.width, 1), buf);
 }
 
-/// The footer hints for the current context, from the key map.
+/// The footer hints for the current context, from the key map, most important first
+/// ([`footer_hints`] drops from the end of the context's list when the line is short).
 pub fn hints(app: &App) -> Vec<(String, &'static str)> {
     let k = &app.keymap;
     let h = |a: Action, what: &'static str| (k.first(a), what);
@@ -332,17 +498,44 @@ pub fn hints(app: &App) -> Vec<(String, &'static str)> {
     v
 }
 
+/// The hints that fit in the footer at a width, in display order. `help` and `quit` are
+/// always kept; the others are kept by priority (their order in [`hints`], the most
+/// important first), the least important dropped first.
+pub fn footer_hints(app: &App, width: usize) -> Vec<(String, &'static str)> {
+    let all: Vec<(String, &'static str)> = hints(app)
+        .into_iter()
+        .map(|(k, w)| (if app.theme.ascii { ascii_key(&k) } else { k }, w))
+        .collect();
+    let len = |(k, w): &(String, &str)| k.chars().count() + w.chars().count() + 3;
+    let must = |w: &str| matches!(w, "help" | "quit" | "close");
+    let mut keep: Vec<bool> = all.iter().map(|h| must(h.1)).collect();
+    let mut used = 1 + all.iter().filter(|h| must(h.1)).map(len).sum::<usize>();
+    for (k, h) in keep.iter_mut().zip(&all) {
+        if !*k && used + len(h) <= width {
+            *k = true;
+            used += len(h);
+        }
+    }
+    all.into_iter()
+        .zip(keep)
+        .filter_map(|(h, k)| k.then_some(h))
+        .collect()
+}
+
+/// A key name for ASCII mode: arrows as words (an arrow drawn as `v` or `^` would read
+/// as a letter key).
+pub fn ascii_key(k: &str) -> String {
+    k.replace('↑', "Up")
+        .replace('↓', "Down")
+        .replace('←', "Left")
+        .replace('→', "Right")
+}
+
 fn draw_footer(app: &App, area: Rect, buf: &mut Buffer) {
     let t = &app.theme;
     buf.set_style(area, t.bar);
     let mut spans = vec![Span::styled(" ", t.bar)];
-    let mut used = 1usize;
-    for (key, what) in hints(app) {
-        let len = key.chars().count() + what.chars().count() + 3;
-        if used + len > area.width as usize {
-            break;
-        }
-        used += len;
+    for (key, what) in footer_hints(app, area.width as usize) {
         spans.push(Span::styled(
             key,
             t.bar.add_modifier(ratatui::style::Modifier::BOLD),
@@ -440,6 +633,11 @@ fn draw_help(app: &App, area: Rect, buf: &mut Buffer) {
         let lines: Vec<Line> = chunk
             .iter()
             .map(|(a, keys)| {
+                let keys = if app.theme.ascii {
+                    ascii_key(keys)
+                } else {
+                    keys.clone()
+                };
                 Line::from(vec![
                     Span::styled(format!("{keys:>9} "), t.heading),
                     Span::styled(a.description(), t.text),

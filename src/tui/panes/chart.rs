@@ -26,6 +26,25 @@ pub const GUTTER: u16 = 9;
 // Our design choice: keeps an easy jog and a fast repeat on one readable scale.
 pub const PACE_FLOOR_FRACTION: f64 = 0.45;
 
+/// The pace (speed) trace is drawn as a centred mean over this many seconds, so a 1 Hz
+/// easy or long run reads as a line rather than a noisy band; the cursor readout keeps the
+/// raw value. The chart's legend names the window.
+// Our design choice: light enough that a 30 s repeat keeps its shape.
+pub const PACE_SMOOTH_S: f64 = 15.0;
+
+/// Fewest rows a trace is given before the chart folds its less important parts (the
+/// readout line goes onto the top border, the work/flag strip onto the bottom border).
+// Our design choice: three rows of Braille are twelve dot levels, enough to tell a repeat
+// from its recovery; two rows (eight levels) flatten a steady run into a bar.
+pub const MIN_ROWS_PER_TRACE: u16 = 3;
+
+/// The speed trace as the chart draws it: the centred mean of the usable samples within
+/// [`PACE_SMOOTH_S`] (half before, half after each sample). A sample that is not usable
+/// (flagged, missing) stays `None`, so gaps stay gaps.
+pub fn smoothed_speed(t: &[f64], values: &[Option<f64>], usable: &[bool]) -> Vec<Option<f64>> {
+    crate::analysis::review::smooth(t, values, usable, PACE_SMOOTH_S / 2.0)
+}
+
 /// What the samples falling in one column did.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct ColumnRange {
@@ -192,8 +211,13 @@ fn scale_label(v: f64, units: Units, running: bool) -> String {
     }
 }
 
-/// The cursor readout: time and the exact values at the nearest sample.
+/// The cursor readout: time and the exact (raw, not smoothed) values at the nearest sample.
 pub fn readout(session: &Session, at: f64, units: Units) -> String {
+    readout_parts(session, at, units).join(" · ")
+}
+
+/// The readout's parts, most important first: time, pace (or speed), HR, cadence, altitude.
+pub fn readout_parts(session: &Session, at: f64, units: Units) -> Vec<String> {
     let mut parts = vec![format_clock(at)];
     let running = session.sport.analysed_as_running();
     if let Some(v) = value_at(session, session.speed.as_ref(), at) {
@@ -212,7 +236,7 @@ pub fn readout(session: &Session, at: f64, units: Units) -> String {
     if let Some(a) = value_at(session, session.altitude.as_ref(), at) {
         parts.push(format!("alt {a:.0} m"));
     }
-    parts.join(" · ")
+    parts
 }
 
 struct Band {
@@ -222,6 +246,7 @@ struct Band {
     style: Style,
     labels: [String; 2],
     fits: Vec<(f64, f64, Fit)>,
+    marker: Marker,
 }
 
 fn band_bounds(cols: &[Option<ColumnRange>]) -> Option<(f64, f64)> {
@@ -295,7 +320,7 @@ fn render_band(
     }
     let (lo, hi) = (band.lo, band.hi);
     Canvas::default()
-        .marker(Marker::Braille)
+        .marker(band.marker)
         .x_bounds([view.from, view.to])
         .y_bounds([lo, hi])
         .paint(|ctx| {
@@ -327,6 +352,108 @@ fn render_band(
         .render(plot, buf);
 }
 
+/// As many leading parts as fit in `w` characters, joined by `sep` (at least the first,
+/// which the pane then cuts): a line of values loses whole values from its end, never half
+/// a number.
+pub fn leading_parts(parts: &[String], sep: &str, w: usize) -> String {
+    let mut out = String::new();
+    for p in parts {
+        let next = if out.is_empty() {
+            p.clone()
+        } else {
+            format!("{out}{sep}{p}")
+        };
+        if !out.is_empty() && next.chars().count() > w {
+            break;
+        }
+        out = next;
+    }
+    out
+}
+
+/// The marker HR is drawn with: Braille like pace in colour; dots without colour
+/// (`NO_COLOR`), so the two traces never look alike.
+pub fn hr_marker(plain: bool) -> Marker {
+    if plain {
+        Marker::Dot
+    } else {
+        Marker::Braille
+    }
+}
+
+/// The legend: which trace is which, and the pace trace's smoothing window. Without colour
+/// each name carries its trace's mark.
+pub fn legend(running: bool, plain: bool) -> Vec<(String, LegendPart)> {
+    let pace = if running { "pace" } else { "speed" };
+    let mean = format!("{pace} ({:.0} s mean)", PACE_SMOOTH_S);
+    if plain {
+        // No `·` between them: in ASCII mode it would read as the HR mark.
+        vec![
+            (format!("⠒ {mean}"), LegendPart::Pace),
+            ("  ".to_string(), LegendPart::Sep),
+            ("• HR".to_string(), LegendPart::Hr),
+        ]
+    } else {
+        vec![
+            (mean, LegendPart::Pace),
+            (" · ".to_string(), LegendPart::Sep),
+            ("HR".to_string(), LegendPart::Hr),
+        ]
+    }
+}
+
+/// Which style a legend part takes.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum LegendPart {
+    /// The pace trace's name.
+    Pace,
+    /// The HR trace's name.
+    Hr,
+    /// A separator.
+    Sep,
+}
+
+/// How the chart pane lays out its inner rows at a height with `bands` traces.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub struct ChartLayout {
+    /// The readout has its own line (else it is on the top border).
+    pub readout_line: bool,
+    /// The work/flag strip has its own line (else it is on the bottom border).
+    pub strip_line: bool,
+    /// The time axis is shown.
+    pub axis: bool,
+    /// Rows of ruler lines.
+    pub ruler_rows: u16,
+    /// Rows for the traces.
+    pub canvas: u16,
+}
+
+/// Lay out the inner rows: the traces get at least [`MIN_ROWS_PER_TRACE`] rows each where
+/// the height allows, by folding the readout onto the top border, then the strip onto the
+/// bottom border; the time axis shows from 12 rows; ruler lines take what is left (at most 4).
+pub fn chart_layout(h: u16, bands: usize, rulers: usize) -> ChartLayout {
+    let need = MIN_ROWS_PER_TRACE * (bands.max(1) as u16);
+    let axis = h >= 12;
+    let mut readout_line = true;
+    let mut strip_line = true;
+    let fixed = |r: bool, s: bool| u16::from(r) + u16::from(s) + u16::from(axis);
+    if h.saturating_sub(fixed(readout_line, strip_line)) < need {
+        readout_line = false;
+    }
+    if h.saturating_sub(fixed(readout_line, strip_line)) < need {
+        strip_line = false;
+    }
+    let f = fixed(readout_line, strip_line);
+    let ruler_rows = (rulers.min(4) as u16).min(h.saturating_sub(f + need));
+    ChartLayout {
+        readout_line,
+        strip_line,
+        axis,
+        ruler_rows,
+        canvas: h.saturating_sub(f + ruler_rows),
+    }
+}
+
 /// Draw the chart pane.
 pub fn render(app: &App, area: Rect, buf: &mut Buffer) {
     let t = &app.theme;
@@ -344,14 +471,11 @@ pub fn render(app: &App, area: Rect, buf: &mut Buffer) {
         .filter(|s| !s.analysed_as_running())
         .map(|s| format!(" · {}", s.title()))
         .unwrap_or_default();
-    let block = pane_block(
-        app,
-        format!(" Chart{sport}{zoom}"),
-        app.focus == Focus::Chart,
-    );
-    let inner = block.inner(area);
-    block.render(area, buf);
+    let title = format!(" Chart{sport}{zoom}");
     let (Some(a), Some(view)) = (o.analysed.as_ref(), o.chart) else {
+        let block = pane_block(app, title, app.focus == Focus::Chart);
+        let inner = block.inner(area);
+        block.render(area, buf);
         let text = match &o.load_error {
             Some(e) => Line::styled(e.clone(), t.warn),
             None => Line::styled("reading the session…", t.dim),
@@ -364,25 +488,10 @@ pub fn render(app: &App, area: Rect, buf: &mut Buffer) {
         .map(|x| x.profile.units)
         .unwrap_or_default();
     let s = &a.session;
-    let h = inner.height;
-    if h < 4 || inner.width <= GUTTER + 4 {
-        return;
-    }
-    let plot_w = inner.width - GUTTER;
-    let show_axis = h >= 12;
-    let fixed = 2 + u16::from(show_axis);
-    let ruler_rows = (o.rulers.len() as u16)
-        .min(h.saturating_sub(fixed + 5))
-        .min(4);
-    let canvas_h = h - fixed - ruler_rows;
-    let mut y = inner.y;
-    // Readout.
-    let mut read = readout(s, view.cursor, units);
-    if let Some(p) = o.pending_ruler {
-        read.push_str(&format!(" · ruler from {}", format_clock(p)));
-    }
-    Paragraph::new(Line::styled(read, t.cursor)).render(Rect::new(inner.x, y, inner.width, 1), buf);
-    y += 1;
+    let running = s.sport.analysed_as_running();
+    let h = area.height.saturating_sub(2);
+    let inner_w = area.width.saturating_sub(2);
+    let plot_w = inner_w.saturating_sub(GUTTER);
     // Bands.
     let cols = plot_w as usize * 2;
     let speed_ok: Vec<bool> = sample_mask(s, &s.flags, ChannelKind::Speed)
@@ -396,7 +505,8 @@ pub fn render(app: &App, area: Rect, buf: &mut Buffer) {
         .collect();
     let mut bands: Vec<Band> = Vec::new();
     if let Some(sp) = &s.speed {
-        let c = downsample(&s.t, &sp.values, Some(&speed_ok), view.from, view.to, cols);
+        let smooth = smoothed_speed(&s.t, &sp.values, &speed_ok);
+        let c = downsample(&s.t, &smooth, Some(&speed_ok), view.from, view.to, cols);
         if let Some((mut lo, hi)) = robust_bounds(&c) {
             lo = lo.max(hi * PACE_FLOOR_FRACTION).max(0.3);
             let hi = if hi - lo < 0.2 { lo + 0.2 } else { hi };
@@ -405,11 +515,12 @@ pub fn render(app: &App, area: Rect, buf: &mut Buffer) {
                 lo,
                 hi,
                 style: t.pace,
-                labels: [hi, lo].map(|v| scale_label(v, units, s.sport.analysed_as_running())),
+                labels: [hi, lo].map(|v| scale_label(v, units, running)),
                 fits: stats
                     .iter()
                     .filter_map(|(a, b, st)| st.speed.map(|f| (*a, *b, f)))
                     .collect(),
+                marker: Marker::Braille,
             });
         }
     }
@@ -427,6 +538,7 @@ pub fn render(app: &App, area: Rect, buf: &mut Buffer) {
                     .iter()
                     .filter_map(|(a, b, st)| st.hr.map(|f| (*a, *b, f)))
                     .collect(),
+                marker: hr_marker(t.plain),
             });
         }
     }
@@ -447,10 +559,73 @@ pub fn render(app: &App, area: Rect, buf: &mut Buffer) {
                     style: t.elevation,
                     labels: [format!("{hi:.0} m"), format!("{lo:.0} m")],
                     fits: Vec::new(),
+                    marker: Marker::Braille,
                 });
             }
         }
     }
+    let lay = chart_layout(h, bands.len(), stats.len());
+    // The readout: its own line, or on the top border when the traces need the row.
+    let mut read = readout_parts(s, view.cursor, units);
+    if let Some(p) = o.pending_ruler {
+        // Before cadence and altitude: it is what the coach is doing.
+        read.insert(3.min(read.len()), format!("ruler from {}", format_clock(p)));
+    }
+    let legend_spans: Vec<Span> = legend(running, t.plain)
+        .into_iter()
+        .map(|(text, part)| {
+            let style = match part {
+                LegendPart::Pace => t.pace,
+                LegendPart::Hr => t.hr,
+                LegendPart::Sep => t.dim,
+            };
+            Span::styled(text, style)
+        })
+        .collect();
+    let legend_w: usize = legend_spans
+        .iter()
+        .map(|s| s.content.chars().count())
+        .sum::<usize>()
+        + 2;
+    let border_room = (area.width as usize).saturating_sub(4);
+    let title_line = if lay.readout_line {
+        Line::raw(title)
+    } else {
+        // Keep the most important parts of the readout that fit beside the title.
+        let mut parts = read.clone();
+        let head = title.trim_end().to_string();
+        let text = loop {
+            let text = format!("{head} · {} ", parts.join(" · "));
+            if text.chars().count() <= border_room || parts.len() <= 1 {
+                break text;
+            }
+            parts.pop();
+        };
+        Line::styled(text, t.cursor)
+    };
+    let title_w = title_line.width();
+    let mut block = pane_block(app, title_line, app.focus == Focus::Chart);
+    if title_w + legend_w < border_room {
+        let mut spans = vec![Span::raw(" ")];
+        spans.extend(legend_spans);
+        spans.push(Span::raw(" "));
+        block = block.title(Line::from(spans).right_aligned());
+    }
+    let inner = block.inner(area);
+    block.render(area, buf);
+    if h < 2 || inner.width <= GUTTER + 4 {
+        return;
+    }
+    let mut y = inner.y;
+    if lay.readout_line {
+        Paragraph::new(Line::styled(
+            leading_parts(&read, " · ", inner.width as usize),
+            t.cursor,
+        ))
+        .render(Rect::new(inner.x, y, inner.width, 1), buf);
+        y += 1;
+    }
+    let canvas_h = lay.canvas;
     // Heights: pace gets the most room.
     let weights: Vec<u16> = bands
         .iter()
@@ -468,11 +643,13 @@ pub fn render(app: &App, area: Rect, buf: &mut Buffer) {
     let mut left = canvas_h;
     let plot_area = Rect::new(inner.x + GUTTER, y, plot_w, canvas_h);
     shade_work(app, o.review.as_ref(), &view, plot_area, buf);
+    let canvas_top = y;
     for (i, band) in bands.iter().enumerate() {
         let bh = if i + 1 == bands.len() {
             left
         } else {
             (canvas_h * weights.get(i).copied().unwrap_or(1) / total_w)
+                .max(MIN_ROWS_PER_TRACE.min(canvas_h / bands.len() as u16))
                 .max(1)
                 .min(left)
         };
@@ -494,24 +671,43 @@ pub fn render(app: &App, area: Rect, buf: &mut Buffer) {
         Paragraph::new(Line::styled("no speed or heart-rate data", t.dim))
             .render(Rect::new(inner.x, y, inner.width, 1), buf);
     }
-    y = inner.y + 1 + canvas_h;
-    // Strip: work intervals and flagged data.
+    y = canvas_top + canvas_h;
+    // Strip: work intervals and flagged data; on the bottom border when folded.
     let strip = strip_line(s, o.review.as_ref(), &view, plot_w as usize);
-    let mut spans = vec![Span::styled(
-        format!("{:<w$}", "work/flag", w = GUTTER as usize),
-        t.dim,
-    )];
+    let border = if app.focus == Focus::Chart {
+        t.border_focus
+    } else {
+        t.border
+    };
+    let strip_y = if lay.strip_line {
+        y
+    } else {
+        area.y + area.height.saturating_sub(1)
+    };
+    let mut spans = vec![if lay.strip_line {
+        Span::styled(format!("{:<w$}", "work/flag", w = GUTTER as usize), t.dim)
+    } else {
+        Span::styled(format!("{:─<w$}", "─work", w = GUTTER as usize), border)
+    }];
     for (ch, kind) in strip {
         let style = match kind {
             StripMark::Flag => t.flagged,
             StripMark::Work => t.work,
+            StripMark::None if !lay.strip_line => border,
             StripMark::None => t.dim,
+        };
+        let ch = if kind == StripMark::None && !lay.strip_line {
+            '─'
+        } else {
+            ch
         };
         spans.push(Span::styled(ch.to_string(), style));
     }
-    Paragraph::new(Line::from(spans)).render(Rect::new(inner.x, y, inner.width, 1), buf);
-    y += 1;
-    if show_axis {
+    Paragraph::new(Line::from(spans)).render(Rect::new(inner.x, strip_y, inner.width, 1), buf);
+    if lay.strip_line {
+        y += 1;
+    }
+    if lay.axis {
         let axis = time_axis(&view, plot_w as usize);
         Paragraph::new(Line::from(vec![
             Span::styled(" ".repeat(GUTTER as usize), t.dim),
@@ -520,10 +716,15 @@ pub fn render(app: &App, area: Rect, buf: &mut Buffer) {
         .render(Rect::new(inner.x, y, inner.width, 1), buf);
         y += 1;
     }
-    let skip = stats.len().saturating_sub(ruler_rows as usize);
+    let skip = stats.len().saturating_sub(lay.ruler_rows as usize);
     for (k, (a, b, st)) in stats.iter().enumerate().skip(skip) {
-        Paragraph::new(Line::styled(ruler_line(k + 1, *a, *b, st, units), t.ruler))
-            .render(Rect::new(inner.x, y, inner.width, 1), buf);
+        let line = ruler_line(k + 1, *a, *b, st, units);
+        let parts: Vec<String> = line.split("  ").map(str::to_string).collect();
+        Paragraph::new(Line::styled(
+            leading_parts(&parts, "  ", inner.width as usize),
+            t.ruler,
+        ))
+        .render(Rect::new(inner.x, y, inner.width, 1), buf);
         y += 1;
     }
 }
@@ -683,5 +884,87 @@ mod tests {
                 last: 4.0
             })
         );
+    }
+
+    #[test]
+    fn smoothed_speed_is_the_exact_centred_mean() {
+        // Irregular sampling (1 s, a 4 s gap, 2 s steps), missing values and unusable
+        // samples: invented data, checked against the mean computed the slow way.
+        let mut t: Vec<f64> = (0..60).map(f64::from).collect();
+        t.extend((0..20).map(|k| 64.0 + 2.0 * f64::from(k)));
+        let values: Vec<Option<f64>> = t
+            .iter()
+            .enumerate()
+            .map(|(i, &x)| (i % 17 != 5).then(|| 3.0 + (x * 0.7).sin() + 0.01 * x))
+            .collect();
+        let usable: Vec<bool> = (0..t.len()).map(|i| !(20..24).contains(&i)).collect();
+        let got = smoothed_speed(&t, &values, &usable);
+        let half = PACE_SMOOTH_S / 2.0;
+        assert_eq!(got.len(), t.len());
+        for i in 0..t.len() {
+            let own = usable[i].then_some(values[i]).flatten();
+            let window: Vec<f64> = (0..t.len())
+                .filter(|&j| (t[j] - t[i]).abs() <= half && usable[j])
+                .filter_map(|j| values[j])
+                .collect();
+            match own {
+                None => assert_eq!(got[i], None, "sample {i} not usable stays a gap"),
+                Some(_) => {
+                    let want = window.iter().sum::<f64>() / window.len() as f64;
+                    let g = got[i].expect("a usable sample has a mean");
+                    assert!((g - want).abs() < 1e-9, "sample {i}: {g} vs {want}");
+                }
+            }
+        }
+        // At 1 Hz the window holds 15 samples: a lone spike is diluted fifteenfold.
+        let t: Vec<f64> = (0..41).map(f64::from).collect();
+        let mut v = vec![Some(3.0); 41];
+        v[20] = Some(18.0);
+        let got = smoothed_speed(&t, &v, &[true; 41]);
+        assert!((got[20].unwrap() - 4.0).abs() < 1e-12);
+        assert!((got[13].unwrap() - 4.0).abs() < 1e-12);
+        assert_eq!(got[12], Some(3.0));
+    }
+
+    #[test]
+    fn layout_folds_readout_then_strip() {
+        // 80x24: six inner rows, two traces: both folds, three rows each.
+        let l = chart_layout(6, 2, 0);
+        assert!(!l.readout_line && !l.strip_line && !l.axis);
+        assert_eq!(l.canvas, 6);
+        // Seven rows: the readout folds, the strip keeps its line.
+        let l = chart_layout(7, 2, 0);
+        assert!(!l.readout_line && l.strip_line);
+        assert_eq!(l.canvas, 6);
+        // Eight rows: nothing folds.
+        let l = chart_layout(8, 2, 0);
+        assert!(l.readout_line && l.strip_line);
+        assert_eq!(l.canvas, 6);
+        // Tall: the axis shows and rulers take rows the traces can spare (at most 4).
+        let l = chart_layout(18, 2, 6);
+        assert!(l.axis && l.readout_line && l.strip_line);
+        assert_eq!(l.ruler_rows, 4);
+        assert_eq!(l.canvas, 11);
+        // Rulers never take a trace's rows.
+        let l = chart_layout(9, 2, 3);
+        assert_eq!(l.ruler_rows, 1);
+        assert_eq!(l.canvas, 6);
+    }
+
+    #[test]
+    fn lines_of_values_lose_whole_values() {
+        let parts: Vec<String> = ["16:56", "pace 3:47/km", "HR 184", "cad 170"]
+            .map(String::from)
+            .to_vec();
+        assert_eq!(
+            leading_parts(&parts, " · ", 80),
+            "16:56 · pace 3:47/km · HR 184 · cad 170"
+        );
+        assert_eq!(
+            leading_parts(&parts, " · ", 30),
+            "16:56 · pace 3:47/km · HR 184"
+        );
+        assert_eq!(leading_parts(&parts, " · ", 28), "16:56 · pace 3:47/km");
+        assert_eq!(leading_parts(&parts, " · ", 3), "16:56");
     }
 }

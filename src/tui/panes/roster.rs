@@ -8,7 +8,7 @@ use ratatui::widgets::{Paragraph, Widget};
 use super::{fit, pad};
 use crate::roster::printable;
 use crate::tui::app::{App, Focus, RosterRow};
-use crate::tui::ui::pane_block;
+use crate::tui::ui::{pane_block, shorten_words};
 
 /// Draw the roster pane.
 pub fn render(app: &App, area: Rect, buf: &mut Buffer) {
@@ -55,6 +55,30 @@ pub fn render(app: &App, area: Rect, buf: &mut Buffer) {
     let first = cur.saturating_sub(visible.saturating_sub(1).min(visible / 2 + visible / 4));
     let first = first.min(rows.len().saturating_sub(visible));
     let open_id = app.open.as_ref().map(|o| o.session_id.as_str());
+    // The stage column is as wide as the longest stage shown, so the title keeps the rest.
+    let stage_w = rows
+        .iter()
+        .filter_map(|r| match r {
+            RosterRow::Session(s) => Some(stage_label(s).chars().count()),
+            RosterRow::Athlete(_) => None,
+        })
+        .max()
+        .unwrap_or(0)
+        .min(w / 3);
+    // Dates with the year only when every title still fits beside them: the title gets
+    // the room there is.
+    let longest = rows
+        .iter()
+        .filter_map(|r| match r {
+            RosterRow::Session(s) => {
+                Some(printable(&app.session_title(&s.session_id)).chars().count())
+            }
+            RosterRow::Athlete(_) => None,
+        })
+        .max()
+        .unwrap_or(0);
+    let long_dates = w.saturating_sub(2 + 10 + 1 + stage_w + 1) >= longest;
+    let date_w = if long_dates { 10 } else { 5 };
     for (i, row) in rows.iter().enumerate().skip(first).take(visible) {
         let selected = i == cur;
         let line = match row {
@@ -92,26 +116,18 @@ pub fn render(app: &App, area: Rect, buf: &mut Buffer) {
                     .start
                     .map(|d| crate::model::session::session_day(&s.session_id, d));
                 let date = match day {
-                    Some(d) if w >= 38 => d.format("%Y-%m-%d").to_string(),
+                    Some(d) if long_dates => d.format("%Y-%m-%d").to_string(),
                     Some(d) => d.format("%m-%d").to_string(),
-                    None => "  …  ".to_string(),
+                    None => format!("{:^date_w$}", "…"),
                 };
-                let stage = if s.failed {
-                    "unreadable".to_string()
-                } else {
-                    match s.stage {
-                        Some(st) => st.label().to_string(),
-                        None => "analysing".to_string(),
-                    }
-                };
-                let stage_w = 13.min(w / 3);
+                let stage = stage_label(s);
                 let open_mark = if open_id == Some(s.session_id.as_str()) {
                     "•"
                 } else {
                     " "
                 };
                 let title_w = w.saturating_sub(2 + date.chars().count() + 1 + stage_w + 1);
-                let title = printable(&app.session_title(&s.session_id));
+                let title = row_title(app, &s.session_id, title_w);
                 let base = if selected { t.selected } else { t.text };
                 let stage_style = if selected {
                     t.selected
@@ -140,6 +156,79 @@ pub fn render(app: &App, area: Rect, buf: &mut Buffer) {
     }
 }
 
+/// A session row's stage word.
+fn stage_label(s: &crate::tui::app::SessionRow) -> String {
+    if s.failed {
+        "unreadable".to_string()
+    } else {
+        match s.stage {
+            Some(st) => st.label().to_string(),
+            None => "analysing".to_string(),
+        }
+    }
+}
+
+/// A session's title for a roster row of `w` characters: the plan's title cut at a word
+/// boundary; for a session without a plan, its sport and distance with the distance
+/// rounded to what fits (`running 2.66 km`, `running 2.7 km`, `running 3 km`, `2.7 km`),
+/// never cut into a different number.
+pub fn row_title(app: &App, session_id: &str, w: usize) -> String {
+    let full = printable(&app.session_title(session_id));
+    if full.chars().count() <= w {
+        return full;
+    }
+    let unplanned = app
+        .reviews
+        .get(session_id)
+        .filter(|r| r.plan.is_none())
+        .and_then(|r| {
+            r.session
+                .distance_m
+                .map(|d| (printable(&r.session.sport), d))
+        });
+    if let Some((sport, d)) = unplanned {
+        let units = app
+            .roster
+            .find_session(session_id)
+            .map(|(a, _)| a.profile.units)
+            .unwrap_or_default();
+        let x = d / units.metres();
+        let u = units.label();
+        let tries = [
+            format!("{sport} {x:.1} {u}"),
+            format!("{sport} {x:.0} {u}"),
+            format!("{x:.2} {u}"),
+            format!("{x:.1} {u}"),
+            format!("{x:.0} {u}"),
+        ];
+        if let Some(t) = tries.into_iter().find(|t| t.chars().count() <= w) {
+            return t;
+        }
+        return shorten_words(&sport, w);
+    }
+    // Cut at a word boundary; a cut right after a number would read as a cut number
+    // (`10…`), so that word goes too.
+    let mut room = w;
+    loop {
+        let cut = shorten_words(&full, room);
+        let kept = cut.trim_end_matches('…');
+        let whole = kept == full || full.starts_with(&format!("{kept} "));
+        let after_number = kept.ends_with(|c: char| c.is_ascii_digit()) && kept != full;
+        let number_cut = !whole && kept.contains(|c: char| c.is_ascii_digit());
+        if !after_number && !number_cut {
+            return cut;
+        }
+        if room <= 1 {
+            return if w > 0 {
+                "…".to_string()
+            } else {
+                String::new()
+            };
+        }
+        room = kept.chars().count().min(room - 1);
+    }
+}
+
 /// The athlete under the roster cursor.
 fn cursor_athlete(app: &App) -> Option<&crate::roster::Athlete> {
     app.cursor
@@ -162,7 +251,7 @@ fn problem_lines(app: &App, w: usize, height: usize) -> Vec<Line<'static>> {
         return Vec::new();
     }
     let mut out = vec![Line::styled(
-        fit(
+        shorten_words(
             &format!(
                 "! {} file problem{}:",
                 problems.len(),
@@ -184,13 +273,13 @@ fn problem_lines(app: &App, w: usize, height: usize) -> Vec<Line<'static>> {
             .map(|n| n.to_string_lossy().into_owned())
             .unwrap_or_default();
         out.push(Line::styled(
-            fit(&printable(&format!("{file}: {}", p.message)), w),
+            shorten_words(&printable(&format!("{file}: {}", p.message)), w),
             t.text,
         ));
     }
     if shown < problems.len() {
         out.push(Line::styled(
-            fit(
+            shorten_words(
                 &format!(
                     "… {} more: splitdesk check lists them all",
                     problems.len() - shown

@@ -637,6 +637,24 @@ pub fn feedback(
     Ok(0)
 }
 
+/// The sessions whose file can be read; each one left out is named on stderr (its feedback
+/// has no analysis to draft from).
+fn without_unreadable(entries: Vec<QueueEntry>) -> Vec<QueueEntry> {
+    entries
+        .into_iter()
+        .filter(|e| match &e.file_unreadable {
+            Some(why) => {
+                eprintln!(
+                    "left out: {} (the file cannot be read: {why}; save its feedback with splitdesk feedback {} --set FILE)",
+                    e.session_id, e.session_id
+                );
+                false
+            }
+            None => true,
+        })
+        .collect()
+}
+
 /// Which sessions an export covers.
 #[derive(Debug, Default, Clone)]
 pub struct Filter {
@@ -697,6 +715,7 @@ pub fn export_feedback(
         .rev()
         .filter(|e| filter.keeps(e) && e.stage.is_revealed())
         .collect();
+    let entries = without_unreadable(entries);
     let mut blocks = Vec::new();
     let mut not_recorded = false;
     for e in &entries {
@@ -828,6 +847,7 @@ fn export_day(
     entries.sort_by(|a, b| (a.start, &a.session_id).cmp(&(b.start, &b.session_id)));
     let (pending, done): (Vec<QueueEntry>, Vec<QueueEntry>) =
         entries.into_iter().partition(|e| !e.stage.is_revealed());
+    let done = without_unreadable(done);
     // Athletes in roster order; any the roster no longer lists after them, by id.
     let mut athletes: Vec<String> = ws
         .roster
@@ -947,12 +967,14 @@ fn plural(n: usize, one: &str, many: &str) -> String {
 
 /// `splitdesk export intervals [--athlete A] [--since D] --csv`: one row per interval.
 pub fn export_intervals(ws: &mut Workspace, filter: &Filter) -> anyhow::Result<i32> {
+    // A session whose file cannot be read has no intervals: it has no rows (the queue and
+    // `check` name it).
     let entries: Vec<QueueEntry> = ws
         .journal
         .sessions(None)?
         .into_iter()
         .rev()
-        .filter(|e| filter.keeps(e))
+        .filter(|e| filter.keeps(e) && e.file_unreadable.is_none())
         .collect();
     let mut w = csv::Writer::from_writer(std::io::stdout().lock());
     w.write_record([

@@ -275,11 +275,21 @@ fn ascii_footer_has_no_key_clash_and_empty_verdict_is_a_dash() {
         if w >= 100 {
             assert!(f.contains("Down interval"), "{w}x{h}: {f}");
         }
-        // No verdict yet: a dash, not a `#`.
-        let grading = text
+        // No verdict yet: a dash, not a `#`. (The grading line may sit below the table:
+        // the verdict pane scrolls to it.)
+        let scrolled;
+        let grading_text = if text.contains("purpose verdict") {
+            &text
+        } else {
+            key(&mut app, crossterm::event::KeyCode::End);
+            scrolled = screen(&mut app, w, h);
+            key(&mut app, crossterm::event::KeyCode::Home);
+            &scrolled
+        };
+        let grading = grading_text
             .lines()
             .find(|l| l.contains("purpose verdict"))
-            .expect("grading line");
+            .unwrap_or_else(|| panic!("grading line at {w}x{h}:\n{grading_text}"));
         assert!(grading.contains("purpose verdict - (v)"), "{grading}");
         assert!(text.is_ascii(), "{w}x{h}: every cell ASCII");
         // The work intervals on the chart's strip stand apart from the border line.

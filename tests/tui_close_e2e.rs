@@ -107,6 +107,9 @@ fn seen_takes_a_session_out_of_the_queue_and_back() {
     );
     assert_eq!(app.seen_count, 1);
     assert!(!app.queue.iter().any(|e| e.session_id == LONG));
+    // The status line counts it apart from the queue.
+    let s = screen(&mut app, 160, 48);
+    assert!(s.contains(" 2 to review · 1 seen "), "{s}");
     assert_eq!(
         app.journal.review_state(LONG).unwrap().stage,
         ReviewStage::Seen
@@ -180,6 +183,17 @@ fn a_damaged_file_says_so_and_closes_with_the_verdict() {
     assert_eq!(
         app.journal.review_state(BROKEN).unwrap().stage,
         ReviewStage::Revealed
+    );
+    // Closed: the roster row shows its stage, no longer "unreadable".
+    app.modal = None;
+    let s = screen(&mut app, 160, 48);
+    let row = s
+        .lines()
+        .find(|l| l.contains("2024-03-05-broken") && l.contains("03-05"))
+        .unwrap_or_else(|| panic!("{s}"));
+    assert!(
+        row.contains("revealed") && !row.contains("unreadable"),
+        "{row}"
     );
 }
 

@@ -370,14 +370,20 @@ fn status_right(app: &App) -> String {
         " reading the roster ".to_string()
     } else if p.done < p.total {
         format!(" analysing {}/{} ", p.done, p.total)
-    } else if p.failed > 0 {
-        format!(
-            " {} unreadable file(s) · {} to review ",
-            p.failed,
-            app.queue.len()
-        )
     } else {
-        format!(" {} to review ", app.queue.len())
+        let mut parts = Vec::new();
+        if p.failed > 0 {
+            parts.push(format!(
+                "{} unreadable {}",
+                p.failed,
+                if p.failed == 1 { "file" } else { "files" }
+            ));
+        }
+        parts.push(format!("{} to review", app.queue.len()));
+        if app.seen_count > 0 {
+            parts.push(format!("{} seen", app.seen_count));
+        }
+        format!(" {} ", parts.join(" · "))
     }
 }
 

@@ -477,10 +477,13 @@ pub fn render(app: &App, area: Rect, buf: &mut Buffer) {
         let inner = block.inner(area);
         block.render(area, buf);
         let text = match &o.load_error {
-            Some(e) => Line::styled(e.clone(), t.warn),
+            Some(e) => Line::styled(crate::roster::printable(e), t.warn),
             None => Line::styled("reading the session…", t.dim),
         };
-        Paragraph::new(text).render(inner, buf);
+        // A long error (a path and its reason) wraps; it is never cut.
+        Paragraph::new(text)
+            .wrap(ratatui::widgets::Wrap { trim: false })
+            .render(inner, buf);
         return;
     };
     let units = app

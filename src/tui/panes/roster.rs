@@ -158,7 +158,9 @@ pub fn render(app: &App, area: Rect, buf: &mut Buffer) {
 
 /// A session row's stage word.
 fn stage_label(s: &crate::tui::app::SessionRow) -> String {
-    if s.failed {
+    // A damaged file the coach closed with the verdict shows its stage like any other.
+    let closed = s.stage.is_some_and(|st| st.is_revealed());
+    if s.failed && !closed {
         "unreadable".to_string()
     } else {
         match s.stage {

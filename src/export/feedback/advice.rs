@@ -151,7 +151,12 @@ fn poor_reps_advice(c: &Ctx<'_>) -> Option<String> {
             per_unit(c.units)
         ));
     }
-    Some(if quicker * 2 > poor.len() {
+    let last = c.reps.last().map(|r| r.number);
+    let only_last = read.poor.len() == 1 && read.poor.first().copied() == last;
+    Some(if quicker * 2 > poor.len() && only_last {
+        "Next time, run the last rep at the same effort as the rest instead of racing it."
+            .to_string()
+    } else if quicker * 2 > poor.len() {
         "Next time, run every rep at the same effort: a rep run too quick costs the ones after \
          it."
         .to_string()

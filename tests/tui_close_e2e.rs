@@ -162,6 +162,11 @@ fn a_damaged_file_says_so_and_closes_with_the_verdict() {
     assert!(app.open.as_ref().unwrap().note.is_none());
     let screen_text = screen(&mut app, 160, 48);
     assert!(!screen_text.contains(BROKEN_NOTE));
+    // The verdict pane says what the coach can do.
+    assert!(
+        screen_text.contains("v closes this session with the purpose verdict alone"),
+        "{screen_text}"
+    );
     ch(&mut app, '4');
     assert!(
         message(&app).starts_with("the file cannot be read, so there is nothing to score"),
@@ -187,6 +192,10 @@ fn a_damaged_file_says_so_and_closes_with_the_verdict() {
     // Closed: the roster row shows its stage, no longer "unreadable".
     app.modal = None;
     let s = screen(&mut app, 160, 48);
+    assert!(
+        s.contains("Closed with the purpose verdict alone (met); o shows the notes."),
+        "{s}"
+    );
     let row = s
         .lines()
         .find(|l| l.contains("2024-03-05-broken") && l.contains("03-05"))

@@ -175,7 +175,21 @@ fn stage_label(s: &crate::tui::app::SessionRow) -> String {
 /// rounded to what fits (`running 2.66 km`, `running 2.7 km`, `running 3 km`, `2.7 km`),
 /// never cut into a different number.
 pub fn row_title(app: &App, session_id: &str, w: usize) -> String {
-    let full = printable(&app.session_title(session_id));
+    let mut full = printable(&app.session_title(session_id));
+    // A session with no title of its own shows its file name: the date is in the row
+    // already, so the rest of the name is the title (`2026-11-06-easy-run` -> `easy run`).
+    let dated = full.get(..11).is_some_and(|p| {
+        p.chars().enumerate().all(|(i, c)| {
+            if matches!(i, 4 | 7 | 10) {
+                c == '-'
+            } else {
+                c.is_ascii_digit()
+            }
+        })
+    });
+    if dated && !full.contains(' ') && full.chars().count() > w {
+        full = full.get(11..).unwrap_or_default().replace(['-', '_'], " ");
+    }
     if full.chars().count() <= w {
         return full;
     }

@@ -552,11 +552,36 @@ pub fn document(app: &App, w: usize) -> Document {
     let w = w.max(1);
     let Some(o) = &app.open else { return d };
     let Some(review) = o.review.as_ref() else {
-        let line = match &o.load_error {
-            Some(e) => Line::styled(printable(e), t.warn),
-            None => Line::styled("analysing this session…", t.dim),
-        };
-        d.push(line, w);
+        match &o.load_error {
+            Some(e) => {
+                d.push(Line::styled("The file cannot be read:", t.heading), w);
+                d.push(Line::styled(printable(e), t.warn), w);
+                d.push(Line::raw(""), w);
+                let verdict = o
+                    .state
+                    .as_ref()
+                    .and_then(|s| s.verdict.as_ref())
+                    .map(|v| v.current.as_str());
+                let next = match (o.revealed(), verdict) {
+                    (true, Some(v)) => format!(
+                        "Closed with the purpose verdict alone ({v}); {} shows the notes.",
+                        app.keymap.first(crate::tui::action::Action::RevealNotes)
+                    ),
+                    (false, Some(v)) => format!(
+                        "Purpose verdict {v}; {} reads the notes.",
+                        app.keymap.first(crate::tui::action::Action::RevealNotes)
+                    ),
+                    _ => format!(
+                        "{} closes this session with the purpose verdict alone (it records \
+                         that you saw the problem); then {} reads the notes.",
+                        app.keymap.first(crate::tui::action::Action::CycleVerdict),
+                        app.keymap.first(crate::tui::action::Action::RevealNotes)
+                    ),
+                };
+                d.push(Line::styled(next, t.text), w);
+            }
+            None => d.push(Line::styled("analysing this session…", t.dim), w),
+        }
         return d;
     };
     let units = app

@@ -13,8 +13,7 @@ use ratatui::buffer::Buffer;
 use ratatui::layout::Rect;
 use splitdesk::journal::Journal;
 use splitdesk::roster::Roster;
-use splitdesk::tui::app::{App, Focus, Message, Options, Tone};
-use splitdesk::tui::keymap::KeyMap;
+use splitdesk::tui::app::{App, Focus, Message, Tone};
 use splitdesk::tui::panes::chart::MIN_ROWS_PER_TRACE;
 use splitdesk::tui::panes::roster::row_title;
 use splitdesk::tui::theme::{asciify, Theme};
@@ -324,18 +323,11 @@ fn is_rounding(shown: &str, true_value: f64) -> bool {
 fn roster_distances_are_never_cut_into_another_number() {
     // Source: the demo roster (generated; `tests/demo_regenerate.rs` keeps it current).
     let root = Path::new(env!("CARGO_MANIFEST_DIR")).join("demo-athletes");
-    let mut app = App::new(
+    let mut app = scanned_app(
         Roster::open(&root).unwrap(),
         Journal::open_in_memory().unwrap(),
-        Options {
-            keymap: KeyMap::default(),
-            theme: Theme::plain(),
-            feedback_dir: None,
-        },
+        None,
     );
-    app.size = (160, 48);
-    let fx = app.start_scan();
-    run_effects(&mut app, fx);
     let ids: Vec<String> = app.reviews.keys().cloned().collect();
     assert!(ids.len() > 100, "the demo roster is analysed");
     let mut unplanned = 0;

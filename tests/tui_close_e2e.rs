@@ -17,9 +17,7 @@ use std::time::{Duration, Instant};
 use crossterm::event::KeyCode;
 use splitdesk::journal::{Journal, ReviewStage};
 use splitdesk::roster::Roster;
-use splitdesk::tui::app::{App, Focus, Leave, Modal, Options, LEAVE_TITLE};
-use splitdesk::tui::keymap::KeyMap;
-use splitdesk::tui::theme::Theme;
+use splitdesk::tui::app::{App, Focus, Leave, Modal, LEAVE_TITLE};
 use tmux_support::{binary, copy_dir, need_tmux, run, Tmux};
 use tui_support::*;
 
@@ -41,21 +39,11 @@ fn app_with_broken(dir: &Path) -> App {
         format!("{BROKEN_NOTE}\n"),
     )
     .unwrap();
-    let roster = Roster::open(dir).unwrap();
-    let journal = Journal::open_in_memory().unwrap();
-    let mut app = App::new(
-        roster,
-        journal,
-        Options {
-            keymap: KeyMap::default(),
-            theme: Theme::plain(),
-            feedback_dir: Some(dir.join("feedback-out")),
-        },
-    );
-    app.size = (160, 48);
-    let fx = app.start_scan();
-    run_effects(&mut app, fx);
-    app
+    scanned_app(
+        Roster::open(dir).unwrap(),
+        Journal::open_in_memory().unwrap(),
+        Some(dir.join("feedback-out")),
+    )
 }
 
 fn open(app: &mut App, id: &str) {

@@ -9,26 +9,17 @@ use chrono::Utc;
 use crossterm::event::KeyCode;
 use splitdesk::journal::{Journal, PurposeVerdict, ReviewStage};
 use splitdesk::roster::Roster;
-use splitdesk::tui::app::{App, Options};
-use splitdesk::tui::keymap::KeyMap;
-use splitdesk::tui::theme::Theme;
-use tui_support::{build_roster, ch, key, open_intervals, run_effects, INTERVALS, SECRET_NOTE};
+use splitdesk::tui::app::App;
+use tui_support::{build_roster, ch, key, open_intervals, scanned_app, INTERVALS, SECRET_NOTE};
 
 fn app_on_file(dir: &std::path::Path) -> (App, Journal) {
     build_roster(dir);
     let path = dir.join("journal.sqlite");
-    let mut app = App::new(
+    let mut app = scanned_app(
         Roster::open(dir).unwrap(),
         Journal::open(&path).unwrap(),
-        Options {
-            keymap: KeyMap::default(),
-            theme: Theme::plain(),
-            feedback_dir: None,
-        },
+        None,
     );
-    app.size = (160, 48);
-    let fx = app.start_scan();
-    run_effects(&mut app, fx);
     open_intervals(&mut app);
     (app, Journal::open(&path).unwrap())
 }

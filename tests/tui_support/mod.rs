@@ -148,13 +148,19 @@ pub fn app_with(dir: &std::path::Path) -> App {
     build_roster(dir);
     let roster = Roster::open(dir).expect("roster");
     let journal = Journal::open_in_memory().expect("journal");
+    scanned_app(roster, journal, Some(dir.join("feedback-out")))
+}
+
+/// An app on `roster` and `journal` (default keys, plain theme, 160x48), every session
+/// scanned.
+pub fn scanned_app(roster: Roster, journal: Journal, feedback_dir: Option<PathBuf>) -> App {
     let mut app = App::new(
         roster,
         journal,
         Options {
             keymap: KeyMap::default(),
             theme: Theme::plain(),
-            feedback_dir: Some(dir.join("feedback-out")),
+            feedback_dir,
         },
     );
     app.size = (160, 48);

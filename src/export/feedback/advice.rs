@@ -57,6 +57,11 @@ fn why_poor(c: &Ctx<'_>, number: usize) -> Option<String> {
         Some(Side::Slow) => return Some("it was slower than your target range".to_string()),
         _ => {}
     }
+    // In a progression each rep is meant to be quicker than the last: against the set's
+    // average pace says nothing.
+    if c.kind == SessionKind::Progression {
+        return None;
+    }
     let mean = c.mean_pace()?;
     let gap = pace_gap_s(rep.pace - mean, c.units);
     (gap >= 2.0).then(|| {

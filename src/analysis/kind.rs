@@ -117,7 +117,7 @@ pub const TEMPO_MIN_RELATIVE_INTENSITY: f64 = 0.87;
 pub const HILL_MIN_GRADE_PCT: f64 = 3.0;
 
 /// Whether `words` (lowercase) holds `w` as a whole word or phrase.
-fn has_word(words: &str, w: &str) -> bool {
+pub fn has_word(words: &str, w: &str) -> bool {
     words.match_indices(w).any(|(i, _)| {
         let before = words[..i].chars().next_back();
         let after = words[i + w.len()..].chars().next();

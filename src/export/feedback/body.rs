@@ -247,14 +247,7 @@ fn distance_and_pace(c: &Ctx<'_>) -> Option<String> {
 }
 
 fn easy(c: &Ctx<'_>) -> Vec<String> {
-    let mut out = Vec::new();
-    match distance_and_pace(c) {
-        Some(d) => out.push(format!("{}.", capitalise(&d))),
-        None => out.push(format!(
-            "{} on the move.",
-            capitalise(&words::duration(c.review.session.moving_s))
-        )),
-    }
+    let mut out = easy_headline(c);
     out.extend(easy_effort(c));
     out
 }
@@ -340,6 +333,7 @@ fn long_run(c: &Ctx<'_>) -> Vec<String> {
     out
 }
 
+/// Distance and pace on the move (or the moving time without a distance), as a sentence.
 fn easy_headline(c: &Ctx<'_>) -> Vec<String> {
     match distance_and_pace(c) {
         Some(d) => vec![format!("{}.", capitalise(&d))],

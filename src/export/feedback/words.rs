@@ -141,13 +141,10 @@ pub fn day(date: &str) -> String {
 /// Whether `text` (any case) holds a coach-only word, and which.
 pub fn coach_word_in(text: &str) -> Option<&'static str> {
     let lower = text.to_lowercase();
-    COACH_ONLY_WORDS.iter().copied().find(|w| {
-        lower.match_indices(w).any(|(i, _)| {
-            let before = lower[..i].chars().next_back();
-            let after = lower[i + w.len()..].chars().next();
-            !before.is_some_and(char::is_alphanumeric) && !after.is_some_and(char::is_alphanumeric)
-        })
-    })
+    COACH_ONLY_WORDS
+        .iter()
+        .copied()
+        .find(|w| crate::analysis::kind::has_word(&lower, w))
 }
 
 #[cfg(test)]

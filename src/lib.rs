@@ -14,6 +14,7 @@ pub mod analysis;
 pub mod bias;
 pub mod cli;
 pub mod config;
+pub mod context;
 pub mod demo;
 pub mod export;
 pub mod ingest;

@@ -7,10 +7,13 @@ use std::path::{Path, PathBuf};
 
 use chrono::{DateTime, Utc};
 
+use crate::analysis::card::SessionCard;
 use crate::analysis::findings::{Finding, Severity};
 use crate::analysis::review::{Review, ANALYSIS_VERSION};
 use crate::ingest::{self, IngestError};
-use crate::journal::{self, FileStat, Journal, JournalError, SessionRecord, SummaryCache};
+use crate::journal::{
+    self, CardCache, FileStat, Journal, JournalError, SessionRecord, SummaryCache,
+};
 use crate::model::{Plan, Session};
 use crate::plan::PlanFileError;
 use crate::roster::{plans, Activity, Athlete, Roster, RosterError};
@@ -88,6 +91,19 @@ impl Analysed {
             );
         }
         let json = serde_json::to_string(&value).map_err(bad)?;
+        let card = match SessionCard::build(&self.session_id, &self.review, Some(&self.session)) {
+            Some(c) => Some(CardCache {
+                json: serde_json::to_string(&c).map_err(bad)?,
+                shape_json: match &c.shape {
+                    Some(sh) => Some(serde_json::to_string(sh).map_err(bad)?),
+                    None => None,
+                },
+                kind: c.kind.as_str().to_string(),
+                day: c.day.to_string(),
+                inputs_digest: self.inputs_digest.clone(),
+            }),
+            None => None,
+        };
         Ok(SessionRecord {
             session_id: self.session_id.clone(),
             athlete_id: self.athlete_id.clone(),
@@ -98,6 +114,7 @@ impl Analysed {
                 json,
                 analysis_version: ANALYSIS_VERSION,
                 work_intervals: self.review.work().count() as u32,
+                card,
             }),
         })
     }
@@ -146,6 +163,10 @@ fn analyse_bytes(
         None => (None, None),
     };
     review.file = act.path.display().to_string();
+    review.plan_file = plan_path
+        .as_ref()
+        .and_then(|p| p.file_name())
+        .map(|n| n.to_string_lossy().into_owned());
     Ok(Analysed {
         session_id: athlete.session_id(act),
         athlete_id: athlete.id.clone(),

@@ -35,6 +35,7 @@ fn prepare(path: &Path) {
                 json: "{}".into(),
                 analysis_version: 1,
                 work_intervals: 1,
+                card: None,
             }),
         },
         t(0),

@@ -26,6 +26,7 @@ fn record(id: &str, work: u32) -> SessionRecord {
             json: "{}".into(),
             analysis_version: 1,
             work_intervals: work,
+            card: None,
         }),
     }
 }

@@ -52,6 +52,7 @@ fn write_unit(j: &mut Journal, i: u64) {
                 json: format!("{{\"i\":{i}}}"),
                 analysis_version: 1,
                 work_intervals: 1,
+                card: None,
             }),
         },
         t(i as i64),

@@ -25,6 +25,7 @@ fn record(id: &str, hash: &str, start_min: i64, work: Option<u32>) -> SessionRec
             json: format!("{{\"work\":{n}}}"),
             analysis_version: 3,
             work_intervals: n,
+            card: None,
         }),
     }
 }
@@ -421,6 +422,7 @@ fn analysis_cache_checks_version_and_content() {
         json: "{}".into(),
         analysis_version: 3,
         work_intervals: 5,
+        card: None,
     };
     // A result computed for the old content is dropped.
     assert!(!j.store_summary("ines/s", "h1", &s).unwrap());

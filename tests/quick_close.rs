@@ -32,6 +32,7 @@ fn record(id: &str, work: Option<u32>) -> SessionRecord {
             json: "{}".into(),
             analysis_version: 1,
             work_intervals: n,
+            card: None,
         }),
     }
 }
@@ -181,6 +182,7 @@ fn a_file_that_reads_again_is_no_longer_unreadable() {
         json: "{}".into(),
         analysis_version: 1,
         work_intervals: 4,
+        card: None,
     });
     j.upsert_session(&rec, t(1)).unwrap();
     assert_eq!(j.unreadable(id).unwrap(), None);

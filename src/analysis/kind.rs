@@ -37,6 +37,19 @@ pub enum SessionKind {
 }
 
 impl SessionKind {
+    /// Whether the kind is built around work intervals (reps or a block) whose shape is
+    /// worth comparing with earlier runs: intervals, tempo, progression, race, hills.
+    pub fn has_work(self) -> bool {
+        matches!(
+            self,
+            SessionKind::Intervals
+                | SessionKind::Tempo
+                | SessionKind::Progression
+                | SessionKind::Race
+                | SessionKind::Hills
+        )
+    }
+
     /// Every kind, for tests and documentation.
     pub const ALL: [SessionKind; 9] = [
         SessionKind::Intervals,
@@ -167,6 +180,13 @@ fn named_kind(text: &str) -> Option<SessionKind> {
     } else {
         None
     }
+}
+
+/// The kind a plan names in its title (or, failing that, its purpose); `None` when it
+/// names none.
+pub fn plan_kind(plan: &Plan) -> Option<SessionKind> {
+    let (title, purpose) = plan_words(plan);
+    named_kind(&title).or_else(|| named_kind(&purpose))
 }
 
 /// The kind of a reviewed session. `plan` is the plan it was analysed against, if any.

@@ -1,7 +1,9 @@
 //! The objective review: pure functions over `model` types. No I/O, no terminal.
 
 pub mod best_efforts;
+pub mod card;
 pub mod decoupling;
+pub mod earlier;
 pub mod elevation;
 pub mod findings;
 pub mod gradient;
@@ -15,9 +17,11 @@ pub mod race;
 pub mod review;
 pub mod ruler;
 pub mod sampling;
+pub mod shape;
 pub mod splits;
 pub mod summary;
 pub mod trend;
+pub mod week;
 pub mod zones;
 
 /// Find the intervals of a cleaned session and review it: the whole objective review.

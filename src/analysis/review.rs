@@ -25,7 +25,7 @@ use super::zones::{hr_zones, pace_zones, time_in_zones};
 
 /// Bumped whenever a number in the review may change; cached summaries of another version
 /// are recomputed.
-pub const ANALYSIS_VERSION: u32 = 7;
+pub const ANALYSIS_VERSION: u32 = 8;
 
 /// The JSON schema name of [`Review`].
 pub const SCHEMA: &str = "splitdesk.analysis/1";
@@ -355,6 +355,15 @@ pub struct Review {
     /// trial (its one work interval), else over the whole run. `None` without distance.
     #[serde(default)]
     pub splits: Option<super::splits::Splits>,
+    /// The file name of the plan used (`2026-11-12-cruise-miles.toml`), set by the roster
+    /// layer; `None` without a plan.
+    #[serde(default)]
+    pub plan_file: Option<String>,
+    /// The workout reduced to a comparable signature ([`super::shape`]): the plan's, else
+    /// (no plan) the structure found for a session with work in it. `None` for an easy or
+    /// long run and for a plan with no work.
+    #[serde(default)]
+    pub workout_shape: Option<super::shape::WorkoutShape>,
 }
 
 fn yes() -> bool {
@@ -766,8 +775,15 @@ pub fn review_moving(
         }),
         kind: super::kind::SessionKind::default(),
         splits: None,
+        plan_file: None,
+        workout_shape: None,
     };
     review.kind = super::kind::classify(&review, plan);
+    review.workout_shape = match plan {
+        Some(p) => super::shape::from_plan(p),
+        None if review.kind.has_work() => super::shape::detected(&review),
+        None => None,
+    };
     if running {
         let (from_s, to_s) = splits_range(&review, session);
         review.splits = super::splits::splits(session, &s, from_s, to_s, profile.units);

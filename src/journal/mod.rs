@@ -61,9 +61,9 @@ pub use error::{JournalError, Missing};
 pub use location::{check_outside_roster, default_path, default_path_in, DATA_DIR_ENV};
 pub use note::{read_note, RevealPermit};
 pub use types::{
-    BiasInput, CheckReport, FeedbackEvent, FeedbackEventKind, FeedbackVersion, FileStat,
-    PurposeVerdict, QueueEntry, ReviewStage, ReviewState, Revision, RevisionChange, Ruler,
-    ScoreCell, SessionChange, SessionRecord, SummaryCache, VerdictCell,
+    BiasInput, CardCache, CardIndexRow, CheckReport, FeedbackEvent, FeedbackEventKind,
+    FeedbackVersion, FileStat, PurposeVerdict, QueueEntry, ReviewStage, ReviewState, Revision,
+    RevisionChange, Ruler, ScoreCell, SessionChange, SessionRecord, SummaryCache, VerdictCell,
 };
 
 use schema::{current_version, APPLICATION_ID, MIGRATIONS};
@@ -721,6 +721,7 @@ impl Journal {
                 params![record.session_id, reason],
             )
             .sq(path)?;
+            delete_card(tx, path, &record.session_id)?;
             Ok(change)
         })
     }
@@ -755,6 +756,35 @@ impl Journal {
                 ],
             )
             .sq(path)?;
+            match &summary.card {
+                Some(card) => {
+                    tx.execute(
+                        "INSERT INTO session_card (session_id, athlete_id, start_time, day, kind,
+                             content_hash, analysis_version, inputs_digest, shape_json, card_json)
+                         SELECT session_id, athlete_id, start_time, ?2, ?3, content_hash, ?4, ?5,
+                             ?6, ?7
+                         FROM session WHERE session_id = ?1
+                         ON CONFLICT (session_id) DO UPDATE SET
+                             athlete_id = excluded.athlete_id, start_time = excluded.start_time,
+                             day = excluded.day, kind = excluded.kind,
+                             content_hash = excluded.content_hash,
+                             analysis_version = excluded.analysis_version,
+                             inputs_digest = excluded.inputs_digest,
+                             shape_json = excluded.shape_json, card_json = excluded.card_json",
+                        params![
+                            session_id,
+                            card.day,
+                            card.kind,
+                            summary.analysis_version,
+                            card.inputs_digest,
+                            card.shape_json,
+                            card.json
+                        ],
+                    )
+                    .sq(path)?;
+                }
+                None => delete_card(tx, path, session_id)?,
+            }
             Ok(true)
         })
     }
@@ -776,6 +806,98 @@ impl Journal {
             .optional()
             .map(Option::flatten)
             .sq(&self.path)
+    }
+
+    /// The athlete's current session cards (made by `analysis_version` under `inputs_digest`
+    /// for the session's present content), oldest first, without the cards themselves: the
+    /// id, start, day, kind and workout shape of each.
+    pub fn card_index(
+        &self,
+        athlete: &str,
+        inputs_digest: &str,
+        analysis_version: u32,
+    ) -> Result<Vec<CardIndexRow>> {
+        self.read(|conn, path| {
+            let mut stmt = conn
+                .prepare_cached(
+                    "SELECT c.session_id, c.start_time, c.day, c.kind, c.shape_json
+                     FROM session_card c JOIN session s ON s.session_id = c.session_id
+                     WHERE c.athlete_id = ?1 AND c.inputs_digest = ?2
+                       AND c.analysis_version = ?3 AND s.content_hash = c.content_hash
+                       AND s.unreadable IS NULL
+                     ORDER BY c.start_time, c.session_id",
+                )
+                .sq(path)?;
+            let rows = stmt
+                .query_map(params![athlete, inputs_digest, analysis_version], |r| {
+                    Ok(CardIndexRow {
+                        session_id: cache_text(r.get_ref(0)?).unwrap_or_default(),
+                        start_time: cache_text(r.get_ref(1)?).unwrap_or_default(),
+                        day: cache_text(r.get_ref(2)?).unwrap_or_default(),
+                        kind: cache_text(r.get_ref(3)?).unwrap_or_default(),
+                        shape_json: cache_text(r.get_ref(4)?),
+                    })
+                })
+                .sq(path)?;
+            rows.collect::<rusqlite::Result<Vec<_>>>().sq(path)
+        })
+    }
+
+    /// The card JSON of a session when it is current (see [`Journal::card_index`]).
+    pub fn card(
+        &self,
+        session_id: &str,
+        inputs_digest: &str,
+        analysis_version: u32,
+    ) -> Result<Option<String>> {
+        self.conn
+            .query_row(
+                "SELECT c.card_json FROM session_card c
+                 JOIN session s ON s.session_id = c.session_id
+                 WHERE c.session_id = ?1 AND c.inputs_digest = ?2 AND c.analysis_version = ?3
+                   AND s.content_hash = c.content_hash AND s.unreadable IS NULL",
+                params![session_id, inputs_digest, analysis_version],
+                |r| Ok(cache_text(r.get_ref(0)?)),
+            )
+            .optional()
+            .map(Option::flatten)
+            .sq(&self.path)
+    }
+
+    /// The athlete's current cards (id and JSON) of the days `from..=to` (`YYYY-MM-DD`),
+    /// in start order.
+    pub fn cards_between(
+        &self,
+        athlete: &str,
+        inputs_digest: &str,
+        analysis_version: u32,
+        from: &str,
+        to: &str,
+    ) -> Result<Vec<(String, String)>> {
+        self.read(|conn, path| {
+            let mut stmt = conn
+                .prepare_cached(
+                    "SELECT c.session_id, c.card_json
+                     FROM session_card c JOIN session s ON s.session_id = c.session_id
+                     WHERE c.athlete_id = ?1 AND c.inputs_digest = ?2
+                       AND c.analysis_version = ?3 AND c.day BETWEEN ?4 AND ?5
+                       AND s.content_hash = c.content_hash AND s.unreadable IS NULL
+                     ORDER BY c.start_time, c.session_id",
+                )
+                .sq(path)?;
+            let rows = stmt
+                .query_map(
+                    params![athlete, inputs_digest, analysis_version, from, to],
+                    |r| {
+                        Ok((
+                            cache_text(r.get_ref(0)?).unwrap_or_default(),
+                            cache_text(r.get_ref(1)?).unwrap_or_default(),
+                        ))
+                    },
+                )
+                .sq(path)?;
+            rows.collect::<rusqlite::Result<Vec<_>>>().sq(path)
+        })
     }
 
     /// What the session's file looked like when its content hash was recorded; `None` for an
@@ -840,6 +962,7 @@ impl Journal {
                 removed += tx
                     .execute("DELETE FROM session WHERE session_id = ?1", [id])
                     .sq(path)?;
+                delete_card(tx, path, id)?;
             }
             Ok(removed)
         })
@@ -1738,7 +1861,84 @@ fn upsert_row(
     if let Some(st) = stat {
         write_file_stat(tx, path, &record.session_id, st)?;
     }
+    match record
+        .summary
+        .as_ref()
+        .and_then(|s| s.card.as_ref().map(|c| (s, c)))
+    {
+        Some((s, card)) => write_card(tx, path, record, card, s.analysis_version)?,
+        None if record.summary.is_some() => delete_card(tx, path, &record.session_id)?,
+        None => match &existing {
+            Some(row) if row.content_hash == record.content_hash => {}
+            _ => copy_card_for_hash(tx, path, record)?,
+        },
+    }
     Ok(change)
+}
+
+/// Write the session card of `record` (made by `analysis_version` of its content).
+fn write_card(
+    tx: &Connection,
+    path: &Path,
+    record: &SessionRecord,
+    card: &CardCache,
+    analysis_version: u32,
+) -> Result<()> {
+    tx.execute(
+        "INSERT INTO session_card (session_id, athlete_id, start_time, day, kind, content_hash,
+             analysis_version, inputs_digest, shape_json, card_json)
+         VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7, ?8, ?9, ?10)
+         ON CONFLICT (session_id) DO UPDATE SET
+             athlete_id = excluded.athlete_id, start_time = excluded.start_time,
+             day = excluded.day, kind = excluded.kind, content_hash = excluded.content_hash,
+             analysis_version = excluded.analysis_version,
+             inputs_digest = excluded.inputs_digest, shape_json = excluded.shape_json,
+             card_json = excluded.card_json",
+        params![
+            record.session_id,
+            record.athlete_id,
+            ts(record.start),
+            card.day,
+            card.kind,
+            record.content_hash,
+            analysis_version,
+            card.inputs_digest,
+            card.shape_json,
+            card.json,
+        ],
+    )
+    .sq(path)?;
+    Ok(())
+}
+
+fn delete_card(tx: &Connection, path: &Path, session_id: &str) -> Result<()> {
+    tx.execute(
+        "DELETE FROM session_card WHERE session_id = ?1",
+        [session_id],
+    )
+    .sq(path)?;
+    Ok(())
+}
+
+/// A new session id whose content another session already has (a renamed or copied file):
+/// take that session's card, else drop any card this id had.
+fn copy_card_for_hash(tx: &Connection, path: &Path, record: &SessionRecord) -> Result<()> {
+    delete_card(tx, path, &record.session_id)?;
+    tx.execute(
+        "INSERT INTO session_card (session_id, athlete_id, start_time, day, kind, content_hash,
+             analysis_version, inputs_digest, shape_json, card_json)
+         SELECT ?1, ?2, ?3, day, kind, content_hash, analysis_version, inputs_digest,
+             shape_json, card_json
+         FROM session_card WHERE content_hash = ?4 AND session_id != ?1 LIMIT 1",
+        params![
+            record.session_id,
+            record.athlete_id,
+            ts(record.start),
+            record.content_hash
+        ],
+    )
+    .sq(path)?;
+    Ok(())
 }
 
 struct SessionRow {
@@ -2202,6 +2402,7 @@ mod tests {
                     json: "{}".into(),
                     analysis_version: 1,
                     work_intervals: 3,
+                    card: None,
                 }),
             },
             t(0),

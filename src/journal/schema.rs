@@ -120,6 +120,27 @@ CREATE TABLE seen_event (
 );
 CREATE INDEX seen_event_by_review ON seen_event (review_id, id);
 "#,
+    // 4: the session card, a compact cut of each session's analysis for the comparisons
+    // across sessions (the same workout over time, the week around a session). Derived like
+    // the analysis cache: written with it, current while `content_hash` is the session's and
+    // `analysis_version` and `inputs_digest` are those in force. `shape_json` is the workout
+    // shape alone, so an athlete's whole history is matched without reading the cards.
+    r#"
+CREATE TABLE session_card (
+    session_id        TEXT PRIMARY KEY,
+    athlete_id        TEXT NOT NULL,
+    start_time        TEXT NOT NULL,
+    day               TEXT NOT NULL,
+    kind              TEXT NOT NULL,
+    content_hash      TEXT NOT NULL,
+    analysis_version  INTEGER NOT NULL,
+    inputs_digest     TEXT NOT NULL,
+    shape_json        TEXT,
+    card_json         TEXT NOT NULL
+);
+CREATE INDEX session_card_by_athlete ON session_card (athlete_id, start_time);
+CREATE INDEX session_card_by_day ON session_card (athlete_id, day);
+"#,
 ];
 
 /// The schema version this build writes and reads.

@@ -34,6 +34,39 @@ pub struct SummaryCache {
     pub analysis_version: u32,
     /// Number of work intervals the analysis found: the number of scores blind grading needs.
     pub work_intervals: u32,
+    /// The session card cut from the same analysis, written in the same transaction.
+    pub card: Option<CardCache>,
+}
+
+/// A session card for [`SummaryCache::card`]: opaque JSON from the analysis layer plus the
+/// columns the comparisons select on.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct CardCache {
+    /// The card as JSON text; the journal never looks inside.
+    pub json: String,
+    /// The workout shape alone as JSON, when the session has one.
+    pub shape_json: Option<String>,
+    /// The session kind's JSON word (`intervals`, `easy`, ...).
+    pub kind: String,
+    /// The calendar day the session counts for, `YYYY-MM-DD`.
+    pub day: String,
+    /// The athlete inputs (profile and plans) the analysis was made under.
+    pub inputs_digest: String,
+}
+
+/// One current session card of an athlete, as [`super::Journal::card_index`] lists them:
+/// enough to pick sessions without reading their cards.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct CardIndexRow {
+    pub session_id: String,
+    /// RFC 3339 UTC start time.
+    pub start_time: String,
+    /// `YYYY-MM-DD`.
+    pub day: String,
+    /// The session kind's JSON word.
+    pub kind: String,
+    /// The workout shape as JSON, when the session has one.
+    pub shape_json: Option<String>,
 }
 
 /// What [`super::Journal::upsert_session`] found.

@@ -96,6 +96,46 @@ pub fn choose_plan(
     choice
 }
 
+/// The athlete's planned sessions dated `from..=to` (a plan's `date` key, else its file-name
+/// date), oldest first. A plan file that cannot be read is left out here (`splitdesk check`
+/// names it). Only files whose name dates them within a month of the range, or that carry
+/// no date in their name, are read.
+pub fn planned_days(
+    athlete: &Athlete,
+    from: NaiveDate,
+    to: NaiveDate,
+) -> Vec<crate::analysis::week::PlannedDay> {
+    let slack = chrono::Duration::days(31);
+    let mut out = Vec::new();
+    for path in &athlete.plan_files {
+        let named = file_date(path);
+        if named.is_some_and(|d| d < from - slack || d > to + slack) {
+            continue;
+        }
+        let Ok(plan) = crate::plan::load(path) else {
+            continue;
+        };
+        let Some(date) = plan.date.or(named) else {
+            continue;
+        };
+        if date < from || date > to {
+            continue;
+        }
+        out.push(crate::analysis::week::PlannedDay {
+            file: path
+                .file_name()
+                .map(|n| n.to_string_lossy().into_owned())
+                .unwrap_or_default(),
+            date,
+            title: plan.title.clone(),
+            kind: crate::analysis::kind::plan_kind(&plan),
+            planned_s: planned_seconds(&plan),
+        });
+    }
+    out.sort_by(|a, b| a.date.cmp(&b.date).then_with(|| a.file.cmp(&b.file)));
+    out
+}
+
 /// [`choose_plan`] as a result: the first broken plan file of the session is an error.
 pub fn plan_for_session(
     athlete: &Athlete,

@@ -162,8 +162,12 @@ fn a_journal_of_the_schema_before_cards_is_upgraded_with_an_empty_card_table() {
     let path = dir.path().join("j.sqlite");
     {
         let c = rusqlite::Connection::open(&path).unwrap();
-        c.pragma_update(None, "application_id", splitdesk::journal::schema::APPLICATION_ID)
-            .unwrap();
+        c.pragma_update(
+            None,
+            "application_id",
+            splitdesk::journal::schema::APPLICATION_ID,
+        )
+        .unwrap();
         for step in &splitdesk::journal::schema::MIGRATIONS[..3] {
             c.execute_batch(step).unwrap();
         }

@@ -28,6 +28,7 @@ macro_rules! eprintln {
 
 mod analyze;
 mod check;
+mod compare_cmd;
 mod demo_cmd;
 mod inspect;
 pub mod out;
@@ -168,6 +169,16 @@ pub enum Command {
         #[arg(long)]
         json: bool,
     },
+    /// The session beside its earlier runs of the same workout: per-rep pace, heart rate,
+    /// relative intensity and recovery trough side by side, the change in words and the
+    /// pace at a fixed heart rate across them (from the journal; no file is read again).
+    Compare {
+        /// A session id (`athlete-id/file-stem`).
+        session: String,
+        /// Print JSON instead of text.
+        #[arg(long)]
+        json: bool,
+    },
     /// An athlete's history: weekly volume, load, efficiency, long runs, best efforts,
     /// critical speed and predicted race times.
     Trends {
@@ -286,6 +297,7 @@ fn wants_json(cmd: Option<&Command>) -> bool {
             | Command::Feedback { json, .. }
             | Command::BiasCheck { json, .. }
             | Command::Trends { json, .. }
+            | Command::Compare { json, .. }
             | Command::Plan(PlanCommand::Check { json, .. })
             | Command::Journal(JournalCommand::Check { json }),
         ) => *json,
@@ -394,6 +406,7 @@ fn run_with_journal(
         Command::Grade { session, .. }
         | Command::Notes { session, .. }
         | Command::Feedback { session, .. }
+        | Command::Compare { session, .. }
         | Command::Export(ExportCommand::Chart { session, .. }) => rc::Concern::Session(session),
         _ => rc::Concern::Nothing,
     };
@@ -460,6 +473,7 @@ fn run_with_journal(
             weeks,
             json,
         } => trends_cmd::run(&ws, &athlete, weeks, json),
+        Command::Compare { session, json } => compare_cmd::run(&ws, &session, json),
         _ => Ok(0),
     }
 }

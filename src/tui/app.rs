@@ -1585,6 +1585,7 @@ impl App {
                         .collect()
                 })
                 .unwrap_or_default(),
+            earlier: None,
         };
         crate::export::feedback::draft(&input, &self.feedback_style)
     }
@@ -2322,6 +2323,7 @@ impl App {
                             // Ruler marks need the samples: only the open session's own
                             // draft has them.
                             marks: Vec::new(),
+                            earlier: None,
                         },
                     ),
                 })

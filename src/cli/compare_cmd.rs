@@ -10,12 +10,61 @@ use crate::workspace::Workspace;
 pub fn run(ws: &Workspace, session: &str, json: bool) -> anyhow::Result<i32> {
     let (athlete, _) = ws.find(session)?;
     let comparison = crate::context::comparison(&ws.journal, athlete, session)?;
+    let notes = earlier_notes(ws, &comparison)?;
     if json {
-        crate::cli::out::json(&comparison)?;
+        let mut value = serde_json::to_value(&comparison)?;
+        if let Some(map) = value.as_object_mut() {
+            map.insert("earlier_notes".into(), serde_json::to_value(&notes)?);
+        }
+        crate::cli::out::json(&value)?;
     } else {
         print!("{}", render(&comparison, &athlete.profile.name));
+        if !notes.is_empty() {
+            println!();
+            println!("Notes of earlier runs (graded and read):");
+            for n in &notes {
+                println!(
+                    "  {}: {}",
+                    n.day,
+                    n.note.split_whitespace().collect::<Vec<_>>().join(" ")
+                );
+            }
+        }
     }
     Ok(0)
+}
+
+/// The note of an earlier run, shown because that run's own blind grading is done and its
+/// notes were read.
+#[derive(Debug, serde::Serialize)]
+pub struct EarlierNote {
+    pub session_id: String,
+    pub day: chrono::NaiveDate,
+    pub note: String,
+}
+
+/// The notes of the earlier runs whose reveal rule is met (the journal's
+/// [`crate::journal::Journal::revealed_permit`]): never the session's own note, never a
+/// note of a run not yet graded. The note file is read; a note kept only inside the
+/// activity file is not (the comparison reads no activity file).
+fn earlier_notes(ws: &Workspace, c: &Comparison) -> anyhow::Result<Vec<EarlierNote>> {
+    let mut out = Vec::new();
+    for run in c.earlier() {
+        let Some(permit) = ws.journal.revealed_permit(&run.session_id)? else {
+            continue;
+        };
+        let Some(path) = permit.note_path() else {
+            continue;
+        };
+        if let Some(note) = crate::journal::read_note(&permit, Some(&path), None) {
+            out.push(EarlierNote {
+                session_id: run.session_id.clone(),
+                day: run.day,
+                note,
+            });
+        }
+    }
+    Ok(out)
 }
 
 /// A pace in s/km as `m:ss` per the comparison's unit.

@@ -738,10 +738,7 @@ pub const SAME_EFFORT_BPM: f64 = 2.0;
 /// run of the same workout says so clearly: the reps quicker by at least
 /// [`CLEAR_GAIN_S`] at a heart rate no more than [`SAME_EFFORT_BPM`] higher. Nothing is
 /// said otherwise (a slower set is the coach's to explain, in their own words).
-pub fn against_earlier(
-    c: &crate::analysis::earlier::Comparison,
-    units: Units,
-) -> Option<String> {
+pub fn against_earlier(c: &crate::analysis::earlier::Comparison, units: Units) -> Option<String> {
     use crate::analysis::earlier::MatchedBy;
     if c.matched_by != MatchedBy::WorkoutShape {
         return None;
@@ -764,7 +761,11 @@ pub fn against_earlier(
         .find(|r| r.current)
         .map(|r| r.reps.len())
         .unwrap_or(0);
-    let what = if reps > 1 { "repeats averaged" } else { "effort was" };
+    let what = if reps > 1 {
+        "repeats averaged"
+    } else {
+        "effort was"
+    };
     Some(format!(
         "Your {what} {} {} quicker than when you ran this session on {}, {effort}.",
         seconds(gain),

@@ -502,7 +502,7 @@ pub fn compare(current: &SessionCard, earlier: &[SessionCard], units: Units) -> 
         .map(|c| occurrence(c, c.session_id == current.session_id, basis, by))
         .collect();
     let (changes, pace_at_hr) = match runs.split_last() {
-        Some((now, then)) if by != MatchedBy::Nothing => (
+        Some((now, then)) if by != MatchedBy::Nothing && !then.is_empty() => (
             then.iter()
                 .rev()
                 .map(|t| change(now, t, by, units))

@@ -313,7 +313,10 @@ pub fn week_strip(
         days.push(WeekDay {
             date: d,
             offset: (d - centre).num_days(),
-            load: sessions.iter().filter_map(|s| s.load).sum(),
+            load: sessions
+                .iter()
+                .filter_map(|s| s.load)
+                .fold(0.0, |a, b| a + b),
             sessions,
             missed,
             upcoming,
@@ -327,7 +330,11 @@ pub fn week_strip(
         .iter()
         .filter(|c| c.day >= week_from && c.day <= centre)
         .collect();
-    let week_load: f64 = in_week.iter().filter_map(|c| card_load(c)).sum();
+    // A fold from +0.0: an empty `sum` of floats is -0.0.
+    let week_load: f64 = in_week
+        .iter()
+        .filter_map(|c| card_load(c))
+        .fold(0.0, |a, b| a + b);
     let week_load_lower_bound = in_week
         .iter()
         .any(|c| c.trimp_lower_bound || card_load(c).is_none());
@@ -345,7 +352,10 @@ pub fn week_strip(
             previous_weeks_without_sessions += 1;
         }
         previous_sessions += block.len();
-        previous_sum += block.iter().filter_map(|c| card_load(c)).sum::<f64>();
+        previous_sum += block
+            .iter()
+            .filter_map(|c| card_load(c))
+            .fold(0.0, |a, b| a + b);
     }
     let previous_weeks_mean_load =
         (previous_sessions > 0).then(|| previous_sum / LOAD_WEEKS as f64);
@@ -848,6 +858,9 @@ mod tests {
         assert_eq!(day(&w, "2026-12-10").upcoming.len(), 1);
         assert_eq!(w.missed, 0);
         assert_eq!(w.text[0], "0 sessions in the 7 days before, none missed");
+        // An empty day's load is +0 (JSON `0.0`, not `-0.0`).
+        assert!(w.days[0].load == 0.0 && w.days[0].load.is_sign_positive());
+        assert!(w.week_load.is_sign_positive());
         assert_eq!(
             w.text[1],
             "On the day (Thu 2026-12-10): 0 sessions, 1 planned and not run yet (Tempo on Thu 2026-12-10)"

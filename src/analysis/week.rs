@@ -37,6 +37,10 @@ pub struct PlannedDay {
     pub kind: Option<SessionKind>,
     /// Planned length, seconds (distances at a nominal speed).
     pub planned_s: f64,
+    /// The athlete's activity paired with this plan by file name (`athlete/stem`), when
+    /// there is one: a plan whose paired file has no analysis (the file cannot be read) is
+    /// not missed but listed as not analysed.
+    pub activity: Option<String>,
 }
 
 /// One session of a day in the strip.
@@ -70,6 +74,9 @@ pub struct WeekDay {
     pub missed: Vec<PlannedDay>,
     /// Planned sessions of today or later with no activity yet.
     pub upcoming: Vec<PlannedDay>,
+    /// Planned sessions whose activity file (paired by name) has no analysis: the file
+    /// cannot be read (`splitdesk check` names it). Run, but not in the day's sessions.
+    pub not_analysed: Vec<PlannedDay>,
     /// Sum of the day's loads.
     pub load: f64,
 }
@@ -212,6 +219,7 @@ fn span_line(head: String, days: &[&WeekDay], say_none_missed: bool) -> String {
         .sum();
     let missed: Vec<&PlannedDay> = days.iter().flat_map(|d| d.missed.iter()).collect();
     let upcoming: Vec<&PlannedDay> = days.iter().flat_map(|d| d.upcoming.iter()).collect();
+    let unread: usize = days.iter().map(|d| d.not_analysed.len()).sum();
     let mut line = sessions_word(sessions);
     if !head.is_empty() {
         line.push(' ');
@@ -229,6 +237,14 @@ fn span_line(head: String, days: &[&WeekDay], say_none_missed: bool) -> String {
     }
     if extra > 0 {
         let _ = write!(line, ", {extra} without a plan");
+    }
+    if unread > 0 {
+        let _ = write!(
+            line,
+            ", {unread} planned session{} run but its file cannot be read (`splitdesk check` \
+             names it)",
+            if unread == 1 { "" } else { "s" }
+        );
     }
     if !upcoming.is_empty() {
         let _ = write!(
@@ -300,11 +316,12 @@ pub fn week_strip(
                 }
             })
             .collect();
-        let open: Vec<PlannedDay> = planned
+        let has_card = |id: &str| sorted.iter().any(|c| c.session_id == id);
+        let (not_analysed, open): (Vec<PlannedDay>, Vec<PlannedDay>) = planned
             .iter()
             .filter(|p| p.date == d && !done.contains(p.file.as_str()))
             .cloned()
-            .collect();
+            .partition(|p| p.activity.as_deref().is_some_and(|a| !has_card(a)));
         let (missed, upcoming) = if d < today {
             (open, Vec::new())
         } else {
@@ -320,6 +337,7 @@ pub fn week_strip(
             sessions,
             missed,
             upcoming,
+            not_analysed,
         });
         d += Duration::days(1);
     }
@@ -550,6 +568,7 @@ mod tests {
             title: title.into(),
             kind,
             planned_s,
+            activity: None,
         }
     }
 
@@ -647,6 +666,10 @@ mod tests {
                 6000.0,
             ),
         ];
+        let mut unread = plan("2026-11-21-easy", "Easy run", None, 1800.0);
+        unread.activity = Some("ada/2026-11-21-easy".into());
+        let mut planned = planned;
+        planned.push(unread);
         let today = d("2026-11-25");
         let w = week_strip(
             "ada",
@@ -661,8 +684,14 @@ mod tests {
         assert_eq!(w.days.len(), 11);
         assert_eq!(w.days[0].offset, -7);
         assert_eq!(w.days[10].offset, 3);
-        // The missed easy run, and nothing else missed.
+        // The missed easy run, and nothing else missed: the plan of 11-21 was run, but its
+        // file has no analysis (no card).
         assert_eq!(w.missed, 1);
+        assert_eq!(
+            day(&w, "2026-11-21").not_analysed[0].file,
+            "2026-11-21-easy.toml"
+        );
+        assert!(day(&w, "2026-11-21").missed.is_empty());
         assert_eq!(day(&w, "2026-11-17").missed[0].title, "Easy run");
         // Today's hill session is upcoming, not missed; tomorrow's long run is past the strip.
         assert_eq!(day(&w, "2026-11-25").upcoming.len(), 1);
@@ -697,7 +726,8 @@ mod tests {
         assert_eq!(w.last_long, None);
         assert_eq!(
             w.text[0],
-            "4 sessions in the 7 days before, 1 missed (Easy run on Tue 2026-11-17), 2 without a plan"
+            "4 sessions in the 7 days before, 1 missed (Easy run on Tue 2026-11-17), 2 without a \
+             plan, 1 planned session run but its file cannot be read (`splitdesk check` names it)"
         );
         assert_eq!(
             w.text[1],

@@ -122,7 +122,19 @@ fn day_lines(s: &mut String, d: &WeekDay, u: Units) {
     for p in &d.upcoming {
         let _ = writeln!(s, "{}", with_date(planned_cells(p, "planned"), &date()));
     }
-    if d.sessions.is_empty() && d.missed.is_empty() && d.upcoming.is_empty() {
+    for p in &d.not_analysed {
+        let line = planned_cells(p, "not analysed");
+        let _ = writeln!(
+            s,
+            "{} (the file cannot be read: splitdesk check)",
+            with_date(line, &date())
+        );
+    }
+    if d.sessions.is_empty()
+        && d.missed.is_empty()
+        && d.upcoming.is_empty()
+        && d.not_analysed.is_empty()
+    {
         let _ = writeln!(s, "  {:<14}  rest", date());
     }
 }

@@ -36,6 +36,7 @@ pub mod plan_cmd;
 mod review_cmds;
 mod review_text;
 mod trends_cmd;
+mod week_cmd;
 
 use std::path::PathBuf;
 
@@ -191,6 +192,19 @@ pub enum Command {
         #[arg(long)]
         json: bool,
     },
+    /// The week around a session or a day: each day's sessions, planned sessions missed,
+    /// sessions without a plan, the week's load against the four weeks before.
+    Week {
+        /// A session id (<athlete-id>/<activity-file-stem>) or an athlete id.
+        #[arg(value_name = "SESSION|ATHLETE")]
+        what: String,
+        /// The day to centre an athlete's week on (YYYY-MM-DD; default today).
+        #[arg(long)]
+        date: Option<String>,
+        /// Print JSON (`splitdesk.week/1`) instead of text.
+        #[arg(long)]
+        json: bool,
+    },
     /// The coach's journal: backup and integrity check.
     #[command(subcommand)]
     Journal(JournalCommand),
@@ -298,6 +312,7 @@ fn wants_json(cmd: Option<&Command>) -> bool {
             | Command::BiasCheck { json, .. }
             | Command::Trends { json, .. }
             | Command::Compare { json, .. }
+            | Command::Week { json, .. }
             | Command::Plan(PlanCommand::Check { json, .. })
             | Command::Journal(JournalCommand::Check { json }),
         ) => *json,
@@ -408,6 +423,10 @@ fn run_with_journal(
         | Command::Feedback { session, .. }
         | Command::Compare { session, .. }
         | Command::Export(ExportCommand::Chart { session, .. }) => rc::Concern::Session(session),
+        Command::Week { what, .. } => match week_cmd::target(what) {
+            week_cmd::Target::Session(s) => rc::Concern::Session(s),
+            week_cmd::Target::Athlete(a) => rc::Concern::Athlete(a),
+        },
         _ => rc::Concern::Nothing,
     };
     rc::say_sync_problems(&damaged, concern);
@@ -474,6 +493,10 @@ fn run_with_journal(
             json,
         } => trends_cmd::run(&ws, &athlete, weeks, json),
         Command::Compare { session, json } => compare_cmd::run(&ws, &session, json),
+        Command::Week { what, date, json } => {
+            let date = date.map(|d| rc::parse_date("--date", &d)).transpose()?;
+            week_cmd::run(&ws, &what, date, json)
+        }
         _ => Ok(0),
     }
 }

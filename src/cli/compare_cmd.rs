@@ -83,7 +83,7 @@ fn num(v: Option<f64>, decimals: usize) -> String {
 }
 
 /// Column width of one run.
-const COL: usize = 12;
+const COL: usize = 11;
 /// Width of the row labels.
 const LABEL: usize = 14;
 
@@ -153,16 +153,7 @@ pub fn render(c: &Comparison, name: &str) -> String {
         return out;
     }
     let _ = writeln!(out);
-    let header = row(
-        "",
-        c.runs.iter().map(|r| {
-            if r.current {
-                format!("{}*", r.day)
-            } else {
-                r.day.to_string()
-            }
-        }),
-    );
+    let header = row("", c.runs.iter().map(|r| r.day.to_string()));
     let _ = writeln!(out, "{header}");
     let basis = match c.pace_basis {
         PaceBasis::HillAdjusted => "hill-adjusted",
@@ -176,7 +167,7 @@ pub fn render(c: &Comparison, name: &str) -> String {
             |r| pace(r.pace_s_per_km, units),
             &[
                 ("mean", &|o: &Occurrence| pace(o.mean_pace_s_per_km, units)),
-                ("spread (SD, s)", &|o: &Occurrence| {
+                ("spread (SD)", &|o: &Occurrence| {
                     num(o.spread_s_per_km.map(|s| s * units.metres() / 1000.0), 1)
                 }),
             ],
@@ -217,12 +208,13 @@ pub fn render(c: &Comparison, name: &str) -> String {
             let _ = writeln!(out, "{}", row(&format!("  {label}"), c.runs.iter().map(f)));
         }
     }
-    let _ = writeln!(out, "* this session");
+    let _ = writeln!(out, "The last column is this session; spreads in seconds.");
     let _ = writeln!(out);
     for t in &c.text {
         let _ = writeln!(out, "{t}");
     }
-    if let Some(p) = &c.pace_at_hr {
+    // The pace at a fixed heart rate is one of the text lines; said here when it is not.
+    if let Some(p) = c.pace_at_hr.as_ref().filter(|p| !c.text.contains(&p.text)) {
         let _ = writeln!(out, "{}", p.text);
     }
     let _ = writeln!(out, "{}", c.caution);

@@ -634,6 +634,29 @@ fn least_squares(points: &[Point]) -> Option<[f64; 3]> {
     b.iter().all(|v| v.is_finite()).then_some(b)
 }
 
+/// Largest squared correlation of heart rate and date over the points for the fit to tell
+/// their effects apart.
+// A variance inflation factor of 10 (r^2 = 0.9) is the usual line for serious collinearity
+// (From memory: Kutner, Nachtsheim, Neter & Li, Applied Linear Statistical Models, 5th ed.
+// 2005, section 10.5). Past it the slope and the trend trade off against each other: easy
+// runs at one pace with a heart rate falling week by week are such a case.
+pub const MAX_HR_DATE_R2: f64 = 0.9;
+
+/// Whether heart rate and date are too closely correlated over the points.
+fn collinear(points: &[Point]) -> bool {
+    let n = points.len() as f64;
+    let mh = points.iter().map(|p| p.hr).sum::<f64>() / n;
+    let md = points.iter().map(|p| p.day).sum::<f64>() / n;
+    let (mut shh, mut sdd, mut shd) = (0.0, 0.0, 0.0);
+    for p in points {
+        shh += (p.hr - mh) * (p.hr - mh);
+        sdd += (p.day - md) * (p.day - md);
+        shd += (p.hr - mh) * (p.day - md);
+    }
+    let r2 = shd * shd / (shh * sdd);
+    !r2.is_finite() || r2 > MAX_HR_DATE_R2
+}
+
 fn pace_at_hr(
     runs: &[Occurrence],
     basis: PaceBasis,
@@ -721,6 +744,15 @@ fn pace_at_hr(
         ));
     };
     let trend_week = b2 * 7.0;
+    if collinear(&points) {
+        return Some(unclear(
+            Some(b1),
+            Some(trend_week),
+            "heart rate and date moved together across these runs: the fit cannot tell a \
+             change of fitness from a change of effort"
+                .to_string(),
+        ));
+    }
     if b1 >= 0.0 {
         return Some(unclear(
             Some(b1),

@@ -231,11 +231,10 @@ fn matched_by(current: &SessionCard) -> MatchedBy {
 
 /// Mean gradients of two runs' reps further apart than this (percentage points) are
 /// different ground.
-// Our design choice, from Minetti et al. 2002 (J Appl Physiol 93:1039-1046): the energy cost
-// of running rises by roughly 5 % from 0 % to 1 % gradient (From memory: the polynomial's
-// linear term, 19.5 i against 3.6 J/kg/m on the flat), so half a point moves the cost of a
-// rep by more than the changes the comparison reports; smaller differences are within the
-// noise of the recorded altitude over a rep.
+// Our design choice, from Minetti et al. 2002 as `super::gradient` has it: the energy cost of
+// running at 1 % is Cr(0.01) / Cr(0) = 3.80 / 3.6, 5.5 % above the flat, so half a point
+// moves the cost of a rep by more than the changes the comparison reports; smaller
+// differences are within the noise of the recorded altitude over a rep.
 pub const GROUND_DIFFERS_PCT: f64 = 0.5;
 
 /// The trend of the pace at a fixed heart rate across the runs counts as a change (fitter or

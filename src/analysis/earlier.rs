@@ -506,7 +506,7 @@ pub fn compare(current: &SessionCard, earlier: &[SessionCard], units: Units) -> 
                 .rev()
                 .map(|t| change(now, t, by, units))
                 .collect::<Vec<_>>(),
-            pace_at_hr(&runs, basis, by, units),
+            pace_at_hr(&runs, basis, by, units, subject(current)),
         ),
         _ => (Vec::new(), None),
     };
@@ -562,6 +562,15 @@ pub fn compare(current: &SessionCard, earlier: &[SessionCard], units: Units) -> 
         pace_at_hr,
         text,
         caution: CAUTION.to_string(),
+    }
+}
+
+/// What the verdict of the pace at a fixed heart rate is about.
+fn subject(current: &SessionCard) -> &'static str {
+    match (matched_by(current), current.kind) {
+        (MatchedBy::Kind, SessionKind::LongRun) => "on long runs",
+        (MatchedBy::Kind, _) => "on easy runs",
+        _ => "at this workout",
     }
 }
 
@@ -661,6 +670,7 @@ fn pace_at_hr(
     basis: PaceBasis,
     by: MatchedBy,
     units: Units,
+    subject: &str,
 ) -> Option<PaceAtHr> {
     let first_day = runs.first().map(|r| r.day);
     let days_from_first = |d: NaiveDate| first_day.map_or(0.0, |f| (d - f).num_days() as f64);
@@ -806,14 +816,18 @@ fn pace_at_hr(
         .collect::<Vec<_>>()
         .join(", ");
     let verdict = match trend {
-        FitnessTrend::Fitter => "getting fitter at this workout",
-        FitnessTrend::Slower => "slower at this workout than before",
-        _ => "about the same at this workout",
+        FitnessTrend::Fitter => format!("getting fitter {subject}"),
+        FitnessTrend::Slower => format!("slower {subject} than before"),
+        _ => format!("about the same {subject}"),
+    };
+    let span = if span_days >= 14.0 {
+        format!("{:.0} weeks", span_days / 7.0)
+    } else {
+        format!("{span_days:.0} days")
     };
     let over = format!(
-        "{} over {:.0} weeks",
+        "{} over {span}",
         pace_change_words(change, units).replace("the same pace", "no change"),
-        span_days / 7.0
     );
     let text = format!(
         "Pace at {hr_fixed:.0} bpm{ground}: {list}; {over}: {verdict}. {PACE_AT_HR_CAUTION}"

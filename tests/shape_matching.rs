@@ -271,3 +271,36 @@ fn a_ladder_is_not_a_set_of_like_reps() {
         }
     ));
 }
+
+#[test]
+fn a_hostile_shape_from_the_journal_is_not_unrolled() {
+    // A detected shape claiming four billion reps against a plan of three single pieces: the
+    // block-by-block match fails, the unrolled one is refused without building the list.
+    let huge = detected(u32::MAX, 400.0, 1609.0, None);
+    let written = line("1mi @ marathon; 1:00 jog; 1mi @ half; 1:00 jog; 1mi @ 10k");
+    assert!(!matches(&huge, &written));
+    // Non-numbers never match.
+    let nan = detected(6, f64::NAN, f64::NAN, None);
+    assert!(!matches(&nan, &detected(6, 90.0, 350.0, None)));
+}
+
+#[test]
+fn a_target_name_keeps_no_control_characters() {
+    let plan = parse_toml(
+        "title = \"t\"\nsteps = \"3 x 1mi @ threshold / 1:30 jog\"\n",
+        Some("2026-11-12-reps.toml"),
+    )
+    .unwrap();
+    let mut plan = plan;
+    if let splitdesk::model::Step::Repeat { work, .. } = &mut plan.steps[0] {
+        work[0].target = splitdesk::model::Target::NamedPace {
+            name: "Thresh\u{1b}[2Jold".into(),
+            tolerance_s_per_km: 4.0,
+        };
+    } else {
+        panic!("a repeat block");
+    }
+    let s = from_plan(&plan).unwrap();
+    assert_eq!(s.label, "3 x 1 mi @ thresh[2jold / 1:30 jog");
+    assert!(!s.label.chars().any(char::is_control));
+}

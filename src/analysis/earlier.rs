@@ -231,11 +231,10 @@ fn matched_by(current: &SessionCard) -> MatchedBy {
 
 /// Mean gradients of two runs' reps further apart than this (percentage points) are
 /// different ground.
-// Our design choice, from Minetti et al. 2002 (J Appl Physiol 93:1039-1046): the energy cost
-// of running rises by roughly 5 % from 0 % to 1 % gradient (From memory: the polynomial's
-// linear term, 19.5 i against 3.6 J/kg/m on the flat), so half a point moves the cost of a
-// rep by more than the changes the comparison reports; smaller differences are within the
-// noise of the recorded altitude over a rep.
+// Our design choice, from Minetti et al. 2002 as `super::gradient` has it: the energy cost of
+// running at 1 % is Cr(0.01) / Cr(0) = 3.80 / 3.6, 5.5 % above the flat, so half a point
+// moves the cost of a rep by more than the changes the comparison reports; smaller
+// differences are within the noise of the recorded altitude over a rep.
 pub const GROUND_DIFFERS_PCT: f64 = 0.5;
 
 /// The trend of the pace at a fixed heart rate across the runs counts as a change (fitter or
@@ -507,7 +506,7 @@ pub fn compare(current: &SessionCard, earlier: &[SessionCard], units: Units) -> 
                 .rev()
                 .map(|t| change(now, t, by, units))
                 .collect::<Vec<_>>(),
-            pace_at_hr(&runs, basis, by, units),
+            pace_at_hr(&runs, basis, by, units, subject(current)),
         ),
         _ => (Vec::new(), None),
     };
@@ -563,6 +562,15 @@ pub fn compare(current: &SessionCard, earlier: &[SessionCard], units: Units) -> 
         pace_at_hr,
         text,
         caution: CAUTION.to_string(),
+    }
+}
+
+/// What the verdict of the pace at a fixed heart rate is about.
+fn subject(current: &SessionCard) -> &'static str {
+    match (matched_by(current), current.kind) {
+        (MatchedBy::Kind, SessionKind::LongRun) => "on long runs",
+        (MatchedBy::Kind, _) => "on easy runs",
+        _ => "at this workout",
     }
 }
 
@@ -634,11 +642,35 @@ fn least_squares(points: &[Point]) -> Option<[f64; 3]> {
     b.iter().all(|v| v.is_finite()).then_some(b)
 }
 
+/// Largest squared correlation of heart rate and date over the points for the fit to tell
+/// their effects apart.
+// A variance inflation factor of 10 (r^2 = 0.9) is the usual line for serious collinearity
+// (From memory: Kutner, Nachtsheim, Neter & Li, Applied Linear Statistical Models, 5th ed.
+// 2005, section 10.5). Past it the slope and the trend trade off against each other: easy
+// runs at one pace with a heart rate falling week by week are such a case.
+pub const MAX_HR_DATE_R2: f64 = 0.9;
+
+/// Whether heart rate and date are too closely correlated over the points.
+fn collinear(points: &[Point]) -> bool {
+    let n = points.len() as f64;
+    let mh = points.iter().map(|p| p.hr).sum::<f64>() / n;
+    let md = points.iter().map(|p| p.day).sum::<f64>() / n;
+    let (mut shh, mut sdd, mut shd) = (0.0, 0.0, 0.0);
+    for p in points {
+        shh += (p.hr - mh) * (p.hr - mh);
+        sdd += (p.day - md) * (p.day - md);
+        shd += (p.hr - mh) * (p.day - md);
+    }
+    let r2 = shd * shd / (shh * sdd);
+    !r2.is_finite() || r2 > MAX_HR_DATE_R2
+}
+
 fn pace_at_hr(
     runs: &[Occurrence],
     basis: PaceBasis,
     by: MatchedBy,
     units: Units,
+    subject: &str,
 ) -> Option<PaceAtHr> {
     let first_day = runs.first().map(|r| r.day);
     let days_from_first = |d: NaiveDate| first_day.map_or(0.0, |f| (d - f).num_days() as f64);
@@ -721,6 +753,15 @@ fn pace_at_hr(
         ));
     };
     let trend_week = b2 * 7.0;
+    if collinear(&points) {
+        return Some(unclear(
+            Some(b1),
+            Some(trend_week),
+            "heart rate and date moved together across these runs: the fit cannot tell a \
+             change of fitness from a change of effort"
+                .to_string(),
+        ));
+    }
     if b1 >= 0.0 {
         return Some(unclear(
             Some(b1),
@@ -775,14 +816,18 @@ fn pace_at_hr(
         .collect::<Vec<_>>()
         .join(", ");
     let verdict = match trend {
-        FitnessTrend::Fitter => "getting fitter at this workout",
-        FitnessTrend::Slower => "slower at this workout than before",
-        _ => "about the same at this workout",
+        FitnessTrend::Fitter => format!("getting fitter {subject}"),
+        FitnessTrend::Slower => format!("slower {subject} than before"),
+        _ => format!("about the same {subject}"),
+    };
+    let span = if span_days >= 14.0 {
+        format!("{:.0} weeks", span_days / 7.0)
+    } else {
+        format!("{span_days:.0} days")
     };
     let over = format!(
-        "{} over {:.0} weeks",
+        "{} over {span}",
         pace_change_words(change, units).replace("the same pace", "no change"),
-        span_days / 7.0
     );
     let text = format!(
         "Pace at {hr_fixed:.0} bpm{ground}: {list}; {over}: {verdict}. {PACE_AT_HR_CAUTION}"

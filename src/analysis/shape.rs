@@ -79,7 +79,14 @@ fn target_name(t: &Target) -> Option<String> {
     match t {
         Target::Open => None,
         Target::PaceRange { .. } => Some("pace".to_string()),
-        Target::NamedPace { name, .. } => Some(name.trim().to_lowercase()),
+        // A name from a plan file: no control characters in a shape's label.
+        Target::NamedPace { name, .. } => Some(
+            name.trim()
+                .chars()
+                .filter(|c| !c.is_control())
+                .collect::<String>()
+                .to_lowercase(),
+        ),
         Target::HrRange { .. } => Some("hr".to_string()),
     }
 }
@@ -401,8 +408,15 @@ fn blocks_match(a: &ShapeBlock, b: &ShapeBlock) -> bool {
 
 /// The work pieces of a shape in order, repeats unrolled, with the one recovery its
 /// repeats use (`None` when none is known or the blocks use different ones).
-fn unrolled(s: &WorkoutShape) -> (Vec<&ShapeRep>, Option<&ShapeRecovery>) {
-    let mut pieces = Vec::new();
+fn unrolled(s: &WorkoutShape) -> Option<(Vec<&ShapeRep>, Option<&ShapeRecovery>)> {
+    // A shape read back from the journal is bounded before it is unrolled.
+    let total = s.blocks.iter().try_fold(0usize, |n, b| {
+        (b.count as usize)
+            .checked_mul(b.work.len())
+            .and_then(|k| n.checked_add(k))
+            .filter(|t| *t <= MAX_UNROLLED)
+    })?;
+    let mut pieces = Vec::with_capacity(total);
     for b in &s.blocks {
         for _ in 0..b.count {
             pieces.extend(b.work.iter());
@@ -411,7 +425,7 @@ fn unrolled(s: &WorkoutShape) -> (Vec<&ShapeRep>, Option<&ShapeRecovery>) {
     let mut recs = s.blocks.iter().filter_map(|b| b.recovery.as_ref());
     let first = recs.next();
     let one = first.filter(|f| recs.all(|r| r == *f));
-    (pieces, one)
+    Some((pieces, one))
 }
 
 /// Whether every piece matches the first one (targets aside): a set of like reps.
@@ -458,11 +472,9 @@ pub fn same_workout(a: &WorkoutShape, b: &WorkoutShape) -> bool {
     if a.source != ShapeSource::Detected && b.source != ShapeSource::Detected {
         return false;
     }
-    let (pa, ra) = unrolled(a);
-    let (pb, rb) = unrolled(b);
-    if pa.len() > MAX_UNROLLED || pb.len() > MAX_UNROLLED {
+    let (Some((pa, ra)), Some((pb, rb))) = (unrolled(a), unrolled(b)) else {
         return false;
-    }
+    };
     if !recoveries_match(ra, rb) {
         return false;
     }

@@ -434,6 +434,7 @@ fn cache_journal() -> Option<&'static Mutex<CacheJournal>> {
                 json: "{}".into(),
                 analysis_version: ANALYSIS_VERSION,
                 work_intervals: 0,
+                card: None,
             }),
         };
         journal.upsert_session(&record, Utc::now()).ok()?;

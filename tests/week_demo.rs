@@ -108,4 +108,30 @@ fn planted_missed_sessions_are_missed_and_unplanned_runs_extra() {
         .days
         .iter()
         .any(|x| x.sessions.iter().any(|s| s.current && s.extra)));
+
+    // The planted load jump (week 5): the week ending on the tempo of 11-19 carries the
+    // caution; the lighter week after it (ending 11-29; the four weeks before hold sessions,
+    // the jump among them) does not.
+    let jump = scenario.find_planted(PlantedKind::LoadJump).unwrap();
+    assert_eq!(jump.athlete, "oren-falkner");
+    let w = splitdesk::context::week_of_session(
+        &ws.journal,
+        oren,
+        "oren-falkner/2026-11-19-tempo",
+        today,
+    )
+    .unwrap();
+    assert!(w.load_ratio.unwrap() >= 1.5, "{:?}", w.load_ratio);
+    assert_eq!(w.previous_weeks_without_sessions, 0);
+    let caution = w.text.last().unwrap();
+    assert!(
+        caution.starts_with("Caution: this week's load is")
+            && caution.contains("not medical advice"),
+        "{caution}"
+    );
+    let calm =
+        splitdesk::context::week_around(&ws.journal, oren, d("2026-11-29"), None, today).unwrap();
+    assert_eq!(calm.previous_weeks_without_sessions, 0);
+    assert!(calm.load_ratio.unwrap() < 1.5, "{:?}", calm.load_ratio);
+    assert!(!calm.text.iter().any(|t| t.starts_with("Caution")));
 }

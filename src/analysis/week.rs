@@ -270,7 +270,9 @@ fn span_line(head: String, days: &[&WeekDay], say_none_missed: bool) -> String {
 /// (the one paired with it by name, else the one closest to its length) and the others
 /// as extra. The week's load is the sum of TRIMP over the 7 days ending on the centre day;
 /// it is set against the mean of the [`LOAD_WEEKS`] 7-day blocks before them (an uncoupled
-/// rolling acute/chronic ratio, methods.md §9, with a 28-day chronic window). The last hard
+/// rolling acute/chronic ratio, methods.md §9, with a 28-day chronic window). The usual
+/// load-spike caution is added when the ratio is at or above
+/// [`ACUTE_CHRONIC_CAUTION`] and each of the weeks before holds a session. The last hard
 /// session and the last long run are looked for over [`LOOKBACK_DAYS`] days: before the
 /// current session when there is one (an earlier run of the same day counts), else up to
 /// and including the centre day.
@@ -509,7 +511,13 @@ fn words(w: &Week) -> Vec<String> {
     };
     out.push(format!("{hard}, {long}"));
 
-    if let Some(r) = w.load_ratio.filter(|r| *r >= ACUTE_CHRONIC_CAUTION) {
+    // The caution needs a full chronic window: with a week of the four empty (the days
+    // before an athlete's first recording look the same as a break), the mean understates
+    // the usual load and the line is left to the load line's own words.
+    if let Some(r) = w
+        .load_ratio
+        .filter(|r| *r >= ACUTE_CHRONIC_CAUTION && w.previous_weeks_without_sessions == 0)
+    {
         out.push(format!(
             "Caution: this week's load is {r:.1} x the last four weeks' mean, at or above \
              {ACUTE_CHRONIC_CAUTION:.1}, the band usually marked for caution (Gabbett 2016). \
@@ -872,6 +880,8 @@ mod tests {
             "Last hard session 1 day before (tempo), last long run 9 days before"
         );
         assert_eq!(w.text[1], "0 sessions in the 7 days after, none missed");
+        // Ratio 3.2, but three of the four weeks are empty: no caution line.
+        assert_eq!(w.text.len(), 4, "{:?}", w.text);
     }
 
     #[test]

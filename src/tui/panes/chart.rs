@@ -762,7 +762,11 @@ pub fn render(app: &App, area: Rect, buf: &mut Buffer) {
 
 /// The dots of the earlier run the chart overlays (none when off): its reps laid on this
 /// session's reps ([`overlay_points`]), one dot per plot column.
-fn overlay_dots(o: &crate::tui::app::OpenSession, view: &ChartView, plot_w: u16) -> Vec<(f64, f64)> {
+fn overlay_dots(
+    o: &crate::tui::app::OpenSession,
+    view: &ChartView,
+    plot_w: u16,
+) -> Vec<(f64, f64)> {
     let (Some(run), Some(review)) = (o.context.overlaid(), o.review.as_ref()) else {
         return Vec::new();
     };

@@ -300,7 +300,9 @@ fn cycle_overlay(app: &mut App) {
         format!("{key} turns it off")
     };
     let text = if traced {
-        format!("chart: pace of the earlier run of {day} dotted over this one, rep on rep ({older})")
+        format!(
+            "chart: pace of the earlier run of {day} dotted over this one, rep on rep ({older})"
+        )
     } else {
         format!("chart: the earlier run of {day} kept no pace trace to draw ({older})")
     };

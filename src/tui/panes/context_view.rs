@@ -17,7 +17,7 @@ use crate::analysis::week::{LastSession, Week, WeekDay, WeekSession, LOOKBACK_DA
 use crate::model::units::{format_clock, format_distance, Units};
 use crate::roster::printable;
 use crate::tui::action::Action;
-use crate::tui::app::{App, Focus, Message, Tone, View};
+use crate::tui::app::{App, Message, Tone, View};
 use crate::tui::keymap::KeyMap;
 use crate::tui::theme::Theme;
 
@@ -255,9 +255,6 @@ fn cycle_view(app: &mut App) {
     if let (Some(o), Some(row)) = (app.open.as_mut(), row) {
         o.verdict.scroll = row;
         o.verdict.follow = false;
-    }
-    if app.focus == Focus::Roster && !app.show_roster {
-        app.focus = Focus::Verdict;
     }
 }
 

@@ -1,6 +1,6 @@
 //! The committed demo roster reads cleanly: every file ingests except the one damaged on
 //! purpose, `splitdesk check` reports exactly that file, and every plan file parses into the
-//! plan the simulator ran.
+//! plan the simulator ran (or, for a planned session not run, the plan the scenario wrote).
 
 use std::path::{Path, PathBuf};
 
@@ -123,6 +123,24 @@ fn every_plan_parses_and_every_structured_session_has_one() {
                 splitdesk::plan::load(&path).unwrap_or_else(|e| panic!("{}: {e}", path.display()));
             assert_eq!(plan, s.plan().unwrap(), "{}", path.display());
             checked += 1;
+        }
+        // Planned sessions not run: a plan file and no activity.
+        for m in &a.missed {
+            let path = dir.join(format!("{}.toml", m.stem()));
+            let plan =
+                splitdesk::plan::load(&path).unwrap_or_else(|e| panic!("{}: {e}", path.display()));
+            assert_eq!(plan, m.plan().unwrap(), "{}", path.display());
+            let activities = root().join(&a.id).join("activities");
+            assert!(
+                !std::fs::read_dir(&activities).unwrap().any(|e| e
+                    .unwrap()
+                    .file_name()
+                    .to_string_lossy()
+                    .starts_with(&m.stem())),
+                "{}: an activity for a missed session",
+                m.stem()
+            );
+            expected += 1;
         }
         assert_eq!(on_disk.len(), expected, "{}", a.id);
     }

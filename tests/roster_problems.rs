@@ -233,6 +233,7 @@ fn a_session_whose_plan_is_broken_is_analysed_without_it_and_says_why() {
         grades: Default::default(),
         note: None,
         marks: Vec::new(),
+        earlier: None,
     };
     let draft = splitdesk::export::feedback::draft(&input, &Default::default());
     assert!(

@@ -118,7 +118,7 @@ fn trace(session: Option<&Session>, from_s: f64, to_s: f64) -> Vec<Option<f32>> 
     let Some(speed) = session.speed.as_ref() else {
         return Vec::new();
     };
-    if !(to_s > from_s) {
+    if to_s.is_nan() || from_s.is_nan() || to_s <= from_s {
         return Vec::new();
     }
     let bins = ((to_s - from_s) / TRACE_BIN_S).ceil().max(1.0) as usize;

@@ -28,6 +28,7 @@ macro_rules! eprintln {
 
 mod analyze;
 mod check;
+mod compare_cmd;
 mod demo_cmd;
 mod inspect;
 pub mod out;
@@ -35,6 +36,7 @@ pub mod plan_cmd;
 mod review_cmds;
 mod review_text;
 mod trends_cmd;
+mod week_cmd;
 
 use std::path::PathBuf;
 
@@ -168,6 +170,16 @@ pub enum Command {
         #[arg(long)]
         json: bool,
     },
+    /// The session beside its earlier runs of the same workout: per-rep pace, heart rate,
+    /// relative intensity and recovery trough side by side, the change in words and the
+    /// pace at a fixed heart rate across them (from the journal; no file is read again).
+    Compare {
+        /// A session id (`athlete-id/file-stem`).
+        session: String,
+        /// Print JSON instead of text.
+        #[arg(long)]
+        json: bool,
+    },
     /// An athlete's history: weekly volume, load, efficiency, long runs, best efforts,
     /// critical speed and predicted race times.
     Trends {
@@ -177,6 +189,19 @@ pub enum Command {
         #[arg(long)]
         weeks: Option<u32>,
         /// Print JSON instead of text.
+        #[arg(long)]
+        json: bool,
+    },
+    /// The week around a session or a day: each day's sessions, planned sessions missed,
+    /// sessions without a plan, the week's load against the four weeks before.
+    Week {
+        /// A session id (<athlete-id>/<activity-file-stem>) or an athlete id.
+        #[arg(value_name = "SESSION|ATHLETE")]
+        what: String,
+        /// The day to centre an athlete's week on (YYYY-MM-DD; default today).
+        #[arg(long)]
+        date: Option<String>,
+        /// Print JSON (`splitdesk.week/1`) instead of text.
         #[arg(long)]
         json: bool,
     },
@@ -286,6 +311,8 @@ fn wants_json(cmd: Option<&Command>) -> bool {
             | Command::Feedback { json, .. }
             | Command::BiasCheck { json, .. }
             | Command::Trends { json, .. }
+            | Command::Compare { json, .. }
+            | Command::Week { json, .. }
             | Command::Plan(PlanCommand::Check { json, .. })
             | Command::Journal(JournalCommand::Check { json }),
         ) => *json,
@@ -394,7 +421,12 @@ fn run_with_journal(
         Command::Grade { session, .. }
         | Command::Notes { session, .. }
         | Command::Feedback { session, .. }
+        | Command::Compare { session, .. }
         | Command::Export(ExportCommand::Chart { session, .. }) => rc::Concern::Session(session),
+        Command::Week { what, .. } => match week_cmd::target(what) {
+            week_cmd::Target::Session(s) => rc::Concern::Session(s),
+            week_cmd::Target::Athlete(a) => rc::Concern::Athlete(a),
+        },
         _ => rc::Concern::Nothing,
     };
     rc::say_sync_problems(&damaged, concern);
@@ -460,6 +492,11 @@ fn run_with_journal(
             weeks,
             json,
         } => trends_cmd::run(&ws, &athlete, weeks, json),
+        Command::Compare { session, json } => compare_cmd::run(&ws, &session, json),
+        Command::Week { what, date, json } => {
+            let date = date.map(|d| rc::parse_date("--date", &d)).transpose()?;
+            week_cmd::run(&ws, &what, date, json)
+        }
         _ => Ok(0),
     }
 }

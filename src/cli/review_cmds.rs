@@ -507,6 +507,7 @@ pub fn draft_for(ws: &mut Workspace, id: &str, style: &FeedbackStyle) -> anyhow:
         bail!("{id}: the draft is written after the reveal: grade the session blind and read the notes first (splitdesk notes {id})");
     }
     let (note, marks) = note_and_marks(ws, id)?;
+    let earlier = earlier_runs(ws, id);
     let (athlete, _) = ws.find(id)?;
     let profile = athlete.profile.clone();
     let input = DraftInput {
@@ -515,8 +516,16 @@ pub fn draft_for(ws: &mut Workspace, id: &str, style: &FeedbackStyle) -> anyhow:
         grades: Grades::from_state(&state),
         note: note.as_deref(),
         marks,
+        earlier: earlier.as_ref(),
     };
     Ok(crate::export::feedback::draft(&input, style))
+}
+
+/// The session beside its earlier runs of the same workout, for the draft; `None` when the
+/// journal cannot say (the draft then leaves the comparison out).
+fn earlier_runs(ws: &Workspace, id: &str) -> Option<crate::analysis::earlier::Comparison> {
+    let (athlete, _) = ws.find(id).ok()?;
+    crate::context::comparison(&ws.journal, athlete, id).ok()
 }
 
 /// The athlete's note (through the reveal permit: the session must be revealed) and the
@@ -797,6 +806,8 @@ struct DaySession {
     grades: Grades,
     note: Option<String>,
     marks: Vec<crate::analysis::ruler::RulerFit>,
+    /// The session beside its earlier runs of the same workout (when the journal has it).
+    earlier: Option<crate::analysis::earlier::Comparison>,
     saved: Option<String>,
 }
 
@@ -816,6 +827,10 @@ fn day_session(ws: &mut Workspace, id: &str) -> anyhow::Result<DaySession> {
     } else {
         note_and_marks(ws, id)?
     };
+    let earlier = match saved {
+        Some(_) => None,
+        None => earlier_runs(ws, id),
+    };
     Ok(DaySession {
         id: id.to_string(),
         title,
@@ -823,6 +838,7 @@ fn day_session(ws: &mut Workspace, id: &str) -> anyhow::Result<DaySession> {
         grades: Grades::from_state(&state),
         note,
         marks,
+        earlier,
         saved,
     })
 }
@@ -889,6 +905,7 @@ fn export_day(
                     grades: s.grades.clone(),
                     note: s.note.as_deref(),
                     marks: s.marks.clone(),
+                    earlier: s.earlier.as_ref(),
                 }),
             })
             .collect();

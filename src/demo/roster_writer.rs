@@ -3,7 +3,8 @@
 //! ```text
 //! <out>/roster.toml                       club name, default units, a "written by" line
 //! <out>/<athlete-id>/athlete.toml         the profile as the scenario states it
-//! <out>/<athlete-id>/plans/<stem>.toml    title, purpose, date, steps (shorthand)
+//! <out>/<athlete-id>/plans/<stem>.toml    title, purpose, date, steps (shorthand); also for
+//!                                         the planned sessions not run (no activity)
 //! <out>/<athlete-id>/activities/<stem>.fit|tcx|gpx
 //! <out>/<athlete-id>/notes/<stem>.txt     the athlete's note
 //! ```
@@ -143,6 +144,15 @@ pub fn render(scenario: &Scenario) -> io::Result<BTreeMap<PathBuf, Vec<u8>>> {
                 );
             }
             jobs.push((a, s, dir.join("activities").join(s.file_name())));
+        }
+        // Planned and not run: the plan file only.
+        for s in &a.missed {
+            let stem = s.stem();
+            let text = plan_toml(s).map_err(|e| invalid(format!("{}/{stem}: plan: {e}", a.id)))?;
+            files.insert(
+                dir.join("plans").join(format!("{stem}.toml")),
+                text.into_bytes(),
+            );
         }
     }
     // Sessions are independent: simulate them round-robin on a few threads.

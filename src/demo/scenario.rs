@@ -45,6 +45,9 @@
 //! | oren-falkner | 2026-11-19 | 2026-11-19-tempo | misleading note: a faded, weak tempo the athlete calls great |
 //! | dagny-holloway | weeks 1-6 | (all) | smart recording: a sample every 1-7 s instead of every second |
 //! | dagny-holloway | 2026-11-02 | 2026-11-02-easy-run | optical HR locks onto cadence for 20 minutes |
+//! | keziah-brandt | 2026-11-19 | 2026-11-19-easy-run | missed planned session: the easy run is planned (a plan file) and not run (no activity) |
+//! | mira-castellan | 2026-11-25 | 2026-11-25-easy-run | missed planned session: the easy run is planned and not run |
+//! | oren-falkner | 2026-11-24 | 2026-11-24-tempo | missed planned session: the tempo after the load jump is planned and not run |
 //!
 //! The table is kept in step with [`Scenario::planted`] by a unit test.
 
@@ -155,6 +158,8 @@ pub enum PlantedKind {
     NoteUnderstates,
     /// A weak session the athlete calls great.
     NoteOverstates,
+    /// A planned session not run: its plan file is written, no activity or note.
+    MissedSession,
 }
 
 /// One planted case, as listed in the module documentation.
@@ -366,6 +371,9 @@ pub struct AthleteSpec {
     pub paces: Vec<(String, String)>,
     /// The sessions, in date order.
     pub sessions: Vec<SessionSpec>,
+    /// Planned sessions the athlete did not run, in date order: each has its plan file and
+    /// no activity or note (the week strip's missed sessions). Never on a day with a session.
+    pub missed: Vec<SessionSpec>,
     /// Planted cases spanning several sessions: (kind, when, what).
     pub planted: Vec<(PlantedKind, String, String)>,
 }
@@ -455,7 +463,9 @@ impl Scenario {
                     what: what.clone(),
                 });
             }
-            for s in &a.sessions {
+            let mut specs: Vec<&SessionSpec> = a.sessions.iter().chain(&a.missed).collect();
+            specs.sort_by_key(|s| s.date);
+            for s in specs {
                 for (kind, what) in &s.planted {
                     out.push(Planted {
                         athlete: a.id.clone(),
@@ -569,6 +579,7 @@ pub(crate) struct Defaults {
 pub(crate) struct Builder {
     defaults: Defaults,
     sessions: Vec<SessionSpec>,
+    missed: Vec<SessionSpec>,
 }
 
 /// Autumn temperature of a day, 5-13 C, a deterministic wobble.
@@ -583,12 +594,31 @@ impl Builder {
         Builder {
             defaults,
             sessions: Vec::new(),
+            missed: Vec::new(),
         }
     }
 
-    pub fn finish(mut self) -> Vec<SessionSpec> {
+    pub fn finish(self) -> Vec<SessionSpec> {
+        self.finish_with_missed().0
+    }
+
+    /// The sessions run and the planned sessions missed, each in date order.
+    pub fn finish_with_missed(mut self) -> (Vec<SessionSpec>, Vec<SessionSpec>) {
         self.sessions.sort_by_key(|s| s.date);
-        self.sessions
+        self.missed.sort_by_key(|s| s.date);
+        (self.sessions, self.missed)
+    }
+
+    /// The session just added is planned and not run: it keeps its plan file and gets no
+    /// activity or note (a [`PlantedKind::MissedSession`] described by `what`).
+    pub fn miss_last(&mut self, what: &str) {
+        if let Some(mut s) = self.sessions.pop() {
+            s.note = NoteSpec::None;
+            s.plan_file = true;
+            s.planted
+                .push((PlantedKind::MissedSession, what.to_string()));
+            self.missed.push(s);
+        }
     }
 
     #[allow(clippy::too_many_arguments)]
@@ -862,6 +892,47 @@ mod tests {
                 }
                 assert!(s.date <= last_day() && s.date >= first_day());
             }
+            for m in &a.missed {
+                assert!(stems.insert(m.stem()), "{} {}", a.id, m.stem());
+                m.plan().unwrap();
+                assert!(
+                    m.plan_file && m.note == NoteSpec::None,
+                    "{} {}",
+                    a.id,
+                    m.stem()
+                );
+                assert!(
+                    a.sessions.iter().all(|s| s.date != m.date),
+                    "{} {}: a missed session on a day with a run",
+                    a.id,
+                    m.stem()
+                );
+                assert!(m.date <= last_day() && m.date >= first_day());
+            }
         }
+    }
+
+    #[test]
+    fn missed_sessions_are_planted_in_the_last_two_weeks() {
+        let scenario = Scenario::default_demo();
+        let missed: Vec<Planted> = scenario
+            .planted()
+            .into_iter()
+            .filter(|p| p.kind == PlantedKind::MissedSession)
+            .collect();
+        assert_eq!(missed.len(), 3);
+        for p in &missed {
+            let d = p.date.unwrap();
+            assert!(week_of(d).is_some_and(|w| w >= 5), "{p:?}");
+            let a = scenario.athlete(&p.athlete).unwrap();
+            assert!(a.missed.iter().any(|m| Some(m.stem()) == p.stem));
+        }
+        // One easy run and one quality session among them.
+        let kinds: Vec<SessionKind> = scenario
+            .athletes
+            .iter()
+            .flat_map(|a| a.missed.iter().map(|m| m.kind))
+            .collect();
+        assert!(kinds.contains(&SessionKind::Easy) && kinds.contains(&SessionKind::Tempo));
     }
 }

@@ -1126,6 +1126,23 @@ impl Journal {
         })
     }
 
+    /// A permit to read the notes of a session whose blind grading is complete and whose
+    /// notes the coach has already revealed; `None` otherwise. Changes nothing: this is how
+    /// another session's view (the earlier runs of the same workout) may show a note, under
+    /// that session's own reveal rule.
+    pub fn revealed_permit(&self, session_id: &str) -> Result<Option<RevealPermit>> {
+        self.read(|conn, path| {
+            let Some(row) = session_row(conn, path, session_id)? else {
+                return Ok(None);
+            };
+            let Some(rid) = row.review_id else {
+                return Ok(None);
+            };
+            let review = review_row(conn, path, rid)?;
+            Ok(review.revealed_at.is_some().then(|| permit(&row)))
+        })
+    }
+
     /// The grading state of one session.
     pub fn review_state(&self, session_id: &str) -> Result<ReviewState> {
         self.read(|conn, path| {

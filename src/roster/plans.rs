@@ -97,9 +97,10 @@ pub fn choose_plan(
 }
 
 /// The athlete's planned sessions dated `from..=to` (a plan's `date` key, else its file-name
-/// date), oldest first. A plan file that cannot be read is left out here (`splitdesk check`
-/// names it). Only files whose name dates them within a month of the range, or that carry
-/// no date in their name, are read.
+/// date), oldest first, each with the activity paired with it by name when there is one. A
+/// plan file that cannot be read is left out here (`splitdesk check` names it). Only files
+/// whose name dates them within a month of the range, or that carry no date in their name,
+/// are read.
 pub fn planned_days(
     athlete: &Athlete,
     from: NaiveDate,
@@ -130,6 +131,9 @@ pub fn planned_days(
             title: plan.title.clone(),
             kind: crate::analysis::kind::plan_kind(&plan),
             planned_s: planned_seconds(&plan),
+            activity: stem_of(path)
+                .and_then(|s| athlete.activities.iter().find(|a| a.stem == s))
+                .map(|a| athlete.session_id(a)),
         });
     }
     out.sort_by(|a, b| a.date.cmp(&b.date).then_with(|| a.file.cmp(&b.file)));

@@ -1592,6 +1592,7 @@ impl App {
                         .collect()
                 })
                 .unwrap_or_default(),
+            earlier: None,
         };
         crate::export::feedback::draft(&input, &self.feedback_style)
     }
@@ -2330,6 +2331,7 @@ impl App {
                             // Ruler marks need the samples: only the open session's own
                             // draft has them.
                             marks: Vec::new(),
+                            earlier: None,
                         },
                     ),
                 })

@@ -112,5 +112,6 @@ pub fn input<'a>(s: &'a DemoSession, grades: Grades, with_note: bool) -> DraftIn
         grades,
         note: if with_note { s.note.as_deref() } else { None },
         marks: Vec::new(),
+        earlier: None,
     }
 }

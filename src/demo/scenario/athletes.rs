@@ -135,6 +135,7 @@ fn tobias() -> AthleteSpec {
         units: Units::Km,
         paces: paces(["4:20/km", "3:42/km", "3:27/km", "3:15/km", "3:07/km"]),
         sessions: b.finish(),
+        missed: Vec::new(),
         planted: Vec::new(),
     }
 }
@@ -192,6 +193,10 @@ fn mira() -> AthleteSpec {
                     );
             }
         }
+        if w == 6 {
+            b.easy(w, 2, 35);
+            b.miss_last("missed planned session: the easy run is planned and not run");
+        }
         b.easy(w, 3, 40);
         match w {
             1 => {
@@ -225,6 +230,7 @@ fn mira() -> AthleteSpec {
         }
         b.long(w, 6, if w == 6 { 60 } else { 70 }).at(8, 0);
     }
+    let (sessions, missed) = b.finish_with_missed();
     AthleteSpec {
         id: "mira-castellan".into(),
         name: "Mira Castellan".into(),
@@ -235,7 +241,8 @@ fn mira() -> AthleteSpec {
         threshold_pace: "3:55/km".into(),
         units: Units::Km,
         paces: paces(["5:05/km", "4:22/km", "4:03/km", "3:48/km", "3:40/km"]),
-        sessions: b.finish(),
+        sessions,
+        missed,
         planted: Vec::new(),
     }
 }
@@ -279,6 +286,13 @@ fn keziah() -> AthleteSpec {
         }
         if w == 6 {
             b.easy(w, 3, 30);
+        }
+        if w == 5 {
+            b.easy(w, 3, 35);
+            b.miss_last(
+                "missed planned session: the easy run is planned (a plan file) and not run \
+                 (no activity)",
+            );
         }
         let fri = b.easy(w, 4, if w == 1 || w == 5 { 30 } else { 35 });
         if w == 1 || w == 5 {
@@ -335,6 +349,7 @@ fn keziah() -> AthleteSpec {
             }
         }
     }
+    let (sessions, missed) = b.finish_with_missed();
     AthleteSpec {
         id: "keziah-brandt".into(),
         name: "Keziah Brandt".into(),
@@ -345,7 +360,8 @@ fn keziah() -> AthleteSpec {
         threshold_pace: "4:45/km".into(),
         units: Units::Km,
         paces: paces(["6:05/km", "5:18/km", "4:55/km", "4:38/km", "4:26/km"]),
-        sessions: b.finish(),
+        sessions,
+        missed,
         planted: Vec::new(),
     }
 }
@@ -413,6 +429,7 @@ fn ansel() -> AthleteSpec {
         units: Units::Mi,
         paces: paces(["9:15/mi", "8:05/mi", "7:30/mi", "7:02/mi", "6:48/mi"]),
         sessions,
+        missed: Vec::new(),
         planted: vec![(
             P::ImprovingEfficiency,
             "weeks 1-6".into(),
@@ -453,6 +470,10 @@ fn oren() -> AthleteSpec {
         let mon = b.easy(w, 0, 35);
         if w == 6 {
             mon.fatigue(0.4).note("Tired. Short one.");
+            b.tempo(w, 1, 20);
+            b.miss_last(
+                "missed planned session: the tempo after the load jump is planned and not run",
+            );
         }
         match w {
             1 | 3 => {
@@ -480,6 +501,7 @@ fn oren() -> AthleteSpec {
         }
         b.long(w, 6, if w == 6 { 50 } else { 60 + 2 * w }).at(8, 0);
     }
+    let (sessions, missed) = b.finish_with_missed();
     AthleteSpec {
         id: "oren-falkner".into(),
         name: "Oren Falkner".into(),
@@ -490,7 +512,8 @@ fn oren() -> AthleteSpec {
         threshold_pace: "8:51/mi".into(),
         units: Units::Mi,
         paces: paces(["11:15/mi", "9:50/mi", "9:08/mi", "8:36/mi", "8:15/mi"]),
-        sessions: b.finish(),
+        sessions,
+        missed,
         planted: vec![(
             P::LoadJump,
             "week 5".into(),
@@ -567,6 +590,7 @@ fn dagny() -> AthleteSpec {
         units: Units::Mi,
         paces: paces(["13:15/mi", "11:40/mi", "10:48/mi", "10:10/mi", "9:45/mi"]),
         sessions: b.finish(),
+        missed: Vec::new(),
         planted: vec![(
             P::SmartSampling,
             "weeks 1-6".into(),

@@ -724,3 +724,52 @@ pub fn mark(m: &crate::analysis::ruler::RulerFit, units: Units) -> Option<String
     };
     Some(format!("{span}, {pace_words}{hr_words}."))
 }
+
+/// A pace gain on the earlier run of the same workout at least this big (in whole seconds
+/// per the athlete's unit) is said in the draft.
+// Our design choice: under 2 s the difference is within what GPS and the day's conditions
+// move a set by.
+pub const CLEAR_GAIN_S: f64 = 2.0;
+/// Most the heart rate may have risen for the gain to count as "at the same effort", bpm.
+// Common coaching practice (no published source): a beat or two is within sensor noise.
+pub const SAME_EFFORT_BPM: f64 = 2.0;
+
+/// "Faster than last time at the same effort", when the comparison with the latest earlier
+/// run of the same workout says so clearly: the reps quicker by at least
+/// [`CLEAR_GAIN_S`] at a heart rate no more than [`SAME_EFFORT_BPM`] higher. Nothing is
+/// said otherwise (a slower set is the coach's to explain, in their own words).
+pub fn against_earlier(c: &crate::analysis::earlier::Comparison, units: Units) -> Option<String> {
+    use crate::analysis::earlier::MatchedBy;
+    if c.matched_by != MatchedBy::WorkoutShape {
+        return None;
+    }
+    let latest = c.changes.first()?;
+    let gap = latest.pace_s_per_km.filter(|g| g.is_finite() && *g < 0.0)?;
+    let hr = latest.hr_bpm.filter(|h| h.is_finite())?;
+    let gain = pace_gap_s(gap, units);
+    if gain < CLEAR_GAIN_S || hr > SAME_EFFORT_BPM {
+        return None;
+    }
+    let effort = if hr <= -SAME_EFFORT_BPM {
+        "at a lower heart rate"
+    } else {
+        "at the same heart rate"
+    };
+    let reps = c
+        .runs
+        .iter()
+        .find(|r| r.current)
+        .map(|r| r.reps.len())
+        .unwrap_or(0);
+    let what = if reps > 1 {
+        "repeats averaged"
+    } else {
+        "effort was"
+    };
+    Some(format!(
+        "Your {what} {} {} quicker than when you ran this session on {}, {effort}.",
+        seconds(gain),
+        per_unit(units),
+        words::day(&latest.day.to_string()),
+    ))
+}

@@ -57,6 +57,9 @@ pub struct DraftInput<'a> {
     pub note: Option<&'a str>,
     /// The stretches the coach marked with rulers on the chart, fitted.
     pub marks: Vec<crate::analysis::ruler::RulerFit>,
+    /// The session beside its earlier runs of the same workout, when known: a clear gain
+    /// on the last one is said ([`body::against_earlier`]).
+    pub earlier: Option<&'a crate::analysis::earlier::Comparison>,
 }
 
 /// One session of a day's message: the feedback the coach saved (used as edited), or a
@@ -222,6 +225,9 @@ pub fn compose(input: &DraftInput<'_>, style: &FeedbackStyle) -> Draft {
     }
     for f in body::facts(&c) {
         push(Part::Facts, f);
+    }
+    if let Some(t) = input.earlier.and_then(|e| body::against_earlier(e, units)) {
+        push(Part::Facts, t);
     }
     for m in input.marks.iter().take(MAX_MARKS) {
         if let Some(t) = body::mark(m, units) {

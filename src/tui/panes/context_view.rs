@@ -288,20 +288,18 @@ fn cycle_overlay(app: &mut App) {
         .overlaid()
         .map(|r| (r.day, r.has_trace(), o.context.overlay.unwrap_or(0)))
     else {
-        say(app, Tone::Info, "chart: earlier run overlay off");
+        say(app, Tone::Info, "chart: earlier run off");
         return;
     };
-    let older = if position + 1 < runs {
-        format!("{key} for the next older one")
+    let next = if position + 1 < runs {
+        format!("{key}: next older")
     } else {
-        format!("{key} turns it off")
+        format!("{key}: off")
     };
     let text = if traced {
-        format!(
-            "chart: pace of the earlier run of {day} dotted over this one, rep on rep ({older})"
-        )
+        format!("chart: the earlier run of {day} dotted, rep on rep ({next})")
     } else {
-        format!("chart: the earlier run of {day} kept no pace trace to draw ({older})")
+        format!("chart: the earlier run of {day} kept no pace trace to draw ({next})")
     };
     say(app, Tone::Info, text);
 }
@@ -599,12 +597,18 @@ pub fn comparison_lines(t: &Theme, c: &Comparison, units: Units, w: usize) -> Ve
             .map(|r| {
                 let mut cells: Vec<String> = (0..reps)
                     .map(|i| match r.reps.get(i) {
-                        Some(x) => format!("{} {}", pace(x.pace_s_per_km, units), num(x.avg_hr, 0)),
+                        Some(x) => {
+                            format!(
+                                "{:>5} {:>3}",
+                                pace(x.pace_s_per_km, units),
+                                num(x.avg_hr, 0)
+                            )
+                        }
                         None => String::new(),
                     })
                     .collect();
                 cells.push(format!(
-                    "{} {}",
+                    "{:>5} {:>3}",
                     pace(r.mean_pace_s_per_km, units),
                     num(r.mean_hr, 0)
                 ));
@@ -633,7 +637,7 @@ pub fn comparison_lines(t: &Theme, c: &Comparison, units: Units, w: usize) -> Ve
                 let mut cells: Vec<String> = (0..reps)
                     .map(|i| match r.reps.get(i) {
                         Some(x) => format!(
-                            "{} {}",
+                            "{:>4} {:>3}",
                             num(x.relative_intensity, 2),
                             num(x.recovery_trough_bpm, 0)
                         ),
@@ -641,7 +645,7 @@ pub fn comparison_lines(t: &Theme, c: &Comparison, units: Units, w: usize) -> Ve
                     })
                     .collect();
                 cells.push(format!(
-                    "{} {}",
+                    "{:>4} {:>3}",
                     num(r.mean_relative_intensity, 2),
                     num(r.mean_trough_bpm, 0)
                 ));
@@ -693,13 +697,18 @@ pub fn comparison_lines(t: &Theme, c: &Comparison, units: Units, w: usize) -> Ve
             .lines(t, w),
         );
     }
+    // The words, then what they leave out of the changes and the pace at a fixed heart rate.
+    let said = |s: &str| {
+        let key = |x: &str| x.trim().trim_end_matches('.').to_string();
+        c.text.iter().any(|x| key(x) == key(s))
+    };
     for line in &c.text {
         out.push(bullet(t, line, t.text));
     }
-    for ch in c.changes.iter().filter(|ch| !c.text.contains(&ch.text)) {
+    for ch in c.changes.iter().filter(|ch| !said(&ch.text)) {
         out.push(bullet(t, &ch.text, t.text));
     }
-    if let Some(p) = c.pace_at_hr.as_ref().filter(|p| !c.text.contains(&p.text)) {
+    if let Some(p) = c.pace_at_hr.as_ref().filter(|p| !said(&p.text)) {
         out.push(Line::from(vec![
             Span::styled("Pace at HR ", t.heading),
             Span::styled(printable(&p.text), t.text),
@@ -765,6 +774,15 @@ fn day_lines(t: &Theme, d: &WeekDay, units: Units) -> Vec<Line<'static>> {
             t.warn,
         ));
     }
+    for p in &d.not_analysed {
+        items.push((
+            format!(
+                "run, not analysed: {} (the file cannot be read)",
+                printable(&p.title)
+            ),
+            t.dim,
+        ));
+    }
     for p in &d.upcoming {
         items.push((format!("planned: {}", printable(&p.title)), t.dim));
     }
@@ -811,19 +829,21 @@ pub fn week_lines(t: &Theme, wk: &Week, units: Units, _w: usize) -> Vec<Line<'st
     for d in &wk.days {
         out.extend(day_lines(t, d, units));
     }
+    let at_least = if wk.week_load_lower_bound { "≥" } else { "" };
+    let head = format!(
+        "Load {at_least}{:.0} in the 7 days to {}",
+        wk.week_load, wk.centre
+    );
+    let empty = match wk.previous_weeks_without_sessions {
+        0 => String::new(),
+        n => format!(" ({n} of them without a session)"),
+    };
     let load = match (wk.previous_weeks_mean_load, wk.load_ratio) {
-        (Some(m), Some(r)) => format!(
-            "Load {:.0} in the 7 days to {} · mean of the 4 weeks before {m:.0} · ratio {r:.2}",
-            wk.week_load, wk.centre
-        ),
-        (Some(m), None) => format!(
-            "Load {:.0} in the 7 days to {} · mean of the 4 weeks before {m:.0}",
-            wk.week_load, wk.centre
-        ),
-        _ => format!(
-            "Load {:.0} in the 7 days to {} · no earlier weeks to set it against",
-            wk.week_load, wk.centre
-        ),
+        (Some(m), Some(r)) => {
+            format!("{head} · mean of the 4 weeks before {m:.0}{empty} · ratio {r:.2}")
+        }
+        (Some(m), None) => format!("{head} · mean of the 4 weeks before {m:.0}{empty}"),
+        _ => format!("{head} · no earlier weeks to set it against"),
     };
     out.push(Line::styled(load, t.text));
     out.push(Line::styled(

@@ -913,3 +913,33 @@ fn a_change_the_words_already_say_is_not_repeated() {
     );
     assert!(!all.contains("Pace at HR "), "{all}");
 }
+
+#[test]
+fn what_was_looked_up_before_the_analysis_is_looked_up_again_when_it_arrives() {
+    let dir = tempfile::tempdir().unwrap();
+    let mut app = app_with(dir.path());
+    // Opened: the analysis is on its way (the job has not run yet).
+    let fx = app.open_session(INTERVALS);
+    {
+        let o = app.open.as_mut().unwrap();
+        o.context.lower = Lower::SameWorkout;
+        o.context.comparison = Some(Err("not analysed yet".to_string()));
+        o.context.week = Some(Err("not analysed yet".to_string()));
+        o.context.earlier = Some(Ok(earlier_runs()));
+        o.context.overlay = Some(1);
+    }
+    run_effects(&mut app, fx);
+    let c = &app.open.as_ref().unwrap().context;
+    assert_eq!(c.lower, Lower::SameWorkout);
+    // The view on screen is asked again (the test roster has no earlier run of this
+    // workout: a comparison without earlier runs); the week waits for its key.
+    let Some(Ok(cmp)) = &c.comparison else {
+        panic!("{:?}", c.comparison);
+    };
+    assert_eq!(cmp.session_id, INTERVALS);
+    assert_eq!(cmp.earlier().count(), 0);
+    assert!(c.week.is_none());
+    // The overlay's runs are looked up again: none here, so the overlay is off.
+    assert_eq!(c.earlier, Some(Ok(Vec::new())));
+    assert_eq!(c.overlay, None);
+}

@@ -182,22 +182,27 @@ pub fn ensure_earlier(app: &mut App) {
     }
 }
 
-/// The open session's analysis arrived (the journal now holds its current card): what
-/// failed before is asked again, and the view on screen is filled.
+/// The open session's analysis arrived (the journal now holds its current card): what was
+/// looked up before it is looked up again (an error may have been "not analysed yet", a
+/// result may rest on the card of an older analysis), the view on screen at once, the
+/// overlay's runs when one is overlaid.
 pub fn on_analysed(app: &mut App) {
     let Some(o) = app.open.as_mut() else { return };
-    let c = &mut o.context;
-    if matches!(c.comparison, Some(Err(_))) {
-        c.comparison = None;
-    }
-    if matches!(c.week, Some(Err(_))) {
-        c.week = None;
-    }
-    if matches!(c.earlier, Some(Err(_))) {
-        c.earlier = None;
-        c.overlay = None;
-    }
+    let overlay = o.context.overlay;
+    o.context.forget();
     ensure_view(app);
+    if overlay.is_some() {
+        ensure_earlier(app);
+        if let Some(o) = app.open.as_mut() {
+            let runs = o
+                .context
+                .earlier
+                .as_ref()
+                .and_then(|r| r.as_ref().ok())
+                .map_or(0, Vec::len);
+            o.context.overlay = overlay.filter(|&i| i < runs);
+        }
+    }
 }
 
 fn say(app: &mut App, tone: Tone, text: impl Into<String>) {

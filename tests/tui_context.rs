@@ -437,10 +437,10 @@ fn the_week_day_by_day() {
         "Sat 2024-03-02  easy run · 40:00 · 7.60 km · load 41 · extra (no plan)",
         "Sun 2024-03-03  rest",
         "Mon 2024-03-04  interval set · 37:00 · 8.20 km · load 88 · 5 x 3 min (this session)",
-        "                not a run · 1:00:00 · 25.00 km · load ≥30 · extra (no plan)",
+        "                not a run · 1:00:00 · 25.00 km · load 30 or more · extra (no plan)",
         "Tue 2024-03-05  rest",
         "Wed 2024-03-06  planned: Long run",
-        "Load ≥254 in the 7 days to 2024-03-04 · mean of the 4 weeks before 230 (1 of them \
+        "Load 254 or more in the 7 days to 2024-03-04 · mean of the 4 weeks before 230 (1 of them \
          without a session) · ratio 1.10",
         "1 missed (planned, no activity) · 2 extra (no plan)",
         "Last hard session: tempo on 2024-02-28, 5 days before",

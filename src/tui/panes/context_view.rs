@@ -746,7 +746,7 @@ fn session_words(s: &WeekSession, units: Units) -> String {
         parts.push(format_distance(d, units));
     }
     match s.load.filter(|l| l.is_finite()) {
-        Some(l) if s.load_lower_bound => parts.push(format!("load ≥{l:.0}")),
+        Some(l) if s.load_lower_bound => parts.push(format!("load {l:.0} or more")),
         Some(l) => parts.push(format!("load {l:.0}")),
         None => parts.push("load -".to_string()),
     }
@@ -834,9 +834,13 @@ pub fn week_lines(t: &Theme, wk: &Week, units: Units, _w: usize) -> Vec<Line<'st
     for d in &wk.days {
         out.extend(day_lines(t, d, units));
     }
-    let at_least = if wk.week_load_lower_bound { "≥" } else { "" };
+    let at_least = if wk.week_load_lower_bound {
+        " or more"
+    } else {
+        ""
+    };
     let head = format!(
-        "Load {at_least}{:.0} in the 7 days to {}",
+        "Load {:.0}{at_least} in the 7 days to {}",
         wk.week_load, wk.centre
     );
     let empty = match wk.previous_weeks_without_sessions {

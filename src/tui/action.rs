@@ -87,11 +87,17 @@ pub enum Action {
     ExportDay,
     /// Switch to the athlete's history view and back.
     History,
+    /// Cycle the verdict pane's lower part: findings, the same workout over time, the week
+    /// around the session.
+    ContextView,
+    /// Overlay an earlier run of the same workout on the chart's pace (the latest, then
+    /// the next older one, then off).
+    EarlierOverlay,
 }
 
 impl Action {
     /// Every action, in help-overlay order.
-    pub const ALL: [Action; 41] = [
+    pub const ALL: [Action; 43] = [
         Action::Help,
         Action::Quit,
         Action::Cancel,
@@ -133,6 +139,8 @@ impl Action {
         Action::ExportFeedback,
         Action::ExportDay,
         Action::History,
+        Action::ContextView,
+        Action::EarlierOverlay,
     ];
 
     /// The name used in the config file's `[keys]` table.
@@ -179,6 +187,8 @@ impl Action {
             Action::ExportFeedback => "export_feedback",
             Action::ExportDay => "export_day",
             Action::History => "history",
+            Action::ContextView => "context_view",
+            Action::EarlierOverlay => "earlier_overlay",
         }
     }
 
@@ -226,6 +236,8 @@ impl Action {
             Action::ExportFeedback => "feedback to file",
             Action::ExportDay => "day's messages out",
             Action::History => "history view",
+            Action::ContextView => "findings/workout/week",
+            Action::EarlierOverlay => "chart: earlier run",
         }
     }
 

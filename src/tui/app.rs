@@ -294,6 +294,9 @@ pub struct OpenSession {
     /// ratio to the caution band (from the athlete's cached reviews; shown with the
     /// findings, kept out of the review and so out of the feedback draft).
     pub load_spike: Option<crate::analysis::findings::Finding>,
+    /// The session in its context: the verdict pane's lower view, the earlier runs and the
+    /// week once asked for, the chart's overlay (dropped with the session).
+    pub context: super::panes::context_view::ContextState,
 }
 
 impl OpenSession {
@@ -1173,6 +1176,9 @@ impl App {
                 }
             }
             Action::ExportDay => return self.export_day(),
+            Action::ContextView | Action::EarlierOverlay => {
+                super::panes::context_view::on_action(self, action);
+            }
             Action::History => {
                 if self.view == View::Review && self.ask_before_leaving(Leave::History) {
                     return Vec::new();
@@ -1424,6 +1430,7 @@ impl App {
             note: None,
             feedback: None,
             load_spike: None,
+            context: Default::default(),
         });
         self.update_load_spike();
         self.reload_grades();
@@ -1673,6 +1680,7 @@ impl App {
             o.note = None;
         }
         self.load_revealed();
+        super::panes::context_view::on_analysed(self);
     }
 
     // ----- grading -----

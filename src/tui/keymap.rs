@@ -249,6 +249,8 @@ impl Default for KeyMap {
                 b(Action::ExportFeedback, &[Key::ch('s')]),
                 b(Action::ExportDay, &[Key::ch('D')]),
                 b(Action::History, &[Key::ch('t')]),
+                b(Action::ContextView, &[Key::ch('w')]),
+                b(Action::EarlierOverlay, &[Key::ch('c')]),
             ],
         }
     }

@@ -28,6 +28,8 @@ pub struct Theme {
     pub heading: Style,
     /// The pace trace and its scale.
     pub pace: Style,
+    /// An earlier run's pace laid over the chart (a faint dotted line).
+    pub overlay: Style,
     /// The heart-rate trace and its scale.
     pub hr: Style,
     /// The elevation trace.
@@ -72,6 +74,7 @@ impl Theme {
                 .fg(Color::Rgb(196, 170, 92))
                 .add_modifier(Modifier::BOLD),
             pace: Style::new().fg(Color::Rgb(92, 190, 160)),
+            overlay: Style::new().fg(Color::Rgb(112, 128, 122)),
             hr: Style::new().fg(Color::Rgb(222, 140, 84)),
             elevation: Style::new().fg(Color::Rgb(150, 140, 118)),
             work: Style::new().fg(Color::Rgb(160, 176, 224)),
@@ -106,6 +109,7 @@ impl Theme {
             selected: Style::new().add_modifier(Modifier::REVERSED),
             heading: b,
             pace: n,
+            overlay: n,
             hr: n,
             elevation: n,
             work: b,

@@ -476,6 +476,7 @@ pub fn hints(app: &App) -> Vec<(String, &'static str)> {
             h(Action::ZoomOut, "out"),
             h(Action::PanRight, "pan"),
             h(Action::ToggleElevation, "elevation"),
+            h(Action::EarlierOverlay, "earlier run"),
         ],
         Focus::Verdict => {
             if app.open.as_ref().is_some_and(|o| o.revealed()) {
@@ -486,6 +487,7 @@ pub fn hints(app: &App) -> Vec<(String, &'static str)> {
                     h(Action::ExportFeedback, "to file"),
                     h(Action::RevealNotes, "notes"),
                     h(Action::NextUnreviewed, "next"),
+                    h(Action::ContextView, "workout/week"),
                 ]
             } else {
                 vec![
@@ -494,6 +496,7 @@ pub fn hints(app: &App) -> Vec<(String, &'static str)> {
                     h(Action::RevealNotes, "reveal notes"),
                     h(Action::Down, "interval"),
                     h(Action::NextUnreviewed, "next"),
+                    h(Action::ContextView, "workout/week"),
                 ]
             }
         }

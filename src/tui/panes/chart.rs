@@ -7,7 +7,7 @@ use ratatui::layout::Rect;
 use ratatui::style::{Color, Style};
 use ratatui::symbols::Marker;
 use ratatui::text::{Line, Span};
-use ratatui::widgets::canvas::{Canvas, Context, Line as CLine};
+use ratatui::widgets::canvas::{Canvas, Context, Line as CLine, Points};
 use ratatui::widgets::{Paragraph, Widget};
 
 use crate::analysis::review::Review;
@@ -16,6 +16,7 @@ use crate::ingest::clean::sample_mask;
 use crate::model::units::{format_clock, format_pace};
 use crate::model::{ChannelKind, Session, Units};
 use crate::tui::app::{App, ChartView, Focus};
+use crate::tui::panes::context_view::{dotted, overlay_points};
 use crate::tui::ui::pane_block;
 
 /// Width of the scale labels left of the plot.
@@ -247,6 +248,9 @@ struct Band {
     labels: [String; 2],
     fits: Vec<(f64, f64, Fit)>,
     marker: Marker,
+    /// Dots of an earlier run's trace laid over this one (the pace band only).
+    overlay: Vec<(f64, f64)>,
+    overlay_style: Style,
 }
 
 fn band_bounds(cols: &[Option<ColumnRange>]) -> Option<(f64, f64)> {
@@ -324,6 +328,19 @@ fn render_band(
         .x_bounds([view.from, view.to])
         .y_bounds([lo, hi])
         .paint(|ctx| {
+            if !band.overlay.is_empty() {
+                // Under the session's own trace: where both fall in a cell, this run wins.
+                let coords: Vec<(f64, f64)> = band
+                    .overlay
+                    .iter()
+                    .map(|&(x, v)| (x, v.clamp(lo, hi)))
+                    .collect();
+                ctx.draw(&Points {
+                    coords: &coords,
+                    color: colour(band.overlay_style),
+                });
+                ctx.layer();
+            }
             draw_trace(ctx, band, view);
             ctx.layer();
             for (a, b, f) in &band.fits {
@@ -471,7 +488,12 @@ pub fn render(app: &App, area: Rect, buf: &mut Buffer) {
         .filter(|s| !s.analysed_as_running())
         .map(|s| format!(" · {}", s.title()))
         .unwrap_or_default();
-    let title = format!(" Chart{sport}{zoom}");
+    let earlier = o
+        .context
+        .overlaid()
+        .map(|r| format!(" · dotted: earlier run of {}", r.day))
+        .unwrap_or_default();
+    let title = format!(" Chart{sport}{earlier}{zoom}");
     let (Some(a), Some(view)) = (o.analysed.as_ref(), o.chart) else {
         let block = pane_block(app, title, app.focus == Focus::Chart);
         let inner = block.inner(area);
@@ -524,6 +546,8 @@ pub fn render(app: &App, area: Rect, buf: &mut Buffer) {
                     .filter_map(|(a, b, st)| st.speed.map(|f| (*a, *b, f)))
                     .collect(),
                 marker: Marker::Braille,
+                overlay: overlay_dots(o, &view, plot_w),
+                overlay_style: t.overlay,
             });
         }
     }
@@ -542,6 +566,8 @@ pub fn render(app: &App, area: Rect, buf: &mut Buffer) {
                     .filter_map(|(a, b, st)| st.hr.map(|f| (*a, *b, f)))
                     .collect(),
                 marker: hr_marker(t.plain),
+                overlay: Vec::new(),
+                overlay_style: t.overlay,
             });
         }
     }
@@ -563,6 +589,8 @@ pub fn render(app: &App, area: Rect, buf: &mut Buffer) {
                     labels: [format!("{hi:.0} m"), format!("{lo:.0} m")],
                     fits: Vec::new(),
                     marker: Marker::Braille,
+                    overlay: Vec::new(),
+                    overlay_style: t.overlay,
                 });
             }
         }
@@ -730,6 +758,25 @@ pub fn render(app: &App, area: Rect, buf: &mut Buffer) {
         .render(Rect::new(inner.x, y, inner.width, 1), buf);
         y += 1;
     }
+}
+
+/// The dots of the earlier run the chart overlays (none when off): its reps laid on this
+/// session's reps ([`overlay_points`]), one dot per plot column.
+fn overlay_dots(
+    o: &crate::tui::app::OpenSession,
+    view: &ChartView,
+    plot_w: u16,
+) -> Vec<(f64, f64)> {
+    let (Some(run), Some(review)) = (o.context.overlaid(), o.review.as_ref()) else {
+        return Vec::new();
+    };
+    let mut reps: Vec<(f64, f64)> = review.work().map(|m| (m.start_s, m.end_s)).collect();
+    reps.sort_by(|a, b| a.0.total_cmp(&b.0));
+    let step = view.span() / f64::from(plot_w.max(1));
+    overlay_points(&reps, run, view.from, view.to)
+        .iter()
+        .flat_map(|piece| dotted(piece, step))
+        .collect()
 }
 
 /// What one column of the strip shows.

@@ -1,6 +1,7 @@
 //! The panes: pure render functions from `&App` into a buffer region.
 
 pub mod chart;
+pub mod context_view;
 pub mod history;
 pub mod history_window;
 pub mod roster;

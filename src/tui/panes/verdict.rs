@@ -11,6 +11,7 @@ use ratatui::style::Style;
 use ratatui::text::{Line, Span};
 use ratatui::widgets::{Paragraph, Widget};
 
+use super::context_view::{self, Lower};
 use super::verdict_state::Extent;
 use super::{fit, pad};
 use crate::analysis::findings::Severity;
@@ -514,6 +515,8 @@ pub struct Document {
     pub focus: Option<usize>,
     /// The row of the athlete's notes (after the reveal).
     pub notes: Option<usize>,
+    /// The row of the lower part's heading (findings, same workout or week).
+    pub lower: Option<usize>,
 }
 
 impl Document {
@@ -547,6 +550,7 @@ pub fn document(app: &App, w: usize) -> Document {
         lines: Vec::new(),
         focus: None,
         notes: None,
+        lower: None,
     };
     let t = &app.theme;
     let w = w.max(1);
@@ -706,7 +710,17 @@ pub fn document(app: &App, w: usize) -> Document {
         d.push(l, w);
     }
     if !editing {
-        findings_lines(&mut d, app, review, o.load_spike.as_ref(), w);
+        // The lower part: the findings, or the session in its context.
+        d.lower = Some(d.lines.len());
+        match context_view::view_lines(t, &o.context, units, w) {
+            None => findings_lines(&mut d, app, review, o.load_spike.as_ref(), w),
+            Some(lines) => {
+                d.push(context_view::heading(t, &app.keymap, o.context.lower), w);
+                for l in lines {
+                    d.push_hanging(l, w, 2);
+                }
+            }
+        }
     }
     if o.revealed() {
         revealed_lines(&mut d, app, o, w);
@@ -723,7 +737,11 @@ pub fn render(app: &App, area: Rect, buf: &mut Buffer) {
     let doc = document(app, w);
     let e = doc.extent(h);
     let top = o.verdict.top(e);
-    let mut block = pane_block(app, " Verdict ", app.focus == Focus::Verdict);
+    let title = match o.context.lower {
+        Lower::Findings => " Verdict ".to_string(),
+        other => format!(" Verdict · {} ", other.title().to_lowercase()),
+    };
+    let mut block = pane_block(app, title, app.focus == Focus::Verdict);
     if e.total > h && h > 0 {
         let last = (top + h).min(e.total);
         block = block.title_bottom(
@@ -746,7 +764,7 @@ fn findings_lines(
     w: usize,
 ) {
     let t = &app.theme;
-    d.push(Line::styled("Findings", t.heading), w);
+    d.push(context_view::heading(t, &app.keymap, Lower::Findings), w);
     // The load-spike caution needs the athlete's other sessions, so it is not in the
     // per-file review; it leads, as cautions do.
     for f in load_spike.into_iter().chain(&review.findings) {

@@ -82,6 +82,9 @@ fn num(v: Option<f64>, decimals: usize) -> String {
     }
 }
 
+/// A summary row of a table: its label and the cell of each run.
+type SummaryRow<'a> = (&'a str, &'a dyn Fn(&Occurrence) -> String);
+
 /// Column width of one run.
 const COL: usize = 11;
 /// Width of the row labels.
@@ -101,7 +104,7 @@ fn rep_table(
     heading: &str,
     runs: &[Occurrence],
     cell: impl Fn(&crate::analysis::earlier::RepRow) -> String,
-    summary: &[(&str, &dyn Fn(&Occurrence) -> String)],
+    summary: &[SummaryRow<'_>],
 ) {
     use std::fmt::Write;
     let _ = writeln!(out, "{heading}");
@@ -116,11 +119,7 @@ fn rep_table(
         let _ = writeln!(out, "{}", row(&format!("  rep {}", k + 1), cells));
     }
     for (label, f) in summary {
-        let _ = writeln!(
-            out,
-            "{}",
-            row(&format!("  {label}"), runs.iter().map(|r| f(r)))
-        );
+        let _ = writeln!(out, "{}", row(&format!("  {label}"), runs.iter().map(f)));
     }
 }
 
@@ -194,14 +193,14 @@ pub fn render(c: &Comparison, name: &str) -> String {
             &[("mean", &|o: &Occurrence| num(o.mean_trough_bpm, 0))],
         );
     } else {
-        let lines: [(&str, &dyn Fn(&Occurrence) -> String); 5] = [
-            (&"pace", &|o| pace(o.mean_pace_s_per_km, units)),
-            (&"heart rate", &|o| num(o.mean_hr, 0)),
-            (&"decoupling %", &|o| num(o.decoupling_pct, 1)),
-            (&"distance", &|o| {
+        let lines: [SummaryRow<'_>; 5] = [
+            ("pace", &|o| pace(o.mean_pace_s_per_km, units)),
+            ("heart rate", &|o| num(o.mean_hr, 0)),
+            ("decoupling %", &|o| num(o.decoupling_pct, 1)),
+            ("distance", &|o| {
                 num(o.distance_m.map(|m| m / units.metres()), 2)
             }),
-            (&"time", &|o| format_clock(o.duration_s)),
+            ("time", &|o| format_clock(o.duration_s)),
         ];
         let _ = writeln!(out, "Whole run (pace /{u} on flat ground)");
         for (label, f) in lines {

@@ -1573,6 +1573,15 @@ impl App {
         let (Some(review), Some(athlete)) = (o.review.as_ref(), self.athlete(o.athlete)) else {
             return String::new();
         };
+        // The comparison with the earlier runs: the one the view holds, else asked now.
+        let asked;
+        let earlier = match &o.context.comparison {
+            Some(Ok(c)) => Some(c),
+            _ => {
+                asked = crate::context::comparison(&self.journal, athlete, &o.session_id).ok();
+                asked.as_ref()
+            }
+        };
         let input = crate::export::feedback::DraftInput {
             review,
             profile: &athlete.profile,
@@ -1592,7 +1601,7 @@ impl App {
                         .collect()
                 })
                 .unwrap_or_default(),
-            earlier: None,
+            earlier,
         };
         crate::export::feedback::draft(&input, &self.feedback_style)
     }
@@ -2313,14 +2322,28 @@ impl App {
                     (grades, self.note_of(&e.session_id))
                 };
                 let title = self.session_title(&e.session_id);
-                sessions.push((e.session_id.clone(), title, review, grades, note, saved));
+                let earlier = match (&saved, self.roster.athlete(athlete)) {
+                    (None, Some(a)) => {
+                        crate::context::comparison(&self.journal, a, &e.session_id).ok()
+                    }
+                    _ => None,
+                };
+                sessions.push((
+                    e.session_id.clone(),
+                    title,
+                    review,
+                    grades,
+                    note,
+                    saved,
+                    earlier,
+                ));
             }
             if sessions.is_empty() {
                 continue;
             }
             let parts: Vec<crate::export::feedback::DayPart<'_>> = sessions
                 .iter()
-                .map(|(_, _, review, grades, note, saved)| match saved {
+                .map(|(_, _, review, grades, note, saved, earlier)| match saved {
                     Some(text) => crate::export::feedback::DayPart::Saved(text),
                     None => crate::export::feedback::DayPart::Draft(
                         crate::export::feedback::DraftInput {
@@ -2331,7 +2354,7 @@ impl App {
                             // Ruler marks need the samples: only the open session's own
                             // draft has them.
                             marks: Vec::new(),
-                            earlier: None,
+                            earlier: earlier.as_ref(),
                         },
                     ),
                 })

@@ -109,3 +109,56 @@ fn nothing_is_said_when_the_gain_is_small_bought_with_heart_rate_or_a_loss() {
         None
     );
 }
+
+/// A demo session's review, analysed the way the workstation does.
+fn demo_review(
+    id: &str,
+) -> (
+    splitdesk::analysis::review::Review,
+    splitdesk::model::AthleteProfile,
+) {
+    let root = std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("demo-athletes");
+    let roster = splitdesk::roster::Roster::open(&root).unwrap();
+    let (athlete, act) = roster.find_session(id).unwrap();
+    let a = splitdesk::workspace::analyse_activity(athlete, act).unwrap();
+    (a.review, athlete.profile.clone())
+}
+
+fn draft_with(id: &str, c: &Comparison) -> String {
+    let (review, profile) = demo_review(id);
+    let n = review.work().count() as u32;
+    let input = splitdesk::export::feedback::DraftInput {
+        review: &review,
+        profile: &profile,
+        grades: splitdesk::export::feedback::Grades {
+            scores: (1..=n).map(|k| (k, 4)).collect(),
+            verdict: Some(splitdesk::journal::PurposeVerdict::Met),
+        },
+        note: None,
+        marks: Vec::new(),
+        earlier: Some(c),
+    };
+    let style = splitdesk::export::feedback::FeedbackStyle {
+        length: splitdesk::export::feedback::Length::Full,
+        ..Default::default()
+    };
+    splitdesk::export::feedback::draft(&input, &style)
+}
+
+#[test]
+fn a_set_run_faster_than_its_target_is_not_cheered_for_beating_last_time() {
+    let c = comparison(-8.0, 0.0, MatchedBy::WorkoutShape);
+    // Ansel's second cruise miles ran every mile quicker than the threshold band.
+    let (review, _) = demo_review("ansel-marchetti/2026-11-12-cruise-miles");
+    assert!(splitdesk::export::feedback::body::ran_above_target(&review));
+    let d = draft_with("ansel-marchetti/2026-11-12-cruise-miles", &c);
+    assert!(!d.contains("quicker than when you ran"), "{d}");
+    // A set held inside its targets gets the sentence.
+    let on_target = "mira-castellan/2026-10-27-intervals";
+    let (review, _) = demo_review(on_target);
+    assert!(!splitdesk::export::feedback::body::ran_above_target(
+        &review
+    ));
+    let d = draft_with(on_target, &c);
+    assert!(d.contains("quicker than when you ran this session"), "{d}");
+}

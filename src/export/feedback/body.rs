@@ -734,6 +734,20 @@ pub const CLEAR_GAIN_S: f64 = 2.0;
 // Common coaching practice (no published source): a beat or two is within sensor noise.
 pub const SAME_EFFORT_BPM: f64 = 2.0;
 
+/// Whether a work interval ran faster than its pace target (a pace target judged on flat
+/// ground; the display slack allowed): then a gain on the last run is no praise, the set
+/// was meant to be held back.
+pub fn ran_above_target(review: &Review) -> bool {
+    review.work().any(|w| {
+        !w.target_on_hill()
+            && matches!(
+                (w.target_band_mps, w.avg_pace_s_per_km),
+                (Some((_, fast)), Some(p)) if fast > 0.0
+                    && p < 1000.0 / fast - crate::analysis::review::PACE_DISPLAY_SLACK_S
+            )
+    })
+}
+
 /// "Faster than last time at the same effort", when the comparison with the latest earlier
 /// run of the same workout says so clearly: the reps quicker by at least
 /// [`CLEAR_GAIN_S`] at a heart rate no more than [`SAME_EFFORT_BPM`] higher. Nothing is

@@ -226,7 +226,9 @@ pub fn compose(input: &DraftInput<'_>, style: &FeedbackStyle) -> Draft {
     for f in body::facts(&c) {
         push(Part::Facts, f);
     }
-    if let Some(t) = input.earlier.and_then(|e| body::against_earlier(e, units)) {
+    // A set run faster than its target is not cheered for being faster than last time.
+    let earlier = input.earlier.filter(|_| !body::ran_above_target(review));
+    if let Some(t) = earlier.and_then(|e| body::against_earlier(e, units)) {
         push(Part::Facts, t);
     }
     for m in input.marks.iter().take(MAX_MARKS) {

@@ -123,6 +123,11 @@ fn bench_context(c: &mut Criterion) {
         .expect("index")
         .len();
     assert!(n >= 1000, "{n} sessions");
+    // The lookups find what they are for: five earlier runs each.
+    for id in [&f.structured, &f.easy] {
+        let c = splitdesk::context::comparison(&f.journal, athlete, id).expect("comparison");
+        assert_eq!(c.earlier().count(), 5, "{id}");
+    }
     let mut g = c.benchmark_group("context_1000_sessions");
     g.bench_function("earlier_runs_structured", |b| {
         b.iter(|| {

@@ -4,6 +4,8 @@
 
 mod cli_support;
 
+use cli_support::copy_dir;
+
 use std::path::Path;
 
 use cli_support::TempRoster;
@@ -12,19 +14,6 @@ use serde_json::Value;
 const ATHLETE: &str = "ansel-marchetti";
 const NOW: &str = "ansel-marchetti/2026-11-12-cruise-miles";
 const THEN: &str = "ansel-marchetti/2026-10-22-cruise-miles";
-
-fn copy_dir(from: &Path, to: &Path) {
-    std::fs::create_dir_all(to).unwrap();
-    for e in std::fs::read_dir(from).unwrap() {
-        let e = e.unwrap();
-        let p = e.path();
-        if p.is_dir() {
-            copy_dir(&p, &to.join(e.file_name()));
-        } else {
-            std::fs::copy(&p, to.join(e.file_name())).unwrap();
-        }
-    }
-}
 
 fn roster() -> TempRoster {
     TempRoster::new(|root| {

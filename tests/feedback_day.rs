@@ -8,7 +8,9 @@
 
 mod cli_support;
 
-use std::path::{Path, PathBuf};
+use cli_support::copy_dir;
+
+use std::path::PathBuf;
 
 const DAY: &str = "2026-11-28";
 const TT: &str = "mira-castellan/2026-11-28-time-trial";
@@ -22,19 +24,6 @@ struct Env {
     roster: PathBuf,
     journal: PathBuf,
     config: PathBuf,
-}
-
-fn copy_dir(from: &Path, to: &Path) {
-    std::fs::create_dir_all(to).unwrap();
-    for e in std::fs::read_dir(from).unwrap() {
-        let e = e.unwrap();
-        let p = e.path();
-        if p.is_dir() {
-            copy_dir(&p, &to.join(e.file_name()));
-        } else {
-            std::fs::copy(&p, to.join(e.file_name())).unwrap();
-        }
-    }
 }
 
 /// Two demo athletes; `config` is the text of config.toml.

@@ -499,58 +499,6 @@ fn overlay_lays_rep_k_on_rep_k_within_the_window() {
 
 // ----- the workstation -----
 
-/// The verdict pane's inner rows on screen (between its borders).
-fn pane_rows(text: &str) -> Vec<String> {
-    let lines: Vec<&str> = text.lines().collect();
-    let Some(top) = lines.iter().position(|l| l.contains("╭ Verdict")) else {
-        return Vec::new();
-    };
-    let at = lines[top].find("╭ Verdict").unwrap_or(0);
-    let col = lines[top][..at].chars().count();
-    lines[top + 1..]
-        .iter()
-        .take_while(|l| l.chars().nth(col).is_none_or(|c| c != '╰'))
-        .map(|l| {
-            let chars: Vec<char> = l.chars().skip(col + 1).collect();
-            let end = chars.iter().rposition(|c| *c == '│').unwrap_or(chars.len());
-            chars[..end]
-                .iter()
-                .collect::<String>()
-                .trim_end()
-                .to_string()
-        })
-        .collect()
-}
-
-/// Every row of the verdict document, read by scrolling it page by page from the top.
-fn whole_document(app: &mut App) -> Vec<String> {
-    let (w, h) = app.size;
-    ch(app, 'g');
-    let mut rows: Vec<Option<String>> = Vec::new();
-    let mut pages = 0;
-    loop {
-        let top = app.open.as_ref().unwrap().verdict.scroll;
-        for (i, r) in pane_rows(&screen(app, w, h)).into_iter().enumerate() {
-            if rows.len() <= top + i {
-                rows.resize(top + i + 1, None);
-            }
-            rows[top + i] = Some(r);
-        }
-        key(app, KeyCode::PageDown);
-        pages += 1;
-        let after = app.open.as_ref().unwrap().verdict.scroll;
-        if after == top || pages > 200 {
-            break;
-        }
-    }
-    assert!(rows.iter().all(Option::is_some), "every row was shown");
-    rows.into_iter().flatten().collect()
-}
-
-fn words(text: &str) -> String {
-    text.split_whitespace().collect::<Vec<_>>().join(" ")
-}
-
 /// The test roster with the intervals session open, the verdict pane focused, at 80x24.
 fn opened(dir: &std::path::Path) -> App {
     let mut app = app_with(dir);

@@ -13,7 +13,7 @@ use splitdesk::roster::{printable, Roster};
 use splitdesk::tui::app::{App, Focus, Options};
 use splitdesk::tui::keymap::KeyMap;
 use splitdesk::tui::theme::Theme;
-use tui_support::{ch, key, run_effects, screen};
+use tui_support::{ch, key, pane_rows, run_effects, screen, whole_document, words};
 
 /// The demo set with the most intervals (8 hill repeats with their recoveries).
 const LONGEST: &str = "tobias-wrenfield/2026-11-10-hill-repeats";
@@ -43,31 +43,6 @@ fn open(app: &mut App, id: &str) {
     assert_eq!(app.focus, Focus::Verdict, "{id}");
 }
 
-/// The verdict pane's inner rows on screen (between its borders), border glyphs removed.
-fn pane_rows(text: &str) -> Vec<String> {
-    let lines: Vec<&str> = text.lines().collect();
-    let Some(top) = lines.iter().position(|l| l.contains("Verdict")) else {
-        return Vec::new();
-    };
-    // The pane's left edge: the column of the corner before " Verdict ".
-    let at = lines[top].find("╭ Verdict").unwrap_or(0);
-    let col = lines[top][..at].chars().count();
-    lines[top + 1..]
-        .iter()
-        .take_while(|l| l.chars().nth(col).is_none_or(|c| c != '╰'))
-        .map(|l| {
-            let chars: Vec<char> = l.chars().skip(col + 1).collect();
-            // Drop the right border.
-            let end = chars.iter().rposition(|c| *c == '│').unwrap_or(chars.len());
-            chars[..end]
-                .iter()
-                .collect::<String>()
-                .trim_end()
-                .to_string()
-        })
-        .collect()
-}
-
 /// The pane's bottom border line.
 fn pane_bottom(text: &str) -> String {
     let lines: Vec<&str> = text.lines().collect();
@@ -77,36 +52,6 @@ fn pane_bottom(text: &str) -> String {
         .find(|l| l.contains('╰') && l.contains('╯'))
         .map(|l| l.to_string())
         .unwrap_or_default()
-}
-
-/// Every row of the verdict document, read by scrolling it page by page from the top.
-fn whole_document(app: &mut App) -> Vec<String> {
-    let (w, h) = app.size;
-    ch(app, 'g');
-    let mut rows: Vec<Option<String>> = Vec::new();
-    let mut pages = 0;
-    loop {
-        let top = app.open.as_ref().unwrap().verdict.scroll;
-        for (i, r) in pane_rows(&screen(app, w, h)).into_iter().enumerate() {
-            if rows.len() <= top + i {
-                rows.resize(top + i + 1, None);
-            }
-            rows[top + i] = Some(r);
-        }
-        key(app, KeyCode::PageDown);
-        pages += 1;
-        let after = app.open.as_ref().unwrap().verdict.scroll;
-        if after == top || pages > 200 {
-            break;
-        }
-    }
-    assert!(rows.iter().all(Option::is_some), "every row was shown");
-    rows.into_iter().flatten().collect()
-}
-
-/// Words joined by single spaces.
-fn words(text: &str) -> String {
-    text.split_whitespace().collect::<Vec<_>>().join(" ")
 }
 
 #[test]

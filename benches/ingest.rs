@@ -39,6 +39,11 @@ fn three_hour_run() -> Session {
 
 fn bench(c: &mut Criterion) {
     let bytes = fit_writer::write(&three_hour_run());
+    // The same file for the Python comparison (`benches/fitdecode_ratio.py`).
+    let out = std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("target/bench-fit_3h_1hz.fit");
+    if let Err(e) = std::fs::write(&out, &bytes) {
+        eprintln!("could not write {}: {e}", out.display());
+    }
     let mut group = c.benchmark_group("fit_3h_1hz");
     group.bench_function("fitparser_from_bytes", |b| {
         b.iter(|| fitparser::from_bytes(black_box(&bytes)).map(|r| r.len()))

@@ -30,6 +30,7 @@ mod analyze;
 mod check;
 mod compare_cmd;
 mod demo_cmd;
+pub mod index_cmd;
 mod inspect;
 pub mod out;
 pub mod plan_cmd;
@@ -75,6 +76,13 @@ pub enum Command {
         /// Print JSON instead of text.
         #[arg(long)]
         json: bool,
+    },
+    /// Scan the roster into its journal on every core (a cold start made ahead); files
+    /// unchanged since the last scan are not read.
+    Index {
+        /// Roster folder (default: --roster, the config file, else the demo roster).
+        #[arg(value_name = "ROSTER")]
+        dir: Option<PathBuf>,
     },
     /// The objective review of one session: interval table, recoveries, trends, findings.
     Analyze {
@@ -357,6 +365,12 @@ fn run_command(cli: Cli) -> anyhow::Result<i32> {
             let root = dir
                 .unwrap_or_else(|| crate::config::resolve_roster(cli.roster.as_deref(), &config));
             check::run(&root, json)
+        }
+        Some(Command::Index { dir }) => {
+            let root = dir
+                .unwrap_or_else(|| crate::config::resolve_roster(cli.roster.as_deref(), &config));
+            let journal = cli.journal.clone().or_else(|| config.journal.clone());
+            index_cmd::run(&root, journal.as_deref())
         }
         Some(Command::Analyze {
             file,

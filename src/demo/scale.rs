@@ -191,12 +191,12 @@ pub fn write(
                     Ok(len) => {
                         if let Ok(mut d) = done.lock() {
                             d.0 += 1;
-                            let f = match s.format {
-                                FileFormat::Fit => 0,
-                                FileFormat::Tcx => 1,
-                                FileFormat::Gpx => 2,
-                            };
-                            d.1[f] += 1;
+                            let [fit, tcx, gpx] = &mut d.1;
+                            match s.format {
+                                FileFormat::Fit => *fit += 1,
+                                FileFormat::Tcx => *tcx += 1,
+                                FileFormat::Gpx => *gpx += 1,
+                            }
                             d.2 += len as u64;
                             if s.truncate_at.is_some() {
                                 d.3.push(rel);
@@ -223,9 +223,7 @@ pub fn write(
         .map_err(|_| invalid("a simulation thread panicked".into()))?;
     damaged.sort();
     summary.sessions = sessions;
-    summary.fit = by_format[0];
-    summary.tcx = by_format[1];
-    summary.gpx = by_format[2];
+    [summary.fit, summary.tcx, summary.gpx] = by_format;
     summary.files += sessions;
     summary.bytes += bytes;
     summary.damaged = damaged;

@@ -1,4 +1,5 @@
-//! `splitdesk demo --out DIR [--seed N]`: write the demo roster.
+//! `splitdesk demo --out DIR [--seed N] [--athletes N --weeks W]`: write the demo roster,
+//! or with `--athletes`/`--weeks` a scale roster for benchmarks ([`crate::demo::scale`]).
 //!
 //! The folder must be new, empty, or a previous demo roster (its `roster.toml` starts with
 //! [`roster_writer::MARKER`]); a previous demo roster's athlete folders and `roster.toml` are
@@ -9,8 +10,16 @@ use std::path::Path;
 use crate::demo::roster_writer;
 use crate::demo::scenario::Scenario;
 
-/// Write the roster; returns the exit code.
-pub fn run(out: &Path, seed: u64) -> anyhow::Result<i32> {
+/// The size of a scale roster.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub struct Scale {
+    pub athletes: usize,
+    pub weeks: u32,
+}
+
+/// Write the roster (the demo, or a scale roster when `scale` is given); returns the exit
+/// code.
+pub fn run(out: &Path, seed: u64, scale: Option<Scale>) -> anyhow::Result<i32> {
     match std::fs::metadata(out) {
         Ok(meta) if !meta.is_dir() => {
             eprintln!("error: {}: not a folder", out.display());
@@ -38,9 +47,20 @@ pub fn run(out: &Path, seed: u64) -> anyhow::Result<i32> {
         Err(e) => anyhow::bail!("{}: {e}", out.display()),
     }
     use crate::cli::out::count;
-    let scenario = Scenario::build(seed);
-    let s = roster_writer::write_roster(&scenario, out)
-        .map_err(|e| anyhow::anyhow!("{}: {e}", out.display()))?;
+    let started = std::time::Instant::now();
+    let (scenario, s) = match scale {
+        None => {
+            let scenario = Scenario::build(seed);
+            let s = roster_writer::write_roster(&scenario, out)
+                .map_err(|e| anyhow::anyhow!("{}: {e}", out.display()))?;
+            (scenario, s)
+        }
+        Some(Scale { athletes, weeks }) => {
+            let workers = std::thread::available_parallelism().map_or(2, |n| n.get());
+            crate::demo::scale::write(athletes, weeks, seed, out, workers)
+                .map_err(|e| anyhow::anyhow!("{}: {e}", out.display()))?
+        }
+    };
     println!(
         "{}: {} ({}), {}, {} ({} FIT, {} TCX, {} GPX), {}, {}, \
          {:.1} MB, seed {seed}",
@@ -56,6 +76,13 @@ pub fn run(out: &Path, seed: u64) -> anyhow::Result<i32> {
         count(s.notes, "note", "notes"),
         s.bytes as f64 / 1e6,
     );
+    if scale.is_some() {
+        println!(
+            "written in {:.1} s ({} damaged on purpose)",
+            started.elapsed().as_secs_f64(),
+            count(s.damaged.len(), "file", "files")
+        );
+    }
     Ok(0)
 }
 

@@ -30,6 +30,7 @@ mod analyze;
 mod check;
 mod compare_cmd;
 mod demo_cmd;
+pub mod index_cmd;
 mod inspect;
 pub mod out;
 pub mod plan_cmd;
@@ -75,6 +76,13 @@ pub enum Command {
         /// Print JSON instead of text.
         #[arg(long)]
         json: bool,
+    },
+    /// Scan the roster into its journal on every core (a cold start made ahead); files
+    /// unchanged since the last scan are not read.
+    Index {
+        /// Roster folder (default: --roster, the config file, else the demo roster).
+        #[arg(value_name = "ROSTER")]
+        dir: Option<PathBuf>,
     },
     /// The objective review of one session: interval table, recoveries, trends, findings.
     Analyze {
@@ -218,6 +226,14 @@ pub enum Command {
         /// Simulation seed; the same seed gives byte-identical files.
         #[arg(long, default_value_t = crate::demo::scenario::DEFAULT_SEED)]
         seed: u64,
+        /// Write a scale roster for benchmarks instead: this many athletes (copies of the
+        /// demo athletes under new ids; 6 when only --weeks is given).
+        #[arg(long, value_name = "N", value_parser = clap::value_parser!(u64).range(1..=crate::demo::scale::MAX_ATHLETES as u64))]
+        athletes: Option<u64>,
+        /// Scale roster: this many weeks, ending on the demo's last day (6 when only
+        /// --athletes is given).
+        #[arg(long, value_name = "W", value_parser = clap::value_parser!(u32).range(1..=crate::demo::scale::MAX_WEEKS as i64))]
+        weeks: Option<u32>,
     },
     /// Print the man page (roff) generated from this command line.
     Man,
@@ -350,6 +366,12 @@ fn run_command(cli: Cli) -> anyhow::Result<i32> {
                 .unwrap_or_else(|| crate::config::resolve_roster(cli.roster.as_deref(), &config));
             check::run(&root, json)
         }
+        Some(Command::Index { dir }) => {
+            let root = dir
+                .unwrap_or_else(|| crate::config::resolve_roster(cli.roster.as_deref(), &config));
+            let journal = cli.journal.clone().or_else(|| config.journal.clone());
+            index_cmd::run(&root, journal.as_deref())
+        }
         Some(Command::Analyze {
             file,
             athlete,
@@ -374,7 +396,18 @@ fn run_command(cli: Cli) -> anyhow::Result<i32> {
             clap_complete::generate(shell, &mut cmd, "splitdesk", &mut std::io::stdout());
             Ok(0)
         }
-        Some(Command::Demo { out, seed }) => demo_cmd::run(&out, seed),
+        Some(Command::Demo {
+            out,
+            seed,
+            athletes,
+            weeks,
+        }) => {
+            let scale = (athletes.is_some() || weeks.is_some()).then(|| demo_cmd::Scale {
+                athletes: athletes.map_or(6, |n| n as usize),
+                weeks: weeks.unwrap_or(6),
+            });
+            demo_cmd::run(&out, seed, scale)
+        }
         Some(Command::Man) => {
             let cmd = <Cli as clap::CommandFactory>::command();
             clap_mangen::Man::new(cmd).render(&mut std::io::stdout())?;

@@ -6,6 +6,7 @@ pub mod fit_writer;
 pub mod gpx_writer;
 pub mod rng;
 pub mod roster_writer;
+pub mod scale;
 pub mod scenario;
 pub mod simulate;
 pub mod tcx_writer;

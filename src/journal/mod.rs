@@ -1794,6 +1794,40 @@ impl Journal {
         }
         result
     }
+
+    /// Record many sessions in one transaction (one commit, one sync to disk), for a cold
+    /// scan: each analysed session as [`Journal::upsert_session_with_stat`] would, and each
+    /// session whose file cannot be read as [`Journal::record_unreadable`] would, but keeping
+    /// the file's stat so an unchanged unreadable file is known without reading it again.
+    /// All or nothing: on an error no row of the batch is written.
+    pub fn upsert_sessions_batch(
+        &mut self,
+        analysed: &[(SessionRecord, Option<FileStat>)],
+        unreadable: &[(SessionRecord, String, Option<FileStat>)],
+        now: DateTime<Utc>,
+    ) -> Result<()> {
+        self.write_cache(|tx, path| {
+            for (record, stat) in analysed {
+                upsert_row(tx, path, record, stat.as_ref(), now)?;
+            }
+            for (record, reason, stat) in unreadable {
+                let record = SessionRecord {
+                    summary: None,
+                    ..record.clone()
+                };
+                upsert_row(tx, path, &record, stat.as_ref(), now)?;
+                tx.execute(
+                    "UPDATE session SET unreadable = ?2, summary_json = NULL, \
+                         summary_version = NULL, summary_hash = NULL, work_intervals = NULL
+                     WHERE session_id = ?1",
+                    params![record.session_id, reason],
+                )
+                .sq(path)?;
+                delete_card(tx, path, &record.session_id)?;
+            }
+            Ok(())
+        })
+    }
 }
 
 // ----- row helpers (shared by read and write paths) -----

@@ -3,6 +3,7 @@
 //! Reading and analysing a session is a pure step (`analyse_activity`, safe on any thread);
 //! recording it, and everything the coach decides, goes through the journal.
 
+use std::collections::HashSet;
 use std::path::{Path, PathBuf};
 
 use chrono::{DateTime, Utc};
@@ -53,8 +54,9 @@ pub struct Analysed {
     pub file_stat: Option<FileStat>,
 }
 
-/// The key of the summary JSON that holds the inputs digest (the review itself ignores it).
-const INPUTS_KEY: &str = "analysis_inputs";
+/// The key of the summary JSON that holds the inputs digest (the review itself ignores it;
+/// the journal reads it into a column when the summary is written).
+const INPUTS_KEY: &str = journal::schema::SUMMARY_INPUTS_KEY;
 
 /// Whether a cached summary is a readable review made under the athlete's current profile
 /// and plans. A damaged one (bad JSON, not a review) is not current: it is made again.
@@ -327,12 +329,17 @@ pub struct SyncReport {
     pub cached: usize,
     /// Files that could not be read or analysed, one line each.
     pub problems: Vec<String>,
+    /// The session ids of those files.
+    pub failed: Vec<String>,
 }
 
 /// A roster opened with its journal.
 pub struct Workspace {
     pub roster: Roster,
     pub journal: Journal,
+    /// The sessions the last [`Workspace::sync`] left current: file unchanged since its
+    /// summary was cached, or analysed by it.
+    current: HashSet<String>,
 }
 
 /// The journal path for a roster: the explicit one, else the per-roster default.
@@ -370,7 +377,11 @@ impl Workspace {
             }
             Err(e) => return Err(e.into()),
         };
-        Ok(Workspace { roster, journal })
+        Ok(Workspace {
+            roster,
+            journal,
+            current: HashSet::new(),
+        })
     }
 
     /// Find an athlete and activity by session id.
@@ -446,29 +457,65 @@ impl Workspace {
         record_analysed(&mut self.journal, a, now)
     }
 
+    /// Whether the last [`Workspace::sync`] found the session's file unchanged since its
+    /// cached summary was made, or analysed it: its summary in the journal is that of the
+    /// file as it is now (unless damaged inside).
+    pub fn synced_current(&self, session_id: &str) -> bool {
+        self.current.contains(session_id)
+    }
+
     /// Bring every session of the roster up to date in the journal.
+    ///
+    /// Warm work is one query and one `stat` per file: a file whose path, size and
+    /// modification time are those the journal recorded with its hash, and whose cached
+    /// summary is current by the journal's columns (analysis version, content hash, the
+    /// athlete's inputs digest), is neither read, hashed nor its summary parsed. Any other
+    /// session goes through [`Workspace::refresh`]. A cached summary damaged inside (which
+    /// the columns cannot show) is made again by the first command that reads it.
     pub fn sync(
         &mut self,
         now: DateTime<Utc>,
         mut progress: impl FnMut(usize, usize),
     ) -> Result<SyncReport, WorkspaceError> {
-        let ids: Vec<String> = self
-            .roster
-            .activities()
-            .map(|(a, x)| a.session_id(x))
-            .collect();
-        let mut report = SyncReport {
-            sessions: ids.len(),
-            ..SyncReport::default()
-        };
-        for (k, id) in ids.iter().enumerate() {
-            match self.refresh_inner(id, now) {
-                Ok((_, true)) => report.cached += 1,
-                Ok((_, false)) => report.analysed += 1,
-                Err(WorkspaceError::Journal(e)) => return Err(WorkspaceError::Journal(e)),
-                Err(e) => report.problems.push(e.to_string()),
+        let warm = self.journal.warm_rows(ANALYSIS_VERSION)?;
+        self.current.clear();
+        let mut stale = Vec::new();
+        let mut report = SyncReport::default();
+        for (athlete, act) in self.roster.activities() {
+            report.sessions += 1;
+            let id = athlete.session_id(act);
+            let current = warm.get(&id).is_some_and(|w| {
+                w.summary_current
+                    && w.summary_inputs.as_deref() == Some(athlete.inputs_digest.as_str())
+                    && w.stat.is_some()
+                    && FileStat::of(&act.path) == w.stat
+            });
+            if current {
+                report.cached += 1;
+                self.current.insert(id);
+            } else {
+                stale.push(id);
             }
-            progress(k + 1, ids.len());
+        }
+        let (total, known) = (report.sessions, report.cached);
+        progress(known, total);
+        for (k, id) in stale.into_iter().enumerate() {
+            match self.refresh_inner(&id, now) {
+                Ok((_, cached)) => {
+                    if cached {
+                        report.cached += 1;
+                    } else {
+                        report.analysed += 1;
+                    }
+                    self.current.insert(id);
+                }
+                Err(WorkspaceError::Journal(e)) => return Err(WorkspaceError::Journal(e)),
+                Err(e) => {
+                    report.problems.push(e.to_string());
+                    report.failed.push(id);
+                }
+            }
+            progress(known + k + 1, total);
         }
         Ok(report)
     }

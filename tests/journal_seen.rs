@@ -226,7 +226,7 @@ fn a_version_2_journal_is_upgraded_keeping_its_grades() {
         Journal::open_read_only(&path),
         Err(JournalError::NeedsUpgrade {
             found: 2,
-            supported: 4,
+            supported: 5,
             ..
         })
     ));

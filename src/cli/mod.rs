@@ -524,7 +524,7 @@ fn run_with_journal(
             athlete,
             weeks,
             json,
-        } => trends_cmd::run(&ws, &athlete, weeks, json),
+        } => trends_cmd::run(&mut ws, &athlete, weeks, json),
         Command::Compare { session, json } => compare_cmd::run(&ws, &session, json),
         Command::Week { what, date, json } => {
             let date = date.map(|d| rc::parse_date("--date", &d)).transpose()?;

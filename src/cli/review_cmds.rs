@@ -10,9 +10,11 @@ use anyhow::{bail, Context};
 use chrono::{NaiveDate, Utc};
 use serde::Serialize;
 
-use crate::analysis::review::Review;
+use crate::analysis::review::{Review, ANALYSIS_VERSION};
 use crate::export::feedback::{DayPart, DraftInput, FeedbackStyle, Grades};
-use crate::journal::{self, FeedbackEventKind, JournalError, PurposeVerdict, QueueEntry};
+use crate::journal::{
+    self, FeedbackEventKind, JournalError, PurposeVerdict, QueueEntry, SummaryBrief,
+};
 use crate::workspace::Workspace;
 
 /// Exit code when the blind protocol refuses (notes asked for before grading is complete).
@@ -70,6 +72,7 @@ pub fn open_synced(
     let bar = super::progress_bar(total, "analysing");
     let report = ws.sync(Utc::now(), |done, _| bar.set_position(done as u64))?;
     bar.finish_and_clear();
+    let failed = report.failed;
     let problems = report
         .problems
         .into_iter()
@@ -85,19 +88,15 @@ pub fn open_synced(
             }
         })
         .collect();
-    record_unreadable_sessions(&mut ws)?;
+    record_unreadable_sessions(&mut ws, failed)?;
     Ok((ws, problems))
 }
 
-/// Keep in the journal every roster session whose file cannot be read, with the reason, so
-/// that it shows in the queue and the coach can close it with the verdict alone.
-fn record_unreadable_sessions(ws: &mut Workspace) -> anyhow::Result<()> {
-    let ids: Vec<String> = ws
-        .roster
-        .activities()
-        .map(|(a, x)| a.session_id(x))
-        .collect();
-    for id in ids {
+/// Keep in the journal every roster session whose file cannot be read (`failed`: the sync's
+/// failures; the others are in the journal already), with the reason, so that it shows in
+/// the queue and the coach can close it with the verdict alone.
+fn record_unreadable_sessions(ws: &mut Workspace, failed: Vec<String>) -> anyhow::Result<()> {
+    for id in failed {
         if ws.journal.session_hash(&id)?.is_none() {
             // Any other failure was said by the sync already; only the journal's own stops.
             match refresh_or_unreadable(ws, &id) {
@@ -148,22 +147,32 @@ pub fn open_noting_read_only(roster: &Path, journal: Option<&Path>) -> anyhow::R
 /// The plan title, or sport and distance, of a reviewed session. A session that is not a
 /// run names its sport beside the plan title ("Easy spin (cycling)").
 pub fn title(r: &Review) -> String {
-    let sport: String = r
-        .session
-        .sport
-        .chars()
-        .filter(|c| !c.is_control())
-        .collect();
-    match &r.plan {
-        Some(p) if !r.running => format!("{} ({sport})", p.title),
-        Some(p) => p.title.clone(),
-        None => {
-            let u = crate::model::Units::parse(&r.units).unwrap_or_default();
-            match r.session.distance_m {
-                Some(d) => format!("{sport} {:.1} {}", d / u.metres(), u.label()),
-                None => sport,
-            }
-        }
+    title_of(
+        r.plan.as_ref().map(|p| p.title.as_str()),
+        r.running,
+        &r.session.sport,
+        r.session.distance_m,
+        crate::model::Units::parse(&r.units).unwrap_or_default(),
+    )
+}
+
+/// [`title`] from its parts: the plan title, whether the session is a run, the sport, the
+/// distance (m) and the athlete's units.
+fn title_of(
+    plan_title: Option<&str>,
+    running: bool,
+    sport: &str,
+    distance_m: Option<f64>,
+    u: crate::model::Units,
+) -> String {
+    let sport: String = sport.chars().filter(|c| !c.is_control()).collect();
+    match plan_title {
+        Some(p) if !running => format!("{p} ({sport})"),
+        Some(p) => p.to_string(),
+        None => match distance_m {
+            Some(d) => format!("{sport} {:.1} {}", d / u.metres(), u.label()),
+            None => sport,
+        },
     }
 }
 
@@ -182,6 +191,38 @@ struct QueueOut {
     /// Why the session's file cannot be read (`null` when it can): such a session closes
     /// with the purpose verdict alone.
     file_unreadable: Option<String>,
+}
+
+/// The queue line of a session from the journal's columns alone, when its cached summary is
+/// current (made under the athlete's present inputs) and holds the title's facts.
+fn queue_out_cached(ws: &Workspace, e: &QueueEntry, brief: &SummaryBrief) -> Option<QueueOut> {
+    if e.file_unreadable.is_some() || !ws.synced_current(&e.session_id) {
+        return None;
+    }
+    let athlete = ws.roster.athlete(&e.athlete)?;
+    if brief.inputs_digest.as_deref() != Some(athlete.inputs_digest.as_str()) {
+        return None;
+    }
+    let sport = brief.sport.as_deref()?;
+    let running = brief.running?;
+    let work_intervals = brief.work_intervals? as usize;
+    Some(QueueOut {
+        sport: sport.chars().filter(|c| !c.is_control()).collect(),
+        work_intervals,
+        session: e.session_id.clone(),
+        athlete: e.athlete.clone(),
+        start: e.start.to_rfc3339_opts(chrono::SecondsFormat::Secs, true),
+        title: title_of(
+            brief.plan_title.as_deref(),
+            running,
+            sport,
+            brief.distance_m,
+            athlete.profile.units,
+        ),
+        stage: e.stage.label(),
+        content_changed: e.content_changed,
+        file_unreadable: None,
+    })
 }
 
 fn queue_out(ws: &mut Workspace, e: &QueueEntry) -> QueueOut {
@@ -220,15 +261,34 @@ fn queue_out(ws: &mut Workspace, e: &QueueEntry) -> QueueOut {
 }
 
 /// `splitdesk queue [--athlete A] [--json]`: sessions not yet reviewed, oldest first.
+///
+/// From the journal alone: one list of the sessions and one query of the title facts; a
+/// session whose cached summary is not current by the columns is refreshed as before.
 pub fn queue(ws: &mut Workspace, athlete: Option<&str>, json: bool) -> anyhow::Result<i32> {
-    let entries = ws.journal.unreviewed(athlete)?;
-    let rows: Vec<QueueOut> = entries.iter().map(|e| queue_out(ws, e)).collect();
+    // Newest first; the queue is oldest first.
+    let mut all = ws.journal.sessions(athlete)?;
+    all.reverse();
+    let any = all.len();
+    let seen = all
+        .iter()
+        .filter(|e| e.stage == journal::ReviewStage::Seen)
+        .count();
+    let briefs = ws.journal.summary_briefs(athlete, ANALYSIS_VERSION)?;
+    let rows: Vec<QueueOut> = all
+        .iter()
+        .filter(|e| e.stage.is_unreviewed())
+        .map(|e| {
+            briefs
+                .get(&e.session_id)
+                .and_then(|b| queue_out_cached(ws, e, b))
+                .unwrap_or_else(|| queue_out(ws, e))
+        })
+        .collect();
     if json {
         crate::cli::out::json(&rows)?;
         return Ok(0);
     }
     if rows.is_empty() {
-        let any = ws.journal.sessions(athlete)?.len();
         match (any, athlete) {
             (0, Some(a)) => println!("no sessions for {a}: nothing to review"),
             (0, None) => println!("no sessions in this roster: nothing to review"),
@@ -237,7 +297,6 @@ pub fn queue(ws: &mut Workspace, athlete: Option<&str>, json: bool) -> anyhow::R
     } else {
         print!("{}", queue_table(&rows));
     }
-    let seen = ws.journal.seen_sessions(athlete)?.len();
     if seen > 0 {
         println!(
             "({} marked seen without a grade, not listed; `splitdesk seen SESSION --undo` brings one back)",

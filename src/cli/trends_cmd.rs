@@ -12,19 +12,27 @@ use crate::model::units::{format_clock, format_pace};
 use crate::model::Units;
 use crate::workspace::Workspace;
 
-/// The summaries of every cached session of an athlete. Sessions without a current cached
-/// review (unreadable files) are skipped and counted.
-pub fn summaries(ws: &Workspace, athlete: &str) -> anyhow::Result<(Vec<SessionSummary>, usize)> {
+/// The summaries of every cached session of an athlete, from the athlete's rows alone (an
+/// indexed query). Sessions without a current cached review (unreadable files) are skipped
+/// and counted; a cached review damaged inside is made again from its file.
+pub fn summaries(
+    ws: &mut Workspace,
+    athlete: &str,
+) -> anyhow::Result<(Vec<SessionSummary>, usize)> {
     let mut out = Vec::new();
     let mut skipped = 0;
-    for e in ws.journal.sessions(Some(athlete))? {
-        let Some(json) = ws.journal.cached_summary(&e.session_id, ANALYSIS_VERSION)? else {
+    for (id, json) in ws.journal.athlete_summaries(athlete, ANALYSIS_VERSION)? {
+        let Some(json) = json else {
             skipped += 1;
             continue;
         };
-        let review: Review = serde_json::from_str(&json)
-            .with_context(|| format!("{}: cached analysis is unreadable", e.session_id))?;
-        match SessionSummary::from_review(&e.session_id, &review) {
+        let review: Review = match serde_json::from_str(&json) {
+            Ok(r) => r,
+            Err(_) => ws
+                .refresh(&id, Utc::now())
+                .with_context(|| format!("{id}: cached analysis is unreadable"))?,
+        };
+        match SessionSummary::from_review(&id, &review) {
             Some(s) => out.push(s),
             None => skipped += 1,
         }
@@ -33,7 +41,12 @@ pub fn summaries(ws: &Workspace, athlete: &str) -> anyhow::Result<(Vec<SessionSu
 }
 
 /// Run the command; returns the exit code.
-pub fn run(ws: &Workspace, athlete: &str, weeks: Option<u32>, json: bool) -> anyhow::Result<i32> {
+pub fn run(
+    ws: &mut Workspace,
+    athlete: &str,
+    weeks: Option<u32>,
+    json: bool,
+) -> anyhow::Result<i32> {
     let Some(a) = ws.roster.athlete(athlete) else {
         bail!("no athlete {athlete:?} in the roster");
     };

@@ -63,10 +63,11 @@ pub use note::{read_note, RevealPermit};
 pub use types::{
     BiasInput, CardCache, CardIndexRow, CheckReport, FeedbackEvent, FeedbackEventKind,
     FeedbackVersion, FileStat, PurposeVerdict, QueueEntry, ReviewStage, ReviewState, Revision,
-    RevisionChange, Ruler, ScoreCell, SessionChange, SessionRecord, SummaryCache, VerdictCell,
+    RevisionChange, Ruler, ScoreCell, SessionChange, SessionRecord, SummaryBrief, SummaryCache,
+    VerdictCell, WarmRow,
 };
 
-use schema::{current_version, APPLICATION_ID, MIGRATIONS};
+use schema::{current_version, APPLICATION_ID, BRIEF_FROM_SUMMARY, MIGRATIONS};
 
 /// How long a write waits for another connection's lock before giving up with `Busy`.
 pub const BUSY_TIMEOUT: Duration = Duration::from_secs(5);
@@ -721,6 +722,7 @@ impl Journal {
                 params![record.session_id, reason],
             )
             .sq(path)?;
+            fill_brief(tx, path, &record.session_id)?;
             delete_card(tx, path, &record.session_id)?;
             Ok(change)
         })
@@ -756,6 +758,7 @@ impl Journal {
                 ],
             )
             .sq(path)?;
+            fill_brief(tx, path, session_id)?;
             match &summary.card {
                 Some(card) => {
                     tx.execute(
@@ -927,6 +930,124 @@ impl Journal {
             .optional()
             .map(Option::flatten)
             .sq(&self.path)
+    }
+
+    /// What the warm check needs of every session the journal knows, by session id: the
+    /// recorded file stat and whether the cached summary is current by the columns alone
+    /// (made by `analysis_version` for the present content), with the inputs digest it was
+    /// made under. One query over the `session_warm` index: no summary is read.
+    pub fn warm_rows(
+        &self,
+        analysis_version: u32,
+    ) -> Result<std::collections::HashMap<String, WarmRow>> {
+        self.read(|conn, path| {
+            let mut stmt = conn
+                .prepare_cached(
+                    "SELECT session_id, CAST(file_path AS BLOB), file_size, file_mtime_ns,
+                        summary_version IS ?1 AND summary_hash = content_hash, summary_inputs
+                     FROM session INDEXED BY session_warm",
+                )
+                .sq(path)?;
+            let rows = stmt
+                .query_map([analysis_version], |r| {
+                    let id = cache_text(r.get_ref(0)?).unwrap_or_default();
+                    let file = cache_text(r.get_ref(1)?);
+                    let size: Option<i64> = r.get(2).ok().flatten();
+                    let mtime: Option<i64> = r.get(3).ok().flatten();
+                    let stat = match (file, size.and_then(|n| u64::try_from(n).ok()), mtime) {
+                        (Some(p), Some(size), Some(mtime_ns)) => Some(FileStat {
+                            path: PathBuf::from(p),
+                            size,
+                            mtime_ns,
+                        }),
+                        _ => None,
+                    };
+                    Ok((
+                        id,
+                        WarmRow {
+                            stat,
+                            summary_current: r.get::<_, Option<bool>>(4).ok().flatten()
+                                == Some(true),
+                            summary_inputs: cache_text(r.get_ref(5)?),
+                        },
+                    ))
+                })
+                .sq(path)?;
+            rows.collect::<rusqlite::Result<_>>().sq(path)
+        })
+    }
+
+    /// The one-line facts of the sessions (optionally of one athlete) whose cached summary was
+    /// made by `analysis_version` for their present content, by session id, read from plain
+    /// columns (see [`SummaryBrief`]); sessions without such a summary are absent.
+    pub fn summary_briefs(
+        &self,
+        athlete: Option<&str>,
+        analysis_version: u32,
+    ) -> Result<std::collections::HashMap<String, SummaryBrief>> {
+        self.read(|conn, path| {
+            let sql_all = "SELECT session_id, summary_inputs, brief_plan_title, brief_sport,
+                    brief_running, brief_distance_m, work_intervals
+                 FROM session
+                 WHERE summary_version IS ?1 AND summary_hash = content_hash";
+            let sql_one = "SELECT session_id, summary_inputs, brief_plan_title, brief_sport,
+                    brief_running, brief_distance_m, work_intervals
+                 FROM session INDEXED BY session_by_athlete
+                 WHERE athlete_id = ?2 AND summary_version IS ?1 AND summary_hash = content_hash";
+            let mut stmt = conn
+                .prepare_cached(if athlete.is_some() { sql_one } else { sql_all })
+                .sq(path)?;
+            let map = |r: &rusqlite::Row<'_>| {
+                Ok((
+                    cache_text(r.get_ref(0)?).unwrap_or_default(),
+                    SummaryBrief {
+                        inputs_digest: cache_text(r.get_ref(1)?),
+                        plan_title: cache_text(r.get_ref(2)?),
+                        sport: cache_text(r.get_ref(3)?),
+                        running: r.get::<_, Option<bool>>(4).ok().flatten(),
+                        distance_m: r.get::<_, Option<f64>>(5).ok().flatten(),
+                        work_intervals: r.get::<_, Option<u32>>(6).ok().flatten(),
+                    },
+                ))
+            };
+            let rows = match athlete {
+                Some(a) => stmt.query_map(params![analysis_version, a], map),
+                None => stmt.query_map(params![analysis_version], map),
+            }
+            .sq(path)?;
+            rows.collect::<rusqlite::Result<_>>().sq(path)
+        })
+    }
+
+    /// One athlete's sessions, newest first, each with its cached summary JSON when that was
+    /// made by `analysis_version` for the present content (`None` otherwise). Indexed by
+    /// athlete: no other athlete's row is read.
+    pub fn athlete_summaries(
+        &self,
+        athlete: &str,
+        analysis_version: u32,
+    ) -> Result<Vec<(String, Option<String>)>> {
+        self.read(|conn, path| {
+            let mut stmt = conn
+                .prepare_cached(
+                    "SELECT session_id,
+                        CASE WHEN summary_version IS ?2 AND summary_hash = content_hash
+                            THEN summary_json END
+                     FROM session INDEXED BY session_by_athlete
+                     WHERE athlete_id = ?1
+                     ORDER BY start_time DESC, session_id DESC",
+                )
+                .sq(path)?;
+            let rows = stmt
+                .query_map(params![athlete, analysis_version], |r| {
+                    Ok((
+                        cache_text(r.get_ref(0)?).unwrap_or_default(),
+                        cache_text(r.get_ref(1)?),
+                    ))
+                })
+                .sq(path)?;
+            rows.collect::<rusqlite::Result<_>>().sq(path)
+        })
     }
 
     /// Remember the stat of the session's file, taken before the bytes whose hash the journal
@@ -1909,6 +2030,7 @@ fn upsert_row(
                 ],
             )
             .sq(path)?;
+    fill_brief(tx, path, &record.session_id)?;
     if let Some(st) = stat {
         write_file_stat(tx, path, &record.session_id, st)?;
     }
@@ -1959,6 +2081,16 @@ fn write_card(
         ],
     )
     .sq(path)?;
+    Ok(())
+}
+
+/// Fill the session's `summary_inputs` and `brief_*` columns from its summary JSON (see
+/// schema step 5), after any write of the summary.
+fn fill_brief(tx: &Connection, path: &Path, session_id: &str) -> Result<()> {
+    tx.prepare_cached(BRIEF_FROM_SUMMARY)
+        .sq(path)?
+        .execute([session_id])
+        .sq(path)?;
     Ok(())
 }
 

@@ -141,7 +141,64 @@ CREATE TABLE session_card (
 CREATE INDEX session_card_by_athlete ON session_card (athlete_id, start_time);
 CREATE INDEX session_card_by_day ON session_card (athlete_id, day);
 "#,
+    // 5: what the warm commands need of a cached summary, beside it in plain columns, so
+    // that an unchanged file is known current and listed without reading the summary JSON.
+    // Derived like the summary (see `BRIEF_FROM_SUMMARY`): filled from it in SQL whenever it
+    // is written. `summary_inputs` is the athlete inputs digest the summary was made under;
+    // the `brief_*` columns are what a session's one-line title needs. `session_warm` holds
+    // the columns of the warm check, so that check never reads the rows' long summaries.
+    r#"
+ALTER TABLE session ADD COLUMN summary_inputs TEXT;
+ALTER TABLE session ADD COLUMN brief_plan_title TEXT;
+ALTER TABLE session ADD COLUMN brief_sport TEXT;
+ALTER TABLE session ADD COLUMN brief_running INTEGER;
+ALTER TABLE session ADD COLUMN brief_distance_m REAL;
+UPDATE session SET
+    summary_inputs = CASE WHEN typeof(summary_json) = 'text' AND json_valid(summary_json)
+        AND json_type(summary_json, '$.analysis_inputs') = 'text'
+        THEN json_extract(summary_json, '$.analysis_inputs') END,
+    brief_plan_title = CASE WHEN typeof(summary_json) = 'text' AND json_valid(summary_json)
+        AND json_type(summary_json, '$.plan.title') = 'text'
+        THEN json_extract(summary_json, '$.plan.title') END,
+    brief_sport = CASE WHEN typeof(summary_json) = 'text' AND json_valid(summary_json)
+        AND json_type(summary_json, '$.session.sport') = 'text'
+        THEN json_extract(summary_json, '$.session.sport') END,
+    brief_running = CASE WHEN typeof(summary_json) = 'text' AND json_valid(summary_json)
+        AND json_type(summary_json, '$.running') IN ('true', 'false')
+        THEN json_extract(summary_json, '$.running') END,
+    brief_distance_m = CASE WHEN typeof(summary_json) = 'text' AND json_valid(summary_json)
+        AND json_type(summary_json, '$.session.distance_m') IN ('integer', 'real')
+        THEN json_extract(summary_json, '$.session.distance_m') END
+WHERE summary_json IS NOT NULL;
+CREATE INDEX session_warm ON session (session_id, file_path, file_size, file_mtime_ns,
+    summary_version, summary_hash, content_hash, summary_inputs);
+"#,
 ];
+
+/// Fill the `summary_inputs` and `brief_*` columns of session `?1` from its summary JSON (the
+/// same expressions as step 5; NULL where the summary is missing, damaged or lacks the key).
+pub const BRIEF_FROM_SUMMARY: &str = r#"
+UPDATE session SET
+    summary_inputs = CASE WHEN typeof(summary_json) = 'text' AND json_valid(summary_json)
+        AND json_type(summary_json, '$.analysis_inputs') = 'text'
+        THEN json_extract(summary_json, '$.analysis_inputs') END,
+    brief_plan_title = CASE WHEN typeof(summary_json) = 'text' AND json_valid(summary_json)
+        AND json_type(summary_json, '$.plan.title') = 'text'
+        THEN json_extract(summary_json, '$.plan.title') END,
+    brief_sport = CASE WHEN typeof(summary_json) = 'text' AND json_valid(summary_json)
+        AND json_type(summary_json, '$.session.sport') = 'text'
+        THEN json_extract(summary_json, '$.session.sport') END,
+    brief_running = CASE WHEN typeof(summary_json) = 'text' AND json_valid(summary_json)
+        AND json_type(summary_json, '$.running') IN ('true', 'false')
+        THEN json_extract(summary_json, '$.running') END,
+    brief_distance_m = CASE WHEN typeof(summary_json) = 'text' AND json_valid(summary_json)
+        AND json_type(summary_json, '$.session.distance_m') IN ('integer', 'real')
+        THEN json_extract(summary_json, '$.session.distance_m') END
+WHERE session_id = ?1"#;
+
+/// The key of the summary JSON that holds the athlete inputs digest it was made under (read
+/// into `session.summary_inputs` by [`BRIEF_FROM_SUMMARY`]).
+pub const SUMMARY_INPUTS_KEY: &str = "analysis_inputs";
 
 /// The schema version this build writes and reads.
 pub fn current_version() -> u32 {

@@ -54,6 +54,37 @@ pub struct CardCache {
     pub inputs_digest: String,
 }
 
+/// What the warm check knows of a session from the journal's columns alone
+/// ([`super::Journal::warm_rows`]).
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct WarmRow {
+    /// The file's stat recorded with its content hash, when known.
+    pub stat: Option<FileStat>,
+    /// The cached summary was made by the analysis version asked for, for the session's
+    /// present content.
+    pub summary_current: bool,
+    /// The athlete inputs digest the cached summary was made under, when known.
+    pub summary_inputs: Option<String>,
+}
+
+/// The facts of a session's one-line title, cut from its cached summary when that was written
+/// ([`super::Journal::summary_briefs`]); `None` where the summary lacks them.
+#[derive(Debug, Clone, PartialEq)]
+pub struct SummaryBrief {
+    /// The athlete inputs digest the summary was made under.
+    pub inputs_digest: Option<String>,
+    /// The plan's title, when a plan was used.
+    pub plan_title: Option<String>,
+    /// The sport the file names.
+    pub sport: Option<String>,
+    /// False for another sport.
+    pub running: Option<bool>,
+    /// The session's distance, m.
+    pub distance_m: Option<f64>,
+    /// Work intervals the analysis found.
+    pub work_intervals: Option<u32>,
+}
+
 /// One current session card of an athlete, as [`super::Journal::card_index`] lists them:
 /// enough to pick sessions without reading their cards.
 #[derive(Debug, Clone, PartialEq, Eq)]

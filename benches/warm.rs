@@ -1,0 +1,102 @@
+//! Warm `splitdesk queue` work on a big roster: open the roster and its journal, bring the
+//! journal up to date with the roster (every file unchanged: one `stat` each, nothing read),
+//! and list the queue with its titles from the journal's columns.
+//!
+//! The roster is the demo roster's athletes copied under new ids into a temporary folder
+//! (hard links where the file system allows, else copies): identical files under distinct
+//! session ids, which is all the warm path looks at. `SPLITDESK_BENCH_COPIES` sets the copies
+//! of each athlete (default 6: 966 sessions); 60 gives 9,660. The journal is warmed once
+//! before timing (a full analysis of every file, seconds per thousand sessions).
+//!
+//! Run: `cargo bench --bench warm` (or `SPLITDESK_BENCH_COPIES=60 cargo bench --bench warm`).
+
+use std::hint::black_box;
+use std::path::{Path, PathBuf};
+
+use chrono::Utc;
+use criterion::{criterion_group, criterion_main, Criterion};
+use splitdesk::analysis::review::ANALYSIS_VERSION;
+use splitdesk::workspace::Workspace;
+
+fn copy_tree(from: &Path, to: &Path) {
+    std::fs::create_dir_all(to).expect("create bench folder");
+    for entry in std::fs::read_dir(from).expect("read demo folder") {
+        let entry = entry.expect("demo entry");
+        let src = entry.path();
+        let dst = to.join(entry.file_name());
+        if src.is_dir() {
+            copy_tree(&src, &dst);
+        } else if std::fs::hard_link(&src, &dst).is_err() {
+            std::fs::copy(&src, &dst).expect("copy demo file");
+        }
+    }
+}
+
+/// The demo athletes copied `copies` times each under new ids into `root`.
+fn copied_roster(root: &Path, copies: usize) -> PathBuf {
+    let demo = Path::new(env!("CARGO_MANIFEST_DIR")).join("demo-athletes");
+    let roster = root.join("roster");
+    std::fs::create_dir_all(&roster).expect("create roster");
+    std::fs::copy(demo.join("roster.toml"), roster.join("roster.toml")).expect("roster.toml");
+    for entry in std::fs::read_dir(&demo).expect("read demo roster") {
+        let entry = entry.expect("demo entry");
+        if !entry.path().is_dir() {
+            continue;
+        }
+        let name = entry.file_name().to_string_lossy().into_owned();
+        for c in 1..=copies {
+            copy_tree(&entry.path(), &roster.join(format!("{name}-c{c}")));
+        }
+    }
+    roster
+}
+
+fn warm_queue(c: &mut Criterion) {
+    let copies = std::env::var("SPLITDESK_BENCH_COPIES")
+        .ok()
+        .and_then(|v| v.parse().ok())
+        .unwrap_or(6);
+    let dir = tempfile::tempdir().expect("temp dir");
+    let roster = copied_roster(dir.path(), copies);
+    let journal = dir.path().join("journal.sqlite");
+    let sessions = {
+        let mut ws = Workspace::open(&roster, Some(&journal)).expect("open");
+        let report = ws.sync(Utc::now(), |_, _| {}).expect("cold sync");
+        assert!(report.problems.is_empty(), "{:?}", report.problems);
+        report.sessions
+    };
+
+    let mut group = c.benchmark_group("warm");
+    group.sample_size(10);
+    group.bench_function(format!("queue work, {sessions} sessions"), |b| {
+        b.iter(|| {
+            let mut ws = Workspace::open(&roster, Some(&journal)).expect("open");
+            let report = ws.sync(Utc::now(), |_, _| {}).expect("warm sync");
+            assert_eq!(report.analysed, 0, "warm: nothing analysed");
+            let listed = ws.journal.sessions(None).expect("sessions");
+            let briefs = ws
+                .journal
+                .summary_briefs(None, ANALYSIS_VERSION)
+                .expect("briefs");
+            black_box((report.cached, listed.len(), briefs.len()))
+        })
+    });
+    group.bench_function(
+        format!("one athlete's summaries, {sessions} sessions"),
+        |b| {
+            let ws = Workspace::open(&roster, Some(&journal)).expect("open");
+            let athlete = ws.roster.athletes.first().expect("an athlete").id.clone();
+            b.iter(|| {
+                let rows = ws
+                    .journal
+                    .athlete_summaries(&athlete, ANALYSIS_VERSION)
+                    .expect("summaries");
+                black_box(rows.len())
+            })
+        },
+    );
+    group.finish();
+}
+
+criterion_group!(benches, warm_queue);
+criterion_main!(benches);

@@ -111,3 +111,20 @@ fn a_scan_with_an_unreadable_file_fills_the_lists_in_place() {
     assert_eq!(l.1.get("marco-bell"), Some(&2));
     assert_eq!(queue_ids(&l), [EASY, LONG, INTERVALS, broken]);
 }
+
+#[test]
+fn the_roster_pane_shows_every_digit_of_an_unreviewed_count() {
+    let dir = tempfile::tempdir().unwrap();
+    let mut app = app_with(dir.path());
+    app.counts.insert("marco-bell".to_string(), 1020);
+    app.counts.insert("ines-aldana".to_string(), 12345);
+    let text = tui_support::screen(&mut app, 160, 48);
+    let line = |name: &str| {
+        text.lines()
+            .find(|l| l.contains(name))
+            .unwrap_or_else(|| panic!("{name} in\n{text}"))
+            .to_string()
+    };
+    assert!(line("Marco Bell").contains(" 1020│"), "{text}");
+    assert!(line("Ines Aldana").contains(" 12345│"), "{text}");
+}

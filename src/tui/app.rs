@@ -499,6 +499,7 @@ impl App {
             self.load_revealed();
         }
         self.reload_feedback();
+        self.settle_verdict();
         true
     }
 
@@ -971,6 +972,7 @@ impl App {
 
     /// Apply one event; returns what the event loop must do.
     pub fn handle(&mut self, event: AppEvent) -> Vec<Effect> {
+        let tick = matches!(event, AppEvent::Tick);
         let out = match event {
             AppEvent::Input(Event::Key(k)) if k.kind != KeyEventKind::Release => self.on_key(k),
             AppEvent::Input(Event::Resize(w, h)) => {
@@ -1006,10 +1008,15 @@ impl App {
                 Vec::new()
             }
         };
-        if self.lists_dirty && self.refresh_due() {
+        let refresh = self.lists_dirty && self.refresh_due();
+        if refresh {
             self.refresh_lists();
         }
-        self.settle_verdict();
+        // A tick alone changes nothing the verdict pane shows (the loop ticks often while
+        // results are awaited).
+        if !tick || refresh {
+            self.settle_verdict();
+        }
         out
     }
 

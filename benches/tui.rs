@@ -1,5 +1,11 @@
 //! Frame render benchmark: one frame of a 3-hour session at 200x60 (roster, chart with two
-//! rulers, interval table) drawn into a `TestBackend`.
+//! rulers, interval table) drawn into a `TestBackend`; start to the first frame on the demo
+//! roster; and, on a large roster (the demo athletes copied under new ids), a score key to
+//! the next frame and `]` / `[` to the drawn session.
+//!
+//! The large roster's size: `SPLITDESK_BENCH_COPIES` copies of the six demo athletes
+//! (default 6 copies, about 960 sessions; 60 copies give about 9,600). It is built in a
+//! temporary folder, warmed (every session analysed into a journal file) and removed after.
 
 use std::hint::black_box;
 use std::path::Path;
@@ -158,5 +164,120 @@ fn bench_startup(c: &mut Criterion) {
     });
 }
 
-criterion_group!(benches, bench_frame, bench_startup);
+/// Copy a folder and everything in it.
+fn copy_dir(from: &Path, to: &Path) {
+    std::fs::create_dir_all(to).expect("mkdir");
+    for entry in std::fs::read_dir(from).expect("read dir") {
+        let entry = entry.expect("entry");
+        let target = to.join(entry.file_name());
+        if entry.file_type().expect("type").is_dir() {
+            copy_dir(&entry.path(), &target);
+        } else {
+            std::fs::copy(entry.path(), &target).expect("copy");
+        }
+    }
+}
+
+/// The demo athletes copied `copies` times under new ids (`<id>-<k>`) into `root`.
+fn big_roster(root: &Path, copies: usize) {
+    let demo = Path::new(env!("CARGO_MANIFEST_DIR")).join("demo-athletes");
+    for entry in std::fs::read_dir(&demo).expect("demo roster") {
+        let entry = entry.expect("entry");
+        let name = entry.file_name().to_string_lossy().into_owned();
+        if entry.file_type().expect("type").is_dir() {
+            for k in 0..copies {
+                copy_dir(&entry.path(), &root.join(format!("{name}-{k:03}")));
+            }
+        } else {
+            std::fs::copy(entry.path(), root.join(&name)).expect("copy");
+        }
+    }
+}
+
+fn copies() -> usize {
+    std::env::var("SPLITDESK_BENCH_COPIES")
+        .ok()
+        .and_then(|v| v.parse().ok())
+        .filter(|&n| n > 0)
+        .unwrap_or(6)
+}
+
+/// The app on the large roster with a warm journal (its own scan run to the end), 160x48.
+fn big_app(root: &Path) -> App {
+    let open = || {
+        let ws = splitdesk::workspace::Workspace::open(root, Some(&root.join("journal.sqlite")))
+            .expect("workspace");
+        let mut app = App::new(
+            ws.roster,
+            ws.journal,
+            Options {
+                keymap: KeyMap::default(),
+                theme: Theme::colour(),
+                feedback_dir: None,
+            },
+        );
+        app.size = (160, 48);
+        let fx = app.start_scan();
+        run(&mut app, fx);
+        app
+    };
+    // The first app warms the journal (a cold scan); the second starts warm.
+    drop(open());
+    open()
+}
+
+/// A score key (`3`) on the open session to the next frame, and `]` / `[` (the next or the
+/// previous session in the queue) until that session is drawn with its series, on the
+/// large roster with a warm journal. The background job runs on this thread (no hop to a
+/// worker), so the figures are the work a key costs, not the event loop's waits.
+fn bench_big_roster_keys(c: &mut Criterion) {
+    let dir = tempfile::tempdir().expect("tempdir");
+    big_roster(dir.path(), copies());
+    let mut app = big_app(dir.path());
+    let sessions = app.roster.activities().count();
+    let mut term = Terminal::new(TestBackend::new(160, 48)).expect("terminal");
+    // The queue's first session with work intervals to score.
+    let with_work = app
+        .queue
+        .iter()
+        .map(|e| e.session_id.clone())
+        .collect::<Vec<_>>()
+        .into_iter()
+        .find(|id| {
+            let fx = app.open_session(id);
+            run(&mut app, fx);
+            app.open.as_ref().is_some_and(|o| o.work_count() > 0)
+        })
+        .expect("a session with work intervals");
+    eprintln!(
+        "large roster: {sessions} sessions, {} in the queue; scoring {with_work}",
+        app.queue.len()
+    );
+    let mut g = c.benchmark_group(format!("keys_{sessions}_sessions"));
+    g.sample_size(30);
+    g.bench_function("score_key_to_frame", |b| {
+        b.iter(|| {
+            key(&mut app, KeyCode::Char('3'));
+            term.draw(|f| ui::draw(f, black_box(&app))).expect("draw");
+        })
+    });
+    let mut forward = true;
+    g.bench_function("queue_step_to_drawn_session", |b| {
+        b.iter(|| {
+            key(&mut app, KeyCode::Char(if forward { ']' } else { '[' }));
+            forward = !forward;
+            term.draw(|f| ui::draw(f, black_box(&app))).expect("draw");
+        })
+    });
+    app.focus = Focus::Roster;
+    g.bench_function("roster_cursor_down_to_frame", |b| {
+        b.iter(|| {
+            key(&mut app, KeyCode::Down);
+            term.draw(|f| ui::draw(f, black_box(&app))).expect("draw");
+        })
+    });
+    g.finish();
+}
+
+criterion_group!(benches, bench_frame, bench_startup, bench_big_roster_keys);
 criterion_main!(benches);

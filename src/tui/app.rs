@@ -384,6 +384,9 @@ pub struct App {
     scan_generation: u64,
     open_generation: u64,
     lists_dirty: bool,
+    /// When the lists were last read whole, and how many scan results had come in then
+    /// (a cold scan re-reads them rarely: see [`App::refresh_due`]).
+    last_refresh: (std::time::Instant, usize),
     /// Where feedback files go.
     pub feedback_dir: Option<PathBuf>,
     /// The history view's data, built when the view opens.
@@ -412,6 +415,12 @@ struct DayExport {
 
 /// The history view's state lives beside its pane.
 pub use super::panes::history_window::{HistoryView, HistoryWindow};
+
+/// During a scan, lists marked stale are read whole at most this often.
+pub const REFRESH_EVERY: std::time::Duration = std::time::Duration::from_secs(1);
+
+/// During a scan, lists marked stale are read whole after at least this many results.
+pub const REFRESH_RESULTS: usize = 64;
 
 fn now() -> DateTime<Utc> {
     Utc::now()
@@ -454,6 +463,7 @@ impl App {
             scan_generation: 0,
             open_generation: 0,
             lists_dirty: false,
+            last_refresh: (std::time::Instant::now(), 0),
             feedback_dir: options.feedback_dir,
             history: None,
             journal_version: None,
@@ -489,6 +499,7 @@ impl App {
             self.load_revealed();
         }
         self.reload_feedback();
+        self.settle_verdict();
         true
     }
 
@@ -601,6 +612,7 @@ impl App {
     /// Re-read the session lists and counts from the journal.
     pub fn refresh_lists(&mut self) {
         self.lists_dirty = false;
+        self.last_refresh = (std::time::Instant::now(), self.progress.done);
         let all = match self.journal.sessions(None) {
             Ok(v) => v,
             Err(e) => {
@@ -650,6 +662,116 @@ impl App {
             self.ensure_reviews(&a);
         }
         if self.view == View::History {
+            self.build_history();
+        }
+    }
+
+    /// Whether lists marked stale should be read whole now: at once when no background
+    /// work runs; during a scan at most once per [`REFRESH_EVERY`] and once per tenth of the
+    /// scan (at least [`REFRESH_RESULTS`] results), so a scan's list work grows with the
+    /// roster, not its square.
+    fn refresh_due(&self) -> bool {
+        if !self.busy() {
+            return true;
+        }
+        let (at, done) = self.last_refresh;
+        let results = self.progress.done.saturating_sub(done);
+        at.elapsed() >= REFRESH_EVERY && results >= REFRESH_RESULTS.max(self.progress.total / 10)
+    }
+
+    /// One session changed in the journal (graded, revealed, marked seen, analysed, found
+    /// unreadable): update its row, its athlete's count, the queue and the seen count from
+    /// the journal's record of that session alone. `start` is the session's start when
+    /// it is new to the lists. When the journal cannot say, the lists are marked stale.
+    fn apply_session(&mut self, id: &str, start: Option<DateTime<Utc>>) {
+        let Some((athlete, path)) = self
+            .roster
+            .find_session(id)
+            .map(|(a, act)| (a.id.clone(), act.path.clone()))
+        else {
+            return;
+        };
+        let state = match self.journal.review_state(id) {
+            Ok(s) => s,
+            Err(_) => {
+                self.lists_dirty = true;
+                return;
+            }
+        };
+        let failed = self.failed.contains(id);
+        let rows = self.rows.entry(athlete.clone()).or_default();
+        let old = rows
+            .iter()
+            .position(|r| r.session_id == id)
+            .map(|i| rows.remove(i));
+        let old_stage = old.as_ref().and_then(|r| r.stage);
+        let old_start = old.as_ref().and_then(|r| r.start);
+        let Some(start) = start.or(old_start) else {
+            rows.extend(old);
+            self.lists_dirty = true;
+            return;
+        };
+        // Newest first; sessions the journal does not know yet stay last.
+        let at = rows
+            .iter()
+            .position(|r| {
+                r.start
+                    .is_none_or(|s| (s, r.session_id.as_str()) < (start, id))
+            })
+            .unwrap_or(rows.len());
+        rows.insert(
+            at,
+            SessionRow {
+                session_id: id.to_string(),
+                start: Some(start),
+                stage: Some(state.stage),
+                failed,
+            },
+        );
+        let was = old_stage.is_some_and(ReviewStage::is_unreviewed);
+        let is = state.stage.is_unreviewed();
+        if was != is {
+            let n = self.counts.get(&athlete).copied().unwrap_or(0);
+            let n = if is { n + 1 } else { n.saturating_sub(1) };
+            if n == 0 {
+                self.counts.remove(&athlete);
+            } else {
+                self.counts.insert(athlete.clone(), n);
+            }
+        }
+        let found = old_start
+            .map(|s| {
+                self.queue
+                    .partition_point(|e| (e.start, e.session_id.as_str()) < (s, id))
+            })
+            .filter(|&i| self.queue.get(i).is_some_and(|e| e.session_id == id))
+            .or_else(|| self.queue.iter().position(|e| e.session_id == id));
+        if let Some(i) = found {
+            self.queue.remove(i);
+        }
+        if is {
+            let entry = QueueEntry {
+                session_id: id.to_string(),
+                athlete: athlete.clone(),
+                start,
+                file_path: path,
+                stage: state.stage,
+                content_changed: state.content_changed,
+                file_unreadable: state.file_unreadable.clone(),
+            };
+            let at = self
+                .queue
+                .partition_point(|e| (e.start, e.session_id.as_str()) < (start, id));
+            self.queue.insert(at, entry);
+        }
+        let seen_before = old_stage == Some(ReviewStage::Seen);
+        let seen_now = state.stage == ReviewStage::Seen;
+        if seen_now && !seen_before {
+            self.seen_count += 1;
+        } else if seen_before && !seen_now {
+            self.seen_count = self.seen_count.saturating_sub(1);
+        }
+        if self.view == View::History && self.cursor.athlete.as_deref() == Some(&athlete) {
             self.build_history();
         }
     }
@@ -850,6 +972,7 @@ impl App {
 
     /// Apply one event; returns what the event loop must do.
     pub fn handle(&mut self, event: AppEvent) -> Vec<Effect> {
+        let tick = matches!(event, AppEvent::Tick);
         let out = match event {
             AppEvent::Input(Event::Key(k)) if k.kind != KeyEventKind::Release => self.on_key(k),
             AppEvent::Input(Event::Resize(w, h)) => {
@@ -885,10 +1008,15 @@ impl App {
                 Vec::new()
             }
         };
-        if self.lists_dirty && (!self.busy() || self.progress.done.is_multiple_of(16)) {
+        let refresh = self.lists_dirty && self.refresh_due();
+        if refresh {
             self.refresh_lists();
         }
-        self.settle_verdict();
+        // A tick alone changes nothing the verdict pane shows (the loop ticks often while
+        // results are awaited).
+        if !tick || refresh {
+            self.settle_verdict();
+        }
         out
     }
 
@@ -1636,8 +1764,8 @@ impl App {
                 }
                 self.failed.insert(done.session_id.clone());
                 self.problems.push(why.clone());
-                self.lists_dirty = true;
-                self.note_unreadable(&done.session_id, &why);
+                let start = self.note_unreadable(&done.session_id, &why);
+                self.apply_session(&done.session_id, start);
                 if let Some(o) = self
                     .open
                     .as_mut()
@@ -1651,7 +1779,7 @@ impl App {
             Outcome::Analysed(a) => {
                 self.record(&a);
                 self.reviews.insert(a.session_id.clone(), a.review.clone());
-                self.lists_dirty = true;
+                self.apply_session(&a.session_id, Some(a.session.start));
                 let is_open = self
                     .open
                     .as_ref()
@@ -1774,7 +1902,7 @@ impl App {
                     Tone::Done,
                     format!("interval {interval} {what} {score}{next}"),
                 );
-                self.lists_dirty = true;
+                self.apply_session(&id, None);
             }
             Err(e) => self.say(Tone::Warn, short_error(&e)),
         }
@@ -1798,7 +1926,7 @@ impl App {
                 self.reload_grades();
                 let text = format!("purpose verdict: {next}{}", self.close_hint());
                 self.say(Tone::Done, text);
-                self.lists_dirty = true;
+                self.apply_session(&id, None);
             }
             Err(e) => self.say(Tone::Warn, short_error(&e)),
         }
@@ -1819,7 +1947,7 @@ impl App {
                 // The permit is used again inside load_revealed (reveal is idempotent).
                 self.reload_grades();
                 self.load_revealed();
-                self.lists_dirty = true;
+                self.apply_session(&id, None);
                 match self.open.as_ref().and_then(|o| o.note.clone()) {
                     Some(Some(text)) => {
                         self.modal = Some(Modal::Notes(text));
@@ -1879,18 +2007,20 @@ impl App {
 
     /// A session's file could not be read: keep it in the journal as unreadable, so it can
     /// be closed with the verdict alone.
-    fn note_unreadable(&mut self, session_id: &str, why: &str) {
-        let Some((athlete, path)) = self
+    /// Returns the start the journal now holds for it, when recorded.
+    fn note_unreadable(&mut self, session_id: &str, why: &str) -> Option<DateTime<Utc>> {
+        let (athlete, path) = self
             .roster
             .find_session(session_id)
-            .map(|(a, act)| (a.id.clone(), act.path.clone()))
-        else {
-            return;
-        };
+            .map(|(a, act)| (a.id.clone(), act.path.clone()))?;
         let reason = self.reason_of(session_id, why);
         let record = crate::journal::unreadable_record(session_id, &athlete, &path, now());
-        if let Err(e) = self.journal.record_unreadable(&record, &reason, now()) {
-            self.say(Tone::Warn, short_error(&e));
+        match self.journal.record_unreadable(&record, &reason, now()) {
+            Ok(_) => Some(record.start),
+            Err(e) => {
+                self.say(Tone::Warn, short_error(&e));
+                None
+            }
         }
     }
 
@@ -1950,7 +2080,7 @@ impl App {
         };
         match result {
             Ok(_) => {
-                self.refresh_lists();
+                self.apply_session(&id, None);
                 self.reload_grades();
                 let m = self.keymap.first(Action::ToggleSeen);
                 let counts = format!(
@@ -2110,7 +2240,7 @@ impl App {
                     }
                 }
                 self.reload_grades();
-                self.lists_dirty = true;
+                self.apply_session(&id, None);
                 true
             }
             Err(e) => {
@@ -2403,7 +2533,9 @@ impl App {
             }
         }
         self.reload_grades();
-        self.lists_dirty = true;
+        for id in messages.iter().flatten() {
+            self.apply_session(id, None);
+        }
         problem
     }
 

@@ -25,7 +25,7 @@ use std::io::{self, IsTerminal, Write};
 use std::path::{Path, PathBuf};
 use std::sync::atomic::{AtomicBool, Ordering};
 use std::sync::Arc;
-use std::time::Duration;
+use std::time::{Duration, Instant};
 
 use crossterm::event::{DisableBracketedPaste, EnableBracketedPaste, Event};
 use crossterm::terminal::{
@@ -310,15 +310,29 @@ where
         return Ok(());
     }
     terminal.draw(|f| draw_frame(f, app))?;
+    let mut last_draw = Instant::now();
+    // Something changed that is not on the screen yet.
+    let mut owed = false;
     loop {
         if stop.load(Ordering::SeqCst) {
             app.save_before_exit();
             return Ok(());
         }
         let mut changed = false;
+        // A change the coach is waiting for (a key, the open session's result): drawn at
+        // once. Scan progress alone is drawn at most once per `SCAN_FRAME`.
+        let mut urgent = false;
         let mut effects = Vec::new();
         let mut drained = 0;
         while let Some(done) = worker.try_recv() {
+            if done.kind == JobKind::Open
+                || app
+                    .open
+                    .as_ref()
+                    .is_some_and(|o| o.session_id == done.session_id)
+            {
+                urgent = true;
+            }
             effects.extend(app.handle(AppEvent::Worker(done)));
             changed = true;
             drained += 1;
@@ -326,10 +340,10 @@ where
                 break;
             }
         }
-        let timeout = if app.busy() || drained > 0 {
-            Duration::from_millis(60)
+        let timeout = if drained >= 64 {
+            Duration::ZERO
         } else {
-            Duration::from_millis(400)
+            wait_for_input(app.busy(), owed || changed, last_draw.elapsed())
         };
         let event = match host.next_event(timeout) {
             Ok(event) => event,
@@ -346,11 +360,13 @@ where
             Some(ev) => {
                 effects.extend(app.handle(AppEvent::Input(ev)));
                 changed = true;
+                urgent = true;
             }
             None => {
                 // Grades written by another process show up without a key press.
                 if app.poll_journal() {
                     changed = true;
+                    urgent = true;
                 }
                 if changed || app.busy() {
                     effects.extend(app.handle(AppEvent::Tick));
@@ -360,9 +376,36 @@ where
         if carry_out(effects, app, worker, host, terminal)? {
             return Ok(());
         }
-        if changed {
+        owed |= changed;
+        if owed && (urgent || !app.busy() || last_draw.elapsed() >= SCAN_FRAME) {
             terminal.draw(|f| draw_frame(f, app))?;
+            last_draw = Instant::now();
+            owed = false;
         }
+    }
+}
+
+/// While results are awaited the loop looks for them this often: a finished result waits
+/// at most this long to be handled (a key wakes the loop at once whatever the wait).
+pub const RESULT_POLL: Duration = Duration::from_millis(4);
+
+/// Scan progress alone is drawn at most this often.
+pub const SCAN_FRAME: Duration = Duration::from_millis(50);
+
+/// Idle: how long the loop sleeps waiting for a key (other processes' writes to the journal
+/// show up within this).
+pub const IDLE_WAIT: Duration = Duration::from_millis(400);
+
+/// How long the event loop waits for input: briefly while background work is awaited (so
+/// its result is drawn as soon as it arrives, not after a long wait), until the owed frame
+/// is due when a draw is held back, else [`IDLE_WAIT`] (no spinning when idle).
+pub fn wait_for_input(busy: bool, owed: bool, since_draw: Duration) -> Duration {
+    if busy {
+        RESULT_POLL
+    } else if owed {
+        SCAN_FRAME.saturating_sub(since_draw)
+    } else {
+        IDLE_WAIT
     }
 }
 
@@ -414,4 +457,36 @@ where
     }
     let _ = io::stdout().flush();
     Ok(false)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn the_loop_waits_briefly_only_while_results_are_awaited() {
+        // A result awaited: looked for within a few milliseconds, never after a long wait.
+        assert_eq!(
+            wait_for_input(true, false, Duration::ZERO),
+            Duration::from_millis(4)
+        );
+        assert_eq!(
+            wait_for_input(true, true, Duration::from_secs(1)),
+            Duration::from_millis(4)
+        );
+        // Idle: a long wait, so an idle workstation does not spin.
+        assert_eq!(
+            wait_for_input(false, false, Duration::ZERO),
+            Duration::from_millis(400)
+        );
+        // A held-back frame is drawn when due.
+        assert_eq!(
+            wait_for_input(false, true, Duration::from_millis(20)),
+            Duration::from_millis(30)
+        );
+        assert_eq!(
+            wait_for_input(false, true, Duration::from_millis(80)),
+            Duration::ZERO
+        );
+    }
 }

@@ -93,7 +93,8 @@ pub fn render(app: &App, area: Rect, buf: &mut Buffer) {
                 let expanded = app.cursor.athlete.as_deref() == Some(a.id.as_str());
                 let mark = if expanded { "▾ " } else { "▸ " };
                 let flag = if a.has_problems() { " !" } else { "" };
-                let name_w = w.saturating_sub(2 + 4 + flag.len());
+                // The whole count, however many digits: the name gives way.
+                let name_w = w.saturating_sub(2 + 1 + count.chars().count() + flag.len());
                 let style = if selected { t.selected } else { t.heading };
                 Line::from(vec![
                     Span::styled(mark, style),

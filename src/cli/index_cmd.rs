@@ -233,7 +233,9 @@ pub fn run(root: &Path, journal: Option<&Path>) -> anyhow::Result<i32> {
     }
     let total = ws.roster.activities().count() as u64;
     let bar = super::progress_bar(total, "indexing");
-    let Workspace { roster, journal } = &mut ws;
+    let Workspace {
+        roster, journal, ..
+    } = &mut ws;
     let report = index(roster, journal, default_workers(), |done, _| {
         bar.set_position(done as u64)
     })?;

@@ -61,8 +61,9 @@ fn warm_queue(c: &mut Criterion) {
     let journal = dir.path().join("journal.sqlite");
     let sessions = {
         let mut ws = Workspace::open(&roster, Some(&journal)).expect("open");
+        // The demo roster's one truncated file (copied with the rest) fails on every sync,
+        // as it does for `splitdesk queue`: it is read again each time.
         let report = ws.sync(Utc::now(), |_, _| {}).expect("cold sync");
-        assert!(report.problems.is_empty(), "{:?}", report.problems);
         report.sessions
     };
 

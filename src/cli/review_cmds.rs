@@ -72,22 +72,18 @@ pub fn open_synced(
     let bar = super::progress_bar(total, "analysing");
     let report = ws.sync(Utc::now(), |done, _| bar.set_position(done as u64))?;
     bar.finish_and_clear();
-    let failed = report.failed;
+    // The sync names the session of each problem: no search of the roster per problem.
     let problems = report
         .problems
         .into_iter()
-        .map(|text| {
-            let owner = ws.roster.activities().find(|(_, act)| {
-                let path = act.path.display().to_string();
-                text.starts_with(&format!("{path}:"))
-            });
-            SyncProblem {
-                session: owner.map(|(a, act)| a.session_id(act)),
-                athlete: owner.map(|(a, _)| a.id.clone()),
-                text,
-            }
+        .zip(report.failed.iter())
+        .map(|(text, id)| SyncProblem {
+            session: Some(id.clone()),
+            athlete: id.split_once('/').map(|(a, _)| a.to_string()),
+            text,
         })
         .collect();
+    let failed = report.failed;
     record_unreadable_sessions(&mut ws, failed)?;
     Ok((ws, problems))
 }

@@ -935,7 +935,7 @@ impl Journal {
     /// What the warm check needs of every session the journal knows, by session id: the
     /// recorded file stat and whether the cached summary is current by the columns alone
     /// (made by `analysis_version` for the present content), with the inputs digest it was
-    /// made under. One query over the `session_warm` index: no summary is read.
+    /// made under. One query, which the `session_lists` index covers: no summary is read.
     pub fn warm_rows(
         &self,
         analysis_version: u32,
@@ -945,7 +945,7 @@ impl Journal {
                 .prepare_cached(
                     "SELECT session_id, CAST(file_path AS BLOB), file_size, file_mtime_ns,
                         summary_version IS ?1 AND summary_hash = content_hash, summary_inputs
-                     FROM session INDEXED BY session_warm",
+                     FROM session",
                 )
                 .sq(path)?;
             let rows = stmt
@@ -992,7 +992,7 @@ impl Journal {
                  WHERE summary_version IS ?1 AND summary_hash = content_hash";
             let sql_one = "SELECT session_id, summary_inputs, brief_plan_title, brief_sport,
                     brief_running, brief_distance_m, work_intervals
-                 FROM session INDEXED BY session_by_athlete
+                 FROM session
                  WHERE athlete_id = ?2 AND summary_version IS ?1 AND summary_hash = content_hash";
             let mut stmt = conn
                 .prepare_cached(if athlete.is_some() { sql_one } else { sql_all })
@@ -1033,7 +1033,7 @@ impl Journal {
                     "SELECT session_id,
                         CASE WHEN summary_version IS ?2 AND summary_hash = content_hash
                             THEN summary_json END
-                     FROM session INDEXED BY session_by_athlete
+                     FROM session
                      WHERE athlete_id = ?1
                      ORDER BY start_time DESC, session_id DESC",
                 )

@@ -145,8 +145,9 @@ CREATE INDEX session_card_by_day ON session_card (athlete_id, day);
     // that an unchanged file is known current and listed without reading the summary JSON.
     // Derived like the summary (see `BRIEF_FROM_SUMMARY`): filled from it in SQL whenever it
     // is written. `summary_inputs` is the athlete inputs digest the summary was made under;
-    // the `brief_*` columns are what a session's one-line title needs. `session_warm` holds
-    // the columns of the warm check, so that check never reads the rows' long summaries.
+    // the `brief_*` columns are what a session's one-line title needs. `session_lists` holds
+    // every column of the warm check, the title facts and the session lists, so that these
+    // read the index alone, never the rows with their long summaries.
     r#"
 ALTER TABLE session ADD COLUMN summary_inputs TEXT;
 ALTER TABLE session ADD COLUMN brief_plan_title TEXT;
@@ -170,8 +171,10 @@ UPDATE session SET
         AND json_type(summary_json, '$.session.distance_m') IN ('integer', 'real')
         THEN json_extract(summary_json, '$.session.distance_m') END
 WHERE summary_json IS NOT NULL;
-CREATE INDEX session_warm ON session (session_id, file_path, file_size, file_mtime_ns,
-    summary_version, summary_hash, content_hash, summary_inputs);
+CREATE INDEX session_lists ON session (athlete_id, start_time, session_id, file_path,
+    content_hash, review_id, unreadable, work_intervals, file_size, file_mtime_ns,
+    summary_version, summary_hash, summary_inputs, brief_plan_title, brief_sport,
+    brief_running, brief_distance_m);
 "#,
 ];
 

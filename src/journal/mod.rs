@@ -715,15 +715,7 @@ impl Journal {
         };
         self.write_cache(|tx, path| {
             let change = upsert_row(tx, path, &record, None, now)?;
-            tx.execute(
-                "UPDATE session SET unreadable = ?2, summary_json = NULL, summary_version = NULL,
-                     summary_hash = NULL, work_intervals = NULL
-                 WHERE session_id = ?1",
-                params![record.session_id, reason],
-            )
-            .sq(path)?;
-            fill_brief(tx, path, &record.session_id)?;
-            delete_card(tx, path, &record.session_id)?;
+            mark_unreadable(tx, path, &record.session_id, reason)?;
             Ok(change)
         })
     }
@@ -1937,14 +1929,7 @@ impl Journal {
                     ..record.clone()
                 };
                 upsert_row(tx, path, &record, stat.as_ref(), now)?;
-                tx.execute(
-                    "UPDATE session SET unreadable = ?2, summary_json = NULL, \
-                         summary_version = NULL, summary_hash = NULL, work_intervals = NULL
-                     WHERE session_id = ?1",
-                    params![record.session_id, reason],
-                )
-                .sq(path)?;
-                delete_card(tx, path, &record.session_id)?;
+                mark_unreadable(tx, path, &record.session_id, reason)?;
             }
             Ok(())
         })
@@ -1952,6 +1937,20 @@ impl Journal {
 }
 
 // ----- row helpers (shared by read and write paths) -----
+
+/// Mark a session's file unreadable (`reason`, one line): no analysis, no card, the brief
+/// columns cleared with the summary.
+fn mark_unreadable(tx: &Connection, path: &Path, session_id: &str, reason: &str) -> Result<()> {
+    tx.execute(
+        "UPDATE session SET unreadable = ?2, summary_json = NULL, summary_version = NULL,
+             summary_hash = NULL, work_intervals = NULL
+         WHERE session_id = ?1",
+        params![session_id, reason],
+    )
+    .sq(path)?;
+    fill_brief(tx, path, session_id)?;
+    delete_card(tx, path, session_id)
+}
 
 /// Insert or refresh a session row (see [`Journal::upsert_session_with_stat`]); a session
 /// row written here is readable again, so its unreadable mark is cleared.

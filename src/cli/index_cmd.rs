@@ -78,22 +78,25 @@ fn work(athlete: &Athlete, act: &Activity) -> Outcome {
 }
 
 /// Whether the journal already holds this file as it is on disk (the same stat), with a
-/// summary current for the athlete's profile and plans, or marked unreadable.
+/// summary current for the athlete's profile and plans (from the journal's columns, no
+/// summary read: `warm`), or marked unreadable.
 fn unchanged(
     journal: &Journal,
+    warm: &std::collections::HashMap<String, journal::WarmRow>,
     athlete: &Athlete,
     id: &str,
     stat: &Option<FileStat>,
 ) -> Result<bool, journal::JournalError> {
-    if stat.is_none() || journal.file_stat(id)? != *stat {
+    let Some(row) = warm.get(id) else {
+        return Ok(false);
+    };
+    if stat.is_none() || row.stat != *stat {
         return Ok(false);
     }
-    if journal.unreadable(id).ok().flatten().is_some() {
+    if row.summary_current && row.summary_inputs.as_deref() == Some(&athlete.inputs_digest) {
         return Ok(true);
     }
-    Ok(journal
-        .cached_summary(id, ANALYSIS_VERSION)?
-        .is_some_and(|json| workspace::summary_is_current(&json, athlete)))
+    Ok(journal.unreadable(id).ok().flatten().is_some())
 }
 
 /// Scan `roster` into `journal` on `workers` threads; `progress(done, total)` is called on
@@ -107,11 +110,12 @@ pub fn index(
     let started = Instant::now();
     let mut report = IndexReport::default();
     let mut jobs = Vec::new();
+    let warm = journal.warm_rows(ANALYSIS_VERSION)?;
     for (ai, athlete) in roster.athletes.iter().enumerate() {
         for (xi, act) in athlete.activities.iter().enumerate() {
             report.files += 1;
             let id = athlete.session_id(act);
-            if unchanged(journal, athlete, &id, &FileStat::of(&act.path))? {
+            if unchanged(journal, &warm, athlete, &id, &FileStat::of(&act.path))? {
                 report.unchanged += 1;
             } else {
                 jobs.push(Job {

@@ -180,6 +180,7 @@ fn copy_dir(from: &Path, to: &Path) {
 
 /// The demo athletes copied `copies` times under new ids (`<id>-<k>`) into `root`.
 fn big_roster(root: &Path, copies: usize) {
+    std::fs::create_dir_all(root).expect("mkdir");
     let demo = Path::new(env!("CARGO_MANIFEST_DIR")).join("demo-athletes");
     for entry in std::fs::read_dir(&demo).expect("demo roster") {
         let entry = entry.expect("entry");
@@ -203,10 +204,9 @@ fn copies() -> usize {
 }
 
 /// The app on the large roster with a warm journal (its own scan run to the end), 160x48.
-fn big_app(root: &Path) -> App {
+fn big_app(root: &Path, journal: &Path) -> App {
     let open = || {
-        let ws = splitdesk::workspace::Workspace::open(root, Some(&root.join("journal.sqlite")))
-            .expect("workspace");
+        let ws = splitdesk::workspace::Workspace::open(root, Some(journal)).expect("workspace");
         let mut app = App::new(
             ws.roster,
             ws.journal,
@@ -232,8 +232,9 @@ fn big_app(root: &Path) -> App {
 /// worker), so the figures are the work a key costs, not the event loop's waits.
 fn bench_big_roster_keys(c: &mut Criterion) {
     let dir = tempfile::tempdir().expect("tempdir");
-    big_roster(dir.path(), copies());
-    let mut app = big_app(dir.path());
+    let roster = dir.path().join("roster");
+    big_roster(&roster, copies());
+    let mut app = big_app(&roster, &dir.path().join("journal.sqlite"));
     let sessions = app.roster.activities().count();
     let mut term = Terminal::new(TestBackend::new(160, 48)).expect("terminal");
     // The queue's first session with work intervals to score.

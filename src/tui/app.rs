@@ -1694,21 +1694,18 @@ impl App {
     }
 
     /// The draft for the open session from its review, the coach's grades and the note.
-    fn draft_text(&self, note: Option<&str>) -> String {
+    fn draft_text(&mut self, note: Option<&str>) -> String {
+        // The comparison with the earlier runs, asked once per open session.
+        super::panes::context_view::ensure_comparison(self);
         let Some(o) = self.open.as_ref() else {
             return String::new();
         };
         let (Some(review), Some(athlete)) = (o.review.as_ref(), self.athlete(o.athlete)) else {
             return String::new();
         };
-        // The comparison with the earlier runs: the one the view holds, else asked now.
-        let asked;
         let earlier = match &o.context.comparison {
             Some(Ok(c)) => Some(c),
-            _ => {
-                asked = crate::context::comparison(&self.journal, athlete, &o.session_id).ok();
-                asked.as_ref()
-            }
+            _ => None,
         };
         let input = crate::export::feedback::DraftInput {
             review,

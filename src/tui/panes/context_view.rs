@@ -142,13 +142,7 @@ pub fn ensure_view(app: &mut App) {
     };
     match lower {
         Lower::Findings => {}
-        Lower::SameWorkout if o.context.comparison.is_none() => {
-            let c = crate::context::comparison(&app.journal, athlete, &id)
-                .map_err(|e| printable(&e.to_string()));
-            if let Some(o) = app.open.as_mut() {
-                o.context.comparison = Some(c);
-            }
-        }
+        Lower::SameWorkout => ensure_comparison(app),
         Lower::Week if o.context.week.is_none() => {
             let w = crate::context::week_of_session(&app.journal, athlete, &id, today())
                 .map_err(|e| printable(&e.to_string()));
@@ -157,6 +151,22 @@ pub fn ensure_view(app: &mut App) {
             }
         }
         _ => {}
+    }
+}
+
+/// Fill the open session's comparison with its earlier runs (once): for the "same
+/// workout" view and for the feedback draft.
+pub fn ensure_comparison(app: &mut App) {
+    let Some(o) = app.open.as_ref().filter(|o| o.context.comparison.is_none()) else {
+        return;
+    };
+    let Some(athlete) = app.athlete(o.athlete) else {
+        return;
+    };
+    let c = crate::context::comparison(&app.journal, athlete, &o.session_id)
+        .map_err(|e| printable(&e.to_string()));
+    if let Some(o) = app.open.as_mut() {
+        o.context.comparison = Some(c);
     }
 }
 

@@ -4,7 +4,8 @@
 //! value ([`Done`], the analysis boxed) over a channel. Nothing is shared between the UI and
 //! the workers but the queue. Every job carries a generation id; the UI drops results whose
 //! generation is stale, and [`Worker::retain`] drops queued jobs nobody wants any more.
-//! Urgent jobs (the session the coach just opened) go to the front of the queue.
+//! Urgent jobs (the session the coach just opened, and the one after it in the queue) go
+//! to the front of the queue.
 
 use std::collections::VecDeque;
 use std::sync::atomic::{AtomicBool, Ordering};
@@ -24,6 +25,9 @@ pub enum JobKind {
     Scan,
     /// The coach opened this session: the full series is needed for the chart.
     Open,
+    /// The session after the open one in the queue (what `]` opens), read ahead so it
+    /// opens from memory. At most one is kept.
+    Prefetch,
 }
 
 /// One session to read and (when needed) analyse.
@@ -31,7 +35,7 @@ pub enum JobKind {
 pub struct Job {
     /// The requester's generation; results of older generations are dropped by the UI.
     pub generation: u64,
-    /// Scan or open.
+    /// Scan, open or prefetch.
     pub kind: JobKind,
     /// The athlete (shared, read-only).
     pub athlete: Arc<Athlete>,

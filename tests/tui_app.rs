@@ -43,6 +43,44 @@ fn queue_opens_oldest_first_and_focuses_the_verdict() {
 }
 
 #[test]
+fn the_next_session_in_the_queue_is_read_ahead_and_opens_without_a_job() {
+    let dir = tempfile::tempdir().unwrap();
+    let mut app = app_with(dir.path());
+    ch(&mut app, ']');
+    assert_eq!(app.open.as_ref().unwrap().session_id, EASY);
+    // Opening EASY read LONG, the next in the queue, ahead (the jobs ran in `ch`).
+    assert_eq!(app.prefetched(), Some(LONG));
+    let effects = app.handle(AppEvent::Input(crossterm::event::Event::Key(
+        crossterm::event::KeyEvent::new(KeyCode::Char(']'), crossterm::event::KeyModifiers::NONE),
+    )));
+    let o = app.open.as_ref().expect("open");
+    assert_eq!(o.session_id, LONG);
+    assert!(o.analysed.is_some(), "drawn from memory at once");
+    assert_eq!(
+        o.chart.map(|c| c.duration),
+        Some(o.analysed.as_ref().unwrap().session.duration_s())
+    );
+    // No job opens LONG; the one job asked for reads INTERVALS ahead.
+    let jobs: Vec<(splitdesk::worker::JobKind, String)> = effects
+        .iter()
+        .filter_map(|e| match e {
+            Effect::Submit { job, .. } => Some((job.kind, job.session_id())),
+            _ => None,
+        })
+        .collect();
+    assert_eq!(
+        jobs,
+        vec![(splitdesk::worker::JobKind::Prefetch, INTERVALS.to_string())]
+    );
+    run_effects(&mut app, effects);
+    assert_eq!(app.prefetched(), Some(INTERVALS));
+    // Opening something else drops the read-ahead it no longer needs; at most one is kept.
+    ch(&mut app, '[');
+    assert_eq!(app.open.as_ref().unwrap().session_id, EASY);
+    assert_eq!(app.prefetched(), Some(LONG));
+}
+
+#[test]
 fn scoring_commits_and_advances_to_the_next_work_interval() {
     let dir = tempfile::tempdir().unwrap();
     let mut app = app_with(dir.path());

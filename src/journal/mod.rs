@@ -75,6 +75,15 @@ pub const BUSY_TIMEOUT: Duration = Duration::from_secs(5);
 /// Result of journal operations.
 pub type Result<T, E = JournalError> = std::result::Result<T, E>;
 
+/// A session's [`WarmRow`] with its content hash ([`Journal::scan_rows`]).
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct ScanRow {
+    /// The stat and the currency of the cached summary.
+    pub warm: WarmRow,
+    /// The content hash the journal holds for the session.
+    pub content_hash: Option<String>,
+}
+
 /// An open journal. Reads take `&self`; every write takes `&mut self` and is one transaction.
 #[derive(Debug)]
 pub struct Journal {
@@ -961,6 +970,54 @@ impl Journal {
                             summary_current: r.get::<_, Option<bool>>(4).ok().flatten()
                                 == Some(true),
                             summary_inputs: cache_text(r.get_ref(5)?),
+                        },
+                    ))
+                })
+                .sq(path)?;
+            rows.collect::<rusqlite::Result<_>>().sq(path)
+        })
+    }
+
+    /// [`Journal::warm_rows`] with each session's content hash: what the workstation's
+    /// start-up re-check hands its workers (a file whose stat changed but whose content
+    /// has this hash needs no new analysis). One query over the columns: no summary is read.
+    pub fn scan_rows(
+        &self,
+        analysis_version: u32,
+    ) -> Result<std::collections::HashMap<String, ScanRow>> {
+        self.read(|conn, path| {
+            let mut stmt = conn
+                .prepare_cached(
+                    "SELECT session_id, CAST(file_path AS BLOB), file_size, file_mtime_ns,
+                        summary_version IS ?1 AND summary_hash = content_hash, summary_inputs,
+                        content_hash
+                     FROM session",
+                )
+                .sq(path)?;
+            let rows = stmt
+                .query_map([analysis_version], |r| {
+                    let id = cache_text(r.get_ref(0)?).unwrap_or_default();
+                    let file = cache_text(r.get_ref(1)?);
+                    let size: Option<i64> = r.get(2).ok().flatten();
+                    let mtime: Option<i64> = r.get(3).ok().flatten();
+                    let stat = match (file, size.and_then(|n| u64::try_from(n).ok()), mtime) {
+                        (Some(p), Some(size), Some(mtime_ns)) => Some(FileStat {
+                            path: PathBuf::from(p),
+                            size,
+                            mtime_ns,
+                        }),
+                        _ => None,
+                    };
+                    Ok((
+                        id,
+                        ScanRow {
+                            warm: WarmRow {
+                                stat,
+                                summary_current: r.get::<_, Option<bool>>(4).ok().flatten()
+                                    == Some(true),
+                                summary_inputs: cache_text(r.get_ref(5)?),
+                            },
+                            content_hash: cache_text(r.get_ref(6)?),
                         },
                     ))
                 })

@@ -16,8 +16,8 @@ use crossterm::event::{Event, KeyCode, KeyEvent, KeyEventKind, KeyModifiers};
 use crate::analysis::history::SessionSummary;
 use crate::analysis::review::{Review, ANALYSIS_VERSION};
 use crate::journal::{
-    read_note, FeedbackEventKind, Journal, JournalError, PurposeVerdict, QueueEntry, ReviewStage,
-    ReviewState, Revision, Ruler,
+    read_note, FeedbackEventKind, FileStat, Journal, JournalError, PurposeVerdict, QueueEntry,
+    ReviewStage, ReviewState, Revision, Ruler,
 };
 use crate::model::units::format_distance;
 use crate::roster::{Athlete, Roster};
@@ -40,7 +40,7 @@ pub enum Effect {
         /// Put it first.
         urgent: bool,
     },
-    /// Drop queued `Open` jobs older than this generation.
+    /// Drop queued `Open` and `Prefetch` jobs older than this generation.
     DropStaleOpens(u64),
     /// Copy the text to the clipboard.
     Copy(String),
@@ -398,6 +398,9 @@ pub struct App {
     pub pending_leave: Option<Leave>,
     /// Sessions marked seen without a grade (counted apart from the queue).
     pub seen_count: usize,
+    /// The session after the open one in the queue, read ahead (at most one is kept):
+    /// `(id asked for, the analysed session once it came back)`.
+    prefetch: Option<(String, Option<Box<Analysed>>)>,
 }
 
 /// The day's messages between the key press and the clipboard.
@@ -469,6 +472,7 @@ impl App {
             journal_version: None,
             pending_leave: None,
             seen_count: 0,
+            prefetch: None,
         };
         app.problems = app.roster.problems.iter().map(|p| p.to_string()).collect();
         app.refresh_lists();
@@ -544,22 +548,29 @@ impl App {
     pub fn start_scan(&mut self) -> Vec<Effect> {
         self.scan_generation += 1;
         let generation = self.scan_generation;
+        // One query over the journal's columns says which sessions hold a summary current
+        // for their content, profile and plans: no summary is read for unchanged files.
+        let known = match self.journal.scan_rows(ANALYSIS_VERSION) {
+            Ok(rows) => rows,
+            Err(e) => {
+                self.say(Tone::Warn, short_error(&e));
+                Default::default()
+            }
+        };
         let mut out = Vec::new();
         for athlete in &self.athletes {
             for act in &athlete.activities {
                 let id = athlete.session_id(act);
                 // A summary made under another profile or other plans is stale.
-                let cached = matches!(
-                    self.journal.cached_summary(&id, ANALYSIS_VERSION),
-                    Ok(Some(json)) if crate::workspace::summary_is_current(&json, athlete)
-                );
-                let (cached_hash, cached_stat) = if cached {
-                    (
-                        self.journal.session_hash(&id).ok().flatten(),
-                        self.journal.file_stat(&id).ok().flatten(),
-                    )
-                } else {
-                    (None, None)
+                let (cached_hash, cached_stat) = match known.get(&id) {
+                    Some(row)
+                        if row.warm.summary_current
+                            && row.warm.summary_inputs.as_deref()
+                                == Some(athlete.inputs_digest.as_str()) =>
+                    {
+                        (row.content_hash.clone(), row.warm.stat.clone())
+                    }
+                    _ => (None, None),
                 };
                 out.push(Effect::Submit {
                     job: Job {
@@ -1567,29 +1578,107 @@ impl App {
         self.focus = Focus::Verdict;
         self.message = None;
         self.say_unreadable();
-        let Some(athlete) = self.athletes.get(aidx).cloned() else {
+        // Read ahead when `]` led here (or to the one before): drawn from memory now, when
+        // the file is as it was read.
+        let ready = match self.prefetch.take() {
+            Some((id, Some(a)))
+                if id == session_id
+                    && a.file_stat.is_some()
+                    && a.file_stat == FileStat::of(&act.path) =>
+            {
+                Some(a)
+            }
+            _ => None,
+        };
+        let mut out = vec![Effect::DropStaleOpens(generation)];
+        // Urgent jobs go first: the read-ahead is queued before the open job so the open
+        // job runs first.
+        out.extend(self.prefetch_next(generation));
+        match ready {
+            Some(a) => self.attach(a),
+            None => {
+                if let Some(athlete) = self.athletes.get(aidx).cloned() {
+                    out.push(Effect::Submit {
+                        job: Job {
+                            generation,
+                            kind: JobKind::Open,
+                            athlete,
+                            activity: act,
+                            cached_hash: None,
+                            cached_stat: None,
+                        },
+                        urgent: true,
+                    });
+                }
+            }
+        }
+        out
+    }
+
+    /// The read-ahead of the session `]` would open next (the open session's successor in
+    /// the queue): one job, its result kept until that session is opened or another is
+    /// opened instead.
+    fn prefetch_next(&mut self, generation: u64) -> Vec<Effect> {
+        let open = self.open.as_ref().map(|o| o.session_id.clone());
+        let Some(next) = self
+            .queue_target(true)
+            .filter(|id| Some(id) != open.as_ref())
+        else {
             return Vec::new();
         };
-        vec![
-            Effect::DropStaleOpens(generation),
-            Effect::Submit {
-                job: Job {
-                    generation,
-                    kind: JobKind::Open,
-                    athlete,
-                    activity: act,
-                    cached_hash: None,
-                    cached_stat: None,
-                },
-                urgent: true,
+        let Some((athlete, act)) = self.roster.find_session(&next).and_then(|(a, x)| {
+            let i = self.athlete_index(&a.id)?;
+            Some((self.athletes.get(i).cloned()?, x.clone()))
+        }) else {
+            return Vec::new();
+        };
+        self.prefetch = Some((next, None));
+        vec![Effect::Submit {
+            job: Job {
+                generation,
+                kind: JobKind::Prefetch,
+                athlete,
+                activity: act,
+                cached_hash: None,
+                cached_stat: None,
             },
-        ]
+            urgent: true,
+        }]
+    }
+
+    /// The id of the prefetched session, once its analysis is in memory.
+    pub fn prefetched(&self) -> Option<&str> {
+        match &self.prefetch {
+            Some((id, Some(_))) => Some(id),
+            _ => None,
+        }
     }
 
     fn queue_step(&mut self, forward: bool) -> Vec<Effect> {
         if self.lists_dirty {
             self.refresh_lists();
         }
+        match self.queue_target(forward) {
+            Some(id) => self.open_session(&id),
+            None => {
+                let text = if self.queue.is_empty() && self.roster.activities().next().is_none() {
+                    "no sessions in this roster: nothing to review"
+                } else if self.queue.is_empty() {
+                    "the queue is empty: every session is reviewed"
+                } else if forward {
+                    "no later unreviewed session"
+                } else {
+                    "no earlier unreviewed session"
+                };
+                self.say(Tone::Info, text);
+                Vec::new()
+            }
+        }
+    }
+
+    /// The session `]` (`forward`) or `[` opens: the open session's neighbour in the queue
+    /// (by start when it has left the queue), else the queue's first or last.
+    fn queue_target(&self, forward: bool) -> Option<String> {
         let current = self.open.as_ref().map(|o| o.session_id.clone());
         let pos = current
             .as_ref()
@@ -1630,22 +1719,7 @@ impl App {
                 }
             }
         };
-        match target.map(|e| e.session_id.clone()) {
-            Some(id) => self.open_session(&id),
-            None => {
-                let text = if self.queue.is_empty() && self.roster.activities().next().is_none() {
-                    "no sessions in this roster: nothing to review"
-                } else if self.queue.is_empty() {
-                    "the queue is empty: every session is reviewed"
-                } else if forward {
-                    "no later unreviewed session"
-                } else {
-                    "no earlier unreviewed session"
-                };
-                self.say(Tone::Info, text);
-                Vec::new()
-            }
-        }
+        target.map(|e| e.session_id.clone())
     }
 
     fn reload_grades(&mut self) {
@@ -1746,6 +1820,29 @@ impl App {
                 if !current {
                     return;
                 }
+            }
+            JobKind::Prefetch => {
+                let wanted = done.generation == self.open_generation
+                    && self
+                        .prefetch
+                        .as_ref()
+                        .is_some_and(|(id, a)| id == &done.session_id && a.is_none());
+                if !wanted {
+                    return;
+                }
+                match done.outcome {
+                    Outcome::Analysed(a) => {
+                        self.record(&a);
+                        self.reviews.insert(a.session_id.clone(), a.review.clone());
+                        self.apply_session(&a.session_id, Some(a.session.start));
+                        if let Some(p) = self.prefetch.as_mut() {
+                            p.1 = Some(a);
+                        }
+                    }
+                    // What went wrong is said when the session is opened.
+                    _ => self.prefetch = None,
+                }
+                return;
             }
         }
         match done.outcome {

@@ -427,7 +427,7 @@ where
             Effect::Quit => return Ok(true),
             Effect::Submit { job, urgent } => worker.submit(job, urgent),
             Effect::DropStaleOpens(g) => {
-                worker.retain(|j| j.kind != JobKind::Open || j.generation >= g)
+                worker.retain(|j| j.kind == JobKind::Scan || j.generation >= g)
             }
             Effect::Copy(text) => {
                 let how = host.copy(&text);

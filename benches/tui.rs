@@ -262,6 +262,38 @@ fn bench_big_roster_keys(c: &mut Criterion) {
             term.draw(|f| ui::draw(f, black_box(&app))).expect("draw");
         })
     });
+    // `]` with the next session read ahead (the read-ahead job of the session it opens runs
+    // after the clock stops, as it does on a worker while the coach reads): the key to the
+    // drawn session with its series, from memory.
+    g.bench_function("queue_step_read_ahead_to_drawn_session", |b| {
+        b.iter_custom(|iters| {
+            let mut took = std::time::Duration::ZERO;
+            for _ in 0..iters {
+                if app.prefetched().is_none() {
+                    // The end of the queue: start again at its first session (untimed).
+                    app.open = None;
+                    let fx = app.handle(AppEvent::Input(Event::Key(KeyEvent::new(
+                        KeyCode::Char(']'),
+                        KeyModifiers::NONE,
+                    ))));
+                    run(&mut app, fx);
+                }
+                let t = std::time::Instant::now();
+                let fx = app.handle(AppEvent::Input(Event::Key(KeyEvent::new(
+                    KeyCode::Char(']'),
+                    KeyModifiers::NONE,
+                ))));
+                term.draw(|f| ui::draw(f, black_box(&app))).expect("draw");
+                took += t.elapsed();
+                assert!(
+                    app.open.as_ref().is_some_and(|o| o.analysed.is_some()),
+                    "drawn from memory"
+                );
+                run(&mut app, fx);
+            }
+            took
+        })
+    });
     let mut forward = true;
     g.bench_function("queue_step_to_drawn_session", |b| {
         b.iter(|| {
@@ -275,6 +307,38 @@ fn bench_big_roster_keys(c: &mut Criterion) {
         b.iter(|| {
             key(&mut app, KeyCode::Down);
             term.draw(|f| ui::draw(f, black_box(&app))).expect("draw");
+        })
+    });
+    // Start to the first frame on the warm journal: open the roster and the journal, build
+    // the app (the lists from the journal's columns), draw 160x48.
+    let journal = dir.path().join("journal.sqlite");
+    g.sample_size(10);
+    g.bench_function("start_to_first_frame_160x48", |b| {
+        b.iter(|| {
+            let ws =
+                splitdesk::workspace::Workspace::open(&roster, Some(&journal)).expect("workspace");
+            let mut app = App::new(
+                ws.roster,
+                ws.journal,
+                Options {
+                    keymap: KeyMap::default(),
+                    theme: Theme::colour(),
+                    feedback_dir: None,
+                },
+            );
+            app.size = (160, 48);
+            let mut term = Terminal::new(TestBackend::new(160, 48)).expect("terminal");
+            term.draw(|f| ui::draw(f, black_box(&app))).expect("draw");
+            black_box(term);
+        })
+    });
+    // The warm re-check after the first frame, all of it on this thread: the jobs asked
+    // (one journal query), each job's `stat`, each result handled.
+    g.bench_function("warm_recheck_every_session_one_thread", |b| {
+        b.iter(|| {
+            let fx = app.start_scan();
+            run(&mut app, fx);
+            assert_eq!(app.progress.done, app.progress.total);
         })
     });
     g.finish();

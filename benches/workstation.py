@@ -81,8 +81,14 @@ def count_sessions(roster):
 
 
 class Tmux:
+    """One tmux server on its own socket; each run gets a new one (a server being killed
+    can refuse the next session on the same socket)."""
+
+    serial = 0
+
     def __init__(self, socket):
-        self.socket = socket
+        Tmux.serial += 1
+        self.socket = f"{socket}-{Tmux.serial}"
 
     def run(self, *args, check=True):
         return subprocess.run(
@@ -99,6 +105,12 @@ class Tmux:
 
     def kill(self):
         self.run("kill-server", check=False)
+        base = os.environ.get("TMUX_TMPDIR", "/tmp")
+        path = os.path.join(base, f"tmux-{os.getuid()}", self.socket)
+        try:
+            os.remove(path)
+        except OSError:
+            pass
 
 
 def status(pid):
@@ -159,6 +171,25 @@ def one_run(binary, roster, journal, socket, timeout):
     return first, done, peak, rss
 
 
+def tmux_overhead(socket, runs=5):
+    """Median time from `tmux new-session` to a trivial program's output on the screen (the
+    tmux server's start and the polling): subtracted from nothing, printed beside the
+    figures so they can be read net of it."""
+    times = []
+    for _ in range(runs):
+        tmux = Tmux(socket)
+        start = time.monotonic()
+        tmux.run("new-session", "-d", "-s", "bench", "-x", str(COLS), "-y", str(ROWS),
+                 "printf 'ready: %s' help; sleep 5")
+        while time.monotonic() - start < 10:
+            if "ready: help" in tmux.screen():
+                break
+            time.sleep(0.003)
+        times.append(time.monotonic() - start)
+        tmux.kill()
+    return sorted(times)[len(times) // 2]
+
+
 def fmt(t):
     return "timed out" if t is None else f"{t * 1000:.0f} ms"
 
@@ -198,6 +229,8 @@ def main():
             roster = copied_roster(tmp, args.copies)
         sessions = count_sessions(roster)
         print(f"roster: {sessions} activity files ({time.monotonic() - t0:.1f} s to make): {roster}")
+        print(f"tmux start to a trivial program's first output (included in every figure): "
+              f"{tmux_overhead(socket) * 1000:.0f} ms")
         journal = os.path.abspath(args.journal) if args.journal else os.path.join(tmp, "journal.sqlite")
         if not args.skip_cold:
             for suffix in ("", "-wal", "-shm"):
@@ -231,7 +264,6 @@ def main():
                 f"peak RSS max {max(w[2] for w in ok):.0f} MB"
             )
     finally:
-        Tmux(socket).kill()
         shutil.rmtree(tmp, ignore_errors=True)
     return 1 if failed else 0
 

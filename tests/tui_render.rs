@@ -247,3 +247,53 @@ fn history_view_with_a_load_jump() {
     let back = screen(&mut app, 160, 48);
     assert!(back.contains("to 2026-W13"), "{back}");
 }
+
+#[test]
+fn the_status_line_counts_the_start_up_scan_at_80x24() {
+    let dir = tempfile::tempdir().unwrap();
+    build_roster(dir.path());
+    let roster = splitdesk::roster::Roster::open(dir.path()).expect("roster");
+    let journal = splitdesk::journal::Journal::open_in_memory().expect("journal");
+    let mut app = App::new(
+        roster,
+        journal,
+        splitdesk::tui::app::Options {
+            keymap: splitdesk::tui::keymap::KeyMap::default(),
+            theme: splitdesk::tui::theme::Theme::plain(),
+            feedback_dir: None,
+        },
+    );
+    // The status line is the row above the footer.
+    let status = |app: &mut App| {
+        screen(app, 80, 24)
+            .lines()
+            .nth(22)
+            .unwrap_or("")
+            .to_string()
+    };
+    assert!(
+        status(&mut app).ends_with("reading the roster"),
+        "{}",
+        status(&mut app)
+    );
+    let mut jobs = app.start_scan();
+    assert_eq!(jobs.len(), 3);
+    assert!(
+        status(&mut app).ends_with("analysing 0/3"),
+        "{}",
+        status(&mut app)
+    );
+    let first = jobs.remove(0);
+    run_effects(&mut app, vec![first]);
+    assert!(
+        status(&mut app).ends_with("analysing 1/3"),
+        "{}",
+        status(&mut app)
+    );
+    run_effects(&mut app, jobs);
+    assert!(
+        status(&mut app).ends_with("3 to review"),
+        "{}",
+        status(&mut app)
+    );
+}

@@ -593,13 +593,16 @@ impl App {
         out
     }
 
-    /// Background work still running.
+    /// Background work still running (the scan, the open session's load, the read-ahead
+    /// of the next one: the loop looks for their results every few milliseconds, so a
+    /// read-ahead is in memory before the key that wants it).
     pub fn busy(&self) -> bool {
         self.progress.done < self.progress.total
             || self
                 .open
                 .as_ref()
                 .is_some_and(|o| o.analysed.is_none() && o.load_error.is_none())
+            || self.prefetch.as_ref().is_some_and(|(_, a)| a.is_none())
     }
 
     fn say(&mut self, tone: Tone, text: impl Into<String>) {
@@ -631,9 +634,19 @@ impl App {
                 Vec::new()
             }
         };
-        self.counts = self.journal.unreviewed_counts().unwrap_or_default();
-        self.queue = self.journal.unreviewed(None).unwrap_or_default();
-        self.seen_count = self.journal.seen_sessions(None).map_or(0, |v| v.len());
+        // The queue, the counts and the seen sessions from the one read (the journal's
+        // `unreviewed`, `unreviewed_counts` and `seen_sessions` each read every session).
+        self.queue = all
+            .iter()
+            .rev()
+            .filter(|e| e.stage.is_unreviewed())
+            .cloned()
+            .collect();
+        self.counts = BTreeMap::new();
+        for e in &self.queue {
+            *self.counts.entry(e.athlete.clone()).or_insert(0) += 1;
+        }
+        self.seen_count = all.iter().filter(|e| e.stage == ReviewStage::Seen).count();
         let mut rows: HashMap<String, Vec<SessionRow>> = HashMap::new();
         let mut known = std::collections::HashSet::new();
         for e in all {

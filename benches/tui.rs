@@ -228,8 +228,12 @@ fn big_app(root: &Path, journal: &Path) -> App {
 
 /// A score key (`3`) on the open session to the next frame, and `]` / `[` (the next or the
 /// previous session in the queue) until that session is drawn with its series, on the
-/// large roster with a warm journal. The background job runs on this thread (no hop to a
-/// worker), so the figures are the work a key costs, not the event loop's waits.
+/// large roster with a warm journal. The background jobs run on this thread (no hop to a
+/// worker), so the figures are the work a key costs, not the event loop's waits; for
+/// `queue_step_to_drawn_session` that includes reading the following session ahead (a
+/// second analysis, done by a worker in the real loop). `queue_step_read_ahead_to_drawn_session`
+/// times only the key and the frame, the read-ahead running after the clock stops. Also:
+/// start to the first frame, and the whole warm re-check on one thread.
 fn bench_big_roster_keys(c: &mut Criterion) {
     let dir = tempfile::tempdir().expect("tempdir");
     let roster = dir.path().join("roster");

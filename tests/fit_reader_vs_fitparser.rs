@@ -58,9 +58,9 @@ fn differs(bytes: &[u8]) -> Option<String> {
 }
 
 /// Check a named set of files; return (sessions read, errors) and collect the differences.
-fn check<'a>(
+fn check(
     files: impl IntoIterator<Item = (String, Vec<u8>)>,
-    failures: &'a mut Vec<String>,
+    failures: &mut Vec<String>,
 ) -> (usize, usize) {
     let mut counts = (0, 0);
     for (name, bytes) in files {

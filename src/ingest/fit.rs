@@ -243,7 +243,7 @@ const BASE_BYTE: u8 = 0x0D;
 /// the field a byte array (fitparser's fallback, kept so results do not change).
 fn effective_base(base: u8, size: usize) -> u8 {
     let base = base & 0x9F;
-    if size % base_type_size(base) != 0 {
+    if !size.is_multiple_of(base_type_size(base)) {
         BASE_BYTE
     } else {
         base
@@ -620,7 +620,7 @@ fn read_messages(file: &[u8]) -> Result<Raw, ParseError> {
                     let &[num, fsize, index] = f else { continue };
                     let fsize = usize::from(fsize);
                     if let Some(bsize) = descriptions.get(index, num) {
-                        if fsize % bsize != 0 {
+                        if !fsize.is_multiple_of(bsize) {
                             return Err(dev_size_error(index, num, fsize, bsize));
                         }
                     }
@@ -645,7 +645,7 @@ fn read_messages(file: &[u8]) -> Result<Raw, ParseError> {
             let body = take(pos, def.size)?;
             for &(index, num, fsize) in &def.dev {
                 match descriptions.get(index, num) {
-                    Some(bsize) if fsize % bsize != 0 => {
+                    Some(bsize) if !fsize.is_multiple_of(bsize) => {
                         return Err(dev_size_error(index, num, fsize, bsize));
                     }
                     Some(_) => {}

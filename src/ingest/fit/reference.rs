@@ -98,7 +98,7 @@ pub fn check_messages(file: &[u8]) -> Result<Cow<'_, [u8]>, ParseError> {
             for (k, f) in field_bytes.chunks_exact(3).enumerate() {
                 let &[num, fsize, base] = f else { continue };
                 let (fsize, base) = (usize::from(fsize), base & 0x9F);
-                if fsize % base_type_size(base) != 0 {
+                if !fsize.is_multiple_of(base_type_size(base)) {
                     patches.push(pos + 3 * k + 2);
                 }
                 fields.push((num, size, fsize));
@@ -112,7 +112,7 @@ pub fn check_messages(file: &[u8]) -> Result<Cow<'_, [u8]>, ParseError> {
                     let &[num, fsize, index] = f else { continue };
                     let fsize = usize::from(fsize);
                     if let Some(&bsize) = dev_types.get(&(index, num)) {
-                        if fsize % bsize != 0 {
+                        if !fsize.is_multiple_of(bsize) {
                             return Err(dev_size_error(index, num, fsize, bsize));
                         }
                     }
@@ -145,7 +145,7 @@ pub fn check_messages(file: &[u8]) -> Result<Cow<'_, [u8]>, ParseError> {
             // field with a size that is not a multiple of its type and lose step.
             for &(index, num, fsize) in &def.dev {
                 if let Some(&bsize) = dev_types.get(&(index, num)) {
-                    if fsize % bsize != 0 {
+                    if !fsize.is_multiple_of(bsize) {
                         return Err(dev_size_error(index, num, fsize, bsize));
                     }
                 }

@@ -247,8 +247,12 @@ pub fn classify_with(session: &Session, grads: Option<&[Option<f64>]>) -> Motion
         .filter(|(_, s)| **s == MotionState::Run)
         .filter_map(|(i, _)| adjusted(i))
         .collect();
-    run_speeds.sort_by(f64::total_cmp);
-    if let Some(&median) = run_speeds.get(run_speeds.len() / 2) {
+    // The upper median, as a full sort would give it (total order: the same element).
+    let mid = run_speeds.len() / 2;
+    if mid < run_speeds.len() {
+        run_speeds.select_nth_unstable_by(mid, f64::total_cmp);
+    }
+    if let Some(&median) = run_speeds.get(mid) {
         for (i, st) in state.iter_mut().enumerate() {
             if *st == MotionState::Run
                 && speed

@@ -955,8 +955,10 @@ fn hr_checks(session: &Session, s: &Series<'_>, profile: &AthleteProfile) -> HrC
             .filter_map(|i| sp.get(i).copied().flatten())
             .collect();
         if !moving.is_empty() {
-            moving.sort_by(f64::total_cmp);
-            let median = moving.get(moving.len() / 2).copied().unwrap_or(0.0);
+            // The upper median without a full sort (total order: the same element).
+            let mid = moving.len() / 2;
+            moving.select_nth_unstable_by(mid, f64::total_cmp);
+            let median = moving.get(mid).copied().unwrap_or(0.0);
             let (mut dist, mut time) = (0.0, 0.0);
             for &(a, b) in &episodes {
                 let lo = s.time(a) - 60.0;
@@ -1691,8 +1693,9 @@ fn whole_session(
                     .filter_map(|i| adj.get(i).copied().flatten())
                     .collect();
                 if !vals.is_empty() {
-                    vals.sort_by(f64::total_cmp);
-                    let med = vals.get(vals.len() / 2).copied().unwrap_or(0.0);
+                    let mid = vals.len() / 2;
+                    vals.select_nth_unstable_by(mid, f64::total_cmp);
+                    let med = vals.get(mid).copied().unwrap_or(0.0);
                     // Heart rate takes a few minutes to settle at a new effort: the
                     // drift is fitted from HR_SETTLE_S into the window.
                     let settle_from = (0..n)

@@ -108,7 +108,7 @@ fn the_rest_of_a_broken_profile_is_used() {
     assert_eq!(a.profile.threshold_speed_mps, None);
     assert!((a.profile.pace("5k").unwrap() - 1000.0 / 232.0).abs() < 1e-9);
     assert_eq!(a.profile_problems.len(), 2);
-    assert_eq!(a.plan_problems.len(), 2);
+    assert_eq!(a.plan_problems().len(), 2);
     assert_eq!(a.problems().len(), 4);
     assert!(a.has_problems());
 }

@@ -8,7 +8,10 @@
 //! <roster>/<athlete-id>/notes/<stem>.txt   the athlete's own comments
 //! ```
 //!
-//! Discovery only lists files; it never decodes activities. Anything unreadable becomes a
+//! Discovery only lists files; it never decodes activities, nor reads plan files (they are
+//! read when a session is analysed, and checked when their problems are asked for). An
+//! entry that is not a symbolic link is known from its folder's listing; only links are
+//! resolved, so nothing outside the roster is ever read. Anything unreadable becomes a
 //! `Problem` in the listing, never a failure of the whole roster.
 
 pub mod plans;
@@ -18,6 +21,7 @@ mod safe_text;
 pub(crate) use profile::toml_error_line;
 
 use std::path::{Path, PathBuf};
+use std::sync::OnceLock;
 
 use serde::Deserialize;
 
@@ -89,14 +93,16 @@ pub struct Athlete {
     pub plan_files: Vec<PathBuf>,
     /// What is wrong in `athlete.toml`; `profile` holds every key that could be read.
     pub profile_problems: Vec<ProfileProblem>,
-    /// Plan files that cannot be read, or that name paces the profile does not have.
-    pub plan_problems: Vec<Problem>,
+    /// Plan files that cannot be read, or that name paces the profile does not have:
+    /// checked when first asked for ([`Athlete::plan_problems`]), not at open.
+    plan_problems: OnceLock<Vec<Problem>>,
     /// What is wrong with the folder itself (no `athlete.toml`, a profile that leads
     /// outside the roster).
     pub folder_problems: Vec<Problem>,
     /// A digest of everything besides the activity file that a review of this athlete's
-    /// sessions depends on (the profile file and every plan file, names and contents): a
-    /// cached review made under another digest is stale.
+    /// sessions depends on (the profile's content, and every plan file's name and stat; see
+    /// `inputs_digest` in this module for why the stat): a cached review made under another
+    /// digest is stale.
     pub inputs_digest: String,
 }
 
@@ -104,6 +110,20 @@ impl Athlete {
     /// The athlete's `athlete.toml`.
     pub fn profile_path(&self) -> PathBuf {
         self.dir.join("athlete.toml")
+    }
+
+    /// The problems of the athlete's plan files (a file that cannot be read, is not a valid
+    /// plan, or names paces the profile does not have), one line each. The plan files are
+    /// read and checked the first time this is asked for (by `splitdesk check`, the
+    /// workstation's problems), not when the roster is opened: a command that never shows
+    /// them never reads them. The result is kept for the life of this value.
+    pub fn plan_problems(&self) -> &[Problem] {
+        self.plan_problems.get_or_init(|| {
+            self.plan_files
+                .iter()
+                .flat_map(|p| plans::check_plan_file(p, &self.profile))
+                .collect()
+        })
     }
 
     /// Every folder, profile and plan problem of this athlete, one line each.
@@ -116,7 +136,7 @@ impl Athlete {
                 path: profile.clone(),
                 message: p.to_string(),
             }))
-            .chain(self.plan_problems.iter().cloned())
+            .chain(self.plan_problems().iter().cloned())
             .collect()
     }
 
@@ -124,7 +144,7 @@ impl Athlete {
     pub fn has_problems(&self) -> bool {
         !self.folder_problems.is_empty()
             || !self.profile_problems.is_empty()
-            || !self.plan_problems.is_empty()
+            || !self.plan_problems().is_empty()
     }
 
     /// The stable session id of an activity: `<athlete-id>/<file-stem>`.
@@ -141,7 +161,13 @@ pub struct Roster {
     pub units: Units,
     /// Sorted by id.
     pub athletes: Vec<Athlete>,
-    pub problems: Vec<Problem>,
+    /// The problems found while listing the roster (roster.toml, folders, links, files),
+    /// without the athletes' own.
+    found: Vec<Problem>,
+    /// For each athlete (same order as `athletes`), where in `found` its own problems go.
+    athlete_slots: Vec<usize>,
+    /// `found` with every athlete's own problems in place, made when first asked for.
+    problems: OnceLock<Vec<Problem>>,
 }
 
 #[derive(Debug, Deserialize, Default)]
@@ -152,6 +178,30 @@ struct RosterFile {
 }
 
 impl Roster {
+    /// Every problem of the roster, one line each, in the order of the listing: the roster's
+    /// own, each folder's, and after each athlete's files its folder, profile and plan
+    /// problems ([`Athlete::problems`]). The first call reads and checks every plan file
+    /// ([`Athlete::plan_problems`]).
+    pub fn problems(&self) -> &[Problem] {
+        self.problems.get_or_init(|| {
+            let mut out = Vec::with_capacity(self.found.len());
+            let mut from = 0;
+            for (athlete, &slot) in self.athletes.iter().zip(&self.athlete_slots) {
+                out.extend(
+                    self.found
+                        .get(from..slot)
+                        .unwrap_or_default()
+                        .iter()
+                        .cloned(),
+                );
+                out.extend(athlete.problems());
+                from = slot.max(from);
+            }
+            out.extend(self.found.get(from..).unwrap_or_default().iter().cloned());
+            out
+        })
+    }
+
     pub fn athlete(&self, id: &str) -> Option<&Athlete> {
         self.athletes.iter().find(|a| a.id == id)
     }
@@ -246,9 +296,10 @@ impl Roster {
             reason,
         })?;
         let mut athletes = Vec::new();
+        let mut athlete_slots = Vec::new();
         for found in athlete_folders(root, &inside, &mut problems) {
             let athlete = read_athlete(found, &inside, units, &mut problems);
-            problems.extend(athlete.problems());
+            athlete_slots.push(problems.len());
             athletes.push(athlete);
         }
         Ok(Roster {
@@ -256,7 +307,9 @@ impl Roster {
             name,
             units,
             athletes,
-            problems,
+            found: problems,
+            athlete_slots,
+            problems: OnceLock::new(),
         })
     }
 }
@@ -318,6 +371,59 @@ fn resolve(path: &Path, inside: &Path, problems: &mut Vec<Problem>) -> Option<Pa
     None
 }
 
+/// One entry of a listed folder, with what the listing said it is.
+struct Entry {
+    path: PathBuf,
+    /// The entry itself (a link is a link, not followed), from the folder listing (no
+    /// extra system call on the usual file systems); `None` when it could not be told.
+    kind: Option<std::fs::FileType>,
+}
+
+/// What an entry of a folder of the roster really is.
+enum Real {
+    /// A regular file, at this canonical path.
+    File(PathBuf),
+    /// A folder.
+    Dir,
+    /// Something else (a device, a socket, a pipe).
+    Other,
+}
+
+/// What the entry `e` of the folder whose canonical path is `real_dir` really is, when that
+/// is inside the roster. An ordinary entry (not a symbolic link) of a folder that is inside
+/// the roster is inside too, at `real_dir/<name>`: only a link (or an entry the listing
+/// could not tell) is resolved, with [`resolve`], which reports it when it leads outside the
+/// roster, dangles or loops.
+fn real_entry(
+    e: &Entry,
+    real_dir: &Path,
+    inside: &Path,
+    problems: &mut Vec<Problem>,
+) -> Option<Real> {
+    match (&e.kind, e.path.file_name()) {
+        (Some(kind), Some(name)) if !kind.is_symlink() => {
+            let real = real_dir.join(name);
+            Some(if kind.is_file() {
+                Real::File(real)
+            } else if kind.is_dir() {
+                Real::Dir
+            } else {
+                Real::Other
+            })
+        }
+        _ => {
+            let real = resolve(&e.path, inside, problems)?;
+            Some(if real.is_file() {
+                Real::File(real)
+            } else if real.is_dir() {
+                Real::Dir
+            } else {
+                Real::Other
+            })
+        }
+    }
+}
+
 /// The message for an entry whose name is not UTF-8.
 fn not_utf8(what: &str) -> String {
     format!("the {what} name is not valid UTF-8 (shown here with �); rename it; skipped")
@@ -325,25 +431,33 @@ fn not_utf8(what: &str) -> String {
 
 /// The athlete folders of the roster, sorted by id. A folder reached twice (a symbolic
 /// link to another athlete folder) is listed once, by its real name; a folder that is
-/// neither an athlete folder nor hidden is a problem.
+/// neither an athlete folder nor hidden is a problem. Each is canonicalized once.
 fn athlete_folders(root: &Path, inside: &Path, problems: &mut Vec<Problem>) -> Vec<AthleteFolder> {
     let mut found: Vec<(AthleteFolder, PathBuf, bool)> = Vec::new();
-    for dir in sorted_entries(root, problems) {
+    for entry in sorted_entries(root, problems) {
+        let dir = entry.path;
         let Some(name) = dir.file_name() else {
             continue;
         };
         if name.as_encoded_bytes().starts_with(b".") {
             continue;
         }
-        let link = is_link(&dir);
-        if !link && !dir.is_dir() {
+        let link = match &entry.kind {
+            Some(kind) => kind.is_symlink(),
+            None => is_link(&dir),
+        };
+        let is_dir = match &entry.kind {
+            Some(kind) => kind.is_dir(),
+            None => dir.is_dir(),
+        };
+        if !link && !is_dir {
             // roster.toml, a read-me, ...: not the roster's business.
             continue;
         }
         let Some(real) = resolve(&dir, inside, problems) else {
             continue;
         };
-        if !real.is_dir() {
+        if link && !real.is_dir() {
             continue;
         }
         let Some(id) = name.to_str().map(str::to_string) else {
@@ -396,22 +510,64 @@ fn athlete_folders(root: &Path, inside: &Path, problems: &mut Vec<Problem>) -> V
 }
 
 /// A sub-folder of an athlete folder (`activities`, `plans`, `notes`) when it is inside
-/// the roster; a missing one is `None` without a problem.
+/// the roster, with its canonical path; a missing one is `None` without a problem.
 fn sub_folder(
     dir: &Path,
     name: &str,
     inside: &Path,
     problems: &mut Vec<Problem>,
-) -> Option<PathBuf> {
+) -> Option<(PathBuf, PathBuf)> {
     let path = dir.join(name);
     if !entry_exists(&path) {
         return None;
     }
-    resolve(&path, inside, problems)?;
-    Some(path)
+    let real = resolve(&path, inside, problems)?;
+    Some((path, real))
 }
 
-/// Read one athlete folder: profile, plans, activities and notes.
+/// The digest of an athlete's inputs: the profile's content, and each plan file's name,
+/// size, modification and change times (nanoseconds) and inode — not its content.
+///
+/// Why the plan files' stat and not their content: reading every plan file of the roster
+/// at each start cost more than the rest of a warm start together (thousands of files on a
+/// big roster), while an edited plan changes its stat (size or times; a file replaced by a
+/// new one, its inode), so its athlete's cached reviews are still stale after any edit.
+/// Plans are read when a session is analysed ([`plans::choose_plan`]), and checked when
+/// their problems are asked for ([`Athlete::plan_problems`]). A plan touched without a
+/// change (copied back, `touch`ed) re-analyses its athlete's sessions once; so did the
+/// switch to this digest, once, like a new analysis version. The profile is read at open
+/// anyway (its keys are needed), so its content is used.
+fn inputs_digest(profile_text: &[u8], plan_files: &[PathBuf]) -> String {
+    use std::os::unix::fs::MetadataExt;
+    let mut inputs = Vec::with_capacity(profile_text.len() + 64 * plan_files.len() + 16);
+    inputs.extend_from_slice(b"profile+plan-stats\0");
+    inputs.extend_from_slice(profile_text);
+    for p in plan_files {
+        inputs.extend_from_slice(b"\0plan\0");
+        let name = p.file_name().unwrap_or(p.as_os_str());
+        inputs.extend_from_slice(name.as_encoded_bytes());
+        inputs.push(0);
+        match std::fs::metadata(p) {
+            Ok(m) => {
+                for n in [
+                    m.len() as i64,
+                    m.mtime(),
+                    m.mtime_nsec(),
+                    m.ctime(),
+                    m.ctime_nsec(),
+                    m.ino() as i64,
+                ] {
+                    inputs.extend_from_slice(&n.to_le_bytes());
+                }
+            }
+            Err(_) => inputs.extend_from_slice(b"unreadable"),
+        }
+    }
+    crate::ingest::hash::sha256_hex(&inputs)
+}
+
+/// Read one athlete folder: profile, plan file names, activities and notes. Plan files are
+/// not read here ([`inputs_digest`]).
 fn read_athlete(
     found: AthleteFolder,
     inside: &Path,
@@ -426,7 +582,7 @@ fn read_athlete(
     let profile_path = dir.join("athlete.toml");
     let mut folder_problems = Vec::new();
     let mut profile_problems = Vec::new();
-    let mut inputs = Vec::new();
+    let mut profile_text = String::new();
     let profile = if !has_profile {
         folder_problems.push(Problem {
             path: dir.clone(),
@@ -438,8 +594,8 @@ fn read_athlete(
     } else {
         match crate::ingest::read_text_file(&profile_path) {
             Ok(text) => {
-                inputs.extend_from_slice(text.as_bytes());
                 let report = read_profile(&text, &id, units);
+                profile_text = text;
                 profile_problems = report.problems;
                 report.profile
             }
@@ -454,30 +610,24 @@ fn read_athlete(
     };
     let activities = discover_activities(&dir, inside, problems);
     let plan_files = match sub_folder(&dir, "plans", inside, problems) {
-        Some(plans) => sorted_entries(&plans, &mut Vec::new())
+        Some((plans, real_plans)) => sorted_entries(&plans, &mut Vec::new())
             .into_iter()
-            .filter(|p| {
-                p.extension()
-                    .is_some_and(|e| e.eq_ignore_ascii_case("toml"))
+            .filter(|e| {
+                e.path
+                    .extension()
+                    .is_some_and(|x| x.eq_ignore_ascii_case("toml"))
             })
-            .filter(|p| resolve(p, inside, problems).is_some_and(|real| real.is_file()))
+            .filter(|e| {
+                matches!(
+                    real_entry(e, &real_plans, inside, problems),
+                    Some(Real::File(_))
+                )
+            })
+            .map(|e| e.path)
             .collect::<Vec<_>>(),
         None => Vec::new(),
     };
-    let plan_problems: Vec<Problem> = plan_files
-        .iter()
-        .flat_map(|p| plans::check_plan_file(p, &profile))
-        .collect();
-    for p in &plan_files {
-        inputs.extend_from_slice(b"\0plan\0");
-        inputs.extend_from_slice(p.to_string_lossy().as_bytes());
-        inputs.push(0);
-        inputs.extend_from_slice(
-            crate::ingest::read_text_file(p)
-                .unwrap_or_default()
-                .as_bytes(),
-        );
-    }
+    let inputs_digest = inputs_digest(profile_text.as_bytes(), &plan_files);
     Athlete {
         id,
         dir,
@@ -485,14 +635,14 @@ fn read_athlete(
         activities,
         plan_files,
         profile_problems,
-        plan_problems,
+        plan_problems: std::sync::OnceLock::new(),
         folder_problems,
-        inputs_digest: crate::ingest::hash::sha256_hex(&inputs),
+        inputs_digest,
     }
 }
 
 /// The entries of a folder sorted by name; a missing folder is empty, an unreadable one a problem.
-fn sorted_entries(dir: &Path, problems: &mut Vec<Problem>) -> Vec<PathBuf> {
+fn sorted_entries(dir: &Path, problems: &mut Vec<Problem>) -> Vec<Entry> {
     let rd = match std::fs::read_dir(dir) {
         Ok(rd) => rd,
         Err(e) if e.kind() == std::io::ErrorKind::NotFound => return Vec::new(),
@@ -504,9 +654,66 @@ fn sorted_entries(dir: &Path, problems: &mut Vec<Problem>) -> Vec<PathBuf> {
             return Vec::new();
         }
     };
-    let mut out: Vec<PathBuf> = rd.filter_map(|e| e.ok().map(|e| e.path())).collect();
-    out.sort();
+    let mut out: Vec<Entry> = rd
+        .filter_map(|e| {
+            let e = e.ok()?;
+            Some(Entry {
+                path: e.path(),
+                kind: e.file_type().ok(),
+            })
+        })
+        .collect();
+    out.sort_by(|a, b| a.path.cmp(&b.path));
     out
+}
+
+/// The athlete's notes folder, listed once: a note is found by name in the listing, not by
+/// a look-up of its own.
+enum Notes {
+    None,
+    /// The listing of the folder (name to entry).
+    Listed {
+        real_dir: PathBuf,
+        entries: std::collections::HashMap<std::ffi::OsString, Entry>,
+    },
+    /// A folder that could not be listed: each note is looked up on its own.
+    Probe(PathBuf),
+}
+
+impl Notes {
+    fn of(dir: Option<(PathBuf, PathBuf)>) -> Notes {
+        let Some((dir, real_dir)) = dir else {
+            return Notes::None;
+        };
+        let mut unlisted = Vec::new();
+        let listed = sorted_entries(&dir, &mut unlisted);
+        if !unlisted.is_empty() {
+            return Notes::Probe(dir);
+        }
+        let entries = listed
+            .into_iter()
+            .filter_map(|e| Some((e.path.file_name()?.to_os_string(), e)))
+            .collect();
+        Notes::Listed { real_dir, entries }
+    }
+
+    /// The note file of activity `stem`, when it is a file inside the roster.
+    fn find(&self, stem: &str, inside: &Path, problems: &mut Vec<Problem>) -> Option<PathBuf> {
+        let name = format!("{stem}.txt");
+        match self {
+            Notes::None => None,
+            Notes::Listed { real_dir, entries } => {
+                let e = entries.get(std::ffi::OsStr::new(&name))?;
+                match real_entry(e, real_dir, inside, problems) {
+                    Some(Real::File(_)) => Some(e.path.clone()),
+                    _ => None,
+                }
+            }
+            Notes::Probe(dir) => Some(dir.join(name))
+                .filter(|n| entry_exists(n))
+                .filter(|n| resolve(n, inside, problems).is_some_and(|real| real.is_file())),
+        }
+    }
 }
 
 fn discover_activities(
@@ -514,36 +721,45 @@ fn discover_activities(
     inside: &Path,
     problems: &mut Vec<Problem>,
 ) -> Vec<Activity> {
-    let Some(activities) = sub_folder(athlete_dir, "activities", inside, problems) else {
+    let Some((activities, real_activities)) =
+        sub_folder(athlete_dir, "activities", inside, problems)
+    else {
         return Vec::new();
     };
-    let notes_dir = sub_folder(athlete_dir, "notes", inside, problems);
+    let notes = Notes::of(sub_folder(athlete_dir, "notes", inside, problems));
     let mut out = Vec::new();
-    let mut real_paths: std::collections::BTreeMap<PathBuf, PathBuf> = Default::default();
-    for path in sorted_entries(&activities, problems) {
-        let Some(name) = path.file_name() else {
+    let mut real_paths: std::collections::HashMap<PathBuf, PathBuf> = Default::default();
+    for entry in sorted_entries(&activities, problems) {
+        let Some(name) = entry.path.file_name() else {
             continue;
         };
         if name.as_encoded_bytes().starts_with(b".") {
             continue;
         }
-        let Some(real) = resolve(&path, inside, problems) else {
+        let Some(real) = real_entry(&entry, &real_activities, inside, problems) else {
             continue;
         };
-        if real.is_dir() {
-            problems.push(Problem {
-                path: path.clone(),
-                message: "a folder, not an activity file; skipped".into(),
-            });
+        let path = entry.path;
+        let real = match real {
+            Real::File(real) => real,
+            Real::Dir => {
+                problems.push(Problem {
+                    path: path.clone(),
+                    message: "a folder, not an activity file; skipped".into(),
+                });
+                continue;
+            }
+            Real::Other => {
+                problems.push(Problem {
+                    path: path.clone(),
+                    message: "not a regular file; skipped".into(),
+                });
+                continue;
+            }
+        };
+        let Some(name) = path.file_name() else {
             continue;
-        }
-        if !real.is_file() {
-            problems.push(Problem {
-                path: path.clone(),
-                message: "not a regular file; skipped".into(),
-            });
-            continue;
-        }
+        };
         if name.to_str().is_none() {
             problems.push(Problem {
                 path: path.clone(),
@@ -577,11 +793,7 @@ fn discover_activities(
             .file_stem()
             .map(|s| s.to_string_lossy().into_owned())
             .unwrap_or_default();
-        let note_file = notes_dir
-            .as_ref()
-            .map(|d| d.join(format!("{stem}.txt")))
-            .filter(|n| entry_exists(n))
-            .filter(|n| resolve(n, inside, problems).is_some_and(|real| real.is_file()));
+        let note_file = notes.find(&stem, inside, problems);
         out.push(Activity {
             path,
             note_file,
@@ -590,7 +802,7 @@ fn discover_activities(
         });
     }
     // Two files with the same stem would share a session id: keep the first, report the rest.
-    let mut seen = std::collections::BTreeSet::new();
+    let mut seen = std::collections::HashSet::new();
     out.retain(|a| {
         if seen.insert(a.stem.clone()) {
             true

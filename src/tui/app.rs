@@ -470,7 +470,12 @@ impl App {
             pending_leave: None,
             seen_count: 0,
         };
-        app.problems = app.roster.problems.iter().map(|p| p.to_string()).collect();
+        app.problems = app
+            .roster
+            .problems()
+            .iter()
+            .map(|p| p.to_string())
+            .collect();
         app.refresh_lists();
         app.journal_version = app.journal.data_version().ok();
         app

@@ -475,13 +475,26 @@ impl Workspace {
     pub fn sync(
         &mut self,
         now: DateTime<Utc>,
+        progress: impl FnMut(usize, usize),
+    ) -> Result<SyncReport, WorkspaceError> {
+        self.sync_only(None, now, progress)
+    }
+
+    /// [`Workspace::sync`] of one athlete's sessions (`Some(id)`), or of every session
+    /// (`None`): a command about one athlete (`trends`) neither stats nor refreshes the
+    /// others' files. An unknown id syncs nothing.
+    pub fn sync_only(
+        &mut self,
+        athlete: Option<&str>,
+        now: DateTime<Utc>,
         mut progress: impl FnMut(usize, usize),
     ) -> Result<SyncReport, WorkspaceError> {
         let warm = self.journal.warm_rows(ANALYSIS_VERSION)?;
         self.current.clear();
         let mut stale = Vec::new();
         let mut report = SyncReport::default();
-        for (athlete, act) in self.roster.activities() {
+        let wanted = |a: &Athlete| athlete.is_none_or(|id| a.id == id);
+        for (athlete, act) in self.roster.activities().filter(|(a, _)| wanted(a)) {
             report.sessions += 1;
             let id = athlete.session_id(act);
             let current = warm.get(&id).is_some_and(|w| {

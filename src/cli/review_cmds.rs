@@ -60,17 +60,23 @@ pub fn say_sync_problems(problems: &[SyncProblem], concern: Concern<'_>) {
     }
 }
 
-/// Open the workspace and bring the journal up to date with the roster (progress on stderr).
+/// Open the workspace and bring the journal up to date with the roster (progress on stderr):
+/// every session, or only those of athlete `only` for a command about that athlete alone.
 /// The files that could not be read are handed back, not printed: each command says the
 /// ones that concern it ([`say_sync_problems`]).
 pub fn open_synced(
     roster: &Path,
     journal: Option<&Path>,
+    only: Option<&str>,
 ) -> anyhow::Result<(Workspace, Vec<SyncProblem>)> {
     let mut ws = open_noting_read_only(roster, journal)?;
-    let total = ws.roster.activities().count() as u64;
+    let total = ws
+        .roster
+        .activities()
+        .filter(|(a, _)| only.is_none_or(|id| a.id == id))
+        .count() as u64;
     let bar = super::progress_bar(total, "analysing");
-    let report = ws.sync(Utc::now(), |done, _| bar.set_position(done as u64))?;
+    let report = ws.sync_only(only, Utc::now(), |done, _| bar.set_position(done as u64))?;
     bar.finish_and_clear();
     // The sync names the session of each problem: no search of the roster per problem.
     let problems = report

@@ -202,8 +202,13 @@ impl Roster {
         })
     }
 
+    /// The athlete with this id. `athletes` is sorted by id: a binary search (the queue
+    /// asks once per session), with a plain search when the list was reordered since.
     pub fn athlete(&self, id: &str) -> Option<&Athlete> {
-        self.athletes.iter().find(|a| a.id == id)
+        match self.athletes.binary_search_by(|a| a.id.as_str().cmp(id)) {
+            Ok(k) => self.athletes.get(k),
+            Err(_) => self.athletes.iter().find(|a| a.id == id),
+        }
     }
 
     /// Find an activity by session id `<athlete-id>/<stem>`.
@@ -327,6 +332,8 @@ pub const NO_PROFILE: &str = "no athlete.toml: its sessions are listed with a ba
 struct AthleteFolder {
     id: String,
     dir: PathBuf,
+    /// The folder's listing.
+    listing: Folder,
     has_profile: bool,
 }
 
@@ -411,15 +418,111 @@ fn real_entry(
                 Real::Other
             })
         }
-        _ => {
-            let real = resolve(&e.path, inside, problems)?;
-            Some(if real.is_file() {
-                Real::File(real)
-            } else if real.is_dir() {
-                Real::Dir
-            } else {
-                Real::Other
+        _ => resolve(&e.path, inside, problems).map(Real::of),
+    }
+}
+
+impl Real {
+    /// What the canonical path `real` is (one `stat`).
+    fn of(real: PathBuf) -> Real {
+        match std::fs::metadata(&real) {
+            Ok(m) if m.is_file() => Real::File(real),
+            Ok(m) if m.is_dir() => Real::Dir,
+            _ => Real::Other,
+        }
+    }
+}
+
+/// A folder of the roster listed once: an entry is found by name in the listing, without
+/// a look-up of its own; when the folder cannot be listed, each name is looked up alone.
+struct Folder {
+    path: PathBuf,
+    /// The canonical path of the folder (inside the roster).
+    real: PathBuf,
+    /// By name; `None` when the folder could not be listed.
+    entries: Option<std::collections::HashMap<std::ffi::OsString, Entry>>,
+}
+
+impl Folder {
+    fn list(path: PathBuf, real: PathBuf) -> Folder {
+        let entries = std::fs::read_dir(&path).ok().map(|rd| {
+            rd.filter_map(|e| {
+                let e = e.ok()?;
+                let entry = Entry {
+                    path: e.path(),
+                    kind: e.file_type().ok(),
+                };
+                Some((e.file_name(), entry))
             })
+            .collect()
+        });
+        Folder {
+            path,
+            real,
+            entries,
+        }
+    }
+
+    fn entry(&self, name: &str) -> Option<&Entry> {
+        self.entries.as_ref()?.get(std::ffi::OsStr::new(name))
+    }
+
+    /// Whether the folder holds an entry `name` (a dangling link counts).
+    fn has(&self, name: &str) -> bool {
+        match &self.entries {
+            Some(_) => self.entry(name).is_some(),
+            None => entry_exists(&self.path.join(name)),
+        }
+    }
+
+    /// Whether entry `name` is a folder (a link is followed).
+    fn has_dir(&self, name: &str) -> bool {
+        match (&self.entries, self.entry(name)) {
+            (Some(_), None) => false,
+            (Some(_), Some(Entry { kind: Some(k), .. })) if !k.is_symlink() => k.is_dir(),
+            _ => self.path.join(name).is_dir(),
+        }
+    }
+
+    /// Entry `name` and its canonical path, when it exists and is inside the roster: an
+    /// ordinary entry is at `real/<name>`; a link (or an entry the listing could not tell)
+    /// is resolved, and a problem when it leads outside the roster, dangles or loops. A
+    /// missing entry is `None` without a problem.
+    fn resolve(
+        &self,
+        name: &str,
+        inside: &Path,
+        problems: &mut Vec<Problem>,
+    ) -> Option<(PathBuf, PathBuf)> {
+        match (&self.entries, self.entry(name)) {
+            (Some(_), None) => None,
+            (Some(_), Some(e)) => match &e.kind {
+                Some(k) if !k.is_symlink() => Some((e.path.clone(), self.real.join(name))),
+                _ => Some((e.path.clone(), resolve(&e.path, inside, problems)?)),
+            },
+            (None, _) => {
+                let path = self.path.join(name);
+                if !entry_exists(&path) {
+                    return None;
+                }
+                let real = resolve(&path, inside, problems)?;
+                Some((path, real))
+            }
+        }
+    }
+
+    /// Entry `name` when it is a regular file inside the roster (problems as for
+    /// [`Folder::resolve`]).
+    fn file(&self, name: &str, inside: &Path, problems: &mut Vec<Problem>) -> Option<PathBuf> {
+        match self.entry(name) {
+            Some(e) => match real_entry(e, &self.real, inside, problems)? {
+                Real::File(_) => Some(e.path.clone()),
+                _ => None,
+            },
+            None => {
+                let (path, real) = self.resolve(name, inside, problems)?;
+                real.is_file().then_some(path)
+            }
         }
     }
 }
@@ -454,12 +557,15 @@ fn athlete_folders(root: &Path, inside: &Path, problems: &mut Vec<Problem>) -> V
             // roster.toml, a read-me, ...: not the roster's business.
             continue;
         }
-        let Some(real) = resolve(&dir, inside, problems) else {
-            continue;
+        // An ordinary folder of the roster is inside it; only a link is resolved.
+        let real = if link {
+            match resolve(&dir, inside, problems) {
+                Some(real) if real.is_dir() => real,
+                _ => continue,
+            }
+        } else {
+            inside.join(name)
         };
-        if link && !real.is_dir() {
-            continue;
-        }
         let Some(id) = name.to_str().map(str::to_string) else {
             problems.push(Problem {
                 path: dir.clone(),
@@ -467,8 +573,9 @@ fn athlete_folders(root: &Path, inside: &Path, problems: &mut Vec<Problem>) -> V
             });
             continue;
         };
-        let has_profile = entry_exists(&dir.join("athlete.toml"));
-        if !has_profile && !dir.join("activities").is_dir() {
+        let listing = Folder::list(dir.clone(), real.clone());
+        let has_profile = listing.has("athlete.toml");
+        if !has_profile && !listing.has_dir("activities") {
             problems.push(Problem {
                 path: dir.clone(),
                 message: "not an athlete folder (no athlete.toml, no activities folder); \
@@ -481,6 +588,7 @@ fn athlete_folders(root: &Path, inside: &Path, problems: &mut Vec<Problem>) -> V
             AthleteFolder {
                 id,
                 dir,
+                listing,
                 has_profile,
             },
             real,
@@ -507,22 +615,6 @@ fn athlete_folders(root: &Path, inside: &Path, problems: &mut Vec<Problem>) -> V
     }
     out.sort_by(|a, b| a.id.cmp(&b.id));
     out
-}
-
-/// A sub-folder of an athlete folder (`activities`, `plans`, `notes`) when it is inside
-/// the roster, with its canonical path; a missing one is `None` without a problem.
-fn sub_folder(
-    dir: &Path,
-    name: &str,
-    inside: &Path,
-    problems: &mut Vec<Problem>,
-) -> Option<(PathBuf, PathBuf)> {
-    let path = dir.join(name);
-    if !entry_exists(&path) {
-        return None;
-    }
-    let real = resolve(&path, inside, problems)?;
-    Some((path, real))
 }
 
 /// The digest of an athlete's inputs: the profile's content, and each plan file's name,
@@ -577,6 +669,7 @@ fn read_athlete(
     let AthleteFolder {
         id,
         dir,
+        listing,
         has_profile,
     } = found;
     let profile_path = dir.join("athlete.toml");
@@ -589,7 +682,10 @@ fn read_athlete(
             message: NO_PROFILE.to_string(),
         });
         AthleteProfile::bare(&id)
-    } else if resolve(&profile_path, inside, &mut folder_problems).is_none() {
+    } else if listing
+        .resolve("athlete.toml", inside, &mut folder_problems)
+        .is_none()
+    {
         AthleteProfile::bare(&id)
     } else {
         match crate::ingest::read_text_file(&profile_path) {
@@ -608,8 +704,8 @@ fn read_athlete(
             }
         }
     };
-    let activities = discover_activities(&dir, inside, problems);
-    let plan_files = match sub_folder(&dir, "plans", inside, problems) {
+    let activities = discover_activities(&listing, inside, problems);
+    let plan_files = match listing.resolve("plans", inside, problems) {
         Some((plans, real_plans)) => sorted_entries(&plans, &mut Vec::new())
             .into_iter()
             .filter(|e| {
@@ -663,70 +759,24 @@ fn sorted_entries(dir: &Path, problems: &mut Vec<Problem>) -> Vec<Entry> {
             })
         })
         .collect();
-    out.sort_by(|a, b| a.path.cmp(&b.path));
+    // One folder: the order of the names is that of the paths, and cheaper to find.
+    out.sort_by(|a, b| a.path.file_name().cmp(&b.path.file_name()));
     out
 }
 
-/// The athlete's notes folder, listed once: a note is found by name in the listing, not by
-/// a look-up of its own.
-enum Notes {
-    None,
-    /// The listing of the folder (name to entry).
-    Listed {
-        real_dir: PathBuf,
-        entries: std::collections::HashMap<std::ffi::OsString, Entry>,
-    },
-    /// A folder that could not be listed: each note is looked up on its own.
-    Probe(PathBuf),
-}
-
-impl Notes {
-    fn of(dir: Option<(PathBuf, PathBuf)>) -> Notes {
-        let Some((dir, real_dir)) = dir else {
-            return Notes::None;
-        };
-        let mut unlisted = Vec::new();
-        let listed = sorted_entries(&dir, &mut unlisted);
-        if !unlisted.is_empty() {
-            return Notes::Probe(dir);
-        }
-        let entries = listed
-            .into_iter()
-            .filter_map(|e| Some((e.path.file_name()?.to_os_string(), e)))
-            .collect();
-        Notes::Listed { real_dir, entries }
-    }
-
-    /// The note file of activity `stem`, when it is a file inside the roster.
-    fn find(&self, stem: &str, inside: &Path, problems: &mut Vec<Problem>) -> Option<PathBuf> {
-        let name = format!("{stem}.txt");
-        match self {
-            Notes::None => None,
-            Notes::Listed { real_dir, entries } => {
-                let e = entries.get(std::ffi::OsStr::new(&name))?;
-                match real_entry(e, real_dir, inside, problems) {
-                    Some(Real::File(_)) => Some(e.path.clone()),
-                    _ => None,
-                }
-            }
-            Notes::Probe(dir) => Some(dir.join(name))
-                .filter(|n| entry_exists(n))
-                .filter(|n| resolve(n, inside, problems).is_some_and(|real| real.is_file())),
-        }
-    }
-}
-
+/// The activities of an athlete folder (`athlete`: its listing), each with its note.
 fn discover_activities(
-    athlete_dir: &Path,
+    athlete: &Folder,
     inside: &Path,
     problems: &mut Vec<Problem>,
 ) -> Vec<Activity> {
-    let Some((activities, real_activities)) =
-        sub_folder(athlete_dir, "activities", inside, problems)
+    let Some((activities, real_activities)) = athlete.resolve("activities", inside, problems)
     else {
         return Vec::new();
     };
-    let notes = Notes::of(sub_folder(athlete_dir, "notes", inside, problems));
+    let notes = athlete
+        .resolve("notes", inside, problems)
+        .map(|(path, real)| Folder::list(path, real));
     let mut out = Vec::new();
     let mut real_paths: std::collections::HashMap<PathBuf, PathBuf> = Default::default();
     for entry in sorted_entries(&activities, problems) {
@@ -793,7 +843,9 @@ fn discover_activities(
             .file_stem()
             .map(|s| s.to_string_lossy().into_owned())
             .unwrap_or_default();
-        let note_file = notes.find(&stem, inside, problems);
+        let note_file = notes
+            .as_ref()
+            .and_then(|n| n.file(&format!("{stem}.txt"), inside, problems));
         out.push(Activity {
             path,
             note_file,

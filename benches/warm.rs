@@ -96,7 +96,8 @@ fn warm_queue(c: &mut Criterion) {
             .id
             .clone();
         b.iter(|| {
-            let mut ws = Workspace::open(&roster, Some(&journal)).expect("open");
+            let mut ws =
+                Workspace::open_only(&roster, Some(&journal), Some(&athlete)).expect("open");
             let report = ws
                 .sync_only(Some(&athlete), Utc::now(), |_, _| {})
                 .expect("warm sync");

@@ -356,7 +356,20 @@ pub fn journal_path(
 impl Workspace {
     /// Open the roster and its journal (created when missing; never inside the roster).
     pub fn open(roster_dir: &Path, journal: Option<&Path>) -> Result<Workspace, WorkspaceError> {
-        let roster = Roster::open(roster_dir)?;
+        Workspace::open_only(roster_dir, journal, None)
+    }
+
+    /// [`Workspace::open`] with only athlete `only` read from the roster when it is `Some`
+    /// ([`Roster::open_athlete`]): for a command about that athlete alone.
+    pub fn open_only(
+        roster_dir: &Path,
+        journal: Option<&Path>,
+        only: Option<&str>,
+    ) -> Result<Workspace, WorkspaceError> {
+        let roster = match only {
+            Some(id) => Roster::open_athlete(roster_dir, id)?,
+            None => Roster::open(roster_dir)?,
+        };
         let path = journal_path(&roster.root, journal)?;
         if let Some(parent) = path.parent() {
             if !parent.as_os_str().is_empty() && !parent.exists() {

@@ -61,7 +61,8 @@ pub fn say_sync_problems(problems: &[SyncProblem], concern: Concern<'_>) {
 }
 
 /// Open the workspace and bring the journal up to date with the roster (progress on stderr):
-/// every session, or only those of athlete `only` for a command about that athlete alone.
+/// every session, or for a command about one athlete alone (`only`), that athlete's (the
+/// roster is then read for that athlete only: [`Workspace::open_only`]).
 /// The files that could not be read are handed back, not printed: each command says the
 /// ones that concern it ([`say_sync_problems`]).
 pub fn open_synced(
@@ -69,7 +70,7 @@ pub fn open_synced(
     journal: Option<&Path>,
     only: Option<&str>,
 ) -> anyhow::Result<(Workspace, Vec<SyncProblem>)> {
-    let mut ws = open_noting_read_only(roster, journal)?;
+    let mut ws = open_only_noting_read_only(roster, journal, only)?;
     let total = ws
         .roster
         .activities()
@@ -135,7 +136,16 @@ fn refresh_or_unreadable(ws: &mut Workspace, id: &str) -> anyhow::Result<Option<
 /// Open the workspace; when the journal cannot be written, say so once on stderr (reading
 /// commands then work on it as it is; a write is refused with its own message).
 pub fn open_noting_read_only(roster: &Path, journal: Option<&Path>) -> anyhow::Result<Workspace> {
-    let ws = Workspace::open(roster, journal)?;
+    open_only_noting_read_only(roster, journal, None)
+}
+
+/// [`open_noting_read_only`] with only athlete `only` read from the roster when it is `Some`.
+fn open_only_noting_read_only(
+    roster: &Path,
+    journal: Option<&Path>,
+    only: Option<&str>,
+) -> anyhow::Result<Workspace> {
+    let ws = Workspace::open_only(roster, journal, only)?;
     if let Some(reason) = ws.journal.read_only() {
         eprintln!(
             "note: {}: the journal is read-only ({reason}); it is read as it is and nothing \

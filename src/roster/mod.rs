@@ -238,6 +238,19 @@ impl Roster {
 
     /// Discover a roster folder.
     pub fn open(root: &Path) -> Result<Roster, RosterError> {
+        Roster::open_some(root, None)
+    }
+
+    /// The roster with one athlete's folder read (`id`), for a command about that athlete
+    /// alone: the other athletes are left out (their files are not listed, nor their
+    /// problems found); the problems of `roster.toml` and of the roster folder's own entries
+    /// are kept. An athlete folder that is a link to another is left out as
+    /// [`Roster::open`] leaves it out.
+    pub fn open_athlete(root: &Path, id: &str) -> Result<Roster, RosterError> {
+        Roster::open_some(root, Some(id))
+    }
+
+    fn open_some(root: &Path, only: Option<&str>) -> Result<Roster, RosterError> {
         let meta = std::fs::metadata(root).map_err(|reason| {
             if reason.kind() == std::io::ErrorKind::NotFound {
                 RosterError::Missing {
@@ -303,6 +316,9 @@ impl Roster {
         let mut athletes = Vec::new();
         let mut athlete_slots = Vec::new();
         for found in athlete_folders(root, &inside, &mut problems) {
+            if only.is_some_and(|id| id != found.id) {
+                continue;
+            }
             let athlete = read_athlete(found, &inside, units, &mut problems);
             athlete_slots.push(problems.len());
             athletes.push(athlete);
@@ -380,10 +396,32 @@ fn resolve(path: &Path, inside: &Path, problems: &mut Vec<Problem>) -> Option<Pa
 
 /// One entry of a listed folder, with what the listing said it is.
 struct Entry {
+    name: std::ffi::OsString,
     path: PathBuf,
     /// The entry itself (a link is a link, not followed), from the folder listing (no
     /// extra system call on the usual file systems); `None` when it could not be told.
     kind: Option<std::fs::FileType>,
+    listed: std::fs::DirEntry,
+}
+
+impl Entry {
+    fn of(e: std::fs::DirEntry) -> Entry {
+        Entry {
+            name: e.file_name(),
+            path: e.path(),
+            kind: e.file_type().ok(),
+            listed: e,
+        }
+    }
+
+    /// The metadata of what the entry leads to: of an ordinary entry looked up from its
+    /// open folder (no walk of the whole path), of a link followed.
+    fn metadata(&self) -> std::io::Result<std::fs::Metadata> {
+        match &self.kind {
+            Some(k) if !k.is_symlink() => self.listed.metadata(),
+            _ => std::fs::metadata(&self.path),
+        }
+    }
 }
 
 /// What an entry of a folder of the roster really is.
@@ -447,12 +485,8 @@ impl Folder {
     fn list(path: PathBuf, real: PathBuf) -> Folder {
         let entries = std::fs::read_dir(&path).ok().map(|rd| {
             rd.filter_map(|e| {
-                let e = e.ok()?;
-                let entry = Entry {
-                    path: e.path(),
-                    kind: e.file_type().ok(),
-                };
-                Some((e.file_name(), entry))
+                let e = Entry::of(e.ok()?);
+                Some((e.name.clone(), e))
             })
             .collect()
         });
@@ -629,17 +663,16 @@ fn athlete_folders(root: &Path, inside: &Path, problems: &mut Vec<Problem>) -> V
 /// change (copied back, `touch`ed) re-analyses its athlete's sessions once; so did the
 /// switch to this digest, once, like a new analysis version. The profile is read at open
 /// anyway (its keys are needed), so its content is used.
-fn inputs_digest(profile_text: &[u8], plan_files: &[PathBuf]) -> String {
+fn inputs_digest(profile_text: &[u8], plan_files: &[Entry]) -> String {
     use std::os::unix::fs::MetadataExt;
     let mut inputs = Vec::with_capacity(profile_text.len() + 64 * plan_files.len() + 16);
     inputs.extend_from_slice(b"profile+plan-stats\0");
     inputs.extend_from_slice(profile_text);
     for p in plan_files {
         inputs.extend_from_slice(b"\0plan\0");
-        let name = p.file_name().unwrap_or(p.as_os_str());
-        inputs.extend_from_slice(name.as_encoded_bytes());
+        inputs.extend_from_slice(p.name.as_encoded_bytes());
         inputs.push(0);
-        match std::fs::metadata(p) {
+        match p.metadata() {
             Ok(m) => {
                 for n in [
                     m.len() as i64,
@@ -705,7 +738,7 @@ fn read_athlete(
         }
     };
     let activities = discover_activities(&listing, inside, problems);
-    let plan_files = match listing.resolve("plans", inside, problems) {
+    let plans: Vec<Entry> = match listing.resolve("plans", inside, problems) {
         Some((plans, real_plans)) => sorted_entries(&plans, &mut Vec::new())
             .into_iter()
             .filter(|e| {
@@ -719,11 +752,11 @@ fn read_athlete(
                     Some(Real::File(_))
                 )
             })
-            .map(|e| e.path)
-            .collect::<Vec<_>>(),
+            .collect(),
         None => Vec::new(),
     };
-    let inputs_digest = inputs_digest(profile_text.as_bytes(), &plan_files);
+    let inputs_digest = inputs_digest(profile_text.as_bytes(), &plans);
+    let plan_files = plans.into_iter().map(|e| e.path).collect();
     Athlete {
         id,
         dir,
@@ -750,17 +783,9 @@ fn sorted_entries(dir: &Path, problems: &mut Vec<Problem>) -> Vec<Entry> {
             return Vec::new();
         }
     };
-    let mut out: Vec<Entry> = rd
-        .filter_map(|e| {
-            let e = e.ok()?;
-            Some(Entry {
-                path: e.path(),
-                kind: e.file_type().ok(),
-            })
-        })
-        .collect();
-    // One folder: the order of the names is that of the paths, and cheaper to find.
-    out.sort_by(|a, b| a.path.file_name().cmp(&b.path.file_name()));
+    let mut out: Vec<Entry> = rd.filter_map(|e| Some(Entry::of(e.ok()?))).collect();
+    // One folder: the order of the names is that of the paths.
+    out.sort_by(|a, b| a.name.cmp(&b.name));
     out
 }
 

@@ -442,7 +442,7 @@ fn run_with_journal(
             JournalCommand::Check { json } => rc::journal_check(&ws, *json),
         };
     }
-    // `trends` is about one athlete: only that athlete's sessions are synced.
+    // `trends` is about one athlete: only its folder is read and its sessions synced.
     let only = match &cmd {
         Command::Trends { athlete, .. } => Some(athlete.as_str()),
         _ => None,

@@ -1,6 +1,7 @@
 //! Warm `splitdesk queue` work on a big roster: open the roster and its journal, bring the
 //! journal up to date with the roster (every file unchanged: one `stat` each, nothing read),
-//! and list the queue with its titles from the journal's columns.
+//! and list the queue with its titles from the journal's columns; and the same for one
+//! athlete's trends (only that athlete's sessions synced, its cached reviews read).
 //!
 //! The roster is the demo roster's athletes copied under new ids into a temporary folder
 //! (hard links where the file system allows, else copies): identical files under distinct
@@ -15,7 +16,8 @@ use std::path::{Path, PathBuf};
 
 use chrono::Utc;
 use criterion::{criterion_group, criterion_main, Criterion};
-use splitdesk::analysis::review::ANALYSIS_VERSION;
+use splitdesk::analysis::history::{self, HistoryParams, SessionSummary};
+use splitdesk::analysis::review::{Review, ANALYSIS_VERSION};
 use splitdesk::workspace::Workspace;
 
 fn copy_tree(from: &Path, to: &Path) {
@@ -80,6 +82,49 @@ fn warm_queue(c: &mut Criterion) {
                 .summary_briefs(None, ANALYSIS_VERSION)
                 .expect("briefs");
             black_box((report.cached, listed.len(), briefs.len()))
+        })
+    });
+    group.bench_function(format!("trends work, {sessions} sessions"), |b| {
+        // What `splitdesk trends ATHLETE` does: open, sync that athlete's sessions alone,
+        // read its cached reviews and build the history.
+        let athlete = Workspace::open(&roster, Some(&journal))
+            .expect("open")
+            .roster
+            .athletes
+            .first()
+            .expect("an athlete")
+            .id
+            .clone();
+        b.iter(|| {
+            let mut ws =
+                Workspace::open_only(&roster, Some(&journal), Some(&athlete)).expect("open");
+            let report = ws
+                .sync_only(Some(&athlete), Utc::now(), |_, _| {})
+                .expect("warm sync");
+            assert_eq!(report.analysed, 0, "warm: nothing analysed");
+            let profile = ws
+                .roster
+                .athlete(&athlete)
+                .expect("athlete")
+                .profile
+                .clone();
+            let sums: Vec<SessionSummary> = ws
+                .journal
+                .athlete_summaries(&athlete, ANALYSIS_VERSION)
+                .expect("summaries")
+                .into_iter()
+                .filter_map(|(id, json)| {
+                    let review: Review = serde_json::from_str(&json?).ok()?;
+                    SessionSummary::from_review(&id, &review)
+                })
+                .collect();
+            let today = sums
+                .iter()
+                .map(SessionSummary::date)
+                .max()
+                .unwrap_or_else(|| Utc::now().date_naive());
+            let h = history::build(&sums, &profile, &HistoryParams::default(), today);
+            black_box(h.sessions)
         })
     });
     group.bench_function(

@@ -356,7 +356,20 @@ pub fn journal_path(
 impl Workspace {
     /// Open the roster and its journal (created when missing; never inside the roster).
     pub fn open(roster_dir: &Path, journal: Option<&Path>) -> Result<Workspace, WorkspaceError> {
-        let roster = Roster::open(roster_dir)?;
+        Workspace::open_only(roster_dir, journal, None)
+    }
+
+    /// [`Workspace::open`] with only athlete `only` read from the roster when it is `Some`
+    /// ([`Roster::open_athlete`]): for a command about that athlete alone.
+    pub fn open_only(
+        roster_dir: &Path,
+        journal: Option<&Path>,
+        only: Option<&str>,
+    ) -> Result<Workspace, WorkspaceError> {
+        let roster = match only {
+            Some(id) => Roster::open_athlete(roster_dir, id)?,
+            None => Roster::open(roster_dir)?,
+        };
         let path = journal_path(&roster.root, journal)?;
         if let Some(parent) = path.parent() {
             if !parent.as_os_str().is_empty() && !parent.exists() {
@@ -475,13 +488,26 @@ impl Workspace {
     pub fn sync(
         &mut self,
         now: DateTime<Utc>,
+        progress: impl FnMut(usize, usize),
+    ) -> Result<SyncReport, WorkspaceError> {
+        self.sync_only(None, now, progress)
+    }
+
+    /// [`Workspace::sync`] of one athlete's sessions (`Some(id)`), or of every session
+    /// (`None`): a command about one athlete (`trends`) neither stats nor refreshes the
+    /// others' files. An unknown id syncs nothing.
+    pub fn sync_only(
+        &mut self,
+        athlete: Option<&str>,
+        now: DateTime<Utc>,
         mut progress: impl FnMut(usize, usize),
     ) -> Result<SyncReport, WorkspaceError> {
         let warm = self.journal.warm_rows(ANALYSIS_VERSION)?;
         self.current.clear();
         let mut stale = Vec::new();
         let mut report = SyncReport::default();
-        for (athlete, act) in self.roster.activities() {
+        let wanted = |a: &Athlete| athlete.is_none_or(|id| a.id == id);
+        for (athlete, act) in self.roster.activities().filter(|(a, _)| wanted(a)) {
             report.sessions += 1;
             let id = athlete.session_id(act);
             let current = warm.get(&id).is_some_and(|w| {

@@ -28,7 +28,7 @@ fn damaged() -> PathBuf {
 fn roster_matches_the_scenario() {
     let scenario = Scenario::default_demo();
     let roster = Roster::open(&root()).unwrap();
-    assert!(roster.problems.is_empty(), "{:?}", roster.problems);
+    assert!(roster.problems().is_empty(), "{:?}", roster.problems());
     assert_eq!(roster.name, scenario.club);
     let ids: Vec<&str> = roster.athletes.iter().map(|a| a.id.as_str()).collect();
     let want: Vec<&str> = scenario.athletes.iter().map(|a| a.id.as_str()).collect();

@@ -45,7 +45,7 @@ fn a_small_scale_roster_opens_with_distinct_sessions_that_analyse() {
             "keziah-brandt-01"
         ]
     );
-    assert!(roster.problems.is_empty(), "{:?}", roster.problems);
+    assert!(roster.problems().is_empty(), "{:?}", roster.problems());
     let mut hashes = BTreeSet::new();
     let mut analysed = 0;
     for (athlete, act) in roster.activities() {

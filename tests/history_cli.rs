@@ -108,3 +108,42 @@ fn unknown_athlete_is_one_line_and_non_zero() {
     assert!(err.contains("nobody"), "{err}");
     assert_eq!(err.trim().lines().count(), 1, "{err}");
 }
+
+#[test]
+fn trends_syncs_only_the_athlete_it_is_about() {
+    let dir = tempfile::tempdir().unwrap();
+    let roster = dir.path().join("roster");
+    write_roster(&roster);
+    // A second athlete: the same files under another id.
+    let from = roster.join("tova-renn");
+    for sub in ["", "activities", "plans", "notes"] {
+        std::fs::create_dir_all(roster.join("ulla-berg").join(sub)).unwrap();
+        for e in std::fs::read_dir(from.join(sub)).unwrap() {
+            let e = e.unwrap();
+            if e.file_type().unwrap().is_file() {
+                std::fs::copy(
+                    e.path(),
+                    roster.join("ulla-berg").join(sub).join(e.file_name()),
+                )
+                .unwrap();
+            }
+        }
+    }
+    let journal = dir.path().join("journal.sqlite");
+    let out = Command::cargo_bin("splitdesk")
+        .unwrap()
+        .env("SPLITDESK_CONFIG", "/nonexistent/config.toml")
+        .arg("--roster")
+        .arg(&roster)
+        .arg("--journal")
+        .arg(&journal)
+        .args(["trends", "ulla-berg", "--weeks", "520", "--json"])
+        .output()
+        .unwrap();
+    assert_eq!(out.status.code(), Some(0), "{out:?}");
+    let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    assert_eq!(v["sessions"], 2);
+    let j = splitdesk::journal::Journal::open_for_roster(&journal, &roster).unwrap();
+    assert_eq!(j.sessions(Some("ulla-berg")).unwrap().len(), 2);
+    assert_eq!(j.sessions(Some("tova-renn")).unwrap().len(), 0);
+}

@@ -62,7 +62,7 @@ fn discovers_athletes_activities_notes_and_plans() {
     assert!(r.find_session("cy-ode/a").is_some());
     assert!(r.find_session("cy-ode/b").is_none());
 
-    let msgs: Vec<String> = r.problems.iter().map(|p| p.to_string()).collect();
+    let msgs: Vec<String> = r.problems().iter().map(|p| p.to_string()).collect();
     assert_eq!(msgs.len(), 4, "{msgs:?}");
     assert!(msgs.iter().any(|m| m.contains("photo.jpg")));
     // A folder that is no athlete folder is named, not skipped silently.
@@ -74,7 +74,7 @@ fn discovers_athletes_activities_notes_and_plans() {
         "2026-10-02-reps.toml: line 1, column 12: missing steps: add steps = \"...\" \
          (shorthand) or [[step]] tables"
     )));
-    assert_eq!(bo.plan_problems.len(), 1);
+    assert_eq!(bo.plan_problems().len(), 1);
     assert_eq!(r.athlete("di-vo").unwrap().profile_problems.len(), 1);
     assert!(msgs
         .iter()

@@ -70,7 +70,7 @@ fn messy_roster(root: &Path, outside: &Path) {
 
 fn problems(roster: &Roster) -> Vec<String> {
     roster
-        .problems
+        .problems()
         .iter()
         .map(|p| {
             let path = p.path.strip_prefix(&roster.root).unwrap_or(&p.path);

@@ -108,7 +108,7 @@ fn the_rest_of_a_broken_profile_is_used() {
     assert_eq!(a.profile.threshold_speed_mps, None);
     assert!((a.profile.pace("5k").unwrap() - 1000.0 / 232.0).abs() < 1e-9);
     assert_eq!(a.profile_problems.len(), 2);
-    assert_eq!(a.plan_problems.len(), 2);
+    assert_eq!(a.plan_problems().len(), 2);
     assert_eq!(a.problems().len(), 4);
     assert!(a.has_problems());
 }
@@ -379,4 +379,53 @@ fn analyze_with_an_explicit_profile_uses_its_good_keys_and_warns_about_the_rest(
     // hr_max was read (HR zones exist), hr_rest was not (no load).
     assert!(v["trimp"].is_null());
     assert_eq!(v["zones"]["hr"][4]["to_bpm"], 190.0);
+}
+
+#[test]
+fn plan_files_are_checked_when_their_problems_are_asked_for() {
+    let dir = tempfile::tempdir().unwrap();
+    write_roster(dir.path());
+    let roster = Roster::open(dir.path()).unwrap();
+    // Broken after the roster was opened: opening did not read it, the check does.
+    let plan = dir.path().join("tova-renn/plans/2026-11-03-reps.toml");
+    std::fs::write(&plan, "title = \"5k-pace repeats\n").unwrap();
+    let a = roster.athlete("tova-renn").unwrap();
+    assert!(a.has_problems());
+    assert_eq!(a.plan_problems().len(), 1);
+    let lines: Vec<String> = roster.problems().iter().map(|p| p.to_string()).collect();
+    assert_eq!(
+        lines,
+        [format!(
+            "{}: line 1, column 25: invalid basic string, expected `\"`",
+            plan.display()
+        )]
+    );
+}
+
+#[test]
+fn the_inputs_digest_follows_plan_edits_without_reading_the_plans() {
+    let dir = tempfile::tempdir().unwrap();
+    write_roster(dir.path());
+    let digest = || {
+        Roster::open(dir.path())
+            .unwrap()
+            .athlete("tova-renn")
+            .unwrap()
+            .inputs_digest
+            .clone()
+    };
+    let first = digest();
+    assert_eq!(digest(), first, "nothing changed");
+    let plan = dir.path().join("tova-renn/plans/2026-11-03-reps.toml");
+    // An edit in place that keeps the size: the times change.
+    edit(&plan, "5k-pace repeats", "Five at 5k pace");
+    let edited = digest();
+    assert_ne!(edited, first);
+    assert_eq!(digest(), edited);
+    // A new plan file, then its removal.
+    let extra = dir.path().join("tova-renn/plans/2026-11-05-easy.toml");
+    std::fs::write(&extra, "title = \"Easy\"\nsteps = \"30:00 easy\"\n").unwrap();
+    assert_ne!(digest(), edited);
+    std::fs::remove_file(&extra).unwrap();
+    assert_eq!(digest(), edited);
 }

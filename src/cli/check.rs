@@ -34,7 +34,7 @@ pub fn run(root: &Path, json: bool) -> anyhow::Result<i32> {
     let athlete_problems: Vec<crate::roster::Problem> =
         roster.athletes.iter().flat_map(|a| a.problems()).collect();
     let mut problems: Vec<ProblemOut> = roster
-        .problems
+        .problems()
         .iter()
         .map(|p| ProblemOut {
             path: p.path.display().to_string(),

@@ -442,7 +442,12 @@ fn run_with_journal(
             JournalCommand::Check { json } => rc::journal_check(&ws, *json),
         };
     }
-    let (mut ws, damaged) = rc::open_synced(roster, journal)?;
+    // `trends` is about one athlete: only its folder is read and its sessions synced.
+    let only = match &cmd {
+        Command::Trends { athlete, .. } => Some(athlete.as_str()),
+        _ => None,
+    };
+    let (mut ws, damaged) = rc::open_synced(roster, journal, only)?;
     // Files that cannot be read are named where they matter: in the queue, and to a
     // command about their session or athlete; `check` lists every one.
     let concern = match &cmd {

@@ -60,17 +60,24 @@ pub fn say_sync_problems(problems: &[SyncProblem], concern: Concern<'_>) {
     }
 }
 
-/// Open the workspace and bring the journal up to date with the roster (progress on stderr).
+/// Open the workspace and bring the journal up to date with the roster (progress on stderr):
+/// every session, or for a command about one athlete alone (`only`), that athlete's (the
+/// roster is then read for that athlete only: [`Workspace::open_only`]).
 /// The files that could not be read are handed back, not printed: each command says the
 /// ones that concern it ([`say_sync_problems`]).
 pub fn open_synced(
     roster: &Path,
     journal: Option<&Path>,
+    only: Option<&str>,
 ) -> anyhow::Result<(Workspace, Vec<SyncProblem>)> {
-    let mut ws = open_noting_read_only(roster, journal)?;
-    let total = ws.roster.activities().count() as u64;
+    let mut ws = open_only_noting_read_only(roster, journal, only)?;
+    let total = ws
+        .roster
+        .activities()
+        .filter(|(a, _)| only.is_none_or(|id| a.id == id))
+        .count() as u64;
     let bar = super::progress_bar(total, "analysing");
-    let report = ws.sync(Utc::now(), |done, _| bar.set_position(done as u64))?;
+    let report = ws.sync_only(only, Utc::now(), |done, _| bar.set_position(done as u64))?;
     bar.finish_and_clear();
     // The sync names the session of each problem: no search of the roster per problem.
     let problems = report
@@ -129,7 +136,16 @@ fn refresh_or_unreadable(ws: &mut Workspace, id: &str) -> anyhow::Result<Option<
 /// Open the workspace; when the journal cannot be written, say so once on stderr (reading
 /// commands then work on it as it is; a write is refused with its own message).
 pub fn open_noting_read_only(roster: &Path, journal: Option<&Path>) -> anyhow::Result<Workspace> {
-    let ws = Workspace::open(roster, journal)?;
+    open_only_noting_read_only(roster, journal, None)
+}
+
+/// [`open_noting_read_only`] with only athlete `only` read from the roster when it is `Some`.
+fn open_only_noting_read_only(
+    roster: &Path,
+    journal: Option<&Path>,
+    only: Option<&str>,
+) -> anyhow::Result<Workspace> {
+    let ws = Workspace::open_only(roster, journal, only)?;
     if let Some(reason) = ws.journal.read_only() {
         eprintln!(
             "note: {}: the journal is read-only ({reason}); it is read as it is and nothing \

@@ -474,7 +474,12 @@ impl App {
             seen_count: 0,
             prefetch: None,
         };
-        app.problems = app.roster.problems.iter().map(|p| p.to_string()).collect();
+        app.problems = app
+            .roster
+            .problems()
+            .iter()
+            .map(|p| p.to_string())
+            .collect();
         app.refresh_lists();
         app.journal_version = app.journal.data_version().ok();
         app

@@ -360,7 +360,7 @@ pub fn roster_problems(app: &App) -> Vec<Line<'static>> {
         .collect();
     let own: Vec<&crate::roster::Problem> = app
         .roster
-        .problems
+        .problems()
         .iter()
         .filter(|p| !of_athletes.contains(p))
         .collect();

@@ -341,3 +341,71 @@ fn another_programs_live_wal_database_is_refused_untouched() {
         .unwrap();
     assert_eq!(n, 2);
 }
+
+/// The journal's integrity check is skipped only while its files are exactly as they were at
+/// the last clean check: a damaged journal is still refused after a mark was written, and a
+/// read-only open leaves no file beside the journal.
+#[test]
+fn a_checked_journal_is_trusted_only_while_its_files_are_unchanged() {
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("j.sqlite");
+    let mark = dir.path().join("j.sqlite-checked");
+    {
+        let mut j = Journal::open(&path).unwrap();
+        for i in 0..200 {
+            j.upsert_session(&record(&format!("ines/s{i:03}"), 2), t(i))
+                .unwrap();
+        }
+    }
+    // Read-only opens never write the mark, settled or not.
+    std::thread::sleep(std::time::Duration::from_millis(2_200));
+    drop(Journal::open_read_only(&path).unwrap());
+    assert!(!mark.exists(), "read-only open wrote a mark");
+    // A writable open of a settled journal checks it and marks it.
+    drop(Journal::open(&path).unwrap());
+    assert!(mark.exists(), "no mark after a clean check");
+    let marked = std::fs::read_to_string(&mark).unwrap();
+    drop(Journal::open(&path).unwrap());
+    assert_eq!(std::fs::read_to_string(&mark).unwrap(), marked);
+    // Damage that keeps the size: the change time moves, so the check runs and refuses it.
+    let mut bytes = std::fs::read(&path).unwrap();
+    let len = bytes.len();
+    for b in &mut bytes[4096 * 2..4096 * 5] {
+        *b = 0xA5;
+    }
+    std::fs::write(&path, &bytes).unwrap();
+    assert_eq!(std::fs::metadata(&path).unwrap().len() as usize, len);
+    let err = Journal::open(&path).unwrap_err();
+    assert!(matches!(err, JournalError::Corrupt { .. }), "{err}");
+    assert!(!mark.exists(), "the mark of a damaged journal is removed");
+}
+
+/// Recording a file as unreadable again, with the same bytes and reason, writes nothing: a
+/// warm start that re-reads a damaged file leaves the journal's files as they were.
+#[test]
+fn an_unchanged_unreadable_file_is_not_written_again() {
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("j.sqlite");
+    let wal = dir.path().join("j.sqlite-wal");
+    let mut j = Journal::open(&path).unwrap();
+    let rec = record("ines/s001", 0);
+    j.record_unreadable(&rec, "FIT: truncated", t(0)).unwrap();
+    let len = |p: &Path| std::fs::metadata(p).map(|m| m.len()).unwrap_or(0);
+    let before = (len(&path), len(&wal));
+    assert_eq!(
+        j.record_unreadable(&rec, "FIT: truncated", t(1)).unwrap(),
+        splitdesk::journal::SessionChange::Same
+    );
+    assert_eq!((len(&path), len(&wal)), before, "nothing written");
+    // A new reason is written.
+    j.record_unreadable(&rec, "FIT: file CRC mismatch", t(2))
+        .unwrap();
+    assert_eq!(
+        j.unreadable("ines/s001").unwrap().as_deref(),
+        Some("FIT: file CRC mismatch")
+    );
+    assert!(
+        (len(&path), len(&wal)) != before,
+        "the new reason was written"
+    );
+}

@@ -40,6 +40,7 @@
 //!
 //! Times are passed in (`now`) so that callers and tests control the clock.
 
+mod check_mark;
 mod error;
 mod location;
 mod note;
@@ -230,7 +231,7 @@ fn check_header(path: &Path) -> Result<()> {
 /// database with the backup API, giving up (with `Busy`) after [`BUSY_TIMEOUT`].
 fn copy_to_memory(source: &Connection, path: &Path) -> Result<Connection> {
     match identify_conn(source, path)? {
-        Identity::Ours(_) => quick_check(source, path)?,
+        Identity::Ours(_) => quick_check(source, path, Mark::Leave)?,
         Identity::Empty => {
             return Err(JournalError::NotAJournal {
                 path: path.to_path_buf(),
@@ -318,7 +319,7 @@ fn identify(path: &Path) -> Result<Identity> {
     conn.busy_timeout(BUSY_TIMEOUT).sq(path)?;
     let identity = identify_conn(&conn, path)?;
     if let Identity::Ours(_) = identity {
-        quick_check(&conn, path)?;
+        quick_check(&conn, path, Mark::Write)?;
     }
     Ok(identity)
 }
@@ -361,7 +362,34 @@ fn identify_conn(conn: &Connection, path: &Path) -> Result<Identity> {
     })
 }
 
-fn quick_check(conn: &Connection, path: &Path) -> Result<()> {
+/// Whether a check may write its mark beside the journal: only when the journal is opened
+/// for writing. A journal opened read-only never gets a file written beside it.
+#[derive(Clone, Copy, PartialEq, Eq)]
+enum Mark {
+    Write,
+    Leave,
+}
+
+/// SQLite's `quick_check` of the journal, skipped when the journal's files are exactly as
+/// they were at its last clean check (see [`check_mark`]).
+fn quick_check(conn: &Connection, path: &Path, mark: Mark) -> Result<()> {
+    let stamp = check_mark::stamp(path);
+    if stamp
+        .as_deref()
+        .is_some_and(|s| check_mark::is_marked(path, s))
+    {
+        return Ok(());
+    }
+    let checked = run_quick_check(conn, path);
+    match (&checked, stamp, mark) {
+        (Ok(()), Some(s), Mark::Write) => check_mark::mark(path, &s),
+        (Err(_), _, Mark::Write) => check_mark::clear(path),
+        _ => {}
+    }
+    checked
+}
+
+fn run_quick_check(conn: &Connection, path: &Path) -> Result<()> {
     let mut stmt = conn.prepare("PRAGMA quick_check").sq(path)?;
     let rows: Vec<String> = stmt
         .query_map([], |r| r.get::<_, String>(0))
@@ -508,7 +536,7 @@ impl Journal {
                 })
             }
         }
-        quick_check(&conn, &path)?;
+        quick_check(&conn, &path, Mark::Leave)?;
         let journal = Journal {
             conn,
             path,
@@ -722,6 +750,17 @@ impl Journal {
             summary: None,
             ..record.clone()
         };
+        // Already held as unreadable for these bytes at this path, for the same reason:
+        // nothing to write (a warm start re-reading a damaged file leaves the journal as is).
+        let held = self.read(|conn, path| session_row(conn, path, &record.session_id))?;
+        if held.is_some_and(|row| {
+            row.content_hash == record.content_hash
+                && row.file_path == record.file_path
+                && row.summary.is_none()
+                && row.unreadable.as_deref() == Some(reason)
+        }) {
+            return Ok(SessionChange::Same);
+        }
         self.write_cache(|tx, path| {
             let change = upsert_row(tx, path, &record, None, now)?;
             mark_unreadable(tx, path, &record.session_id, reason)?;

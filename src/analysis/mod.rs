@@ -1,5 +1,6 @@
 //! The objective review: pure functions over `model` types. No I/O, no terminal.
 
+pub mod agreement;
 pub mod best_efforts;
 pub mod card;
 pub mod decoupling;

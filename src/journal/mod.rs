@@ -980,41 +980,11 @@ impl Journal {
         &self,
         analysis_version: u32,
     ) -> Result<std::collections::HashMap<String, WarmRow>> {
-        self.read(|conn, path| {
-            let mut stmt = conn
-                .prepare_cached(
-                    "SELECT session_id, CAST(file_path AS BLOB), file_size, file_mtime_ns,
-                        summary_version IS ?1 AND summary_hash = content_hash, summary_inputs
-                     FROM session",
-                )
-                .sq(path)?;
-            let rows = stmt
-                .query_map([analysis_version], |r| {
-                    let id = cache_text(r.get_ref(0)?).unwrap_or_default();
-                    let file = cache_text(r.get_ref(1)?);
-                    let size: Option<i64> = r.get(2).ok().flatten();
-                    let mtime: Option<i64> = r.get(3).ok().flatten();
-                    let stat = match (file, size.and_then(|n| u64::try_from(n).ok()), mtime) {
-                        (Some(p), Some(size), Some(mtime_ns)) => Some(FileStat {
-                            path: PathBuf::from(p),
-                            size,
-                            mtime_ns,
-                        }),
-                        _ => None,
-                    };
-                    Ok((
-                        id,
-                        WarmRow {
-                            stat,
-                            summary_current: r.get::<_, Option<bool>>(4).ok().flatten()
-                                == Some(true),
-                            summary_inputs: cache_text(r.get_ref(5)?),
-                        },
-                    ))
-                })
-                .sq(path)?;
-            rows.collect::<rusqlite::Result<_>>().sq(path)
-        })
+        Ok(self
+            .scan_rows(analysis_version)?
+            .into_iter()
+            .map(|(id, row)| (id, row.warm))
+            .collect())
     }
 
     /// [`Journal::warm_rows`] with each session's content hash: what the workstation's

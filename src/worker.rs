@@ -66,8 +66,9 @@ pub enum Outcome {
     Restat(FileStat),
     /// The session read and analysed.
     Analysed(Box<Analysed>),
-    /// The file could not be read or analysed (one line naming the file).
-    Failed(String),
+    /// The file could not be read or analysed (one line naming the file), with the file's
+    /// stat taken before it was read, when there was one.
+    Failed(String, Option<FileStat>),
 }
 
 /// A finished job, sent back to the UI thread.
@@ -85,10 +86,12 @@ pub struct Done {
 
 /// Run one job (any thread; pure apart from reading the file).
 pub fn run_job(job: &Job) -> Outcome {
+    // Taken before the file is read: a failure is recorded with the stat of the bytes that
+    // failed, never of a newer file.
+    let stat = FileStat::of(&job.activity.path);
     if job.kind == JobKind::Scan {
         if let Some(known) = &job.cached_hash {
             // One stat: the recorded path, size and modification time mean the same file.
-            let stat = FileStat::of(&job.activity.path);
             if stat.is_some() && stat == job.cached_stat {
                 return Outcome::Unchanged;
             }
@@ -100,13 +103,13 @@ pub fn run_job(job: &Job) -> Outcome {
                     }
                 }
                 Ok(_) => {}
-                Err(e) => return Outcome::Failed(e.to_string()),
+                Err(e) => return Outcome::Failed(e.to_string(), stat),
             }
         }
     }
     match analyse_activity(&job.athlete, &job.activity) {
         Ok(a) => Outcome::Analysed(Box::new(a)),
-        Err(e) => Outcome::Failed(e.to_string()),
+        Err(e) => Outcome::Failed(e.to_string(), stat),
     }
 }
 

@@ -127,7 +127,7 @@ fn a_scan_job_trusts_the_stat_and_reports_a_new_one() {
     write_with_mtime(&file, &vec![0u8; original.len()], mtime);
     assert!(matches!(run_job(&job(stat.clone())), Outcome::Unchanged));
     // Without a recorded stat the garbage is read, hashed and analysed (and fails).
-    assert!(matches!(run_job(&job(None)), Outcome::Failed(_)));
+    assert!(matches!(run_job(&job(None)), Outcome::Failed(..)));
     // The original bytes under a new time: same hash, the new stat is reported.
     write_with_mtime(&file, &original, mtime + Duration::from_secs(5));
     match run_job(&job(stat.clone())) {

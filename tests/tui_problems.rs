@@ -116,3 +116,70 @@ fn the_start_up_scan_re_analyses_sessions_after_a_plan_edit() {
     let after = scan();
     assert!(after.contains("\"title\":\"Five threes\""), "{after}");
 }
+
+/// A damaged activity file is read once: a later start knows it from its stat, still counts
+/// and lists it as unreadable, and writes nothing to the journal for it.
+#[test]
+fn a_damaged_file_is_known_from_its_stat_on_a_warm_start() {
+    let dir = tempfile::tempdir().unwrap();
+    let jdir = tempfile::tempdir().unwrap();
+    let journal = jdir.path().join("journal.sqlite");
+    build_roster(dir.path());
+    let damaged = std::fs::read_dir(dir.path().join("marco-bell/activities"))
+        .unwrap()
+        .map(|e| e.unwrap().path())
+        .find(|p| p.to_string_lossy().contains("2024-03-03-long"))
+        .unwrap();
+    let bytes = std::fs::read(&damaged).unwrap();
+    std::fs::write(&damaged, &bytes[..bytes.len() / 2]).unwrap();
+    let start = || {
+        let roster = Roster::open(dir.path()).expect("roster");
+        App::new(
+            roster,
+            Journal::open_for_roster(&journal, dir.path()).expect("journal"),
+            Options {
+                keymap: KeyMap::default(),
+                theme: Theme::plain(),
+                feedback_dir: None,
+            },
+        )
+    };
+    let mut first = start();
+    let fx = first.start_scan();
+    run_effects(&mut first, fx);
+    assert_eq!(first.progress.failed, 1);
+    let line = first
+        .problems
+        .iter()
+        .find(|p| p.contains("2024-03-03-long"))
+        .cloned()
+        .expect("the damaged file is listed");
+    drop(first);
+
+    let wal = jdir.path().join("journal.sqlite-wal");
+    let len = |p: &std::path::Path| std::fs::metadata(p).map(|m| m.len()).unwrap_or(0);
+    let mut second = start();
+    let before = (len(&journal), len(&wal));
+    let fx = second.start_scan();
+    let job = fx
+        .iter()
+        .find_map(|e| match e {
+            splitdesk::tui::app::Effect::Submit { job, .. } if job.session_id() == LONG => {
+                Some(job.clone())
+            }
+            _ => None,
+        })
+        .expect("a re-check job for the damaged file");
+    assert!(
+        job.cached_stat.is_some(),
+        "the damaged file's stat was kept"
+    );
+    assert!(matches!(
+        splitdesk::worker::run_job(&job),
+        splitdesk::worker::Outcome::Unchanged
+    ));
+    run_effects(&mut second, fx);
+    assert_eq!(second.progress.failed, 1);
+    assert!(second.problems.contains(&line), "{:?}", second.problems);
+    assert_eq!((len(&journal), len(&wal)), before, "nothing written");
+}

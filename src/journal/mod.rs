@@ -83,6 +83,8 @@ pub struct ScanRow {
     pub warm: WarmRow,
     /// The content hash the journal holds for the session.
     pub content_hash: Option<String>,
+    /// Why the session's file could not be read, when the journal holds it as unreadable.
+    pub unreadable: Option<String>,
 }
 
 /// An open journal. Reads take `&self`; every write takes `&mut self` and is one transaction.
@@ -746,23 +748,42 @@ impl Journal {
         reason: &str,
         now: DateTime<Utc>,
     ) -> Result<SessionChange> {
+        self.record_unreadable_with_stat(record, reason, None, now)
+    }
+
+    /// [`Journal::record_unreadable`] and, in the same transaction, the stat of the file
+    /// taken before its bytes were read, so that an unchanged damaged file is known from its
+    /// stat next time without being read.
+    pub fn record_unreadable_with_stat(
+        &mut self,
+        record: &SessionRecord,
+        reason: &str,
+        stat: Option<&FileStat>,
+        now: DateTime<Utc>,
+    ) -> Result<SessionChange> {
         let record = SessionRecord {
             summary: None,
             ..record.clone()
         };
-        // Already held as unreadable for these bytes at this path, for the same reason:
-        // nothing to write (a warm start re-reading a damaged file leaves the journal as is).
+        // Already held as unreadable for these bytes at this path, for the same reason (and
+        // with this stat, when one is given): nothing to write, so a warm start that re-reads
+        // a damaged file leaves the journal as it is.
         let held = self.read(|conn, path| session_row(conn, path, &record.session_id))?;
-        if held.is_some_and(|row| {
+        let same_row = held.is_some_and(|row| {
             row.content_hash == record.content_hash
                 && row.file_path == record.file_path
                 && row.summary.is_none()
                 && row.unreadable.as_deref() == Some(reason)
-        }) {
+        });
+        let same_stat = match stat {
+            None => true,
+            Some(st) => self.file_stat(&record.session_id)?.as_ref() == Some(st),
+        };
+        if same_row && same_stat {
             return Ok(SessionChange::Same);
         }
         self.write_cache(|tx, path| {
-            let change = upsert_row(tx, path, &record, None, now)?;
+            let change = upsert_row(tx, path, &record, stat, now)?;
             mark_unreadable(tx, path, &record.session_id, reason)?;
             Ok(change)
         })
@@ -999,7 +1020,7 @@ impl Journal {
                 .prepare_cached(
                     "SELECT session_id, CAST(file_path AS BLOB), file_size, file_mtime_ns,
                         summary_version IS ?1 AND summary_hash = content_hash, summary_inputs,
-                        content_hash
+                        content_hash, unreadable
                      FROM session",
                 )
                 .sq(path)?;
@@ -1027,6 +1048,7 @@ impl Journal {
                                 summary_inputs: cache_text(r.get_ref(5)?),
                             },
                             content_hash: cache_text(r.get_ref(6)?),
+                            unreadable: cache_text(r.get_ref(7)?),
                         },
                     ))
                 })

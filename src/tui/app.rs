@@ -379,6 +379,9 @@ pub struct App {
     /// The day's messages on their way out (written, then copied).
     day_export: Option<DayExport>,
     failed: std::collections::HashSet<String>,
+    /// Sessions the journal holds as unreadable with their file's stat, by id, and why: the
+    /// start-up re-check knows them from that stat without reading them again.
+    known_unreadable: std::collections::HashMap<String, String>,
     /// The status line message.
     pub message: Option<Message>,
     scan_generation: u64,
@@ -462,6 +465,7 @@ impl App {
             config_problems: Vec::new(),
             day_export: None,
             failed: Default::default(),
+            known_unreadable: Default::default(),
             message: None,
             scan_generation: 0,
             open_generation: 0,
@@ -563,6 +567,7 @@ impl App {
             }
         };
         let mut out = Vec::new();
+        self.known_unreadable.clear();
         for athlete in &self.athletes {
             for act in &athlete.activities {
                 let id = athlete.session_id(act);
@@ -575,6 +580,14 @@ impl App {
                     {
                         (row.content_hash.clone(), row.warm.stat.clone())
                     }
+                    // Held as unreadable with its stat: the same bytes fail the same way.
+                    Some(row) if row.warm.stat.is_some() => match &row.unreadable {
+                        Some(why) => {
+                            self.known_unreadable.insert(id.clone(), why.clone());
+                            (row.content_hash.clone(), row.warm.stat.clone())
+                        }
+                        None => (None, None),
+                    },
                     _ => (None, None),
                 };
                 out.push(Effect::Submit {
@@ -1863,6 +1876,9 @@ impl App {
                 return;
             }
         }
+        if matches!(done.outcome, Outcome::Unchanged | Outcome::Restat(_)) {
+            self.still_unreadable(&done);
+        }
         match done.outcome {
             Outcome::Unchanged => {}
             Outcome::Restat(stat) => {
@@ -1870,13 +1886,13 @@ impl App {
                 // read next time).
                 let _ = self.journal.set_file_stat(&done.session_id, &stat);
             }
-            Outcome::Failed(why) => {
+            Outcome::Failed(why, stat) => {
                 if done.kind == JobKind::Scan {
                     self.progress.failed += 1;
                 }
                 self.failed.insert(done.session_id.clone());
                 self.problems.push(why.clone());
-                let start = self.note_unreadable(&done.session_id, &why);
+                let start = self.note_unreadable(&done.session_id, &why, stat.as_ref());
                 self.apply_session(&done.session_id, start);
                 if let Some(o) = self
                     .open
@@ -2117,17 +2133,46 @@ impl App {
         crate::roster::printable(why)
     }
 
+    /// A session the journal holds as unreadable came back unchanged from the start-up
+    /// re-check (its file was not read again): count and list it as the failure it still is.
+    fn still_unreadable(&mut self, done: &Done) {
+        if done.kind != JobKind::Scan {
+            return;
+        }
+        let Some(reason) = self.known_unreadable.get(&done.session_id).cloned() else {
+            return;
+        };
+        let Some(path) = self
+            .roster
+            .find_session(&done.session_id)
+            .map(|(_, act)| act.path.clone())
+        else {
+            return;
+        };
+        self.progress.failed += 1;
+        self.failed.insert(done.session_id.clone());
+        self.problems.push(format!("{}: {reason}", path.display()));
+    }
+
     /// A session's file could not be read: keep it in the journal as unreadable, so it can
     /// be closed with the verdict alone.
     /// Returns the start the journal now holds for it, when recorded.
-    fn note_unreadable(&mut self, session_id: &str, why: &str) -> Option<DateTime<Utc>> {
+    fn note_unreadable(
+        &mut self,
+        session_id: &str,
+        why: &str,
+        stat: Option<&FileStat>,
+    ) -> Option<DateTime<Utc>> {
         let (athlete, path) = self
             .roster
             .find_session(session_id)
             .map(|(a, act)| (a.id.clone(), act.path.clone()))?;
         let reason = self.reason_of(session_id, why);
         let record = crate::journal::unreadable_record(session_id, &athlete, &path, now());
-        match self.journal.record_unreadable(&record, &reason, now()) {
+        match self
+            .journal
+            .record_unreadable_with_stat(&record, &reason, stat, now())
+        {
             Ok(_) => Some(record.start),
             Err(e) => {
                 self.say(Tone::Warn, short_error(&e));

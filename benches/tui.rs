@@ -144,23 +144,7 @@ fn bench_startup(c: &mut Criterion) {
         }
     }
     c.bench_function("startup_warm_journal_demo_first_frame_160x48", |b| {
-        b.iter(|| {
-            let ws = splitdesk::workspace::Workspace::open(&roster_dir, Some(&journal_path))
-                .expect("workspace");
-            let mut app = App::new(
-                ws.roster,
-                ws.journal,
-                Options {
-                    keymap: KeyMap::default(),
-                    theme: Theme::colour(),
-                    feedback_dir: None,
-                },
-            );
-            app.size = (160, 48);
-            let mut term = Terminal::new(TestBackend::new(160, 48)).expect("terminal");
-            term.draw(|f| ui::draw(f, black_box(&app))).expect("draw");
-            black_box(term);
-        })
+        b.iter(|| start_and_draw(&roster_dir, &journal_path))
     });
 }
 
@@ -318,23 +302,7 @@ fn bench_big_roster_keys(c: &mut Criterion) {
     let journal = dir.path().join("journal.sqlite");
     g.sample_size(10);
     g.bench_function("start_to_first_frame_160x48", |b| {
-        b.iter(|| {
-            let ws =
-                splitdesk::workspace::Workspace::open(&roster, Some(&journal)).expect("workspace");
-            let mut app = App::new(
-                ws.roster,
-                ws.journal,
-                Options {
-                    keymap: KeyMap::default(),
-                    theme: Theme::colour(),
-                    feedback_dir: None,
-                },
-            );
-            app.size = (160, 48);
-            let mut term = Terminal::new(TestBackend::new(160, 48)).expect("terminal");
-            term.draw(|f| ui::draw(f, black_box(&app))).expect("draw");
-            black_box(term);
-        })
+        b.iter(|| start_and_draw(&roster, &journal))
     });
     // The warm re-check after the first frame, all of it on this thread: the jobs asked
     // (one journal query), each job's `stat`, each result handled.
@@ -346,6 +314,25 @@ fn bench_big_roster_keys(c: &mut Criterion) {
         })
     });
     g.finish();
+}
+
+/// Open the roster and its journal, build the app and draw the first 160x48 frame: what a
+/// start costs up to the first frame, in process.
+fn start_and_draw(roster: &std::path::Path, journal: &std::path::Path) {
+    let ws = splitdesk::workspace::Workspace::open(roster, Some(journal)).expect("workspace");
+    let mut app = App::new(
+        ws.roster,
+        ws.journal,
+        Options {
+            keymap: KeyMap::default(),
+            theme: Theme::colour(),
+            feedback_dir: None,
+        },
+    );
+    app.size = (160, 48);
+    let mut term = Terminal::new(TestBackend::new(160, 48)).expect("terminal");
+    term.draw(|f| ui::draw(f, black_box(&app))).expect("draw");
+    black_box(term);
 }
 
 criterion_group!(benches, bench_frame, bench_startup, bench_big_roster_keys);

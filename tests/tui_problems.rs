@@ -36,6 +36,19 @@ fn broken_app(dir: &std::path::Path) -> App {
     app
 }
 
+/// The workstation on the roster at `dir` with its journal file at `journal`, not yet scanned.
+fn app_on_journal(dir: &std::path::Path, journal: &std::path::Path) -> App {
+    App::new(
+        Roster::open(dir).expect("roster"),
+        Journal::open_for_roster(journal, dir).expect("journal"),
+        Options {
+            keymap: KeyMap::default(),
+            theme: Theme::plain(),
+            feedback_dir: None,
+        },
+    )
+}
+
 #[test]
 fn the_athlete_carries_a_marker_and_its_problems_in_the_roster_pane() {
     let dir = tempfile::tempdir().unwrap();
@@ -90,16 +103,7 @@ fn the_start_up_scan_re_analyses_sessions_after_a_plan_edit() {
     let journal = jdir.path().join("journal.sqlite");
     build_roster(dir.path());
     let scan = || {
-        let roster = Roster::open(dir.path()).expect("roster");
-        let mut app = App::new(
-            roster,
-            Journal::open_for_roster(&journal, dir.path()).expect("journal"),
-            Options {
-                keymap: KeyMap::default(),
-                theme: Theme::plain(),
-                feedback_dir: None,
-            },
-        );
+        let mut app = app_on_journal(dir.path(), &journal);
         let fx = app.start_scan();
         run_effects(&mut app, fx);
         app.journal
@@ -132,18 +136,7 @@ fn a_damaged_file_is_known_from_its_stat_on_a_warm_start() {
         .unwrap();
     let bytes = std::fs::read(&damaged).unwrap();
     std::fs::write(&damaged, &bytes[..bytes.len() / 2]).unwrap();
-    let start = || {
-        let roster = Roster::open(dir.path()).expect("roster");
-        App::new(
-            roster,
-            Journal::open_for_roster(&journal, dir.path()).expect("journal"),
-            Options {
-                keymap: KeyMap::default(),
-                theme: Theme::plain(),
-                feedback_dir: None,
-            },
-        )
-    };
+    let start = || app_on_journal(dir.path(), &journal);
     let mut first = start();
     let fx = first.start_scan();
     run_effects(&mut first, fx);

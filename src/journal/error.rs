@@ -181,6 +181,26 @@ pub enum JournalError {
     /// Any other SQLite failure (its message said once, as for `Io`).
     #[error("{path}: {err}")]
     Sqlite { path: PathBuf, err: rusqlite::Error },
+
+    /// A copy's destination already holds a journal; copies go into a new, empty one.
+    #[error(
+        "{path}: the destination already holds {rows} sessions and reviews; copy into a new, \
+         empty journal (nothing was written)"
+    )]
+    NotEmpty { path: PathBuf, rows: u64 },
+
+    /// A copied journal did not read back the same as its source; the copy was rolled back.
+    #[error("{path}: the copy did not verify ({detail}); nothing was kept")]
+    CopyMismatch { path: PathBuf, detail: String },
+
+    /// The PostgreSQL server could not be reached, or refused the connection.
+    #[error("{path}: cannot connect to the journal server ({detail})")]
+    Connect { path: PathBuf, detail: String },
+
+    /// Any other failure reported by the PostgreSQL server or its connection; the
+    /// transaction was rolled back.
+    #[error("{path}: the journal server reported an error ({detail}); nothing was saved")]
+    Server { path: PathBuf, detail: String },
 }
 
 /// SQLite's extended result code SQLITE_IOERR_SHMSIZE (`SQLITE_IOERR | 19 << 8`).
@@ -222,6 +242,60 @@ impl JournalError {
             _ => JournalError::Sqlite { path, err: source },
         }
     }
+}
+
+impl JournalError {
+    /// Classify a PostgreSQL error for the journal at `path` (the server address, without
+    /// any password).
+    pub(crate) fn pg(path: &std::path::Path, source: postgres::Error) -> JournalError {
+        use postgres::error::SqlState;
+        let path = path.to_path_buf();
+        let Some(db) = source.as_db_error() else {
+            return if source.is_closed() {
+                JournalError::Connect {
+                    path,
+                    detail: "the connection was closed".into(),
+                }
+            } else {
+                JournalError::Server {
+                    path,
+                    detail: one_line(&source.to_string()),
+                }
+            };
+        };
+        let code = db.code();
+        if *code == SqlState::LOCK_NOT_AVAILABLE
+            || *code == SqlState::T_R_SERIALIZATION_FAILURE
+            || *code == SqlState::T_R_DEADLOCK_DETECTED
+            || *code == SqlState::QUERY_CANCELED
+        {
+            JournalError::Busy { path }
+        } else if *code == SqlState::DISK_FULL {
+            JournalError::DiskFull { path }
+        } else if *code == SqlState::INSUFFICIENT_PRIVILEGE
+            || *code == SqlState::READ_ONLY_SQL_TRANSACTION
+        {
+            JournalError::ReadOnlyLocation {
+                path,
+                detail: one_line(db.message()),
+            }
+        } else if *code == SqlState::DATA_CORRUPTED || *code == SqlState::INDEX_CORRUPTED {
+            JournalError::Corrupt {
+                path,
+                detail: one_line(db.message()),
+            }
+        } else {
+            JournalError::Server {
+                path,
+                detail: one_line(db.message()),
+            }
+        }
+    }
+}
+
+/// A server message on one line, without control characters.
+fn one_line(s: &str) -> String {
+    s.split_whitespace().collect::<Vec<_>>().join(" ")
 }
 
 #[cfg(test)]

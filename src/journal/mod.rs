@@ -41,9 +41,13 @@
 //! Times are passed in (`now`) so that callers and tests control the clock.
 
 mod check_mark;
+pub mod copy;
+mod db;
 mod error;
 mod location;
 mod note;
+mod pg;
+mod pgpass;
 pub mod schema;
 mod types;
 
@@ -54,9 +58,11 @@ use std::path::{Path, PathBuf};
 use std::time::Duration;
 
 use chrono::{DateTime, SecondsFormat, Utc};
-use rusqlite::{
-    params, Connection, OpenFlags, OptionalExtension, Transaction, TransactionBehavior,
-};
+use rusqlite::{Connection, OpenFlags, TransactionBehavior};
+
+pub use db::Engine;
+use db::{Lite, Sql};
+pub use pg::{is_url as is_server_address, redact as redact_address};
 
 pub use error::{JournalError, Missing};
 pub use location::{check_outside_roster, default_path, default_path_in, DATA_DIR_ENV};
@@ -90,7 +96,8 @@ pub struct ScanRow {
 /// An open journal. Reads take `&self`; every write takes `&mut self` and is one transaction.
 #[derive(Debug)]
 pub struct Journal {
-    conn: Connection,
+    db: Store,
+    /// The journal file, or for PostgreSQL the server address without any password.
     path: PathBuf,
     /// `Some(reason)` for a journal opened with [`Journal::open_snapshot`]: a copy in memory
     /// of a journal that cannot be written. Reads and the analysis cache work on the copy;
@@ -109,26 +116,34 @@ impl<T> SqlExt<T> for rusqlite::Result<T> {
     }
 }
 
-/// Run `sql` and collect its rows as `T`: any type built from a row, such as a tuple of
-/// column types (rusqlite implements `TryFrom<&Row>` for tuples of `FromSql`).
-fn query_rows<T, P>(conn: &Connection, path: &Path, sql: &str, params: P) -> Result<Vec<T>>
-where
-    T: for<'r> TryFrom<&'r rusqlite::Row<'r>, Error = rusqlite::Error>,
-    P: rusqlite::Params,
-{
-    let mut stmt = conn.prepare(sql).sq(path)?;
-    let rows = stmt.query_map(params, |r| T::try_from(r)).sq(path)?;
-    rows.collect::<rusqlite::Result<Vec<T>>>().sq(path)
+/// The connection behind a journal.
+enum Store {
+    /// A SQLite file (or an in-memory copy of one).
+    Lite(Connection),
+    /// A PostgreSQL database. Behind a lock because the client needs `&mut` for reads too.
+    Pg(Box<std::sync::Mutex<pg::PgConn>>),
+}
+
+impl std::fmt::Debug for Store {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        match self {
+            Store::Lite(c) => f.debug_tuple("Lite").field(c).finish(),
+            Store::Pg(_) => f.write_str("Pg"),
+        }
+    }
 }
 
 /// Rows of `sql` (one parameter: the review id) for the session's review; none when the
 /// session has no review yet.
-fn review_rows<T>(conn: &Connection, path: &Path, session_id: &str, sql: &str) -> Result<Vec<T>>
-where
-    T: for<'r> TryFrom<&'r rusqlite::Row<'r>, Error = rusqlite::Error>,
-{
+fn review_rows<T>(
+    conn: &mut dyn Sql,
+    path: &Path,
+    session_id: &str,
+    sql: &str,
+    f: impl FnMut(&db::Row<'_>) -> Result<T>,
+) -> Result<Vec<T>> {
     match require_session(conn, path, session_id)?.review_id {
-        Some(rid) => query_rows(conn, path, sql, [rid]),
+        Some(rid) => conn.query(path, sql, &[&rid], f),
         None => Ok(Vec::new()),
     }
 }
@@ -442,6 +457,41 @@ fn check_writable_dir(journal: &Path) -> Result<()> {
     Ok(())
 }
 
+/// SQLite's full integrity and foreign-key checks (problems, one per line) and the schema
+/// version.
+fn sqlite_integrity(conn: &Connection, path: &Path) -> Result<(Vec<String>, u32)> {
+    let mut problems = Vec::new();
+    {
+        let mut stmt = conn.prepare("PRAGMA integrity_check").sq(path)?;
+        let rows: Vec<String> = stmt
+            .query_map([], |r| r.get(0))
+            .sq(path)?
+            .collect::<rusqlite::Result<_>>()
+            .sq(path)?;
+        problems.extend(rows.into_iter().filter(|r| r != "ok"));
+    }
+    {
+        let mut stmt = conn.prepare("PRAGMA foreign_key_check").sq(path)?;
+        let rows: Vec<String> = stmt
+            .query_map([], |r| {
+                Ok(format!(
+                    "foreign key: {} row {} -> {}",
+                    r.get::<_, String>(0)?,
+                    r.get::<_, Option<i64>>(1)?.unwrap_or(-1),
+                    r.get::<_, String>(2)?
+                ))
+            })
+            .sq(path)?
+            .collect::<rusqlite::Result<_>>()
+            .sq(path)?;
+        problems.extend(rows);
+    }
+    let version: i64 = conn
+        .pragma_query_value(None, "user_version", |r| r.get(0))
+        .sq(path)?;
+    Ok((problems, u32::try_from(version).unwrap_or(0)))
+}
+
 impl Journal {
     /// Open the journal at `path` for reading and writing, creating it (and its folder) if
     /// missing and upgrading its schema if older. Refuses, without changing the file, anything
@@ -494,11 +544,28 @@ impl Journal {
             });
         }
         let mut journal = Journal {
-            conn,
+            db: Store::Lite(conn),
             path,
             read_only: None,
         };
         journal.configure()?;
+        journal.migrate()?;
+        Ok(journal)
+    }
+
+    /// Open (creating its tables in an empty database, upgrading an older schema) the
+    /// PostgreSQL journal at `url` (`postgres://user@host:port/database`, with the usual
+    /// parameters such as `sslmode`). The password, when not in the address, comes from
+    /// `PGPASSWORD` or the password file, as for the server's own tools; messages show the
+    /// address without it. A database holding other tables is refused untouched.
+    pub fn open_url(url: &str) -> Result<Journal> {
+        let path = pg::shown_path(url);
+        let conn = pg::PgConn::connect(url, &path)?;
+        let mut journal = Journal {
+            db: Store::Pg(Box::new(std::sync::Mutex::new(conn))),
+            path,
+            read_only: None,
+        };
         journal.migrate()?;
         Ok(journal)
     }
@@ -540,7 +607,7 @@ impl Journal {
         }
         quick_check(&conn, &path, Mark::Leave)?;
         let journal = Journal {
-            conn,
+            db: Store::Lite(conn),
             path,
             read_only: None,
         };
@@ -577,7 +644,7 @@ impl Journal {
             }
         };
         let mut journal = Journal {
-            conn,
+            db: Store::Lite(conn),
             path,
             read_only: None,
         };
@@ -598,7 +665,7 @@ impl Journal {
         let path = PathBuf::from(":memory:");
         let conn = Connection::open_in_memory().sq(&path)?;
         let mut journal = Journal {
-            conn,
+            db: Store::Lite(conn),
             path,
             read_only: None,
         };
@@ -608,20 +675,25 @@ impl Journal {
     }
 
     fn configure(&self) -> Result<()> {
-        self.conn
-            .pragma_update(None, "foreign_keys", true)
+        let Store::Lite(conn) = &self.db else {
+            return Ok(());
+        };
+        conn.pragma_update(None, "foreign_keys", true)
             .sq(&self.path)?;
-        self.conn
-            .pragma_update(None, "synchronous", "FULL")
+        conn.pragma_update(None, "synchronous", "FULL")
             .sq(&self.path)?;
+        conn.set_prepared_statement_cache_capacity(64);
         Ok(())
     }
 
     fn migrate(&mut self) -> Result<()> {
         let path = self.path.clone();
+        let conn = match &mut self.db {
+            Store::Lite(conn) => conn,
+            Store::Pg(m) => return pg::lock_mut(m).migrate(&path),
+        };
         loop {
-            let tx = self
-                .conn
+            let tx = conn
                 .transaction_with_behavior(TransactionBehavior::Immediate)
                 .sq(&path)?;
             let version = match identify_conn(&tx, &path)? {
@@ -642,42 +714,66 @@ impl Journal {
         }
     }
 
+    /// Which engine holds the journal.
+    pub fn engine(&self) -> Engine {
+        match &self.db {
+            Store::Lite(_) => Engine::Sqlite,
+            Store::Pg(_) => Engine::Postgres,
+        }
+    }
+
     /// Change how long a write waits for another connection's lock (default [`BUSY_TIMEOUT`])
     /// before failing with [`JournalError::Busy`].
     pub fn set_busy_timeout(&self, timeout: Duration) -> Result<()> {
-        self.conn.busy_timeout(timeout).sq(&self.path)
+        match &self.db {
+            Store::Lite(conn) => conn.busy_timeout(timeout).sq(&self.path),
+            Store::Pg(m) => {
+                pg::lock(m).busy_timeout = timeout;
+                Ok(())
+            }
+        }
     }
 
-    /// The journal's file path (`:memory:` for an in-memory journal).
+    /// The journal's file path (`:memory:` for an in-memory journal; for PostgreSQL the
+    /// server address, without any password).
     pub fn path(&self) -> &Path {
         &self.path
     }
 
     /// A number that changes whenever another connection (another process, a worker
-    /// thread) has committed to the journal since this one last looked: SQLite's
-    /// `PRAGMA data_version`. Cheap enough to poll; this connection's own commits do not
-    /// change it.
+    /// thread, another coach's workstation) has committed to the journal since this one
+    /// last looked. SQLite: `PRAGMA data_version`; PostgreSQL: the count of change
+    /// notifications from other connections. Cheap enough to poll; this connection's own
+    /// commits do not change it.
     pub fn data_version(&self) -> Result<i64> {
-        self.conn
-            .query_row("PRAGMA data_version", [], |r| r.get(0))
-            .sq(&self.path)
+        match &self.db {
+            Store::Lite(conn) => conn
+                .query_row("PRAGMA data_version", [], |r| r.get(0))
+                .sq(&self.path),
+            Store::Pg(m) => pg::lock(m).data_version(&self.path),
+        }
     }
 
-    /// Run `f` in one `BEGIN IMMEDIATE` transaction; commit on success, roll back on error.
-    /// On a read-only journal (a snapshot) an `f` that changes nothing succeeds, one that
-    /// would change the coach's data is rolled back and refused with `ReadOnly`.
-    fn write<T>(&mut self, f: impl FnOnce(&Transaction<'_>, &Path) -> Result<T>) -> Result<T> {
+    /// Run `f` in one write transaction; commit on success, roll back on error. SQLite:
+    /// `BEGIN IMMEDIATE`; PostgreSQL: a transaction holding the journal's write lock, so
+    /// writers take turns as on SQLite. On a read-only journal (a snapshot) an `f` that
+    /// changes nothing succeeds, one that would change the coach's data is rolled back and
+    /// refused with `ReadOnly`.
+    fn write<T>(&mut self, f: impl FnOnce(&mut dyn Sql, &Path) -> Result<T>) -> Result<T> {
         let path = self.path.clone();
-        let tx = self
-            .conn
+        let conn = match &mut self.db {
+            Store::Lite(conn) => conn,
+            Store::Pg(m) => return pg::lock_mut(m).write(&path, f),
+        };
+        let tx = conn
             .transaction_with_behavior(TransactionBehavior::Immediate)
             .sq(&path)?;
-        let changes = |tx: &Transaction<'_>| -> Result<i64> {
+        let changes = |tx: &Connection| -> Result<i64> {
             tx.query_row("SELECT total_changes()", [], |r| r.get(0))
                 .sq(&path)
         };
         let before = changes(&tx)?;
-        let out = f(&tx, &path)?;
+        let out = f(&mut Lite(&tx), &path)?;
         if let Some(reason) = &self.read_only {
             if changes(&tx)? != before {
                 return Err(JournalError::ReadOnly {
@@ -692,26 +788,31 @@ impl Journal {
 
     /// [`Journal::write`] for the session list and the analysis cache (derived data): on a
     /// read-only journal these go to the copy in memory only.
-    fn write_cache<T>(
-        &mut self,
-        f: impl FnOnce(&Transaction<'_>, &Path) -> Result<T>,
-    ) -> Result<T> {
+    fn write_cache<T>(&mut self, f: impl FnOnce(&mut dyn Sql, &Path) -> Result<T>) -> Result<T> {
         let path = self.path.clone();
-        let tx = self
-            .conn
+        let conn = match &mut self.db {
+            Store::Lite(conn) => conn,
+            Store::Pg(m) => return pg::lock_mut(m).write(&path, f),
+        };
+        let tx = conn
             .transaction_with_behavior(TransactionBehavior::Immediate)
             .sq(&path)?;
-        let out = f(&tx, &path)?;
+        let out = f(&mut Lite(&tx), &path)?;
         tx.commit().sq(&path)?;
         Ok(out)
     }
 
     /// Run `f` in a read transaction, for a consistent view across several queries.
-    fn read<T>(&self, f: impl FnOnce(&Connection, &Path) -> Result<T>) -> Result<T> {
-        let tx = self.conn.unchecked_transaction().sq(&self.path)?;
-        let out = f(&tx, &self.path)?;
-        drop(tx);
-        Ok(out)
+    fn read<T>(&self, f: impl FnOnce(&mut dyn Sql, &Path) -> Result<T>) -> Result<T> {
+        match &self.db {
+            Store::Lite(conn) => {
+                let tx = conn.unchecked_transaction().sq(&self.path)?;
+                let out = f(&mut Lite(&tx), &self.path)?;
+                drop(tx);
+                Ok(out)
+            }
+            Store::Pg(m) => pg::lock(m).read(&self.path, f),
+        }
     }
 
     // ----- sessions and the analysis cache -----
@@ -807,26 +908,28 @@ impl Journal {
             if row.content_hash != content_hash {
                 return Ok(false);
             }
-            tx.execute(
+            tx.exec(
+                path,
                 "UPDATE session SET summary_json = ?2, summary_version = ?3, summary_hash = ?4,
                      work_intervals = ?5 WHERE session_id = ?1",
-                params![
-                    session_id,
-                    summary.json,
-                    summary.analysis_version,
-                    content_hash,
-                    summary.work_intervals
+                &[
+                    &session_id,
+                    &summary.json,
+                    &summary.analysis_version,
+                    &content_hash,
+                    &summary.work_intervals,
                 ],
-            )
-            .sq(path)?;
+            )?;
             fill_brief(tx, path, session_id)?;
             match &summary.card {
                 Some(card) => {
-                    tx.execute(
+                    tx.exec(
+                        path,
                         "INSERT INTO session_card (session_id, athlete_id, start_time, day, kind,
                              content_hash, analysis_version, inputs_digest, shape_json, card_json)
-                         SELECT session_id, athlete_id, start_time, ?2, ?3, content_hash, ?4, ?5,
-                             ?6, ?7
+                         SELECT session_id, athlete_id, start_time, CAST(?2 AS TEXT),
+                             CAST(?3 AS TEXT), content_hash, CAST(?4 AS BIGINT),
+                             CAST(?5 AS TEXT), CAST(?6 AS TEXT), CAST(?7 AS TEXT)
                          FROM session WHERE session_id = ?1
                          ON CONFLICT (session_id) DO UPDATE SET
                              athlete_id = excluded.athlete_id, start_time = excluded.start_time,
@@ -835,17 +938,16 @@ impl Journal {
                              analysis_version = excluded.analysis_version,
                              inputs_digest = excluded.inputs_digest,
                              shape_json = excluded.shape_json, card_json = excluded.card_json",
-                        params![
-                            session_id,
-                            card.day,
-                            card.kind,
-                            summary.analysis_version,
-                            card.inputs_digest,
-                            card.shape_json,
-                            card.json
+                        &[
+                            &session_id,
+                            &card.day,
+                            &card.kind,
+                            &summary.analysis_version,
+                            &card.inputs_digest,
+                            &card.shape_json,
+                            &card.json,
                         ],
-                    )
-                    .sq(path)?;
+                    )?;
                 }
                 None => delete_card(tx, path, session_id)?,
             }
@@ -860,16 +962,18 @@ impl Journal {
         session_id: &str,
         analysis_version: u32,
     ) -> Result<Option<String>> {
-        self.conn
-            .query_row(
-                "SELECT summary_json FROM session
-                 WHERE session_id = ?1 AND summary_version = ?2 AND summary_hash = content_hash",
-                params![session_id, analysis_version],
-                |r| Ok(cache_text(r.get_ref(0)?)),
-            )
-            .optional()
-            .map(Option::flatten)
-            .sq(&self.path)
+        self.read(|conn, path| {
+            Ok(conn
+                .query_opt(
+                    path,
+                    "SELECT summary_json FROM session
+                     WHERE session_id = ?1 AND summary_version = ?2
+                       AND summary_hash = content_hash",
+                    &[&session_id, &analysis_version],
+                    |r| Ok(r.text(0)),
+                )?
+                .flatten())
+        })
     }
 
     /// The athlete's current session cards (made by `analysis_version` under `inputs_digest`
@@ -882,28 +986,25 @@ impl Journal {
         analysis_version: u32,
     ) -> Result<Vec<CardIndexRow>> {
         self.read(|conn, path| {
-            let mut stmt = conn
-                .prepare_cached(
-                    "SELECT c.session_id, c.start_time, c.day, c.kind, c.shape_json
-                     FROM session_card c JOIN session s ON s.session_id = c.session_id
-                     WHERE c.athlete_id = ?1 AND c.inputs_digest = ?2
-                       AND c.analysis_version = ?3 AND s.content_hash = c.content_hash
-                       AND s.unreadable IS NULL
-                     ORDER BY c.start_time, c.session_id",
-                )
-                .sq(path)?;
-            let rows = stmt
-                .query_map(params![athlete, inputs_digest, analysis_version], |r| {
+            conn.query(
+                path,
+                "SELECT c.session_id, c.start_time, c.day, c.kind, c.shape_json
+                 FROM session_card c JOIN session s ON s.session_id = c.session_id
+                 WHERE c.athlete_id = ?1 AND c.inputs_digest = ?2
+                   AND c.analysis_version = ?3 AND s.content_hash = c.content_hash
+                   AND s.unreadable IS NULL
+                 ORDER BY c.start_time, c.session_id",
+                &[&athlete, &inputs_digest, &analysis_version],
+                |r| {
                     Ok(CardIndexRow {
-                        session_id: cache_text(r.get_ref(0)?).unwrap_or_default(),
-                        start_time: cache_text(r.get_ref(1)?).unwrap_or_default(),
-                        day: cache_text(r.get_ref(2)?).unwrap_or_default(),
-                        kind: cache_text(r.get_ref(3)?).unwrap_or_default(),
-                        shape_json: cache_text(r.get_ref(4)?),
+                        session_id: r.text(0).unwrap_or_default(),
+                        start_time: r.text(1).unwrap_or_default(),
+                        day: r.text(2).unwrap_or_default(),
+                        kind: r.text(3).unwrap_or_default(),
+                        shape_json: r.text(4),
                     })
-                })
-                .sq(path)?;
-            rows.collect::<rusqlite::Result<Vec<_>>>().sq(path)
+                },
+            )
         })
     }
 
@@ -914,18 +1015,20 @@ impl Journal {
         inputs_digest: &str,
         analysis_version: u32,
     ) -> Result<Option<String>> {
-        self.conn
-            .query_row(
-                "SELECT c.card_json FROM session_card c
-                 JOIN session s ON s.session_id = c.session_id
-                 WHERE c.session_id = ?1 AND c.inputs_digest = ?2 AND c.analysis_version = ?3
-                   AND s.content_hash = c.content_hash AND s.unreadable IS NULL",
-                params![session_id, inputs_digest, analysis_version],
-                |r| Ok(cache_text(r.get_ref(0)?)),
-            )
-            .optional()
-            .map(Option::flatten)
-            .sq(&self.path)
+        self.read(|conn, path| {
+            Ok(conn
+                .query_opt(
+                    path,
+                    "SELECT c.card_json FROM session_card c
+                     JOIN session s ON s.session_id = c.session_id
+                     WHERE c.session_id = ?1 AND c.inputs_digest = ?2
+                       AND c.analysis_version = ?3
+                       AND s.content_hash = c.content_hash AND s.unreadable IS NULL",
+                    &[&session_id, &inputs_digest, &analysis_version],
+                    |r| Ok(r.text(0)),
+                )?
+                .flatten())
+        })
     }
 
     /// The athlete's current cards (id and JSON) of the days `from..=to` (`YYYY-MM-DD`),
@@ -939,58 +1042,34 @@ impl Journal {
         to: &str,
     ) -> Result<Vec<(String, String)>> {
         self.read(|conn, path| {
-            let mut stmt = conn
-                .prepare_cached(
-                    "SELECT c.session_id, c.card_json
-                     FROM session_card c JOIN session s ON s.session_id = c.session_id
-                     WHERE c.athlete_id = ?1 AND c.inputs_digest = ?2
-                       AND c.analysis_version = ?3 AND c.day BETWEEN ?4 AND ?5
-                       AND s.content_hash = c.content_hash AND s.unreadable IS NULL
-                     ORDER BY c.start_time, c.session_id",
-                )
-                .sq(path)?;
-            let rows = stmt
-                .query_map(
-                    params![athlete, inputs_digest, analysis_version, from, to],
-                    |r| {
-                        Ok((
-                            cache_text(r.get_ref(0)?).unwrap_or_default(),
-                            cache_text(r.get_ref(1)?).unwrap_or_default(),
-                        ))
-                    },
-                )
-                .sq(path)?;
-            rows.collect::<rusqlite::Result<Vec<_>>>().sq(path)
+            conn.query(
+                path,
+                "SELECT c.session_id, c.card_json
+                 FROM session_card c JOIN session s ON s.session_id = c.session_id
+                 WHERE c.athlete_id = ?1 AND c.inputs_digest = ?2
+                   AND c.analysis_version = ?3 AND c.day BETWEEN ?4 AND ?5
+                   AND s.content_hash = c.content_hash AND s.unreadable IS NULL
+                 ORDER BY c.start_time, c.session_id",
+                &[&athlete, &inputs_digest, &analysis_version, &from, &to],
+                |r| Ok((r.text(0).unwrap_or_default(), r.text(1).unwrap_or_default())),
+            )
         })
     }
 
     /// What the session's file looked like when its content hash was recorded; `None` for an
     /// unknown session or when not known.
     pub fn file_stat(&self, session_id: &str) -> Result<Option<FileStat>> {
-        self.conn
-            .query_row(
-                "SELECT CAST(file_path AS BLOB), file_size, file_mtime_ns FROM session
-                 WHERE session_id = ?1",
-                params![session_id],
-                |r| {
-                    let path = cache_text(r.get_ref(0)?);
-                    let size: Option<i64> = r.get(1).ok().flatten();
-                    let mtime: Option<i64> = r.get(2).ok().flatten();
-                    Ok(
-                        match (path, size.and_then(|n| u64::try_from(n).ok()), mtime) {
-                            (Some(p), Some(size), Some(mtime_ns)) => Some(FileStat {
-                                path: PathBuf::from(p),
-                                size,
-                                mtime_ns,
-                            }),
-                            _ => None,
-                        },
-                    )
-                },
-            )
-            .optional()
-            .map(Option::flatten)
-            .sq(&self.path)
+        self.read(|conn, path| {
+            Ok(conn
+                .query_opt(
+                    path,
+                    "SELECT file_path, file_size, file_mtime_ns FROM session
+                     WHERE session_id = ?1",
+                    &[&session_id],
+                    |r| Ok(stat_of(r, 0)),
+                )?
+                .flatten())
+        })
     }
 
     /// What the warm check needs of every session the journal knows, by session id: the
@@ -1016,44 +1095,32 @@ impl Journal {
         analysis_version: u32,
     ) -> Result<std::collections::HashMap<String, ScanRow>> {
         self.read(|conn, path| {
-            let mut stmt = conn
-                .prepare_cached(
-                    "SELECT session_id, CAST(file_path AS BLOB), file_size, file_mtime_ns,
-                        summary_version IS ?1 AND summary_hash = content_hash, summary_inputs,
-                        content_hash, unreadable
-                     FROM session",
-                )
-                .sq(path)?;
-            let rows = stmt
-                .query_map([analysis_version], |r| {
-                    let id = cache_text(r.get_ref(0)?).unwrap_or_default();
-                    let file = cache_text(r.get_ref(1)?);
-                    let size: Option<i64> = r.get(2).ok().flatten();
-                    let mtime: Option<i64> = r.get(3).ok().flatten();
-                    let stat = match (file, size.and_then(|n| u64::try_from(n).ok()), mtime) {
-                        (Some(p), Some(size), Some(mtime_ns)) => Some(FileStat {
-                            path: PathBuf::from(p),
-                            size,
-                            mtime_ns,
-                        }),
-                        _ => None,
-                    };
-                    Ok((
-                        id,
+            let mut out = std::collections::HashMap::new();
+            conn.each(
+                path,
+                "SELECT session_id, file_path, file_size, file_mtime_ns,
+                    CASE WHEN summary_version = ?1 AND summary_hash = content_hash
+                        THEN 1 ELSE 0 END,
+                    summary_inputs, content_hash, unreadable
+                 FROM session",
+                &[&analysis_version],
+                &mut |r| {
+                    out.insert(
+                        r.text(0).unwrap_or_default(),
                         ScanRow {
                             warm: WarmRow {
-                                stat,
-                                summary_current: r.get::<_, Option<bool>>(4).ok().flatten()
-                                    == Some(true),
-                                summary_inputs: cache_text(r.get_ref(5)?),
+                                stat: stat_of(r, 1),
+                                summary_current: r.lenient::<bool>(4) == Some(true),
+                                summary_inputs: r.text(5),
                             },
-                            content_hash: cache_text(r.get_ref(6)?),
-                            unreadable: cache_text(r.get_ref(7)?),
+                            content_hash: r.text(6),
+                            unreadable: r.text(7),
                         },
-                    ))
-                })
-                .sq(path)?;
-            rows.collect::<rusqlite::Result<_>>().sq(path)
+                    );
+                    Ok(())
+                },
+            )?;
+            Ok(out)
         })
     }
 
@@ -1069,33 +1136,31 @@ impl Journal {
             let sql_all = "SELECT session_id, summary_inputs, brief_plan_title, brief_sport,
                     brief_running, brief_distance_m, work_intervals
                  FROM session
-                 WHERE summary_version IS ?1 AND summary_hash = content_hash";
+                 WHERE summary_version = ?1 AND summary_hash = content_hash";
             let sql_one = "SELECT session_id, summary_inputs, brief_plan_title, brief_sport,
                     brief_running, brief_distance_m, work_intervals
                  FROM session
-                 WHERE athlete_id = ?2 AND summary_version IS ?1 AND summary_hash = content_hash";
-            let mut stmt = conn
-                .prepare_cached(if athlete.is_some() { sql_one } else { sql_all })
-                .sq(path)?;
-            let map = |r: &rusqlite::Row<'_>| {
-                Ok((
-                    cache_text(r.get_ref(0)?).unwrap_or_default(),
+                 WHERE athlete_id = ?2 AND summary_version = ?1 AND summary_hash = content_hash";
+            let mut out = std::collections::HashMap::new();
+            let mut add = |r: &db::Row<'_>| {
+                out.insert(
+                    r.text(0).unwrap_or_default(),
                     SummaryBrief {
-                        inputs_digest: cache_text(r.get_ref(1)?),
-                        plan_title: cache_text(r.get_ref(2)?),
-                        sport: cache_text(r.get_ref(3)?),
-                        running: r.get::<_, Option<bool>>(4).ok().flatten(),
-                        distance_m: r.get::<_, Option<f64>>(5).ok().flatten(),
-                        work_intervals: r.get::<_, Option<u32>>(6).ok().flatten(),
+                        inputs_digest: r.text(1),
+                        plan_title: r.text(2),
+                        sport: r.text(3),
+                        running: r.lenient::<bool>(4),
+                        distance_m: r.lenient::<f64>(5),
+                        work_intervals: r.lenient::<u32>(6),
                     },
-                ))
+                );
+                Ok(())
             };
-            let rows = match athlete {
-                Some(a) => stmt.query_map(params![analysis_version, a], map),
-                None => stmt.query_map(params![analysis_version], map),
+            match athlete {
+                Some(a) => conn.each(path, sql_one, &[&analysis_version, &a], &mut add)?,
+                None => conn.each(path, sql_all, &[&analysis_version], &mut add)?,
             }
-            .sq(path)?;
-            rows.collect::<rusqlite::Result<_>>().sq(path)
+            Ok(out)
         })
     }
 
@@ -1108,25 +1173,17 @@ impl Journal {
         analysis_version: u32,
     ) -> Result<Vec<(String, Option<String>)>> {
         self.read(|conn, path| {
-            let mut stmt = conn
-                .prepare_cached(
-                    "SELECT session_id,
-                        CASE WHEN summary_version IS ?2 AND summary_hash = content_hash
-                            THEN summary_json END
-                     FROM session
-                     WHERE athlete_id = ?1
-                     ORDER BY start_time DESC, session_id DESC",
-                )
-                .sq(path)?;
-            let rows = stmt
-                .query_map(params![athlete, analysis_version], |r| {
-                    Ok((
-                        cache_text(r.get_ref(0)?).unwrap_or_default(),
-                        cache_text(r.get_ref(1)?),
-                    ))
-                })
-                .sq(path)?;
-            rows.collect::<rusqlite::Result<_>>().sq(path)
+            conn.query(
+                path,
+                "SELECT session_id,
+                    CASE WHEN summary_version = ?2 AND summary_hash = content_hash
+                        THEN summary_json END
+                 FROM session
+                 WHERE athlete_id = ?1
+                 ORDER BY start_time DESC, session_id DESC",
+                &[&athlete, &analysis_version],
+                |r| Ok((r.text(0).unwrap_or_default(), r.text(1))),
+            )
         })
     }
 
@@ -1138,14 +1195,14 @@ impl Journal {
 
     /// The content hash the journal last recorded for a session; `None` for an unknown one.
     pub fn session_hash(&self, session_id: &str) -> Result<Option<String>> {
-        self.conn
-            .query_row(
+        self.read(|conn, path| {
+            conn.query_opt(
+                path,
                 "SELECT content_hash FROM session WHERE session_id = ?1",
-                params![session_id],
-                |r| r.get::<_, String>(0),
+                &[&session_id],
+                |r| r.get::<String>(0),
             )
-            .optional()
-            .sq(&self.path)
+        })
     }
 
     /// Forget session rows whose ids are not in `present` (files gone from the roster).
@@ -1153,16 +1210,12 @@ impl Journal {
     pub fn retain_sessions(&mut self, present: &[&str]) -> Result<usize> {
         let keep: BTreeSet<&str> = present.iter().copied().collect();
         self.write_cache(|tx, path| {
-            let ids: Vec<String> = {
-                let mut stmt = tx.prepare("SELECT session_id FROM session").sq(path)?;
-                let rows = stmt.query_map([], |r| r.get(0)).sq(path)?;
-                rows.collect::<rusqlite::Result<_>>().sq(path)?
-            };
+            let ids: Vec<String> =
+                tx.query(path, "SELECT session_id FROM session", &[], |r| r.get(0))?;
             let mut removed = 0;
             for id in ids.iter().filter(|id| !keep.contains(id.as_str())) {
-                removed += tx
-                    .execute("DELETE FROM session WHERE session_id = ?1", [id])
-                    .sq(path)?;
+                removed +=
+                    tx.exec(path, "DELETE FROM session WHERE session_id = ?1", &[id])? as usize;
                 delete_card(tx, path, id)?;
             }
             Ok(removed)
@@ -1182,11 +1235,11 @@ impl Journal {
                 return Ok(false);
             }
             let other = latest_review_for_hash(tx, path, &row.content_hash)?;
-            tx.execute(
+            tx.exec(
+                path,
                 "UPDATE session SET review_id = ?2 WHERE session_id = ?1",
-                params![session_id, other],
-            )
-            .sq(path)?;
+                &[&session_id, &other],
+            )?;
             Ok(true)
         })
     }
@@ -1274,11 +1327,11 @@ impl Journal {
                 // The blind verdict of a file that cannot be read records that the coach was
                 // shown the problem.
                 if let (false, Some(why)) = (revealed, &row.unreadable) {
-                    tx.execute(
+                    tx.exec(
+                        path,
                         "UPDATE review SET file_unreadable = ?2 WHERE id = ?1",
-                        params![rid, why],
-                    )
-                    .sq(path)?;
+                        &[&rid, &why],
+                    )?;
                 }
             }
             Ok(())
@@ -1318,11 +1371,11 @@ impl Journal {
                     missing,
                 });
             }
-            tx.execute(
+            tx.exec(
+                path,
                 "UPDATE review SET revealed_at = ?2, work_intervals = ?3 WHERE id = ?1",
-                params![row.review_id, ts(now), n],
-            )
-            .sq(path)?;
+                &[&row.review_id, &ts(now), &n],
+            )?;
             Ok(permit(&row))
         })
     }
@@ -1452,11 +1505,11 @@ impl Journal {
     ) -> Result<()> {
         self.write(|tx, path| {
             let rid = revealed_review(tx, path, session_id)?;
-            tx.execute(
+            tx.exec(
+                path,
                 "INSERT INTO feedback_version (review_id, body, saved_at) VALUES (?1, ?2, ?3)",
-                params![rid, body, ts(now)],
-            )
-            .sq(path)?;
+                &[&rid, &body, &ts(now)],
+            )?;
             Ok(())
         })
     }
@@ -1474,6 +1527,7 @@ impl Journal {
                 path,
                 session_id,
                 "SELECT body, saved_at FROM feedback_version WHERE review_id = ?1 ORDER BY id",
+                |r| Ok((r.get(0)?, r.get(1)?)),
             )?;
             raw.into_iter()
                 .map(|(body, at)| {
@@ -1495,11 +1549,11 @@ impl Journal {
     ) -> Result<()> {
         self.write(|tx, path| {
             let rid = revealed_review(tx, path, session_id)?;
-            tx.execute(
+            tx.exec(
+                path,
                 "INSERT INTO feedback_event (review_id, kind, at) VALUES (?1, ?2, ?3)",
-                params![rid, kind.as_str(), ts(now)],
-            )
-            .sq(path)?;
+                &[&rid, &kind.as_str(), &ts(now)],
+            )?;
             Ok(())
         })
     }
@@ -1515,11 +1569,11 @@ impl Journal {
         self.write(|tx, path| {
             for id in session_ids {
                 let rid = revealed_review(tx, path, id)?;
-                tx.execute(
+                tx.exec(
+                    path,
                     "INSERT INTO feedback_event (review_id, kind, at) VALUES (?1, ?2, ?3)",
-                    params![rid, kind.as_str(), ts(now)],
-                )
-                .sq(path)?;
+                    &[&rid, &kind.as_str(), &ts(now)],
+                )?;
             }
             Ok(())
         })
@@ -1537,17 +1591,17 @@ impl Journal {
         self.write(|tx, path| {
             let rid = revealed_review(tx, path, session_id)?;
             if let Some(body) = body {
-                tx.execute(
+                tx.exec(
+                    path,
                     "INSERT INTO feedback_version (review_id, body, saved_at) VALUES (?1, ?2, ?3)",
-                    params![rid, body, ts(now)],
-                )
-                .sq(path)?;
+                    &[&rid, &body, &ts(now)],
+                )?;
             }
-            tx.execute(
+            tx.exec(
+                path,
                 "INSERT INTO feedback_event (review_id, kind, at) VALUES (?1, ?2, ?3)",
-                params![rid, kind.as_str(), ts(now)],
-            )
-            .sq(path)?;
+                &[&rid, &kind.as_str(), &ts(now)],
+            )?;
             Ok(())
         })
     }
@@ -1560,6 +1614,7 @@ impl Journal {
                 path,
                 session_id,
                 "SELECT kind, at FROM feedback_event WHERE review_id = ?1 ORDER BY id",
+                |r| Ok((r.get(0)?, r.get(1)?)),
             )?;
             raw.into_iter()
                 .map(|(kind, at)| {
@@ -1597,16 +1652,14 @@ impl Journal {
         self.write(|tx, path| {
             let row = require_session(tx, path, session_id)?;
             let rid = ensure_review(tx, path, &row, now)?;
-            tx.execute(
-                "INSERT INTO ruler (review_id, from_s, to_s, added_at) VALUES (?1, ?2, ?3, ?4)",
-                params![rid, from_s, to_s, ts(now)],
-            )
-            .sq(path)?;
-            Ok(Ruler {
-                id: tx.last_insert_rowid(),
-                from_s,
-                to_s,
-            })
+            let id: i64 = tx.query_one(
+                path,
+                "INSERT INTO ruler (review_id, from_s, to_s, added_at) VALUES (?1, ?2, ?3, ?4)
+                 RETURNING id",
+                &[&rid, &from_s, &to_s, &ts(now)],
+                |r| r.get(0),
+            )?;
+            Ok(Ruler { id, from_s, to_s })
         })
     }
 
@@ -1618,6 +1671,7 @@ impl Journal {
                 path,
                 session_id,
                 "SELECT id, from_s, to_s FROM ruler WHERE review_id = ?1 ORDER BY id",
+                |r| Ok((r.get(0)?, r.get(1)?, r.get(2)?)),
             )?;
             Ok(raw
                 .into_iter()
@@ -1631,9 +1685,9 @@ impl Journal {
         self.write(|tx, path| {
             let row = require_session(tx, path, session_id)?;
             match row.review_id {
-                Some(rid) => tx
-                    .execute("DELETE FROM ruler WHERE review_id = ?1", [rid])
-                    .sq(path),
+                Some(rid) => {
+                    Ok(tx.exec(path, "DELETE FROM ruler WHERE review_id = ?1", &[&rid])? as usize)
+                }
                 None => Ok(0),
             }
         })
@@ -1674,11 +1728,11 @@ impl Journal {
                 return Ok(false);
             }
             let rid = ensure_review(tx, path, &row, now)?;
-            tx.execute(
+            tx.exec(
+                path,
                 "INSERT INTO seen_event (review_id, seen, at) VALUES (?1, ?2, ?3)",
-                params![rid, i64::from(seen), ts(now)],
-            )
-            .sq(path)?;
+                &[&rid, &i64::from(seen), &ts(now)],
+            )?;
             Ok(true)
         })
     }
@@ -1720,101 +1774,66 @@ impl Journal {
 
     /// All sessions (optionally of one athlete) with their stage, oldest first.
     fn overview(&self, athlete: Option<&str>) -> Result<Vec<QueueEntry>> {
-        let path = &self.path;
-        let mut stmt = self
-            .conn
-            .prepare(
+        self.read(|conn, path| {
+            conn.query(
+                path,
                 "SELECT s.session_id, s.athlete_id, s.start_time, s.file_path,
-                    r.id IS NOT NULL AND r.content_hash <> s.content_hash,
-                    r.revealed_at IS NOT NULL,
+                    CASE WHEN r.id IS NOT NULL AND r.content_hash <> s.content_hash
+                        THEN 1 ELSE 0 END,
+                    CASE WHEN r.revealed_at IS NOT NULL THEN 1 ELSE 0 END,
                     coalesce(CASE WHEN r.revealed_at IS NOT NULL THEN r.work_intervals END,
                              s.work_intervals,
                              CASE WHEN s.unreadable IS NOT NULL THEN 0 END),
-                    r.verdict IS NOT NULL,
+                    CASE WHEN r.verdict IS NOT NULL THEN 1 ELSE 0 END,
                     (SELECT count(*) FROM score c WHERE c.review_id = r.id),
                     (SELECT count(*) FROM score c WHERE c.review_id = r.id AND c.interval_no <=
                         coalesce(CASE WHEN r.revealed_at IS NOT NULL THEN r.work_intervals END,
                                  s.work_intervals, 0)),
-                    EXISTS (SELECT 1 FROM feedback_event e WHERE e.review_id = r.id),
-                    coalesce((SELECT v.seen FROM seen_event v WHERE v.review_id = r.id
-                              ORDER BY v.id DESC LIMIT 1), 0) = 1,
+                    CASE WHEN EXISTS (SELECT 1 FROM feedback_event e WHERE e.review_id = r.id)
+                        THEN 1 ELSE 0 END,
+                    CASE WHEN coalesce((SELECT v.seen FROM seen_event v
+                        WHERE v.review_id = r.id ORDER BY v.id DESC LIMIT 1), 0) = 1
+                        THEN 1 ELSE 0 END,
                     s.unreadable,
-                    r.file_unreadable IS NOT NULL
+                    CASE WHEN r.file_unreadable IS NOT NULL THEN 1 ELSE 0 END
                  FROM session s LEFT JOIN review r ON r.id = s.review_id
-                 WHERE ?1 IS NULL OR s.athlete_id = ?1
+                 WHERE CAST(?1 AS TEXT) IS NULL OR s.athlete_id = ?1
                  ORDER BY s.start_time, s.session_id",
-            )
-            .sq(path)?;
-        type Raw = (
-            String,
-            String,
-            String,
-            String,
-            bool,
-            bool,
-            Option<u32>,
-            bool,
-            u32,
-            u32,
-            bool,
-            bool,
-            Option<String>,
-            bool,
-        );
-        let raw: Vec<Raw> = stmt
-            .query_map([athlete], |r| Raw::try_from(r))
-            .sq(path)?
-            .collect::<rusqlite::Result<_>>()
-            .sq(path)?;
-        raw.into_iter()
-            .map(
-                |(
-                    id,
-                    athlete,
-                    start,
-                    file,
-                    changed,
-                    revealed,
-                    n,
-                    verdict,
-                    any,
-                    scored,
-                    sent,
-                    seen,
-                    unreadable,
-                    unreadable_seen,
-                )| {
+                &[&athlete],
+                |r| {
+                    let unreadable: Option<String> = r.get(12)?;
+                    let verdict: bool = r.get(7)?;
+                    let n: Option<u32> = r.get(6)?;
+                    let any: u32 = r.get(8)?;
+                    let scored: u32 = r.get(9)?;
                     // As in `ReviewRow::verdict_counts`: for a file that cannot be read, only
                     // a verdict given while the problem was shown counts.
-                    let verdict_counts = verdict && (unreadable.is_none() || unreadable_seen);
+                    let verdict_counts = verdict && (unreadable.is_none() || r.get::<bool>(13)?);
                     let complete = n.is_some_and(|n| scored >= n) && verdict_counts;
                     Ok(QueueEntry {
-                        session_id: id,
-                        athlete,
-                        start: parse_ts(path, &start)?,
-                        file_path: PathBuf::from(file),
-                        stage: stage_of(any > 0 || verdict, complete, revealed, sent, seen),
-                        content_changed: changed,
+                        session_id: r.get(0)?,
+                        athlete: r.get(1)?,
+                        start: parse_ts(path, &r.get::<String>(2)?)?,
+                        file_path: PathBuf::from(r.get::<String>(3)?),
+                        stage: stage_of(
+                            any > 0 || verdict,
+                            complete,
+                            r.get(5)?,
+                            r.get(10)?,
+                            r.get(11)?,
+                        ),
+                        content_changed: r.get(4)?,
                         file_unreadable: unreadable,
                     })
                 },
             )
-            .collect()
+        })
     }
 
     /// For the bias check: every revealed review with its blind and revised grades, by
     /// session start.
     pub fn bias_inputs(&self) -> Result<Vec<BiasInput>> {
         self.read(|conn, path| {
-            let mut stmt = conn
-                .prepare(
-                    "SELECT s.session_id, s.athlete_id, s.start_time, r.id, r.revealed_at,
-                        r.verdict, r.work_intervals
-                     FROM session s JOIN review r ON r.id = s.review_id
-                     WHERE r.revealed_at IS NOT NULL
-                     ORDER BY s.start_time, s.session_id",
-                )
-                .sq(path)?;
             type Raw = (
                 String,
                 String,
@@ -1824,11 +1843,26 @@ impl Journal {
                 Option<String>,
                 Option<u32>,
             );
-            let raw: Vec<Raw> = stmt
-                .query_map([], |r| Raw::try_from(r))
-                .sq(path)?
-                .collect::<rusqlite::Result<_>>()
-                .sq(path)?;
+            let raw: Vec<Raw> = conn.query(
+                path,
+                "SELECT s.session_id, s.athlete_id, s.start_time, r.id, r.revealed_at,
+                    r.verdict, r.work_intervals
+                 FROM session s JOIN review r ON r.id = s.review_id
+                 WHERE r.revealed_at IS NOT NULL
+                 ORDER BY s.start_time, s.session_id",
+                &[],
+                |r| {
+                    Ok((
+                        r.get(0)?,
+                        r.get(1)?,
+                        r.get(2)?,
+                        r.get(3)?,
+                        r.get(4)?,
+                        r.get(5)?,
+                        r.get(6)?,
+                    ))
+                },
+            )?;
             let mut seen = BTreeSet::new();
             let mut out = Vec::new();
             for (session_id, athlete, start, rid, revealed_at, verdict, n) in raw {
@@ -1874,81 +1908,57 @@ impl Journal {
 
     // ----- maintenance -----
 
-    /// Full `PRAGMA integrity_check` and `foreign_key_check`, plus row counts.
+    /// The engine's own integrity check (SQLite: full `PRAGMA integrity_check` and
+    /// `foreign_key_check`; PostgreSQL keeps its own storage whole, and its constraints are
+    /// always enforced), row counts, and damaged rows of the analysis cache.
     pub fn check(&self) -> Result<CheckReport> {
+        let (problems, version) = match &self.db {
+            Store::Lite(conn) => sqlite_integrity(conn, &self.path)?,
+            Store::Pg(m) => (Vec::new(), pg::lock(m).schema_version(&self.path)?),
+        };
         self.read(|conn, path| {
-            let mut problems = Vec::new();
-            {
-                let mut stmt = conn.prepare("PRAGMA integrity_check").sq(path)?;
-                let rows: Vec<String> = stmt
-                    .query_map([], |r| r.get(0))
-                    .sq(path)?
-                    .collect::<rusqlite::Result<_>>()
-                    .sq(path)?;
-                problems.extend(rows.into_iter().filter(|r| r != "ok"));
-            }
-            {
-                let mut stmt = conn.prepare("PRAGMA foreign_key_check").sq(path)?;
-                let rows: Vec<String> = stmt
-                    .query_map([], |r| {
-                        Ok(format!(
-                            "foreign key: {} row {} -> {}",
-                            r.get::<_, String>(0)?,
-                            r.get::<_, Option<i64>>(1)?.unwrap_or(-1),
-                            r.get::<_, String>(2)?
-                        ))
-                    })
-                    .sq(path)?
-                    .collect::<rusqlite::Result<_>>()
-                    .sq(path)?;
-                problems.extend(rows);
-            }
-            let count = |table: &str| -> Result<u64> {
-                conn.query_row(&format!("SELECT count(*) FROM {table}"), [], |r| {
-                    r.get::<_, i64>(0)
+            let mut count = |table: &str| -> Result<u64> {
+                conn.query_one(path, &format!("SELECT count(*) FROM {table}"), &[], |r| {
+                    r.get::<i64>(0)
                 })
-                .sq(path)
                 .map(|n| n.max(0) as u64)
             };
-            let version: i64 = conn
-                .pragma_query_value(None, "user_version", |r| r.get(0))
-                .sq(path)?;
+            let sessions = count("session")?;
+            let reviews = count("review")?;
+            let scores = count("score")?;
+            let revisions = count("revision")?;
+            let feedback_versions = count("feedback_version")?;
+            let feedback_events = count("feedback_event")?;
+            let rulers = count("ruler")?;
             // The analysis cache is derived: a damaged row is reported, not a failure.
             let mut cache_problems = Vec::new();
-            {
-                let mut stmt = conn
-                    .prepare(
-                        "SELECT CAST(session_id AS BLOB), summary_json FROM session
-                         WHERE summary_json IS NOT NULL ORDER BY session_id",
-                    )
-                    .sq(path)?;
-                let mut rows = stmt.query([]).sq(path)?;
-                while let Some(r) = rows.next().sq(path)? {
-                    if let Some(why) = cache_damage(r.get_ref(1).sq(path)?) {
-                        let id = match r.get_ref(0).sq(path)? {
-                            rusqlite::types::ValueRef::Blob(b) => {
-                                String::from_utf8_lossy(b).into_owned()
-                            }
-                            _ => String::new(),
-                        };
+            conn.each(
+                path,
+                "SELECT session_id, summary_json FROM session
+                 WHERE summary_json IS NOT NULL ORDER BY session_id",
+                &[],
+                &mut |r| {
+                    if let Some(why) = cache_damage(&r.cell(1)?) {
+                        let id = r.text_lossy(0)?;
                         cache_problems.push(format!(
                             "cached analysis of {id} is damaged ({why}); it is dropped and \
                              made again from the activity file on the next run"
                         ));
                     }
-                }
-            }
+                    Ok(())
+                },
+            )?;
             Ok(CheckReport {
                 cache_problems,
                 problems,
-                schema_version: u32::try_from(version).unwrap_or(0),
-                sessions: count("session")?,
-                reviews: count("review")?,
-                scores: count("score")?,
-                revisions: count("revision")?,
-                feedback_versions: count("feedback_version")?,
-                feedback_events: count("feedback_event")?,
-                rulers: count("ruler")?,
+                schema_version: version,
+                sessions,
+                reviews,
+                scores,
+                revisions,
+                feedback_versions,
+                feedback_events,
+                rulers,
             })
         })
     }
@@ -1973,6 +1983,12 @@ impl Journal {
                 path: dest.to_path_buf(),
             });
         }
+        let conn = match &self.db {
+            Store::Lite(conn) => conn,
+            // A server journal is backed up as a new SQLite journal file, copied row by row
+            // and verified.
+            Store::Pg(_) => return copy::backup_to_file(self, dest).map(|_| ()),
+        };
         let run = || -> Result<()> {
             let mut out = Connection::open_with_flags(
                 dest,
@@ -1982,7 +1998,7 @@ impl Journal {
             )
             .sq(dest)?;
             {
-                let backup = rusqlite::backup::Backup::new(&self.conn, &mut out).sq(dest)?;
+                let backup = rusqlite::backup::Backup::new(conn, &mut out).sq(dest)?;
                 backup
                     .run_to_completion(256, Duration::from_millis(10), None)
                     .sq(dest)?;
@@ -2028,14 +2044,14 @@ impl Journal {
 
 /// Mark a session's file unreadable (`reason`, one line): no analysis, no card, the brief
 /// columns cleared with the summary.
-fn mark_unreadable(tx: &Connection, path: &Path, session_id: &str, reason: &str) -> Result<()> {
-    tx.execute(
+fn mark_unreadable(tx: &mut dyn Sql, path: &Path, session_id: &str, reason: &str) -> Result<()> {
+    tx.exec(
+        path,
         "UPDATE session SET unreadable = ?2, summary_json = NULL, summary_version = NULL,
              summary_hash = NULL, work_intervals = NULL
          WHERE session_id = ?1",
-        params![session_id, reason],
-    )
-    .sq(path)?;
+        &[&session_id, &reason],
+    )?;
     fill_brief(tx, path, session_id)?;
     delete_card(tx, path, session_id)
 }
@@ -2043,7 +2059,7 @@ fn mark_unreadable(tx: &Connection, path: &Path, session_id: &str, reason: &str)
 /// Insert or refresh a session row (see [`Journal::upsert_session_with_stat`]); a session
 /// row written here is readable again, so its unreadable mark is cleared.
 fn upsert_row(
-    tx: &Connection,
+    tx: &mut dyn Sql,
     path: &Path,
     record: &SessionRecord,
     stat: Option<&FileStat>,
@@ -2084,8 +2100,7 @@ fn upsert_row(
         None => (None, None, None),
     };
     let summary_hash = json.as_ref().map(|_| record.content_hash.as_str());
-    tx.execute(
-                "INSERT INTO session (session_id, athlete_id, file_path, content_hash, start_time,
+    tx.exec(path, "INSERT INTO session (session_id, athlete_id, file_path, content_hash, start_time,
                      seen_at, review_id, summary_json, summary_version, summary_hash, work_intervals)
                  VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7, ?8, ?9, ?10, ?11)
                  ON CONFLICT (session_id) DO UPDATE SET
@@ -2101,22 +2116,7 @@ fn upsert_row(
                      file_mtime_ns = CASE WHEN session.content_hash = excluded.content_hash
                          AND session.file_path = excluded.file_path
                          THEN session.file_mtime_ns END,
-                     unreadable = NULL",
-                params![
-                    record.session_id,
-                    record.athlete_id,
-                    record.file_path.to_string_lossy(),
-                    record.content_hash,
-                    ts(record.start),
-                    ts(now),
-                    review_id,
-                    json,
-                    version,
-                    summary_hash,
-                    intervals,
-                ],
-            )
-            .sq(path)?;
+                     unreadable = NULL", &[&record.session_id, &record.athlete_id, &record.file_path.to_string_lossy(), &record.content_hash, &ts(record.start), &ts(now), &review_id, &json, &version, &summary_hash, &intervals])?;
     fill_brief(tx, path, &record.session_id)?;
     if let Some(st) = stat {
         write_file_stat(tx, path, &record.session_id, st)?;
@@ -2138,13 +2138,14 @@ fn upsert_row(
 
 /// Write the session card of `record` (made by `analysis_version` of its content).
 fn write_card(
-    tx: &Connection,
+    tx: &mut dyn Sql,
     path: &Path,
     record: &SessionRecord,
     card: &CardCache,
     analysis_version: u32,
 ) -> Result<()> {
-    tx.execute(
+    tx.exec(
+        path,
         "INSERT INTO session_card (session_id, athlete_id, start_time, day, kind, content_hash,
              analysis_version, inputs_digest, shape_json, card_json)
          VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7, ?8, ?9, ?10)
@@ -2154,60 +2155,60 @@ fn write_card(
              analysis_version = excluded.analysis_version,
              inputs_digest = excluded.inputs_digest, shape_json = excluded.shape_json,
              card_json = excluded.card_json",
-        params![
-            record.session_id,
-            record.athlete_id,
-            ts(record.start),
-            card.day,
-            card.kind,
-            record.content_hash,
-            analysis_version,
-            card.inputs_digest,
-            card.shape_json,
-            card.json,
+        &[
+            &record.session_id,
+            &record.athlete_id,
+            &ts(record.start),
+            &card.day,
+            &card.kind,
+            &record.content_hash,
+            &analysis_version,
+            &card.inputs_digest,
+            &card.shape_json,
+            &card.json,
         ],
-    )
-    .sq(path)?;
+    )?;
     Ok(())
 }
 
 /// Fill the session's `summary_inputs` and `brief_*` columns from its summary JSON (see
 /// schema step 5), after any write of the summary.
-fn fill_brief(tx: &Connection, path: &Path, session_id: &str) -> Result<()> {
-    tx.prepare_cached(BRIEF_FROM_SUMMARY)
-        .sq(path)?
-        .execute([session_id])
-        .sq(path)?;
+fn fill_brief(tx: &mut dyn Sql, path: &Path, session_id: &str) -> Result<()> {
+    let sql = match tx.engine() {
+        Engine::Sqlite => BRIEF_FROM_SUMMARY,
+        Engine::Postgres => schema::BRIEF_FROM_SUMMARY_PG,
+    };
+    tx.exec(path, sql, &[&session_id])?;
     Ok(())
 }
 
-fn delete_card(tx: &Connection, path: &Path, session_id: &str) -> Result<()> {
-    tx.execute(
+fn delete_card(tx: &mut dyn Sql, path: &Path, session_id: &str) -> Result<()> {
+    tx.exec(
+        path,
         "DELETE FROM session_card WHERE session_id = ?1",
-        [session_id],
-    )
-    .sq(path)?;
+        &[&session_id],
+    )?;
     Ok(())
 }
 
 /// A new session id whose content another session already has (a renamed or copied file):
 /// take that session's card, else drop any card this id had.
-fn copy_card_for_hash(tx: &Connection, path: &Path, record: &SessionRecord) -> Result<()> {
+fn copy_card_for_hash(tx: &mut dyn Sql, path: &Path, record: &SessionRecord) -> Result<()> {
     delete_card(tx, path, &record.session_id)?;
-    tx.execute(
+    tx.exec(
+        path,
         "INSERT INTO session_card (session_id, athlete_id, start_time, day, kind, content_hash,
              analysis_version, inputs_digest, shape_json, card_json)
          SELECT ?1, ?2, ?3, day, kind, content_hash, analysis_version, inputs_digest,
              shape_json, card_json
          FROM session_card WHERE content_hash = ?4 AND session_id != ?1 LIMIT 1",
-        params![
-            record.session_id,
-            record.athlete_id,
-            ts(record.start),
-            record.content_hash
+        &[
+            &record.session_id,
+            &record.athlete_id,
+            &ts(record.start),
+            &record.content_hash,
         ],
-    )
-    .sq(path)?;
+    )?;
     Ok(())
 }
 
@@ -2231,46 +2232,37 @@ impl SessionRow {
     }
 }
 
-fn session_row(conn: &Connection, path: &Path, session_id: &str) -> Result<Option<SessionRow>> {
-    conn.query_row(
+fn session_row(conn: &mut dyn Sql, path: &Path, session_id: &str) -> Result<Option<SessionRow>> {
+    conn.query_opt(
+        path,
         "SELECT content_hash, file_path, review_id,
             CASE WHEN summary_hash = content_hash THEN work_intervals END,
             CASE WHEN summary_hash = content_hash THEN summary_json END,
             summary_version, work_intervals, unreadable
          FROM session WHERE session_id = ?1",
-        [session_id],
+        &[&session_id],
         |r| {
             // The cache columns are derived data: a damaged value reads as missing.
-            let json = cache_text(r.get_ref(4)?);
-            let version: Option<u32> = r.get(5).ok().flatten();
-            let n: Option<u32> = r.get(6).ok().flatten();
-            let lossy = |i: usize| -> rusqlite::Result<String> {
-                Ok(match r.get_ref(i)? {
-                    rusqlite::types::ValueRef::Text(b) | rusqlite::types::ValueRef::Blob(b) => {
-                        String::from_utf8_lossy(b).into_owned()
-                    }
-                    _ => String::new(),
-                })
-            };
+            let json = r.text(4);
+            let version: Option<u32> = r.lenient(5);
+            let n: Option<u32> = r.lenient(6);
             Ok(SessionRow {
-                content_hash: lossy(0)?,
-                file_path: PathBuf::from(lossy(1)?),
+                content_hash: r.text_lossy(0)?,
+                file_path: PathBuf::from(r.text_lossy(1)?),
                 session_id: session_id.to_string(),
                 review_id: r.get(2)?,
-                work_intervals: r.get(3).ok().flatten(),
+                work_intervals: r.lenient::<u32>(3),
                 summary: match (json, version, n) {
                     (Some(j), Some(v), Some(n)) => Some((j, v, n)),
                     _ => None,
                 },
-                unreadable: cache_text(r.get_ref(7)?),
+                unreadable: r.text(7),
             })
         },
     )
-    .optional()
-    .sq(path)
 }
 
-fn require_session(conn: &Connection, path: &Path, session_id: &str) -> Result<SessionRow> {
+fn require_session(conn: &mut dyn Sql, path: &Path, session_id: &str) -> Result<SessionRow> {
     session_row(conn, path, session_id)?.ok_or_else(|| JournalError::UnknownSession {
         path: path.to_path_buf(),
         session_id: session_id.to_string(),
@@ -2278,87 +2270,79 @@ fn require_session(conn: &Connection, path: &Path, session_id: &str) -> Result<S
 }
 
 fn summary_for_hash(
-    conn: &Connection,
+    conn: &mut dyn Sql,
     path: &Path,
     hash: &str,
 ) -> Result<Option<(String, u32, u32)>> {
-    conn.query_row(
+    let found = conn.query_opt(
+        path,
         "SELECT summary_json, summary_version, work_intervals FROM session
          WHERE content_hash = ?1 AND summary_hash = ?1 AND summary_json IS NOT NULL
            AND summary_version IS NOT NULL AND work_intervals IS NOT NULL
          ORDER BY seen_at DESC LIMIT 1",
-        [hash],
-        |r| {
-            Ok((
-                cache_text(r.get_ref(0)?),
-                r.get::<_, Option<u32>>(1).ok().flatten(),
-                r.get::<_, Option<u32>>(2).ok().flatten(),
-            ))
-        },
-    )
-    .optional()
-    .sq(path)
-    .map(|found| match found {
+        &[&hash],
+        |r| Ok((r.text(0), r.lenient::<u32>(1), r.lenient::<u32>(2))),
+    )?;
+    Ok(match found {
         Some((Some(j), Some(v), Some(n))) => Some((j, v, n)),
         _ => None,
     })
 }
 
 fn write_file_stat(
-    tx: &Connection,
+    tx: &mut dyn Sql,
     path: &Path,
     session_id: &str,
     stat: &FileStat,
 ) -> Result<bool> {
-    let n = tx
-        .execute(
-            "UPDATE session SET file_size = ?3, file_mtime_ns = ?4
+    let n = tx.exec(
+        path,
+        "UPDATE session SET file_size = ?3, file_mtime_ns = ?4
              WHERE session_id = ?1 AND file_path = ?2",
-            params![
-                session_id,
-                stat.path.to_string_lossy(),
-                i64::try_from(stat.size).ok(),
-                stat.mtime_ns
-            ],
-        )
-        .sq(path)?;
+        &[
+            &session_id,
+            &stat.path.to_string_lossy(),
+            &i64::try_from(stat.size).ok(),
+            &stat.mtime_ns,
+        ],
+    )?;
     Ok(n > 0)
 }
 
-/// A cached text column as a string; `None` when it is missing or damaged (not UTF-8 text).
-/// The analysis cache is derived data: a damaged value is a cache miss, never an error.
-fn cache_text(v: rusqlite::types::ValueRef<'_>) -> Option<String> {
-    use rusqlite::types::ValueRef;
-    match v {
-        ValueRef::Text(b) | ValueRef::Blob(b) => std::str::from_utf8(b).ok().map(str::to_string),
-        _ => None,
-    }
+/// A file stat from three columns (path, size, modification time in ns) starting at `i`;
+/// `None` when any is missing or damaged.
+fn stat_of(r: &db::Row<'_>, i: usize) -> Option<FileStat> {
+    let path = r.text(i)?;
+    let size = u64::try_from(r.lenient::<i64>(i + 1)?).ok()?;
+    let mtime_ns = r.lenient::<i64>(i + 2)?;
+    Some(FileStat {
+        path: PathBuf::from(path),
+        size,
+        mtime_ns,
+    })
 }
 
 /// Why a cached summary cannot be used, if it cannot.
-fn cache_damage(v: rusqlite::types::ValueRef<'_>) -> Option<&'static str> {
-    use rusqlite::types::ValueRef;
+fn cache_damage(v: &db::Cell) -> Option<&'static str> {
+    use db::Cell;
     match v {
-        ValueRef::Null => None,
-        ValueRef::Text(b) | ValueRef::Blob(b) => match std::str::from_utf8(b) {
-            Err(_) => Some("not UTF-8 text"),
-            Ok(t) if serde_json::from_str::<serde::de::IgnoredAny>(t).is_err() => {
-                Some("not valid JSON")
-            }
-            Ok(_) => None,
-        },
+        Cell::Null => None,
+        Cell::Bytes(_) => Some("not UTF-8 text"),
+        Cell::Text(t) if serde_json::from_str::<serde::de::IgnoredAny>(t).is_err() => {
+            Some("not valid JSON")
+        }
+        Cell::Text(_) => None,
         _ => Some("not text"),
     }
 }
 
-fn latest_review_for_hash(conn: &Connection, path: &Path, hash: &str) -> Result<Option<i64>> {
-    conn.query_row(
+fn latest_review_for_hash(conn: &mut dyn Sql, path: &Path, hash: &str) -> Result<Option<i64>> {
+    conn.query_opt(
+        path,
         "SELECT id FROM review WHERE content_hash = ?1 ORDER BY id DESC LIMIT 1",
-        [hash],
+        &[&hash],
         |r| r.get(0),
     )
-    .optional()
-    .sq(path)
 }
 
 struct ReviewRow {
@@ -2378,11 +2362,12 @@ impl ReviewRow {
     }
 }
 
-fn review_row(conn: &Connection, path: &Path, id: i64) -> Result<ReviewRow> {
-    conn.query_row(
+fn review_row(conn: &mut dyn Sql, path: &Path, id: i64) -> Result<ReviewRow> {
+    conn.query_one(
+        path,
         "SELECT content_hash, verdict, verdict_at, revealed_at, work_intervals, file_unreadable
          FROM review WHERE id = ?1",
-        [id],
+        &[&id],
         |r| {
             Ok(ReviewRow {
                 content_hash: r.get(0)?,
@@ -2394,12 +2379,11 @@ fn review_row(conn: &Connection, path: &Path, id: i64) -> Result<ReviewRow> {
             })
         },
     )
-    .sq(path)
 }
 
 /// The session's review, created (for its current content) if it has none yet.
 fn ensure_review(
-    conn: &Connection,
+    conn: &mut dyn Sql,
     path: &Path,
     row: &SessionRow,
     now: DateTime<Utc>,
@@ -2407,68 +2391,63 @@ fn ensure_review(
     if let Some(id) = row.review_id {
         return Ok(id);
     }
-    conn.execute(
-        "INSERT INTO review (content_hash, created_at) VALUES (?1, ?2)",
-        params![row.content_hash, ts(now)],
-    )
-    .sq(path)?;
-    let id = conn.last_insert_rowid();
-    conn.execute(
+    let id: i64 = conn.query_one(
+        path,
+        "INSERT INTO review (content_hash, created_at) VALUES (?1, ?2) RETURNING id",
+        &[&row.content_hash, &ts(now)],
+        |r| r.get(0),
+    )?;
+    conn.exec(
+        path,
         "UPDATE session SET review_id = ?2 WHERE session_id = ?1",
-        params![row.session_id, id],
-    )
-    .sq(path)?;
+        &[&row.session_id, &id],
+    )?;
     Ok(id)
 }
 
 /// Blind scores by interval: (score, given_at).
 fn scored_intervals(
-    conn: &Connection,
+    conn: &mut dyn Sql,
     path: &Path,
     rid: i64,
 ) -> Result<BTreeMap<u32, (u8, String)>> {
-    let rows: Vec<(u32, u8, String)> = query_rows(
-        conn,
+    let rows: Vec<(u32, u8, String)> = conn.query(
         path,
         "SELECT interval_no, score, given_at FROM score WHERE review_id = ?1",
-        [rid],
+        &[&rid],
+        |r| Ok((r.get(0)?, r.get(1)?, r.get(2)?)),
     )?;
     Ok(rows.into_iter().map(|(i, s, at)| (i, (s, at))).collect())
 }
 
-fn current_score(conn: &Connection, path: &Path, rid: i64, interval: u32) -> Result<Option<u8>> {
-    let revised: Option<String> = conn
-        .query_row(
-            "SELECT new_value FROM revision
-             WHERE review_id = ?1 AND target = 'score' AND interval_no = ?2
-             ORDER BY id DESC LIMIT 1",
-            params![rid, interval],
-            |r| r.get(0),
-        )
-        .optional()
-        .sq(path)?;
+fn current_score(conn: &mut dyn Sql, path: &Path, rid: i64, interval: u32) -> Result<Option<u8>> {
+    let revised: Option<String> = conn.query_opt(
+        path,
+        "SELECT new_value FROM revision
+         WHERE review_id = ?1 AND target = 'score' AND interval_no = ?2
+         ORDER BY id DESC LIMIT 1",
+        &[&rid, &interval],
+        |r| r.get(0),
+    )?;
     if let Some(v) = revised {
         return parse_score(path, &v).map(Some);
     }
-    conn.query_row(
+    conn.query_opt(
+        path,
         "SELECT score FROM score WHERE review_id = ?1 AND interval_no = ?2",
-        params![rid, interval],
+        &[&rid, &interval],
         |r| r.get(0),
     )
-    .optional()
-    .sq(path)
 }
 
-fn current_verdict(conn: &Connection, path: &Path, rid: i64) -> Result<Option<PurposeVerdict>> {
-    let revised: Option<String> = conn
-        .query_row(
-            "SELECT new_value FROM revision WHERE review_id = ?1 AND target = 'verdict'
-             ORDER BY id DESC LIMIT 1",
-            [rid],
-            |r| r.get(0),
-        )
-        .optional()
-        .sq(path)?;
+fn current_verdict(conn: &mut dyn Sql, path: &Path, rid: i64) -> Result<Option<PurposeVerdict>> {
+    let revised: Option<String> = conn.query_opt(
+        path,
+        "SELECT new_value FROM revision WHERE review_id = ?1 AND target = 'verdict'
+         ORDER BY id DESC LIMIT 1",
+        &[&rid],
+        |r| r.get(0),
+    )?;
     let raw = match revised {
         Some(v) => Some(v),
         None => review_row(conn, path, rid)?.verdict,
@@ -2476,14 +2455,14 @@ fn current_verdict(conn: &Connection, path: &Path, rid: i64) -> Result<Option<Pu
     raw.map(|v| parse_verdict(path, &v)).transpose()
 }
 
-fn revisions_of(conn: &Connection, path: &Path, rid: i64) -> Result<Vec<Revision>> {
+fn revisions_of(conn: &mut dyn Sql, path: &Path, rid: i64) -> Result<Vec<Revision>> {
     type Raw = (String, Option<u32>, String, String, String);
-    let raw: Vec<Raw> = query_rows(
-        conn,
+    let raw: Vec<Raw> = conn.query(
         path,
         "SELECT target, interval_no, old_value, new_value, at FROM revision
          WHERE review_id = ?1 ORDER BY id",
-        [rid],
+        &[&rid],
+        |r| Ok((r.get(0)?, r.get(1)?, r.get(2)?, r.get(3)?, r.get(4)?)),
     )?;
     raw.into_iter()
         .map(|(target, interval, old, new, at)| {
@@ -2510,7 +2489,7 @@ fn revisions_of(conn: &Connection, path: &Path, rid: i64) -> Result<Vec<Revision
 /// reveal, a revision (when it changes) after it.
 #[allow(clippy::too_many_arguments)]
 fn write_score(
-    tx: &Connection,
+    tx: &mut dyn Sql,
     path: &Path,
     session_id: &str,
     rid: i64,
@@ -2520,14 +2499,14 @@ fn write_score(
     now: DateTime<Utc>,
 ) -> Result<()> {
     if !revealed {
-        tx.execute(
+        tx.exec(
+            path,
             "INSERT INTO score (review_id, interval_no, score, given_at)
              VALUES (?1, ?2, ?3, ?4)
              ON CONFLICT (review_id, interval_no)
              DO UPDATE SET score = excluded.score, given_at = excluded.given_at",
-            params![rid, interval, score, ts(now)],
-        )
-        .sq(path)?;
+            &[&rid, &interval, &score, &ts(now)],
+        )?;
         return Ok(());
     }
     let current =
@@ -2536,25 +2515,25 @@ fn write_score(
             detail: format!("{session_id}: revealed without a score for {interval}"),
         })?;
     if current != score {
-        tx.execute(
+        tx.exec(
+            path,
             "INSERT INTO revision (review_id, target, interval_no, old_value, new_value, at)
              VALUES (?1, 'score', ?2, ?3, ?4, ?5)",
-            params![
-                rid,
-                interval,
-                current.to_string(),
-                score.to_string(),
-                ts(now)
+            &[
+                &rid,
+                &interval,
+                &current.to_string(),
+                &score.to_string(),
+                &ts(now),
             ],
-        )
-        .sq(path)?;
+        )?;
     }
     Ok(())
 }
 
 /// Write the purpose verdict inside a grading transaction (blind, or a revision).
 fn write_verdict(
-    tx: &Connection,
+    tx: &mut dyn Sql,
     path: &Path,
     session_id: &str,
     rid: i64,
@@ -2563,11 +2542,11 @@ fn write_verdict(
     now: DateTime<Utc>,
 ) -> Result<()> {
     if !revealed {
-        tx.execute(
+        tx.exec(
+            path,
             "UPDATE review SET verdict = ?2, verdict_at = ?3 WHERE id = ?1",
-            params![rid, verdict.as_str(), ts(now)],
-        )
-        .sq(path)?;
+            &[&rid, &verdict.as_str(), &ts(now)],
+        )?;
         return Ok(());
     }
     let current = current_verdict(tx, path, rid)?.ok_or_else(|| JournalError::BadValue {
@@ -2575,38 +2554,38 @@ fn write_verdict(
         detail: format!("{session_id}: revealed without a verdict"),
     })?;
     if current != verdict {
-        tx.execute(
+        tx.exec(
+            path,
             "INSERT INTO revision (review_id, target, interval_no, old_value, new_value, at)
              VALUES (?1, 'verdict', NULL, ?2, ?3, ?4)",
-            params![rid, current.as_str(), verdict.as_str(), ts(now)],
-        )
-        .sq(path)?;
+            &[&rid, &current.as_str(), &verdict.as_str(), &ts(now)],
+        )?;
     }
     Ok(())
 }
 
 /// The latest seen mark of a review: (seen, at); `None` when never marked.
-fn seen_mark(conn: &Connection, path: &Path, rid: i64) -> Result<Option<(bool, String)>> {
-    conn.query_row(
+fn seen_mark(conn: &mut dyn Sql, path: &Path, rid: i64) -> Result<Option<(bool, String)>> {
+    conn.query_opt(
+        path,
         "SELECT seen, at FROM seen_event WHERE review_id = ?1 ORDER BY id DESC LIMIT 1",
-        [rid],
-        |r| Ok((r.get::<_, i64>(0)? == 1, r.get::<_, String>(1)?)),
+        &[&rid],
+        |r| Ok((r.get::<i64>(0)? == 1, r.get::<String>(1)?)),
     )
-    .optional()
-    .sq(path)
 }
 
-fn feedback_sent(conn: &Connection, path: &Path, rid: i64) -> Result<bool> {
-    conn.query_row(
-        "SELECT EXISTS (SELECT 1 FROM feedback_event WHERE review_id = ?1)",
-        [rid],
+fn feedback_sent(conn: &mut dyn Sql, path: &Path, rid: i64) -> Result<bool> {
+    conn.query_one(
+        path,
+        "SELECT CASE WHEN EXISTS (SELECT 1 FROM feedback_event WHERE review_id = ?1)
+            THEN 1 ELSE 0 END",
+        &[&rid],
         |r| r.get(0),
     )
-    .sq(path)
 }
 
 /// The review id of a revealed session, else `NotRevealed`.
-fn revealed_review(conn: &Connection, path: &Path, session_id: &str) -> Result<i64> {
+fn revealed_review(conn: &mut dyn Sql, path: &Path, session_id: &str) -> Result<i64> {
     let row = require_session(conn, path, session_id)?;
     let not_revealed = || JournalError::NotRevealed {
         path: path.to_path_buf(),
@@ -2694,11 +2673,13 @@ mod tests {
         )
         .unwrap();
         j.reveal("a/s", t(2)).unwrap();
-        let pages: i64 = j
-            .conn
+        let Store::Lite(conn) = &j.db else {
+            panic!("an in-memory journal is SQLite")
+        };
+        let pages: i64 = conn
             .pragma_query_value(None, "page_count", |r| r.get(0))
             .unwrap();
-        j.conn.pragma_update(None, "max_page_count", pages).unwrap();
+        conn.pragma_update(None, "max_page_count", pages).unwrap();
         let big = "x".repeat(64 * 1024);
         let err = j.save_feedback("a/s", &big, t(3)).unwrap_err();
         assert!(matches!(err, JournalError::DiskFull { .. }), "{err:?}");

@@ -391,7 +391,10 @@ pub fn staff_agreement(
 
     // Every interval, with each considered coach's score, in (session, interval) order.
     let mut items: BTreeMap<(&str, u32), Item<'_>> = BTreeMap::new();
-    for g in grades.iter().filter(|g| considered.contains(g.coach.as_str())) {
+    for g in grades
+        .iter()
+        .filter(|g| considered.contains(g.coach.as_str()))
+    {
         let item = items
             .entry((g.session_id.as_str(), g.interval_no))
             .or_insert_with(|| Item {

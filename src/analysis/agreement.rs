@@ -24,6 +24,11 @@
 //! proportions (the tests check it against a numerical delta method). The 95 % interval is
 //! kappa ± 1.96·SE, clipped to [−1, 1]; with few items it is wide, and it says so.
 //!
+//! For a staff, [`staff_agreement`] takes every coach's blind interval scores and gives each
+//! pair of coaches its quadratic weighted kappa over the intervals both scored, the intervals
+//! they scored two points apart or more, and the staff's mean of the pairwise kappas (Light
+//! 1971, see [`OverallAgreement`]).
+//!
 //! Pure: scores in, numbers out.
 
 /// How far apart two scores count as disagreeing.
@@ -65,6 +70,33 @@ pub enum AgreementError {
     /// A scale of fewer than two points.
     #[error("a scale needs at least two points (got {k})")]
     Scale { k: u8 },
+    /// A coach asked for by name who scored no interval blind.
+    #[error("no interval was scored blind by a coach named \"{coach}\"")]
+    UnknownCoach { coach: String },
+    /// Fewer than two distinct coaches asked for: there is no pair to compare.
+    #[error("agreement needs two different coaches (got {found})")]
+    TooFewCoaches { found: usize },
+    /// A blind score outside 1..=5.
+    #[error(
+        "coach \"{coach}\" has a blind score of {score} (outside 1-5) for interval {interval_no} of session {session_id}"
+    )]
+    GradeOutOfScale {
+        coach: String,
+        session_id: String,
+        interval_no: u32,
+        score: u8,
+    },
+    /// One coach with two different blind scores for one interval.
+    #[error(
+        "coach \"{coach}\" has two different blind scores ({first} and {second}) for interval {interval_no} of session {session_id}"
+    )]
+    ConflictingGrades {
+        coach: String,
+        session_id: String,
+        interval_no: u32,
+        first: u8,
+        second: u8,
+    },
 }
 
 /// Weighted kappa of one pair of coaches over the items both scored.
@@ -199,6 +231,278 @@ pub fn wide_disagreements<T: Clone>(items: &[(T, u8, u8)], gap: u8) -> Vec<(T, u
         .filter(|(_, a, b)| a.abs_diff(*b) >= gap)
         .cloned()
         .collect()
+}
+
+// ---------------------------------------------------------------------------------------------
+// A staff: every pair of coaches, and the staff as a whole.
+// ---------------------------------------------------------------------------------------------
+
+/// The points of the coaches' score scale (1 to 5).
+pub const SCORE_POINTS: u8 = 5;
+
+/// Two scores this many points apart or more are a wide disagreement.
+pub const WIDE_GAP: u8 = 2;
+
+/// One coach's blind score of one interval (revisions after the reveal are not grades here).
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct CoachGrade {
+    pub coach: String,
+    pub athlete_id: String,
+    pub session_id: String,
+    pub start_time: chrono::DateTime<chrono::Utc>,
+    /// The interval's number within its session.
+    pub interval_no: u32,
+    /// 1..=5.
+    pub score: u8,
+}
+
+/// Why a pair of coaches has no kappa.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum NoKappa {
+    /// The two coaches scored no interval in common.
+    NoSharedItems,
+    /// Both coaches gave one and the same score to every interval they share: chance alone
+    /// would give that agreement (expected disagreement 0), so kappa is 0/0.
+    OneScoreThroughout,
+}
+
+/// An interval two coaches scored [`WIDE_GAP`] points apart or more.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct WideDisagreement {
+    pub athlete_id: String,
+    pub session_id: String,
+    pub start_time: chrono::DateTime<chrono::Utc>,
+    pub interval_no: u32,
+    /// The first coach's (the pair's `coach_a`) score.
+    pub score_a: u8,
+    /// The second coach's (`coach_b`) score.
+    pub score_b: u8,
+}
+
+/// Agreement of one pair of coaches over the intervals both scored blind.
+#[derive(Debug, Clone, PartialEq)]
+pub struct PairAgreement {
+    /// The pair, `coach_a` < `coach_b` by name.
+    pub coach_a: String,
+    pub coach_b: String,
+    /// Quadratic weighted kappa over the shared intervals ([`weighted_kappa`]): `n`, kappa,
+    /// observed and chance-expected weighted *agreement* (disagreement is one minus each),
+    /// standard error and 95 % interval.
+    pub kappa: Kappa,
+    /// Why `kappa.kappa` is `None`; `None` exactly when there is a kappa.
+    pub no_kappa: Option<NoKappa>,
+    /// The shared intervals scored [`WIDE_GAP`] points apart or more, by start time, then
+    /// interval number, then session id.
+    pub wide: Vec<WideDisagreement>,
+}
+
+/// How many intervals one coach scored blind.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct CoachCount {
+    pub coach: String,
+    pub items: usize,
+}
+
+/// The staff as a whole.
+///
+/// Source: Light R. J. (1971) Measures of response agreement for qualitative data: some
+/// generalizations and alternatives, Psychological Bulletin 76:365 — with more than two
+/// raters, the mean of the pairwise kappas.
+///
+/// The mean has no confidence interval here: the pairs share coaches and intervals, so their
+/// kappas are not independent and no simple standard error of the mean follows from the
+/// pairwise ones. When exactly one pair has a kappa, the mean *is* that pair's kappa and
+/// carries that pair's interval.
+#[derive(Debug, Clone, PartialEq)]
+pub struct OverallAgreement {
+    /// Light's kappa: the mean of the pairwise kappas that could be computed; `None` when
+    /// none could.
+    pub kappa: Option<f64>,
+    /// How many pairwise kappas the mean averages.
+    pub pairs_averaged: usize,
+    /// The 95 % interval, only when `pairs_averaged` is 1 (that pair's).
+    pub ci95: Option<(f64, f64)>,
+    /// Distinct intervals (session, interval number) scored blind by two or more of the
+    /// coaches considered.
+    pub items: usize,
+}
+
+/// Agreement between the coaches of a staff.
+#[derive(Debug, Clone, PartialEq)]
+pub struct StaffAgreement {
+    /// The coaches considered, by name, with how many intervals each scored blind.
+    pub coaches: Vec<CoachCount>,
+    /// Every unordered pair of the coaches considered, by (coach_a, coach_b).
+    pub pairs: Vec<PairAgreement>,
+    pub overall: OverallAgreement,
+}
+
+/// One interval as the staff scored it: its athlete and start, and each coach's score.
+struct Item<'a> {
+    athlete_id: &'a str,
+    start_time: chrono::DateTime<chrono::Utc>,
+    scores: std::collections::BTreeMap<&'a str, u8>,
+}
+
+/// Agreement between coaches from their blind interval scores.
+///
+/// The coaches considered are `only` when it is not empty (each must have scored at least
+/// one interval, and at least two different names are needed), else every coach in `grades`.
+/// With no filter and fewer than two coaches in `grades` the result has no pairs and no
+/// overall kappa (nothing to compare yet; not an error). An interval is (session id,
+/// interval number); its athlete and start time are taken from its first grade in
+/// `grades`. A coach with the same score twice for one interval counts it once; two
+/// different scores are an error (the caller passes blind scores only, one per interval).
+pub fn staff_agreement(
+    grades: &[CoachGrade],
+    only: &[String],
+) -> Result<StaffAgreement, AgreementError> {
+    use std::collections::{BTreeMap, BTreeSet};
+
+    for g in grades {
+        if !(1..=SCORE_POINTS).contains(&g.score) {
+            return Err(AgreementError::GradeOutOfScale {
+                coach: g.coach.clone(),
+                session_id: g.session_id.clone(),
+                interval_no: g.interval_no,
+                score: g.score,
+            });
+        }
+    }
+    let present: BTreeSet<&str> = grades.iter().map(|g| g.coach.as_str()).collect();
+    let considered: BTreeSet<&str> = if only.is_empty() {
+        present.clone()
+    } else {
+        for name in only {
+            if !present.contains(name.as_str()) {
+                return Err(AgreementError::UnknownCoach {
+                    coach: name.clone(),
+                });
+            }
+        }
+        let chosen: BTreeSet<&str> = only.iter().map(String::as_str).collect();
+        if chosen.len() < 2 {
+            return Err(AgreementError::TooFewCoaches {
+                found: chosen.len(),
+            });
+        }
+        chosen
+    };
+
+    // Every interval, with each considered coach's score, in (session, interval) order.
+    let mut items: BTreeMap<(&str, u32), Item<'_>> = BTreeMap::new();
+    for g in grades
+        .iter()
+        .filter(|g| considered.contains(g.coach.as_str()))
+    {
+        let item = items
+            .entry((g.session_id.as_str(), g.interval_no))
+            .or_insert_with(|| Item {
+                athlete_id: &g.athlete_id,
+                start_time: g.start_time,
+                scores: BTreeMap::new(),
+            });
+        match item.scores.get(g.coach.as_str()) {
+            Some(&first) if first != g.score => {
+                return Err(AgreementError::ConflictingGrades {
+                    coach: g.coach.clone(),
+                    session_id: g.session_id.clone(),
+                    interval_no: g.interval_no,
+                    first,
+                    second: g.score,
+                })
+            }
+            Some(_) => {}
+            None => {
+                item.scores.insert(g.coach.as_str(), g.score);
+            }
+        }
+    }
+
+    let coaches: Vec<CoachCount> = considered
+        .iter()
+        .map(|&coach| CoachCount {
+            coach: coach.to_string(),
+            items: items
+                .values()
+                .filter(|i| i.scores.contains_key(coach))
+                .count(),
+        })
+        .collect();
+
+    let names: Vec<&str> = considered.iter().copied().collect();
+    let mut pairs = Vec::new();
+    for (i, &a) in names.iter().enumerate() {
+        for &b in names.iter().skip(i + 1) {
+            pairs.push(pair_agreement(&items, a, b)?);
+        }
+    }
+
+    let defined: Vec<&PairAgreement> = pairs.iter().filter(|p| p.kappa.kappa.is_some()).collect();
+    let kappas: Vec<f64> = defined.iter().filter_map(|p| p.kappa.kappa).collect();
+    let overall = OverallAgreement {
+        kappa: (!kappas.is_empty()).then(|| kappas.iter().sum::<f64>() / kappas.len() as f64),
+        pairs_averaged: kappas.len(),
+        ci95: match defined.as_slice() {
+            [one] => one.kappa.ci95,
+            _ => None,
+        },
+        items: items.values().filter(|i| i.scores.len() >= 2).count(),
+    };
+    Ok(StaffAgreement {
+        coaches,
+        pairs,
+        overall,
+    })
+}
+
+/// Kappa and wide disagreements of coaches `a` and `b` over the intervals both scored.
+fn pair_agreement(
+    items: &std::collections::BTreeMap<(&str, u32), Item<'_>>,
+    a: &str,
+    b: &str,
+) -> Result<PairAgreement, AgreementError> {
+    let shared: Vec<(WideDisagreement, u8, u8)> = items
+        .iter()
+        .filter_map(|(&(session_id, interval_no), item)| {
+            let sa = *item.scores.get(a)?;
+            let sb = *item.scores.get(b)?;
+            let at = WideDisagreement {
+                athlete_id: item.athlete_id.to_string(),
+                session_id: session_id.to_string(),
+                start_time: item.start_time,
+                interval_no,
+                score_a: sa,
+                score_b: sb,
+            };
+            Some((at, sa, sb))
+        })
+        .collect();
+    let scores: Vec<(u8, u8)> = shared.iter().map(|&(_, sa, sb)| (sa, sb)).collect();
+    let kappa = weighted_kappa(&scores, SCORE_POINTS, Weights::Quadratic)?;
+    let no_kappa = match kappa.kappa {
+        Some(_) => None,
+        None if kappa.n == 0 => Some(NoKappa::NoSharedItems),
+        None => Some(NoKappa::OneScoreThroughout),
+    };
+    let mut wide: Vec<WideDisagreement> = wide_disagreements(&shared, WIDE_GAP)
+        .into_iter()
+        .map(|(at, _, _)| at)
+        .collect();
+    wide.sort_by(|x, y| {
+        (x.start_time, x.interval_no, &x.session_id).cmp(&(
+            y.start_time,
+            y.interval_no,
+            &y.session_id,
+        ))
+    });
+    Ok(PairAgreement {
+        coach_a: a.to_string(),
+        coach_b: b.to_string(),
+        kappa,
+        no_kappa,
+        wide,
+    })
 }
 
 #[cfg(test)]

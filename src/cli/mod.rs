@@ -26,6 +26,7 @@ macro_rules! eprintln {
     };
 }
 
+pub mod agreement_cmd;
 mod analyze;
 mod check;
 mod compare_cmd;

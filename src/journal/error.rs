@@ -193,6 +193,43 @@ pub enum JournalError {
     #[error("{path}: the copy did not verify ({detail}); nothing was kept")]
     CopyMismatch { path: PathBuf, detail: String },
 
+    /// A journal with a staff needs to know which coach is writing.
+    #[error(
+        "{path}: this journal is shared by a staff of {staff} coaches; say which one you are \
+         with `name` under [coach] in the config file, or --coach NAME (nothing was saved)"
+    )]
+    NoCoach { path: PathBuf, staff: u64 },
+
+    /// The coach named is not an active coach of the journal's staff.
+    #[error(
+        "{path}: coach \"{coach}\" is not on this journal's staff ({staff} coaches); \
+         see `splitdesk staff list`, or add them with `splitdesk staff add`"
+    )]
+    UnknownCoach {
+        path: PathBuf,
+        coach: String,
+        staff: u64,
+    },
+
+    /// A coach name that cannot be used.
+    #[error("{path}: \"{name}\" cannot be a coach name: {why}")]
+    BadCoachName {
+        path: PathBuf,
+        name: String,
+        why: String,
+    },
+
+    /// The coach is on the staff already.
+    #[error("{path}: coach \"{coach}\" is on the staff already")]
+    AlreadyOnStaff { path: PathBuf, coach: String },
+
+    /// The last coach of a staff cannot be removed.
+    #[error(
+        "{path}: coach \"{coach}\" is the last coach of the staff and cannot be removed; \
+         add another coach first"
+    )]
+    LastCoach { path: PathBuf, coach: String },
+
     /// The PostgreSQL server could not be reached, or refused the connection.
     #[error("{path}: cannot connect to the journal server ({detail})")]
     Connect { path: PathBuf, detail: String },

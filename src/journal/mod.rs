@@ -49,6 +49,7 @@ mod note;
 mod pg;
 mod pgpass;
 pub mod schema;
+mod staff;
 mod types;
 
 use std::collections::{BTreeMap, BTreeSet};
@@ -67,6 +68,9 @@ pub use pg::{is_url as is_server_address, redact as redact_address};
 pub use error::{JournalError, Missing};
 pub use location::{check_outside_roster, default_path, default_path_in, DATA_DIR_ENV};
 pub use note::{read_note, RevealPermit};
+pub use staff::{
+    check_coach_name, ColleagueGrades, StaffAdded, StaffMember, MAX_COACH_NAME, REVIEWING_FOR,
+};
 pub use types::{
     BiasInput, CardCache, CardIndexRow, CheckReport, FeedbackEvent, FeedbackEventKind,
     FeedbackVersion, FileStat, PurposeVerdict, QueueEntry, ReviewStage, ReviewState, Revision,
@@ -103,6 +107,9 @@ pub struct Journal {
     /// of a journal that cannot be written. Reads and the analysis cache work on the copy;
     /// any write of the coach's data is refused with [`JournalError::ReadOnly`].
     read_only: Option<String>,
+    /// The coach whose records this journal reads and writes ('' for the single coach of a
+    /// journal without a staff; see [`Journal::set_coach`]).
+    coach: String,
 }
 
 /// Map rusqlite results into journal errors carrying the path.
@@ -139,10 +146,11 @@ fn review_rows<T>(
     conn: &mut dyn Sql,
     path: &Path,
     session_id: &str,
+    coach: &str,
     sql: &str,
     f: impl FnMut(&db::Row<'_>) -> Result<T>,
 ) -> Result<Vec<T>> {
-    match require_session(conn, path, session_id)?.review_id {
+    match require_session(conn, path, session_id, coach)?.review_id {
         Some(rid) => conn.query(path, sql, &[&rid], f),
         None => Ok(Vec::new()),
     }
@@ -547,6 +555,7 @@ impl Journal {
             db: Store::Lite(conn),
             path,
             read_only: None,
+            coach: String::new(),
         };
         journal.configure()?;
         journal.migrate()?;
@@ -565,6 +574,7 @@ impl Journal {
             db: Store::Pg(Box::new(std::sync::Mutex::new(conn))),
             path,
             read_only: None,
+            coach: String::new(),
         };
         journal.migrate()?;
         Ok(journal)
@@ -610,6 +620,7 @@ impl Journal {
             db: Store::Lite(conn),
             path,
             read_only: None,
+            coach: String::new(),
         };
         journal.configure()?;
         Ok(journal)
@@ -647,6 +658,7 @@ impl Journal {
             db: Store::Lite(conn),
             path,
             read_only: None,
+            coach: String::new(),
         };
         journal.configure()?;
         journal.migrate()?;
@@ -668,6 +680,7 @@ impl Journal {
             db: Store::Lite(conn),
             path,
             read_only: None,
+            coach: String::new(),
         };
         journal.configure()?;
         journal.migrate()?;
@@ -760,6 +773,19 @@ impl Journal {
     /// changes nothing succeeds, one that would change the coach's data is rolled back and
     /// refused with `ReadOnly`.
     fn write<T>(&mut self, f: impl FnOnce(&mut dyn Sql, &Path) -> Result<T>) -> Result<T> {
+        let coach = self.coach.clone();
+        self.write_unchecked(move |tx, path| {
+            staff::require_writer(tx, path, &coach)?;
+            f(tx, path)
+        })
+    }
+
+    /// [`Journal::write`] without the check that the handle's coach may write (for the
+    /// staff list itself).
+    fn write_unchecked<T>(
+        &mut self,
+        f: impl FnOnce(&mut dyn Sql, &Path) -> Result<T>,
+    ) -> Result<T> {
         let path = self.path.clone();
         let conn = match &mut self.db {
             Store::Lite(conn) => conn,
@@ -862,6 +888,7 @@ impl Journal {
         stat: Option<&FileStat>,
         now: DateTime<Utc>,
     ) -> Result<SessionChange> {
+        let coach = self.coach.clone();
         let record = SessionRecord {
             summary: None,
             ..record.clone()
@@ -869,7 +896,7 @@ impl Journal {
         // Already held as unreadable for these bytes at this path, for the same reason (and
         // with this stat, when one is given): nothing to write, so a warm start that re-reads
         // a damaged file leaves the journal as it is.
-        let held = self.read(|conn, path| session_row(conn, path, &record.session_id))?;
+        let held = self.read(|conn, path| session_row(conn, path, &record.session_id, &coach))?;
         let same_row = held.is_some_and(|row| {
             row.content_hash == record.content_hash
                 && row.file_path == record.file_path
@@ -892,7 +919,8 @@ impl Journal {
 
     /// Whether the journal holds the session as unreadable, and why.
     pub fn unreadable(&self, session_id: &str) -> Result<Option<String>> {
-        self.read(|conn, path| Ok(require_session(conn, path, session_id)?.unreadable))
+        let coach = self.coach.clone();
+        self.read(|conn, path| Ok(require_session(conn, path, session_id, &coach)?.unreadable))
     }
 
     /// Store an analysis summary computed for `content_hash`. Ignored (returns `false`) when
@@ -903,8 +931,9 @@ impl Journal {
         content_hash: &str,
         summary: &SummaryCache,
     ) -> Result<bool> {
+        let coach = self.coach.clone();
         self.write_cache(|tx, path| {
-            let row = require_session(tx, path, session_id)?;
+            let row = require_session(tx, path, session_id, &coach)?;
             if row.content_hash != content_hash {
                 return Ok(false);
             }
@@ -1214,6 +1243,11 @@ impl Journal {
                 tx.query(path, "SELECT session_id FROM session", &[], |r| r.get(0))?;
             let mut removed = 0;
             for id in ids.iter().filter(|id| !keep.contains(id.as_str())) {
+                tx.exec(
+                    path,
+                    "DELETE FROM session_review WHERE session_id = ?1",
+                    &[id],
+                )?;
                 removed +=
                     tx.exec(path, "DELETE FROM session WHERE session_id = ?1", &[id])? as usize;
                 delete_card(tx, path, id)?;
@@ -1225,8 +1259,9 @@ impl Journal {
     /// After the content changed, start a fresh review for the new content (the old review is
     /// kept in the journal). Returns `false` when the review already matches the content.
     pub fn restart_review(&mut self, session_id: &str) -> Result<bool> {
+        let coach = self.coach.clone();
         self.write(|tx, path| {
-            let row = require_session(tx, path, session_id)?;
+            let row = require_session(tx, path, session_id, &coach)?;
             let Some(rid) = row.review_id else {
                 return Ok(false);
             };
@@ -1234,12 +1269,18 @@ impl Journal {
             if review.content_hash == row.content_hash {
                 return Ok(false);
             }
-            let other = latest_review_for_hash(tx, path, &row.content_hash)?;
-            tx.exec(
-                path,
-                "UPDATE session SET review_id = ?2 WHERE session_id = ?1",
-                &[&session_id, &other],
-            )?;
+            match latest_review_for_hash(tx, path, &row.content_hash, &coach)? {
+                Some(other) => tx.exec(
+                    path,
+                    "UPDATE session_review SET review_id = ?3 WHERE session_id = ?1 AND coach = ?2",
+                    &[&session_id, &coach, &other],
+                )?,
+                None => tx.exec(
+                    path,
+                    "DELETE FROM session_review WHERE session_id = ?1 AND coach = ?2",
+                    &[&session_id, &coach],
+                )?,
+            };
             Ok(true)
         })
     }
@@ -1281,6 +1322,7 @@ impl Journal {
         verdict: Option<PurposeVerdict>,
         now: DateTime<Utc>,
     ) -> Result<()> {
+        let coach = self.coach.clone();
         if let Some(&(_, score)) = scores.iter().find(|(_, s)| !(1..=5).contains(s)) {
             return Err(JournalError::InvalidScore {
                 path: self.path.clone(),
@@ -1290,7 +1332,7 @@ impl Journal {
         // The last value given for an interval wins.
         let scores: BTreeMap<u32, u8> = scores.iter().copied().collect();
         self.write(|tx, path| {
-            let row = require_session(tx, path, session_id)?;
+            let row = require_session(tx, path, session_id, &coach)?;
             let review = match row.review_id {
                 Some(rid) => Some(review_row(tx, path, rid)?),
                 None => None,
@@ -1342,8 +1384,9 @@ impl Journal {
     /// purpose verdict is set. Records the reveal time the first time; later calls return a
     /// permit without changing anything.
     pub fn reveal(&mut self, session_id: &str, now: DateTime<Utc>) -> Result<RevealPermit> {
+        let coach = self.coach.clone();
         self.write(|tx, path| {
-            let row = require_session(tx, path, session_id)?;
+            let row = require_session(tx, path, session_id, &coach)?;
             let review = match row.review_id {
                 Some(rid) => Some(review_row(tx, path, rid)?),
                 None => None,
@@ -1385,8 +1428,9 @@ impl Journal {
     /// another session's view (the earlier runs of the same workout) may show a note, under
     /// that session's own reveal rule.
     pub fn revealed_permit(&self, session_id: &str) -> Result<Option<RevealPermit>> {
+        let coach = self.coach.clone();
         self.read(|conn, path| {
-            let Some(row) = session_row(conn, path, session_id)? else {
+            let Some(row) = session_row(conn, path, session_id, &coach)? else {
                 return Ok(None);
             };
             let Some(rid) = row.review_id else {
@@ -1399,8 +1443,9 @@ impl Journal {
 
     /// The grading state of one session.
     pub fn review_state(&self, session_id: &str) -> Result<ReviewState> {
+        let coach = self.coach.clone();
         self.read(|conn, path| {
-            let row = require_session(conn, path, session_id)?;
+            let row = require_session(conn, path, session_id, &coach)?;
             let Some(rid) = row.review_id else {
                 return Ok(ReviewState {
                     stage: ReviewStage::New,
@@ -1485,8 +1530,9 @@ impl Journal {
 
     /// Every change made after the reveal, oldest first.
     pub fn revisions(&self, session_id: &str) -> Result<Vec<Revision>> {
+        let coach = self.coach.clone();
         self.read(|conn, path| {
-            let row = require_session(conn, path, session_id)?;
+            let row = require_session(conn, path, session_id, &coach)?;
             match row.review_id {
                 Some(rid) => revisions_of(conn, path, rid),
                 None => Ok(Vec::new()),
@@ -1503,8 +1549,9 @@ impl Journal {
         body: &str,
         now: DateTime<Utc>,
     ) -> Result<()> {
+        let coach = self.coach.clone();
         self.write(|tx, path| {
-            let rid = revealed_review(tx, path, session_id)?;
+            let rid = revealed_review(tx, path, session_id, &coach)?;
             tx.exec(
                 path,
                 "INSERT INTO feedback_version (review_id, body, saved_at) VALUES (?1, ?2, ?3)",
@@ -1521,11 +1568,13 @@ impl Journal {
 
     /// Every saved version of the feedback, oldest first.
     pub fn feedback_history(&self, session_id: &str) -> Result<Vec<FeedbackVersion>> {
+        let coach = self.coach.clone();
         self.read(|conn, path| {
             let raw: Vec<(String, String)> = review_rows(
                 conn,
                 path,
                 session_id,
+                &coach,
                 "SELECT body, saved_at FROM feedback_version WHERE review_id = ?1 ORDER BY id",
                 |r| Ok((r.get(0)?, r.get(1)?)),
             )?;
@@ -1547,8 +1596,9 @@ impl Journal {
         kind: FeedbackEventKind,
         now: DateTime<Utc>,
     ) -> Result<()> {
+        let coach = self.coach.clone();
         self.write(|tx, path| {
-            let rid = revealed_review(tx, path, session_id)?;
+            let rid = revealed_review(tx, path, session_id, &coach)?;
             tx.exec(
                 path,
                 "INSERT INTO feedback_event (review_id, kind, at) VALUES (?1, ?2, ?3)",
@@ -1566,9 +1616,10 @@ impl Journal {
         kind: FeedbackEventKind,
         now: DateTime<Utc>,
     ) -> Result<()> {
+        let coach = self.coach.clone();
         self.write(|tx, path| {
             for id in session_ids {
-                let rid = revealed_review(tx, path, id)?;
+                let rid = revealed_review(tx, path, id, &coach)?;
                 tx.exec(
                     path,
                     "INSERT INTO feedback_event (review_id, kind, at) VALUES (?1, ?2, ?3)",
@@ -1588,8 +1639,9 @@ impl Journal {
         kind: FeedbackEventKind,
         now: DateTime<Utc>,
     ) -> Result<()> {
+        let coach = self.coach.clone();
         self.write(|tx, path| {
-            let rid = revealed_review(tx, path, session_id)?;
+            let rid = revealed_review(tx, path, session_id, &coach)?;
             if let Some(body) = body {
                 tx.exec(
                     path,
@@ -1608,11 +1660,13 @@ impl Journal {
 
     /// When and how the feedback left splitdesk, oldest first.
     pub fn feedback_events(&self, session_id: &str) -> Result<Vec<FeedbackEvent>> {
+        let coach = self.coach.clone();
         self.read(|conn, path| {
             let raw: Vec<(String, String)> = review_rows(
                 conn,
                 path,
                 session_id,
+                &coach,
                 "SELECT kind, at FROM feedback_event WHERE review_id = ?1 ORDER BY id",
                 |r| Ok((r.get(0)?, r.get(1)?)),
             )?;
@@ -1642,6 +1696,7 @@ impl Journal {
         to_s: f64,
         now: DateTime<Utc>,
     ) -> Result<Ruler> {
+        let coach = self.coach.clone();
         if !(from_s.is_finite() && to_s.is_finite() && to_s > from_s) {
             return Err(JournalError::InvalidRuler {
                 path: self.path.clone(),
@@ -1650,7 +1705,7 @@ impl Journal {
             });
         }
         self.write(|tx, path| {
-            let row = require_session(tx, path, session_id)?;
+            let row = require_session(tx, path, session_id, &coach)?;
             let rid = ensure_review(tx, path, &row, now)?;
             let id: i64 = tx.query_one(
                 path,
@@ -1665,11 +1720,13 @@ impl Journal {
 
     /// The session's rulers, in the order added.
     pub fn rulers(&self, session_id: &str) -> Result<Vec<Ruler>> {
+        let coach = self.coach.clone();
         self.read(|conn, path| {
             let raw: Vec<(i64, f64, f64)> = review_rows(
                 conn,
                 path,
                 session_id,
+                &coach,
                 "SELECT id, from_s, to_s FROM ruler WHERE review_id = ?1 ORDER BY id",
                 |r| Ok((r.get(0)?, r.get(1)?, r.get(2)?)),
             )?;
@@ -1682,8 +1739,9 @@ impl Journal {
 
     /// Remove all of the session's rulers; returns how many there were.
     pub fn clear_rulers(&mut self, session_id: &str) -> Result<usize> {
+        let coach = self.coach.clone();
         self.write(|tx, path| {
-            let row = require_session(tx, path, session_id)?;
+            let row = require_session(tx, path, session_id, &coach)?;
             match row.review_id {
                 Some(rid) => {
                     Ok(tx.exec(path, "DELETE FROM ruler WHERE review_id = ?1", &[&rid])? as usize)
@@ -1711,8 +1769,9 @@ impl Journal {
     }
 
     fn set_seen(&mut self, session_id: &str, seen: bool, now: DateTime<Utc>) -> Result<bool> {
+        let coach = self.coach.clone();
         self.write(|tx, path| {
-            let row = require_session(tx, path, session_id)?;
+            let row = require_session(tx, path, session_id, &coach)?;
             if let Some(rid) = row.review_id {
                 if review_row(tx, path, rid)?.revealed_at.is_some() {
                     return Err(JournalError::AlreadyRevealed {
@@ -1796,10 +1855,12 @@ impl Journal {
                         THEN 1 ELSE 0 END,
                     s.unreadable,
                     CASE WHEN r.file_unreadable IS NOT NULL THEN 1 ELSE 0 END
-                 FROM session s LEFT JOIN review r ON r.id = s.review_id
+                 FROM session s
+                 LEFT JOIN session_review sr ON sr.session_id = s.session_id AND sr.coach = ?2
+                 LEFT JOIN review r ON r.id = sr.review_id
                  WHERE CAST(?1 AS TEXT) IS NULL OR s.athlete_id = ?1
                  ORDER BY s.start_time, s.session_id",
-                &[&athlete],
+                &[&athlete, &self.coach],
                 |r| {
                     let unreadable: Option<String> = r.get(12)?;
                     let verdict: bool = r.get(7)?;
@@ -1847,10 +1908,12 @@ impl Journal {
                 path,
                 "SELECT s.session_id, s.athlete_id, s.start_time, r.id, r.revealed_at,
                     r.verdict, r.work_intervals
-                 FROM session s JOIN review r ON r.id = s.review_id
+                 FROM session s
+                 JOIN session_review sr ON sr.session_id = s.session_id AND sr.coach = ?1
+                 JOIN review r ON r.id = sr.review_id
                  WHERE r.revealed_at IS NOT NULL
                  ORDER BY s.start_time, s.session_id",
-                &[],
+                &[&self.coach],
                 |r| {
                     Ok((
                         r.get(0)?,
@@ -2065,26 +2128,13 @@ fn upsert_row(
     stat: Option<&FileStat>,
     now: DateTime<Utc>,
 ) -> Result<SessionChange> {
-    let existing = session_row(tx, path, &record.session_id)?;
-    let (mut change, review_id) = match &existing {
-        None => match latest_review_for_hash(tx, path, &record.content_hash)? {
-            Some(id) => (SessionChange::FoundReview, Some(id)),
-            None => (SessionChange::New, None),
-        },
-        Some(row) if row.content_hash == record.content_hash => {
-            (SessionChange::Same, row.review_id)
-        }
-        Some(row) => (SessionChange::ContentChanged, row.review_id),
-    };
-    let review_id = match review_id {
-        Some(id) => Some(id),
-        None => {
-            let found = latest_review_for_hash(tx, path, &record.content_hash)?;
-            if found.is_some() && change == SessionChange::New {
-                change = SessionChange::FoundReview;
-            }
-            found
-        }
+    // Reviews are the coaches' (see `link_reviews`); the session row only says what the
+    // roster holds. `existing` is read without a coach: only its content and cache matter.
+    let existing = session_row(tx, path, &record.session_id, "")?;
+    let mut change = match &existing {
+        None => SessionChange::New,
+        Some(row) if row.content_hash == record.content_hash => SessionChange::Same,
+        Some(_) => SessionChange::ContentChanged,
     };
     // The summary: the one given, else the one kept (same content), else one cached for
     // the same content under another session id (a renamed file).
@@ -2116,8 +2166,12 @@ fn upsert_row(
                      file_mtime_ns = CASE WHEN session.content_hash = excluded.content_hash
                          AND session.file_path = excluded.file_path
                          THEN session.file_mtime_ns END,
-                     unreadable = NULL", &[&record.session_id, &record.athlete_id, &record.file_path.to_string_lossy(), &record.content_hash, &ts(record.start), &ts(now), &review_id, &json, &version, &summary_hash, &intervals])?;
+                     unreadable = NULL", &[&record.session_id, &record.athlete_id, &record.file_path.to_string_lossy(), &record.content_hash, &ts(record.start), &ts(now), &None::<i64>, &json, &version, &summary_hash, &intervals])?;
     fill_brief(tx, path, &record.session_id)?;
+    let linked = link_reviews(tx, path, &record.session_id, &record.content_hash)?;
+    if linked > 0 && change == SessionChange::New {
+        change = SessionChange::FoundReview;
+    }
     if let Some(st) = stat {
         write_file_stat(tx, path, &record.session_id, st)?;
     }
@@ -2216,6 +2270,8 @@ struct SessionRow {
     content_hash: String,
     file_path: PathBuf,
     session_id: String,
+    /// The coach this row was read for (its `review_id` is theirs).
+    coach: String,
     review_id: Option<i64>,
     work_intervals: Option<u32>,
     summary: Option<(String, u32, u32)>,
@@ -2232,15 +2288,23 @@ impl SessionRow {
     }
 }
 
-fn session_row(conn: &mut dyn Sql, path: &Path, session_id: &str) -> Result<Option<SessionRow>> {
+/// The session as `coach` sees it: its own review link, no other coach's.
+fn session_row(
+    conn: &mut dyn Sql,
+    path: &Path,
+    session_id: &str,
+    coach: &str,
+) -> Result<Option<SessionRow>> {
     conn.query_opt(
         path,
-        "SELECT content_hash, file_path, review_id,
-            CASE WHEN summary_hash = content_hash THEN work_intervals END,
-            CASE WHEN summary_hash = content_hash THEN summary_json END,
-            summary_version, work_intervals, unreadable
-         FROM session WHERE session_id = ?1",
-        &[&session_id],
+        "SELECT s.content_hash, s.file_path, sr.review_id,
+            CASE WHEN s.summary_hash = s.content_hash THEN s.work_intervals END,
+            CASE WHEN s.summary_hash = s.content_hash THEN s.summary_json END,
+            s.summary_version, s.work_intervals, s.unreadable
+         FROM session s
+         LEFT JOIN session_review sr ON sr.session_id = s.session_id AND sr.coach = ?2
+         WHERE s.session_id = ?1",
+        &[&session_id, &coach],
         |r| {
             // The cache columns are derived data: a damaged value reads as missing.
             let json = r.text(4);
@@ -2250,6 +2314,7 @@ fn session_row(conn: &mut dyn Sql, path: &Path, session_id: &str) -> Result<Opti
                 content_hash: r.text_lossy(0)?,
                 file_path: PathBuf::from(r.text_lossy(1)?),
                 session_id: session_id.to_string(),
+                coach: coach.to_string(),
                 review_id: r.get(2)?,
                 work_intervals: r.lenient::<u32>(3),
                 summary: match (json, version, n) {
@@ -2262,8 +2327,13 @@ fn session_row(conn: &mut dyn Sql, path: &Path, session_id: &str) -> Result<Opti
     )
 }
 
-fn require_session(conn: &mut dyn Sql, path: &Path, session_id: &str) -> Result<SessionRow> {
-    session_row(conn, path, session_id)?.ok_or_else(|| JournalError::UnknownSession {
+fn require_session(
+    conn: &mut dyn Sql,
+    path: &Path,
+    session_id: &str,
+    coach: &str,
+) -> Result<SessionRow> {
+    session_row(conn, path, session_id, coach)?.ok_or_else(|| JournalError::UnknownSession {
         path: path.to_path_buf(),
         session_id: session_id.to_string(),
     })
@@ -2336,12 +2406,31 @@ fn cache_damage(v: &db::Cell) -> Option<&'static str> {
     }
 }
 
-fn latest_review_for_hash(conn: &mut dyn Sql, path: &Path, hash: &str) -> Result<Option<i64>> {
+/// The coach's latest review of this content.
+fn latest_review_for_hash(
+    conn: &mut dyn Sql,
+    path: &Path,
+    hash: &str,
+    coach: &str,
+) -> Result<Option<i64>> {
     conn.query_opt(
         path,
-        "SELECT id FROM review WHERE content_hash = ?1 ORDER BY id DESC LIMIT 1",
-        &[&hash],
+        "SELECT id FROM review WHERE coach = ?2 AND content_hash = ?1 ORDER BY id DESC LIMIT 1",
+        &[&hash, &coach],
         |r| r.get(0),
+    )
+}
+
+/// Link the session to each coach's latest review of its content, for every coach who has
+/// one and no link for this session yet (a renamed file finds its reviews; a session whose
+/// content changed keeps the reviews it had). Returns how many links were made.
+fn link_reviews(conn: &mut dyn Sql, path: &Path, session_id: &str, hash: &str) -> Result<u64> {
+    conn.exec(
+        path,
+        "INSERT INTO session_review (session_id, coach, review_id)
+         SELECT ?1, coach, max(id) FROM review WHERE content_hash = ?2 GROUP BY coach
+         ON CONFLICT (session_id, coach) DO NOTHING",
+        &[&session_id, &hash],
     )
 }
 
@@ -2393,14 +2482,15 @@ fn ensure_review(
     }
     let id: i64 = conn.query_one(
         path,
-        "INSERT INTO review (content_hash, created_at) VALUES (?1, ?2) RETURNING id",
-        &[&row.content_hash, &ts(now)],
+        "INSERT INTO review (content_hash, created_at, coach) VALUES (?1, ?2, ?3) RETURNING id",
+        &[&row.content_hash, &ts(now), &row.coach],
         |r| r.get(0),
     )?;
     conn.exec(
         path,
-        "UPDATE session SET review_id = ?2 WHERE session_id = ?1",
-        &[&row.session_id, &id],
+        "INSERT INTO session_review (session_id, coach, review_id) VALUES (?1, ?2, ?3)
+         ON CONFLICT (session_id, coach) DO UPDATE SET review_id = excluded.review_id",
+        &[&row.session_id, &row.coach, &id],
     )?;
     Ok(id)
 }
@@ -2585,8 +2675,8 @@ fn feedback_sent(conn: &mut dyn Sql, path: &Path, rid: i64) -> Result<bool> {
 }
 
 /// The review id of a revealed session, else `NotRevealed`.
-fn revealed_review(conn: &mut dyn Sql, path: &Path, session_id: &str) -> Result<i64> {
-    let row = require_session(conn, path, session_id)?;
+fn revealed_review(conn: &mut dyn Sql, path: &Path, session_id: &str, coach: &str) -> Result<i64> {
+    let row = require_session(conn, path, session_id, coach)?;
     let not_revealed = || JournalError::NotRevealed {
         path: path.to_path_buf(),
         session_id: session_id.to_string(),

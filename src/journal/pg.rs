@@ -119,7 +119,18 @@ impl PgConn {
             let user = config.get_user().unwrap_or("").to_string();
             let dbname = config.get_dbname().unwrap_or(&user).to_string();
             let env = |k: &str| std::env::var(k).ok();
-            let read = |p: &Path| std::fs::read_to_string(p).ok();
+            // As libpq does, a password file others may read is not used.
+            let read = |p: &Path| {
+                #[cfg(unix)]
+                {
+                    use std::os::unix::fs::PermissionsExt;
+                    let mode = std::fs::metadata(p).ok()?.permissions().mode();
+                    if mode & 0o077 != 0 {
+                        return None;
+                    }
+                }
+                std::fs::read_to_string(p).ok()
+            };
             if let Some(pw) = super::pgpass::password_for(&host, port, &dbname, &user, &env, &read)
             {
                 config.password(pw);

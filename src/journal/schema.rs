@@ -176,6 +176,42 @@ CREATE INDEX session_lists ON session (athlete_id, start_time, session_id, file_
     summary_version, summary_hash, summary_inputs, brief_plan_title, brief_sport,
     brief_running, brief_distance_m);
 "#,
+    // 6: a coaching staff. `coach` lists the staff (a removed coach keeps their records);
+    // `assignment` gives an athlete their coach. Each coach has their own reviews
+    // (`review.coach`; '' is the single coach of a journal without a staff), linked to
+    // sessions per coach through `session_review`, which replaces `session.review_id` (kept,
+    // always NULL from here on). `reviewing` holds the advisory marks "this coach has the
+    // session open", each until a time after which it is ignored.
+    r#"
+CREATE TABLE coach (
+    name        TEXT PRIMARY KEY CHECK (length(name) BETWEEN 1 AND 64),
+    added_at    TEXT NOT NULL,
+    removed_at  TEXT
+);
+CREATE TABLE assignment (
+    athlete_id  TEXT PRIMARY KEY,
+    coach       TEXT NOT NULL REFERENCES coach (name) ON DELETE RESTRICT,
+    at          TEXT NOT NULL
+);
+ALTER TABLE review ADD COLUMN coach TEXT NOT NULL DEFAULT '';
+CREATE INDEX review_by_coach_hash ON review (coach, content_hash);
+CREATE TABLE session_review (
+    session_id  TEXT NOT NULL,
+    coach       TEXT NOT NULL,
+    review_id   INTEGER NOT NULL REFERENCES review (id) ON DELETE RESTRICT,
+    PRIMARY KEY (session_id, coach)
+);
+CREATE INDEX session_review_by_review ON session_review (review_id);
+INSERT INTO session_review (session_id, coach, review_id)
+    SELECT session_id, '', review_id FROM session WHERE review_id IS NOT NULL;
+UPDATE session SET review_id = NULL;
+CREATE TABLE reviewing (
+    session_id  TEXT NOT NULL,
+    coach       TEXT NOT NULL,
+    until       TEXT NOT NULL,
+    PRIMARY KEY (session_id, coach)
+);
+"#,
 ];
 
 /// Fill the `summary_inputs` and `brief_*` columns of session `?1` from its summary JSON (the
@@ -349,6 +385,37 @@ UPDATE session SET
         THEN (j -> 'session' ->> 'distance_m')::double precision END
 FROM (SELECT session_id AS sid, splitdesk_try_jsonb(summary_json) AS j FROM session) AS parsed
 WHERE parsed.sid = session.session_id AND session.summary_json IS NOT NULL;
+"#,
+    // 6: a coaching staff (see step 6 of `MIGRATIONS`)
+    r#"
+CREATE TABLE coach (
+    name        TEXT PRIMARY KEY CHECK (length(name) BETWEEN 1 AND 64),
+    added_at    TEXT NOT NULL,
+    removed_at  TEXT
+);
+CREATE TABLE assignment (
+    athlete_id  TEXT PRIMARY KEY,
+    coach       TEXT NOT NULL REFERENCES coach (name) ON DELETE RESTRICT,
+    at          TEXT NOT NULL
+);
+ALTER TABLE review ADD COLUMN coach TEXT NOT NULL DEFAULT '';
+CREATE INDEX review_by_coach_hash ON review (coach, content_hash);
+CREATE TABLE session_review (
+    session_id  TEXT NOT NULL,
+    coach       TEXT NOT NULL,
+    review_id   BIGINT NOT NULL REFERENCES review (id) ON DELETE RESTRICT,
+    PRIMARY KEY (session_id, coach)
+);
+CREATE INDEX session_review_by_review ON session_review (review_id);
+INSERT INTO session_review (session_id, coach, review_id)
+    SELECT session_id, '', review_id FROM session WHERE review_id IS NOT NULL;
+UPDATE session SET review_id = NULL;
+CREATE TABLE reviewing (
+    session_id  TEXT NOT NULL,
+    coach       TEXT NOT NULL,
+    until       TEXT NOT NULL,
+    PRIMARY KEY (session_id, coach)
+);
 "#,
 ];
 

@@ -230,6 +230,19 @@ pub enum JournalError {
     )]
     LastCoach { path: PathBuf, coach: String },
 
+    /// Another workstation saved a newer version of the feedback than the one this edit
+    /// started from. Nothing was saved; `theirs` is that version.
+    #[error(
+        "{path}: {session_id}: the feedback was changed elsewhere (saved {saved_at}) while \
+         you edited it; nothing was saved: keep yours, take theirs, or see both",
+        saved_at = theirs.saved_at.format("%Y-%m-%d %H:%M UTC")
+    )]
+    FeedbackConflict {
+        path: PathBuf,
+        session_id: String,
+        theirs: Box<crate::journal::FeedbackVersion>,
+    },
+
     /// The PostgreSQL server could not be reached, or refused the connection.
     #[error("{path}: cannot connect to the journal server ({detail})")]
     Connect { path: PathBuf, detail: String },

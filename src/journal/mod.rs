@@ -1561,6 +1561,33 @@ impl Journal {
         })
     }
 
+    /// Save a version of the feedback written over version `based_on` (the latest version
+    /// the writer had read; `None` when they started from no saved version). When another
+    /// workstation saved a newer version meanwhile, nothing is saved and the conflict comes
+    /// back with their version ([`JournalError::FeedbackConflict`]), for the coach to keep
+    /// theirs, take the other or see both; never silently overwritten. Returns the new
+    /// version's id.
+    pub fn save_feedback_over(
+        &mut self,
+        session_id: &str,
+        body: &str,
+        based_on: Option<i64>,
+        now: DateTime<Utc>,
+    ) -> Result<i64> {
+        let coach = self.coach.clone();
+        self.write(|tx, path| {
+            let rid = revealed_review(tx, path, session_id, &coach)?;
+            check_feedback_base(tx, path, session_id, rid, based_on)?;
+            tx.query_one(
+                path,
+                "INSERT INTO feedback_version (review_id, body, saved_at) VALUES (?1, ?2, ?3)
+                 RETURNING id",
+                &[&rid, &body, &ts(now)],
+                |r| r.get(0),
+            )
+        })
+    }
+
     /// The latest saved feedback text.
     pub fn feedback(&self, session_id: &str) -> Result<Option<FeedbackVersion>> {
         Ok(self.feedback_history(session_id)?.pop())
@@ -1570,17 +1597,18 @@ impl Journal {
     pub fn feedback_history(&self, session_id: &str) -> Result<Vec<FeedbackVersion>> {
         let coach = self.coach.clone();
         self.read(|conn, path| {
-            let raw: Vec<(String, String)> = review_rows(
+            let raw: Vec<(i64, String, String)> = review_rows(
                 conn,
                 path,
                 session_id,
                 &coach,
-                "SELECT body, saved_at FROM feedback_version WHERE review_id = ?1 ORDER BY id",
-                |r| Ok((r.get(0)?, r.get(1)?)),
+                "SELECT id, body, saved_at FROM feedback_version WHERE review_id = ?1 ORDER BY id",
+                |r| Ok((r.get(0)?, r.get(1)?, r.get(2)?)),
             )?;
             raw.into_iter()
-                .map(|(body, at)| {
+                .map(|(id, body, at)| {
                     Ok(FeedbackVersion {
+                        id,
                         body,
                         saved_at: parse_ts(path, &at)?,
                     })
@@ -1643,6 +1671,36 @@ impl Journal {
         self.write(|tx, path| {
             let rid = revealed_review(tx, path, session_id, &coach)?;
             if let Some(body) = body {
+                tx.exec(
+                    path,
+                    "INSERT INTO feedback_version (review_id, body, saved_at) VALUES (?1, ?2, ?3)",
+                    &[&rid, &body, &ts(now)],
+                )?;
+            }
+            tx.exec(
+                path,
+                "INSERT INTO feedback_event (review_id, kind, at) VALUES (?1, ?2, ?3)",
+                &[&rid, &kind.as_str(), &ts(now)],
+            )?;
+            Ok(())
+        })
+    }
+
+    /// [`Journal::send_feedback`] with the version check of [`Journal::save_feedback_over`]
+    /// for the text saved with it (when `body` is given).
+    pub fn send_feedback_over(
+        &mut self,
+        session_id: &str,
+        body: Option<&str>,
+        based_on: Option<i64>,
+        kind: FeedbackEventKind,
+        now: DateTime<Utc>,
+    ) -> Result<()> {
+        let coach = self.coach.clone();
+        self.write(|tx, path| {
+            let rid = revealed_review(tx, path, session_id, &coach)?;
+            if let Some(body) = body {
+                check_feedback_base(tx, path, session_id, rid, based_on)?;
                 tx.exec(
                     path,
                     "INSERT INTO feedback_version (review_id, body, saved_at) VALUES (?1, ?2, ?3)",
@@ -1815,10 +1873,18 @@ impl Journal {
     }
 
     /// The review queue: sessions not yet reviewed (stage `New`, `Grading` or `Graded`; a
-    /// session marked seen is out of it), oldest first.
+    /// session marked seen is out of it), oldest first; for a coach of a staff, their own
+    /// athletes first.
     pub fn unreviewed(&self, athlete: Option<&str>) -> Result<Vec<QueueEntry>> {
         let mut all = self.overview(athlete)?;
         all.retain(|e| e.stage.is_unreviewed());
+        // A coach of a staff sees their own athletes' sessions first, then the others'
+        // (covering for a colleague), each oldest first.
+        if !self.coach.is_empty() {
+            let assigned = self.assignments()?;
+            let own = |e: &QueueEntry| assigned.get(&e.athlete) == Some(&self.coach);
+            all.sort_by_key(|e| !own(e));
+        }
         Ok(all)
     }
 
@@ -2672,6 +2738,35 @@ fn feedback_sent(conn: &mut dyn Sql, path: &Path, rid: i64) -> Result<bool> {
         &[&rid],
         |r| r.get(0),
     )
+}
+
+/// Refuse a save over `based_on` when a newer feedback version exists.
+fn check_feedback_base(
+    tx: &mut dyn Sql,
+    path: &Path,
+    session_id: &str,
+    rid: i64,
+    based_on: Option<i64>,
+) -> Result<()> {
+    let latest: Option<(i64, String, String)> = tx.query_opt(
+        path,
+        "SELECT id, body, saved_at FROM feedback_version WHERE review_id = ?1
+         ORDER BY id DESC LIMIT 1",
+        &[&rid],
+        |r| Ok((r.get(0)?, r.get(1)?, r.get(2)?)),
+    )?;
+    match latest {
+        Some((id, body, at)) if Some(id) != based_on => Err(JournalError::FeedbackConflict {
+            path: path.to_path_buf(),
+            session_id: session_id.to_string(),
+            theirs: Box::new(FeedbackVersion {
+                id,
+                body,
+                saved_at: parse_ts(path, &at)?,
+            }),
+        }),
+        _ => Ok(()),
+    }
 }
 
 /// The review id of a revealed session, else `NotRevealed`.

@@ -296,6 +296,9 @@ pub struct Revision {
 /// One saved version of the feedback text.
 #[derive(Debug, Clone, PartialEq, Eq)]
 pub struct FeedbackVersion {
+    /// The version's number in the journal: later versions have larger numbers. A save
+    /// made over a version ([`crate::journal::Journal::save_feedback_over`]) names it.
+    pub id: i64,
     /// The text.
     pub body: String,
     /// When it was saved.

@@ -529,9 +529,11 @@ pub fn notes(ws: &mut Workspace, id: &str, json: bool) -> anyhow::Result<i32> {
         ws.journal.colleague_grades(id)?
     };
     if json {
-        let mut out = serde_json::json!({ "session": id, "note": note });
+        let mut out = serde_json::Map::new();
+        out.insert("session".into(), serde_json::json!(id));
+        out.insert("note".into(), serde_json::json!(note));
         if !ws.journal.coach().is_empty() {
-            out["colleagues"] = colleagues
+            let list: Vec<serde_json::Value> = colleagues
                 .iter()
                 .map(|c| {
                     serde_json::json!({
@@ -544,7 +546,9 @@ pub fn notes(ws: &mut Workspace, id: &str, json: bool) -> anyhow::Result<i32> {
                     })
                 })
                 .collect();
+            out.insert("colleagues".into(), serde_json::Value::Array(list));
         }
+        let out = serde_json::Value::Object(out);
         crate::cli::out::json(&out)?;
     } else {
         match note {

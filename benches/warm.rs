@@ -12,7 +12,6 @@
 //! Run: `cargo bench --bench warm` (or `SPLITDESK_BENCH_COPIES=60 cargo bench --bench warm`).
 
 use std::hint::black_box;
-use std::path::{Path, PathBuf};
 
 use chrono::Utc;
 use criterion::{criterion_group, criterion_main, Criterion};
@@ -20,38 +19,9 @@ use splitdesk::analysis::history::{self, HistoryParams, SessionSummary};
 use splitdesk::analysis::review::{Review, ANALYSIS_VERSION};
 use splitdesk::workspace::Workspace;
 
-fn copy_tree(from: &Path, to: &Path) {
-    std::fs::create_dir_all(to).expect("create bench folder");
-    for entry in std::fs::read_dir(from).expect("read demo folder") {
-        let entry = entry.expect("demo entry");
-        let src = entry.path();
-        let dst = to.join(entry.file_name());
-        if src.is_dir() {
-            copy_tree(&src, &dst);
-        } else if std::fs::hard_link(&src, &dst).is_err() {
-            std::fs::copy(&src, &dst).expect("copy demo file");
-        }
-    }
-}
-
-/// The demo athletes copied `copies` times each under new ids into `root`.
-fn copied_roster(root: &Path, copies: usize) -> PathBuf {
-    let demo = Path::new(env!("CARGO_MANIFEST_DIR")).join("demo-athletes");
-    let roster = root.join("roster");
-    std::fs::create_dir_all(&roster).expect("create roster");
-    std::fs::copy(demo.join("roster.toml"), roster.join("roster.toml")).expect("roster.toml");
-    for entry in std::fs::read_dir(&demo).expect("read demo roster") {
-        let entry = entry.expect("demo entry");
-        if !entry.path().is_dir() {
-            continue;
-        }
-        let name = entry.file_name().to_string_lossy().into_owned();
-        for c in 1..=copies {
-            copy_tree(&entry.path(), &roster.join(format!("{name}-c{c}")));
-        }
-    }
-    roster
-}
+#[path = "bench_roster/mod.rs"]
+mod bench_roster;
+use bench_roster::copied_roster;
 
 fn warm_queue(c: &mut Criterion) {
     let copies = std::env::var("SPLITDESK_BENCH_COPIES")

@@ -144,8 +144,9 @@ fn counts(conn: &mut dyn Sql, path: &Path) -> Result<Vec<(String, u64)>> {
 }
 
 /// SHA-256 over the coaches' records in a fixed order and a fixed text form, the same on
-/// either engine: the staff, every review's coach, blind verdict and reveal, every score,
-/// revision, feedback version and feedback event. (The advisory "reviewing now" marks are
+/// either engine: the staff and its assignments, every review's coach, blind verdict and
+/// reveal, which review each coach's session shows, every score, revision, feedback version
+/// and feedback event. (The advisory "reviewing now" marks are
 /// not copied: they expire within minutes.)
 pub(crate) fn records_hash(conn: &mut dyn Sql, path: &Path) -> Result<String> {
     let mut h = Sha256::new();
@@ -180,6 +181,18 @@ pub(crate) fn records_hash(conn: &mut dyn Sql, path: &Path) -> Result<String> {
         "SELECT id, content_hash, created_at, verdict, verdict_at, revealed_at, work_intervals,
             file_unreadable, coach FROM review ORDER BY id",
         9,
+    )?;
+    feed(
+        conn,
+        "assignment",
+        "SELECT athlete_id, coach, at FROM assignment ORDER BY athlete_id",
+        3,
+    )?;
+    feed(
+        conn,
+        "session_review",
+        "SELECT session_id, coach, review_id FROM session_review ORDER BY session_id, coach",
+        3,
     )?;
     feed(
         conn,

@@ -130,6 +130,17 @@ pub enum JournalError {
         missing: Missing,
     },
 
+    /// A colleague's grades stay hidden until one's own blind grading is complete.
+    #[error(
+        "{path}: {session_id}: colleagues' grades stay hidden until your own blind grading \
+         is complete: {missing}"
+    )]
+    ColleaguesHidden {
+        path: PathBuf,
+        session_id: String,
+        missing: Missing,
+    },
+
     /// Feedback belongs after the reveal.
     #[error("{path}: {session_id}: the notes have not been revealed yet")]
     NotRevealed { path: PathBuf, session_id: String },

@@ -359,12 +359,12 @@ impl Journal {
     }
 
     /// The other coaches' blind grades of a session, once this coach's own blind grading of
-    /// it is complete; refused with [`JournalError::NotYetGraded`] before that, so a coach
-    /// never grades with a colleague's scores in view.
+    /// it is complete; refused with [`JournalError::ColleaguesHidden`] before that, so a
+    /// coach never grades with a colleague's scores in view.
     pub fn colleague_grades(&self, session_id: &str) -> Result<Vec<ColleagueGrades>> {
         let own = self.review_state(session_id)?;
         if !own.missing.is_empty() || own.work_intervals.is_none() {
-            return Err(JournalError::NotYetGraded {
+            return Err(JournalError::ColleaguesHidden {
                 path: self.path.clone(),
                 session_id: session_id.to_string(),
                 missing: own.missing,

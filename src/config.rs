@@ -14,8 +14,13 @@ use serde::Deserialize;
 pub struct Config {
     /// The roster folder to open.
     pub roster: Option<PathBuf>,
-    /// The journal database; by default one per roster in the platform data directory.
-    pub journal: Option<PathBuf>,
+    /// The journal: a file path (`journal = "…"`), or a table `[journal]` with `url` (a
+    /// PostgreSQL server shared by a staff) or `path`. By default one SQLite file per roster
+    /// in the platform data directory.
+    pub journal: Option<JournalSetting>,
+    /// Who the coach is, on a journal shared by a staff (`[coach] name = "…"`).
+    #[serde(default)]
+    pub coach: CoachConfig,
     /// Key overrides for the workstation (action name = key).
     #[serde(default)]
     pub keys: toml::Table,
@@ -26,6 +31,35 @@ pub struct Config {
     /// it is reported by [`Config::feedback_style`] and the rest is used.
     #[serde(default)]
     pub feedback: toml::Table,
+}
+
+/// The journal setting: a bare path, or a `[journal]` table.
+#[derive(Debug, Clone, Deserialize, PartialEq)]
+#[serde(untagged)]
+pub enum JournalSetting {
+    /// `journal = "/path/to/journal.sqlite"` (or a `postgres://` address).
+    Location(PathBuf),
+    /// `[journal]` with `url = "postgres://…"` or `path = "…"`.
+    Table(JournalTable),
+}
+
+/// The `[journal]` table.
+#[derive(Debug, Clone, Default, Deserialize, PartialEq)]
+#[serde(deny_unknown_fields)]
+pub struct JournalTable {
+    /// A PostgreSQL journal: `postgres://user@host:port/database` (the password from
+    /// `PGPASSWORD` or the password file, never here).
+    pub url: Option<String>,
+    /// A SQLite journal file.
+    pub path: Option<PathBuf>,
+}
+
+/// The `[coach]` table.
+#[derive(Debug, Clone, Default, Deserialize, PartialEq)]
+#[serde(deny_unknown_fields)]
+pub struct CoachConfig {
+    /// This coach's name on the journal's staff.
+    pub name: Option<String>,
 }
 
 /// The `[ingest]` table.
@@ -46,6 +80,43 @@ impl Config {
                 .unwrap_or(crate::ingest::DEFAULT_MAX_FILE_MB),
         )
     }
+}
+
+impl Config {
+    /// Where the configuration puts the journal (a file path, or a server address as a
+    /// path), if it says.
+    pub fn journal_location(&self) -> Option<PathBuf> {
+        match &self.journal {
+            Some(JournalSetting::Location(p)) => Some(p.clone()),
+            Some(JournalSetting::Table(t)) => {
+                t.url.as_ref().map(PathBuf::from).or_else(|| t.path.clone())
+            }
+            None => None,
+        }
+    }
+}
+
+/// The journal to use: the `--journal` flag, else `$SPLITDESK_JOURNAL`, else the
+/// configuration; `None` for the per-roster default.
+pub fn resolve_journal(flag: Option<&Path>, config: &Config) -> Option<PathBuf> {
+    flag.map(Path::to_path_buf)
+        .or_else(|| {
+            std::env::var_os("SPLITDESK_JOURNAL")
+                .filter(|v| !v.is_empty())
+                .map(PathBuf::from)
+        })
+        .or_else(|| config.journal_location())
+}
+
+/// The coach to act as: the `--as` flag, else `$SPLITDESK_COACH`, else `[coach] name`.
+pub fn resolve_coach(flag: Option<&str>, config: &Config) -> Option<String> {
+    flag.map(str::to_string)
+        .or_else(|| {
+            std::env::var("SPLITDESK_COACH")
+                .ok()
+                .filter(|v| !v.is_empty())
+        })
+        .or_else(|| config.coach.name.clone())
 }
 
 impl Config {

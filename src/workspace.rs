@@ -370,6 +370,17 @@ impl Workspace {
             Some(id) => Roster::open_athlete(roster_dir, id)?,
             None => Roster::open(roster_dir)?,
         };
+        // A journal on a PostgreSQL server (shared by a staff): no file, no roster check.
+        if let Some(url) = journal
+            .and_then(Path::to_str)
+            .filter(|s| journal::is_server_address(s))
+        {
+            return Ok(Workspace {
+                roster,
+                journal: Journal::open_url(url)?,
+                current: HashSet::new(),
+            });
+        }
         let path = journal_path(&roster.root, journal)?;
         if let Some(parent) = path.parent() {
             if !parent.as_os_str().is_empty() && !parent.exists() {
@@ -395,6 +406,25 @@ impl Workspace {
             journal,
             current: HashSet::new(),
         })
+    }
+
+    /// Read and write the journal as `coach`. Without one, a journal with a staff refuses
+    /// ([`JournalError::NoCoach`]): on it every record belongs to a named coach.
+    pub fn act_as(&mut self, coach: Option<&str>) -> Result<(), WorkspaceError> {
+        match coach {
+            Some(name) => self.journal.set_coach(name)?,
+            None => {
+                let staff = self.journal.staff_size()?;
+                if staff > 0 {
+                    return Err(JournalError::NoCoach {
+                        path: self.journal.path().to_path_buf(),
+                        staff,
+                    }
+                    .into());
+                }
+            }
+        }
+        Ok(())
     }
 
     /// Find an athlete and activity by session id.

@@ -37,6 +37,7 @@ pub mod out;
 pub mod plan_cmd;
 mod review_cmds;
 mod review_text;
+mod staff_cmd;
 mod trends_cmd;
 mod week_cmd;
 
@@ -51,9 +52,16 @@ pub struct Cli {
     /// Roster folder (default: the config file's `roster`, else the bundled demo roster).
     #[arg(long, global = true, value_name = "DIR")]
     pub roster: Option<PathBuf>,
-    /// Journal database (default: one per roster in the platform data directory).
-    #[arg(long, global = true, value_name = "PATH")]
+    /// Journal: a SQLite file, or a PostgreSQL server shared by a staff
+    /// (postgres://user@host/database; the password from PGPASSWORD or the password file).
+    /// Default: $SPLITDESK_JOURNAL, the config file, else one file per roster in the
+    /// platform data directory.
+    #[arg(long, global = true, value_name = "PATH|URL")]
     pub journal: Option<PathBuf>,
+    /// On a journal shared by a staff: the coach you are (default: $SPLITDESK_COACH, else
+    /// `name` under [coach] in the config file).
+    #[arg(long = "as", global = true, value_name = "COACH")]
+    pub as_coach: Option<String>,
     #[command(subcommand)]
     pub command: Option<Command>,
 }
@@ -214,9 +222,22 @@ pub enum Command {
         #[arg(long)]
         json: bool,
     },
-    /// The coach's journal: backup and integrity check.
+    /// The coach's journal: backup, integrity check, copy between SQLite and PostgreSQL.
     #[command(subcommand)]
     Journal(JournalCommand),
+    /// A coaching staff sharing one journal: its coaches and whom each coaches.
+    #[command(subcommand)]
+    Staff(StaffCommand),
+    /// How closely the staff's coaches agree in their blind interval scores: weighted
+    /// kappa (quadratic weights) per pair and overall, and the intervals scored 2+ apart.
+    Agreement {
+        /// Only these coaches (repeat: --coach A --coach B; default: every coach).
+        #[arg(long = "coach", value_name = "NAME")]
+        coaches: Vec<String>,
+        /// Print JSON instead of text.
+        #[arg(long)]
+        json: bool,
+    },
     /// Print shell completions (bash, zsh, fish, elvish, powershell).
     Completions { shell: clap_complete::Shell },
     /// Write the demo roster (an invented club, six invented athletes) into a folder.
@@ -281,14 +302,44 @@ pub enum ExportCommand {
 
 #[derive(Debug, Subcommand)]
 pub enum JournalCommand {
-    /// Copy the journal to FILE with SQLite's online backup (never overwrites).
+    /// Copy the journal to a new SQLite FILE (never overwrites): SQLite's online backup, or
+    /// for a server journal a verified copy.
     Backup { file: PathBuf },
+    /// Copy every record of journal FROM into TO, a new SQLite file or an empty PostgreSQL
+    /// database, and verify it (row counts and a hash of grades, revisions and feedback).
+    Copy {
+        /// The journal to copy: a SQLite file or a postgres:// address.
+        from: PathBuf,
+        /// Where to: a new SQLite file or a postgres:// address of an empty database.
+        to: PathBuf,
+        /// Print JSON instead of text.
+        #[arg(long)]
+        json: bool,
+    },
     /// Run SQLite's integrity checks and count what the journal holds.
     Check {
         /// Print JSON instead of text.
         #[arg(long)]
         json: bool,
     },
+}
+
+#[derive(Debug, Subcommand)]
+pub enum StaffCommand {
+    /// Add a coach to the staff (the first one added takes over the reviews made so far).
+    Add { name: String },
+    /// List the coaches, whom each coaches and how many reviews each began.
+    List {
+        /// Print JSON instead of text.
+        #[arg(long)]
+        json: bool,
+    },
+    /// Take a coach off the staff (their reviews stay; their athletes become unassigned).
+    Remove { name: String },
+    /// Assign an athlete (id, e.g. mara-lindqvist) to a coach of the staff.
+    Assign { athlete: String, coach: String },
+    /// Leave an athlete without an assigned coach.
+    Unassign { athlete: String },
 }
 
 #[derive(Debug, Subcommand)]
@@ -331,7 +382,10 @@ fn wants_json(cmd: Option<&Command>) -> bool {
             | Command::Compare { json, .. }
             | Command::Week { json, .. }
             | Command::Plan(PlanCommand::Check { json, .. })
-            | Command::Journal(JournalCommand::Check { json }),
+            | Command::Journal(JournalCommand::Check { json })
+            | Command::Journal(JournalCommand::Copy { json, .. })
+            | Command::Staff(StaffCommand::List { json })
+            | Command::Agreement { json, .. },
         ) => *json,
         Some(Command::Export(ExportCommand::Feedback { format, .. })) => format == "json",
         _ => false,
@@ -359,6 +413,7 @@ fn run_command(cli: Cli) -> anyhow::Result<i32> {
         None => crate::tui::run(
             &crate::config::resolve_roster(cli.roster.as_deref(), &config),
             cli.journal.as_deref(),
+            crate::config::resolve_coach(cli.as_coach.as_deref(), &config).as_deref(),
             &config,
         ),
         Some(Command::Inspect { files, json }) => inspect::run(&files, json),
@@ -370,7 +425,7 @@ fn run_command(cli: Cli) -> anyhow::Result<i32> {
         Some(Command::Index { dir }) => {
             let root = dir
                 .unwrap_or_else(|| crate::config::resolve_roster(cli.roster.as_deref(), &config));
-            let journal = cli.journal.clone().or_else(|| config.journal.clone());
+            let journal = crate::config::resolve_journal(cli.journal.as_deref(), &config);
             index_cmd::run(&root, journal.as_deref())
         }
         Some(Command::Analyze {
@@ -416,12 +471,13 @@ fn run_command(cli: Cli) -> anyhow::Result<i32> {
         }
         Some(cmd) => {
             let roster = crate::config::resolve_roster(cli.roster.as_deref(), &config);
-            let journal = cli.journal.clone().or_else(|| config.journal.clone());
+            let journal = crate::config::resolve_journal(cli.journal.as_deref(), &config);
+            let coach = crate::config::resolve_coach(cli.as_coach.as_deref(), &config);
             let (style, problems) = config.feedback_style();
             for p in &problems {
                 eprintln!("warning: {p}");
             }
-            run_with_journal(cmd, &roster, journal.as_deref(), &style)
+            run_with_journal(cmd, &roster, journal.as_deref(), coach.as_deref(), &style)
         }
     }
 }
@@ -431,24 +487,51 @@ fn run_with_journal(
     cmd: Command,
     roster: &std::path::Path,
     journal: Option<&std::path::Path>,
+    coach: Option<&str>,
     style: &crate::export::feedback::FeedbackStyle,
 ) -> anyhow::Result<i32> {
     use review_cmds as rc;
+    // Copying names both journals itself.
+    if let Command::Journal(JournalCommand::Copy { from, to, json }) = &cmd {
+        return staff_cmd::copy(from, to, *json);
+    }
     // Checking and backing up the journal take it as it is: no sync first, so they work
-    // whatever the roster or the analysis cache hold.
-    if let Command::Journal(jc) = &cmd {
-        let ws = rc::open_noting_read_only(roster, journal)?;
-        return match jc {
-            JournalCommand::Backup { file } => rc::journal_backup(&ws, file),
-            JournalCommand::Check { json } => rc::journal_check(&ws, *json),
-        };
+    // whatever the roster or the analysis cache hold. The staff list and the agreement
+    // between coaches are about the staff, not one coach: no coach needed.
+    match &cmd {
+        Command::Journal(jc) => {
+            let ws = rc::open_noting_read_only(roster, journal)?;
+            return match jc {
+                JournalCommand::Backup { file } => rc::journal_backup(&ws, file),
+                JournalCommand::Check { json } => rc::journal_check(&ws, *json),
+                JournalCommand::Copy { .. } => Ok(2),
+            };
+        }
+        Command::Staff(sc) => {
+            let mut ws = rc::open_noting_read_only(roster, journal)?;
+            let action = match sc {
+                StaffCommand::Add { name } => staff_cmd::StaffAction::Add(name),
+                StaffCommand::List { json } => staff_cmd::StaffAction::List { json: *json },
+                StaffCommand::Remove { name } => staff_cmd::StaffAction::Remove(name),
+                StaffCommand::Assign { athlete, coach } => {
+                    staff_cmd::StaffAction::Assign { athlete, coach }
+                }
+                StaffCommand::Unassign { athlete } => staff_cmd::StaffAction::Unassign(athlete),
+            };
+            return staff_cmd::staff(&mut ws, action);
+        }
+        Command::Agreement { coaches, json } => {
+            let ws = rc::open_noting_read_only(roster, journal)?;
+            return staff_cmd::agreement(&ws, coaches, *json);
+        }
+        _ => {}
     }
     // `trends` is about one athlete: only its folder is read and its sessions synced.
     let only = match &cmd {
         Command::Trends { athlete, .. } => Some(athlete.as_str()),
         _ => None,
     };
-    let (mut ws, damaged) = rc::open_synced(roster, journal, only)?;
+    let (mut ws, damaged) = rc::open_synced(roster, journal, only, coach)?;
     // Files that cannot be read are named where they matter: in the queue, and to a
     // command about their session or athlete; `check` lists every one.
     let concern = match &cmd {

@@ -69,8 +69,10 @@ pub fn open_synced(
     roster: &Path,
     journal: Option<&Path>,
     only: Option<&str>,
+    coach: Option<&str>,
 ) -> anyhow::Result<(Workspace, Vec<SyncProblem>)> {
     let mut ws = open_only_noting_read_only(roster, journal, only)?;
+    ws.act_as(coach)?;
     let total = ws
         .roster
         .activities()
@@ -519,12 +521,59 @@ pub fn notes(ws: &mut Workspace, id: &str, json: bool) -> anyhow::Result<i32> {
         .ok()
         .and_then(|s| s.note);
     let note = journal::read_note(&permit, act.note_file.as_deref(), embedded.as_deref());
+    // On a staff journal the colleagues' blind grades come with the notes: under the same
+    // rule, once this coach's own blind grading is complete.
+    let colleagues = if ws.journal.coach().is_empty() {
+        Vec::new()
+    } else {
+        ws.journal.colleague_grades(id)?
+    };
     if json {
-        crate::cli::out::json(&serde_json::json!({ "session": id, "note": note }))?;
+        let mut out = serde_json::Map::new();
+        out.insert("session".into(), serde_json::json!(id));
+        out.insert("note".into(), serde_json::json!(note));
+        if !ws.journal.coach().is_empty() {
+            let list: Vec<serde_json::Value> = colleagues
+                .iter()
+                .map(|c| {
+                    serde_json::json!({
+                        "coach": c.coach,
+                        "scores": c.scores.iter()
+                            .map(|(i, s)| serde_json::json!({"interval": i, "score": s}))
+                            .collect::<Vec<_>>(),
+                        "verdict": c.verdict.map(|v| v.as_str()),
+                        "revealed": c.revealed,
+                    })
+                })
+                .collect();
+            out.insert("colleagues".into(), serde_json::Value::Array(list));
+        }
+        let out = serde_json::Value::Object(out);
+        crate::cli::out::json(&out)?;
     } else {
         match note {
             Some(n) => println!("{}", n.trim_end()),
             None => println!("(no note from the athlete)"),
+        }
+        if !colleagues.is_empty() {
+            println!();
+            println!("Colleagues' blind grades (shown now that yours are complete):");
+            for c in &colleagues {
+                let scores: Vec<String> =
+                    c.scores.iter().map(|(i, s)| format!("{i}={s}")).collect();
+                let verdict = c.verdict.map_or("no verdict yet".to_string(), |v| {
+                    format!("verdict {}", v.as_str())
+                });
+                println!(
+                    "  {}: {}; {verdict}",
+                    crate::roster::printable(&c.coach),
+                    if scores.is_empty() {
+                        "no scores yet".to_string()
+                    } else {
+                        scores.join(" ")
+                    }
+                );
+            }
         }
     }
     Ok(0)

@@ -16,6 +16,8 @@ use super::{Journal, JournalError, Result};
 /// The tables in the order their references allow, each with its columns and the column
 /// that orders it.
 const TABLES: &[(&str, &[&str], &str)] = &[
+    ("coach", &["name", "added_at", "removed_at"], "name"),
+    ("assignment", &["athlete_id", "coach", "at"], "athlete_id"),
     (
         "review",
         &[
@@ -27,6 +29,7 @@ const TABLES: &[(&str, &[&str], &str)] = &[
             "revealed_at",
             "work_intervals",
             "file_unreadable",
+            "coach",
         ],
         "id",
     ),
@@ -54,6 +57,11 @@ const TABLES: &[(&str, &[&str], &str)] = &[
             "brief_distance_m",
         ],
         "session_id",
+    ),
+    (
+        "session_review",
+        &["session_id", "coach", "review_id"],
+        "session_id, coach",
     ),
     (
         "score",
@@ -135,9 +143,10 @@ fn counts(conn: &mut dyn Sql, path: &Path) -> Result<Vec<(String, u64)>> {
     Ok(out)
 }
 
-/// SHA-256 over the coach's records in a fixed order and a fixed text form, the same on
-/// either engine: every review's blind grades and reveal, every score, revision, feedback
-/// version and feedback event.
+/// SHA-256 over the coaches' records in a fixed order and a fixed text form, the same on
+/// either engine: the staff, every review's coach, blind verdict and reveal, every score,
+/// revision, feedback version and feedback event. (The advisory "reviewing now" marks are
+/// not copied: they expire within minutes.)
 pub(crate) fn records_hash(conn: &mut dyn Sql, path: &Path) -> Result<String> {
     let mut h = Sha256::new();
     let mut feed = |conn: &mut dyn Sql, label: &str, sql: &str, cols: usize| -> Result<()> {
@@ -161,10 +170,16 @@ pub(crate) fn records_hash(conn: &mut dyn Sql, path: &Path) -> Result<String> {
     };
     feed(
         conn,
+        "coach",
+        "SELECT name, added_at, removed_at FROM coach ORDER BY name",
+        3,
+    )?;
+    feed(
+        conn,
         "review",
         "SELECT id, content_hash, created_at, verdict, verdict_at, revealed_at, work_intervals,
-            file_unreadable FROM review ORDER BY id",
-        8,
+            file_unreadable, coach FROM review ORDER BY id",
+        9,
     )?;
     feed(
         conn,

@@ -196,7 +196,7 @@ pub enum JournalError {
     /// A journal with a staff needs to know which coach is writing.
     #[error(
         "{path}: this journal is shared by a staff of {staff} coaches; say which one you are \
-         with `name` under [coach] in the config file, or --coach NAME (nothing was saved)"
+         with `name` under [coach] in the config file, or --as NAME"
     )]
     NoCoach { path: PathBuf, staff: u64 },
 

@@ -73,16 +73,20 @@ pub fn default_feedback_dir() -> Option<PathBuf> {
 }
 
 /// Open the workstation on a roster. Returns the process exit code (2 without a terminal).
-pub fn run(roster_dir: &Path, journal: Option<&Path>, config: &Config) -> anyhow::Result<i32> {
+pub fn run(
+    roster_dir: &Path,
+    journal: Option<&Path>,
+    coach: Option<&str>,
+    config: &Config,
+) -> anyhow::Result<i32> {
     if !io::stdin().is_terminal() || !io::stdout().is_terminal() {
         eprintln!("{NOT_A_TERMINAL}");
         return Ok(2);
     }
     let keymap = KeyMap::with_overrides(&config.keys)?;
-    let journal = journal
-        .map(Path::to_path_buf)
-        .or_else(|| config.journal.clone());
-    let ws = Workspace::open(roster_dir, journal.as_deref())?;
+    let journal = crate::config::resolve_journal(journal, config);
+    let mut ws = Workspace::open(roster_dir, journal.as_deref())?;
+    ws.act_as(coach)?;
     let options = Options {
         keymap,
         theme: Theme::from_env(),

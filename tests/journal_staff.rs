@@ -232,8 +232,7 @@ fn who_may_write() {
             err.to_string(),
             format!(
                 "{}: this journal is shared by a staff of 2 coaches; say which one you are \
-                 with `name` under [coach] in the config file, or --coach NAME (nothing was \
-                 saved)",
+                 with `name` under [coach] in the config file, or --as NAME",
                 j.path().display()
             )
         );

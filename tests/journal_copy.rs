@@ -477,3 +477,40 @@ fn a_journal_from_a_newer_splitdesk_is_refused_untouched() {
         assert_eq!(sessions, 1);
     });
 }
+
+#[test]
+fn a_marker_table_of_another_program_is_refused_untouched() {
+    engines::postgres_only("foreign_marker", || {
+        let place = engines::place();
+        let url = place.url().unwrap();
+        let mut client = engines::pg_support::connect(url).unwrap();
+        client.batch_execute(schema::PG_META).unwrap();
+        client
+            .execute(
+                "INSERT INTO splitdesk_journal (application_id, schema_version) VALUES (7, 1)",
+                &[],
+            )
+            .unwrap();
+        let err = Journal::open_url(url).unwrap_err();
+        assert!(
+            matches!(&err, JournalError::NotAJournal { reason, .. }
+                if reason == "another program's marker (application id 0x7)"),
+            "{err:?}"
+        );
+        let tables: i64 = client
+            .query_one(
+                "SELECT count(*) FROM pg_catalog.pg_tables WHERE schemaname = current_schema()",
+                &[],
+            )
+            .unwrap()
+            .get(0);
+        assert_eq!(tables, 1, "no journal table was made");
+        let row = client
+            .query_one(
+                "SELECT application_id, schema_version FROM splitdesk_journal",
+                &[],
+            )
+            .unwrap();
+        assert_eq!((row.get::<_, i64>(0), row.get::<_, i64>(1)), (7, 1));
+    });
+}

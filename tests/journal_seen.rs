@@ -287,3 +287,67 @@ fn a_version_2_journal_is_upgraded_keeping_its_grades() {
     assert_eq!(j.review_state(REPS).unwrap().stage, ReviewStage::Seen);
     assert!(queue_ids(&j).is_empty());
 }
+
+/// The same upgrade on PostgreSQL: a server journal of schema version 2 (steps 1 and 2 of
+/// `PG_MIGRATIONS`, written with the server's client) with a graded session in it.
+#[test]
+fn a_version_2_server_journal_is_upgraded_keeping_its_grades() {
+    engines::postgres_only("pg_version_2_upgrade", || {
+        let place = engines::place();
+        let url = place.url().unwrap();
+        let mut client = engines::pg_support::connect(url).unwrap();
+        client.batch_execute(schema::PG_META).unwrap();
+        client
+            .execute(
+                "INSERT INTO splitdesk_journal (application_id, schema_version) VALUES ($1, 2)",
+                &[&i64::from(schema::APPLICATION_ID)],
+            )
+            .unwrap();
+        for step in &schema::PG_MIGRATIONS[..2] {
+            client.batch_execute(step).unwrap();
+        }
+        client
+            .batch_execute(
+                // No explicit id: the identity column gives 1, as splitdesk's writes did.
+                "INSERT INTO review (content_hash, created_at, verdict, verdict_at)
+                     VALUES ('h-reps', '2026-03-02T06:01:00.000Z', 'met',
+                         '2026-03-02T06:01:00.000Z');
+                 INSERT INTO session (session_id, athlete_id, file_path, content_hash,
+                     start_time, seen_at, review_id, summary_json, summary_version,
+                     summary_hash, work_intervals)
+                     VALUES ('ines/reps', 'ines', '/roster/ines/activities/reps.fit', 'h-reps',
+                         '2026-03-02T06:00:00.000Z', '2026-03-02T06:00:00.000Z', 1, '{}', 1,
+                         'h-reps', 2);
+                 INSERT INTO score (review_id, interval_no, score, given_at)
+                     VALUES (1, 1, 4, '2026-03-02T06:01:00.000Z');",
+            )
+            .unwrap();
+        let mut j = place.open();
+        let report = j.check().unwrap();
+        assert!(report.is_ok(), "{:?}", report.problems);
+        assert_eq!(report.schema_version, schema::current_version());
+        let version: i64 = client
+            .query_one("SELECT schema_version FROM splitdesk_journal", &[])
+            .unwrap()
+            .get(0);
+        assert_eq!(version, i64::from(schema::current_version()));
+        let st = j.review_state(REPS).unwrap();
+        assert_eq!(st.stage, ReviewStage::Grading);
+        assert_eq!(st.scores.len(), 1);
+        assert_eq!(st.scores[0].blind, 4);
+        assert_eq!(
+            st.verdict.as_ref().map(|v| v.blind),
+            Some(PurposeVerdict::Met)
+        );
+        assert_eq!(st.seen_at, None);
+        assert_eq!(st.file_unreadable, None);
+        assert_eq!(st.unreadable_seen, None);
+        // The new parts work on the upgraded journal; a new review gets a fresh id.
+        assert!(j.mark_seen(REPS, t(5)).unwrap());
+        assert_eq!(j.review_state(REPS).unwrap().stage, ReviewStage::Seen);
+        assert!(queue_ids(&j).is_empty());
+        j.upsert_session(&record(EASY, 20, 0), t(6)).unwrap();
+        j.set_verdict(EASY, PurposeVerdict::Partly, t(6)).unwrap();
+        assert_eq!(j.check().unwrap().reviews, 2);
+    });
+}

@@ -765,3 +765,62 @@ fn reviewing_marks_show_to_the_others_and_expire() {
         assert!(a.reviewing_by_others(t(5)).unwrap().is_empty());
     });
 }
+
+/// Each coach's review follows the file's content: a renamed file keeps every coach's
+/// review; a changed file flags each; one coach restarting leaves the other's review alone.
+#[test]
+fn each_coachs_review_follows_the_content() {
+    engines::both("staff_reviews_follow_content", || {
+        let mut j = engines::journal();
+        j.upsert_session(&record(REPS, 0, 3), t(0)).unwrap();
+        j.staff_add("Arne", t(0)).unwrap();
+        j.staff_add("Beth", t(0)).unwrap();
+        j.set_coach("Arne").unwrap();
+        grade_reps(&mut j, [4, 3, 5], PurposeVerdict::Met, t(1));
+        j.set_coach("Beth").unwrap();
+        j.set_score(REPS, 1, 2, t(2)).unwrap();
+
+        // Renamed: same bytes under a new id.
+        let mut renamed = record("ines/reps-tuesday", 0, 3);
+        renamed.content_hash = format!("hash-of-{REPS}");
+        renamed.summary = None;
+        assert_eq!(
+            j.upsert_session(&renamed, t(3)).unwrap(),
+            splitdesk::journal::SessionChange::FoundReview
+        );
+        j.retain_sessions(&["ines/reps-tuesday"]).unwrap();
+        let id = "ines/reps-tuesday";
+        let beth: Vec<u8> = j
+            .review_state(id)
+            .unwrap()
+            .scores
+            .iter()
+            .map(|c| c.blind)
+            .collect();
+        assert_eq!(beth, [2]);
+        j.set_coach("Arne").unwrap();
+        let st = j.review_state(id).unwrap();
+        assert_eq!(st.stage, ReviewStage::Graded);
+        let arne: Vec<u8> = st.scores.iter().map(|c| c.blind).collect();
+        assert_eq!(arne, [4, 3, 5]);
+
+        // The content changes: both reviews are flagged and kept.
+        let mut changed = record(id, 0, 4);
+        changed.content_hash = "hash-new".into();
+        assert_eq!(
+            j.upsert_session(&changed, t(4)).unwrap(),
+            splitdesk::journal::SessionChange::ContentChanged
+        );
+        assert!(j.review_state(id).unwrap().content_changed);
+        assert!(j.restart_review(id).unwrap());
+        let st = j.review_state(id).unwrap();
+        assert_eq!(st.stage, ReviewStage::New);
+        assert!(!st.content_changed);
+        assert_eq!(st.missing.scores, [1, 2, 3, 4]);
+        j.set_coach("Beth").unwrap();
+        let st = j.review_state(id).unwrap();
+        assert!(st.content_changed, "Beth's review is hers to restart");
+        assert_eq!(st.scores.len(), 1);
+        assert_eq!(j.check().unwrap().reviews, 2);
+    });
+}

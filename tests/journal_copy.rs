@@ -154,7 +154,8 @@ fn answers(j: &mut Journal) -> Vec<String> {
                 "{coach} {id} colleagues {:?}",
                 j.colleague_grades(id).map_err(|e| match e {
                     // The message names the journal's path, which differs between copies.
-                    JournalError::NotYetGraded { missing, .. } => format!("not yet {missing:?}"),
+                    JournalError::ColleaguesHidden { missing, .. } =>
+                        format!("not yet {missing:?}"),
                     other => format!("{other:?}"),
                 })
             ));

@@ -406,7 +406,7 @@ fn blind_per_coach() {
             other => panic!("{other:?}"),
         }
         match b.colleague_grades(REPS).unwrap_err() {
-            JournalError::NotYetGraded { missing, .. } => {
+            JournalError::ColleaguesHidden { missing, .. } => {
                 assert_eq!(missing.scores, vec![1, 2, 3]);
                 assert!(missing.verdict);
             }
@@ -426,7 +426,7 @@ fn blind_per_coach() {
         // Part of her grading: still nothing of Arne's, still no reveal.
         b.grade(REPS, &[(1, 3), (2, 3)], None, t(8)).unwrap();
         match b.colleague_grades(REPS).unwrap_err() {
-            JournalError::NotYetGraded { missing, .. } => {
+            JournalError::ColleaguesHidden { missing, .. } => {
                 assert_eq!(
                     missing,
                     Missing {

@@ -35,4 +35,3 @@ pub fn copied_roster(root: &Path, copies: usize) -> PathBuf {
     }
     roster
 }
-

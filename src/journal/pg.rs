@@ -343,6 +343,11 @@ impl PgConn {
     /// How many changes other connections have announced so far (see [`CHANNEL`]).
     pub(crate) fn data_version(&mut self, path: &Path) -> Result<i64> {
         use postgres::fallible_iterator::FallibleIterator;
+        // The client reads the socket only while it runs a statement: one empty round trip
+        // brings in the notifications the server has sent meanwhile.
+        self.client
+            .batch_execute("")
+            .map_err(|e| JournalError::pg(path, e))?;
         let mut fresh = 0;
         let mut notes = self.client.notifications();
         let mut it = notes.iter();

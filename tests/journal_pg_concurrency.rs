@@ -564,3 +564,117 @@ fn a_write_lock_held_too_long_is_reported_as_busy() {
     );
     assert_eq!(j.rulers(sid).unwrap().len(), 2);
 }
+
+/// Poll `j.data_version()` every 50 ms until it differs from `from`; how long that took.
+/// Fails after one second. With `nudge`, `j` also reads the journal before each look (as a
+/// busy workstation would), which makes the client library take in what the server sent.
+fn seen_within_a_second(j: &Journal, from: i64, what: &str, nudge: bool) -> Duration {
+    let began = Instant::now();
+    loop {
+        if nudge {
+            j.staff_size().unwrap();
+        }
+        if j.data_version().unwrap() != from {
+            return began.elapsed();
+        }
+        assert!(
+            began.elapsed() < Duration::from_secs(1),
+            "{what}: not seen by the other connection within a second"
+        );
+        std::thread::sleep(Duration::from_millis(50));
+    }
+}
+
+/// Two handles (two connections) on one journal: each change made through one is seen by
+/// the other within a second, as exactly one change, and never by the handle that made it;
+/// a refused write announces nothing.
+fn changes_seen_elsewhere(tag: &str, nudge: bool) {
+    let Some(db) = Db::fresh(tag) else {
+        return;
+    };
+    let sid = "ines/tue-intervals";
+    let mut a = db.open();
+    let mut b = db.open();
+    let (a0, b0) = (a.data_version().unwrap(), b.data_version().unwrap());
+    let mut slowest = Duration::ZERO;
+    let mut seen = |j: &Journal, from: i64, what: &str| {
+        slowest = slowest.max(seen_within_a_second(j, from, what, nudge));
+    };
+
+    // Writes through `a` are seen by `b`, one change each, never by `a` itself.
+    a.upsert_session(&session(sid, 1, INTERVALS), t(0)).unwrap();
+    seen(&b, b0, "a new session");
+    assert_eq!(b.data_version().unwrap(), b0 + 1);
+    let (score, verdict) = action(0);
+    a.grade(sid, &all(score), Some(verdict), when(0)).unwrap();
+    seen(&b, b0 + 1, "a grading action");
+    assert_eq!(
+        b.data_version().unwrap(),
+        b0 + 2,
+        "one grading action, one change"
+    );
+    for k in 0..3 {
+        a.add_ruler(sid, f64::from(k), f64::from(k) + 1.0, t(5))
+            .unwrap();
+        seen(&b, b0 + 2 + i64::from(k), "a ruler");
+    }
+    assert_eq!(b.data_version().unwrap(), b0 + 5);
+    assert_eq!(
+        a.data_version().unwrap(),
+        a0,
+        "a's own writes changed a's data version"
+    );
+    // What `b` reads after the change is the change.
+    assert_eq!(b.rulers(sid).unwrap().len(), 3);
+    assert_eq!(verify_blind(&b, sid), 0);
+
+    // A refused write changes nothing and announces nothing: after it and one real write,
+    // `b` has seen exactly one change.
+    let err = a.save_feedback(sid, "before the reveal", t(6)).unwrap_err();
+    assert!(!matches!(err, JournalError::Busy { .. }), "{err:?}");
+    a.reveal(sid, t(7)).unwrap();
+    seen(&b, b0 + 5, "the reveal");
+    assert_eq!(
+        b.data_version().unwrap(),
+        b0 + 6,
+        "a refused write was announced"
+    );
+
+    // And the other way round.
+    b.save_feedback(sid, "steady work", t(8)).unwrap();
+    seen(&a, a0, "feedback saved by b");
+    assert_eq!(a.data_version().unwrap(), a0 + 1);
+    assert_eq!(
+        b.data_version().unwrap(),
+        b0 + 6,
+        "b's own write changed b's data version"
+    );
+    assert_eq!(a.feedback(sid).unwrap().unwrap().body, "steady work");
+    eprintln!(
+        "pg notifications ({}): 7 changes seen by the other connection, slowest after {} ms \
+         (polled every 50 ms)",
+        if nudge {
+            "observer also reading"
+        } else {
+            "observer only polling"
+        },
+        slowest.as_millis()
+    );
+}
+
+/// The issue's check as stated: the observer does nothing but poll `data_version()`.
+#[test]
+#[ignore = "journal bug: on PostgreSQL data_version() never takes in notifications on an \
+            otherwise idle connection (the client's non-blocking notifications().iter() does \
+            not read the socket); run with --ignored once fixed"]
+fn a_change_made_elsewhere_is_seen_within_a_second() {
+    changes_seen_elsewhere("pgcon_notify", false);
+}
+
+/// The same with an observer that also reads the journal between looks (a workstation
+/// redrawing its screen): the counting itself (one per write, none for one's own, none for
+/// a refused write) and the delay.
+#[test]
+fn a_change_made_elsewhere_is_seen_by_a_reading_workstation() {
+    changes_seen_elsewhere("pgcon_notify_read", true);
+}

@@ -664,9 +664,6 @@ fn changes_seen_elsewhere(tag: &str, nudge: bool) {
 
 /// The issue's check as stated: the observer does nothing but poll `data_version()`.
 #[test]
-#[ignore = "journal bug: on PostgreSQL data_version() never takes in notifications on an \
-            otherwise idle connection (the client's non-blocking notifications().iter() does \
-            not read the socket); run with --ignored once fixed"]
 fn a_change_made_elsewhere_is_seen_within_a_second() {
     changes_seen_elsewhere("pgcon_notify", false);
 }

@@ -440,7 +440,7 @@ fn blind_per_coach() {
         b.set_score(REPS, 3, 4, t(9)).unwrap();
         assert!(matches!(
             b.colleague_grades(REPS),
-            Err(JournalError::NotYetGraded { .. })
+            Err(JournalError::ColleaguesHidden { .. })
         ));
         assert!(matches!(
             b.reveal(REPS, t(9)),

@@ -387,7 +387,7 @@ fn the_conflict_prompt_and_its_keys_fit_at_both_sizes_and_are_in_the_help() {
             "Theirs begins: Theirs.",
             "k  keep mine (save my text over theirs)",
             "t  take theirs (my text is dropped)",
-            "b  show both in the editor (merge by hand)",
+            "b  show both (in the editor, to merge by hand)",
             "Esc  back to editing (nothing saved)",
         ] {
             assert!(s.contains(want), "{w}x{h}: {want:?} missing\n{s}");

@@ -125,7 +125,7 @@ pub const CONFLICT_TITLE: &str = "Feedback changed elsewhere";
 pub const CONFLICT_KEYS: [(&str, &str); 4] = [
     ("k", "keep mine (save my text over theirs)"),
     ("t", "take theirs (my text is dropped)"),
-    ("b", "show both in the editor (merge by hand)"),
+    ("b", "show both (in the editor, to merge by hand)"),
     ("Esc", "back to editing (nothing saved)"),
 ];
 

@@ -86,7 +86,11 @@ fn a_colleague_sees_the_session_marked_while_it_is_open_renewed_and_gone_after_q
     ana.poll_journal_at(t0);
     assert!(ana.reviewing.is_empty(), "{:?}", ana.reviewing);
 
-    // Shown in Ben's roster: the mark and the name, at both sizes.
+    // Shown in Ben's roster: the mark and the name, at both sizes; the legend says what
+    // the mark means, and who it is with the cursor on the session.
+    let before = screen(&mut ben, 80, 24);
+    assert!(before.contains("◆ 03-04 5 x 3 min · Ana"), "{before}");
+    assert!(before.contains("◆ another coach reviewing now"), "{before}");
     cursor_to_intervals(&mut ben);
     let wide = screen(&mut ben, 160, 48);
     assert!(wide.contains(REVIEWING_MARK), "{wide}");
@@ -382,9 +386,9 @@ fn the_conflict_prompt_and_its_keys_fit_at_both_sizes_and_are_in_the_help() {
         let s = screen(&mut app, w, h);
         for want in [
             CONFLICT_TITLE,
-            "The feedback was saved elsewhere (",
+            "The feedback was saved elsewhere while you edited it.",
             "Nothing was saved; your text is still in the editor.",
-            "Theirs begins: Theirs.",
+            " UTC) begins: Theirs.",
             "k  keep mine (save my text over theirs)",
             "t  take theirs (my text is dropped)",
             "b  show both (in the editor, to merge by hand)",

@@ -652,17 +652,21 @@ pub fn conflict_lines(c: &crate::tui::app::FeedbackConflict) -> Vec<(String, boo
         .unwrap_or("(empty)");
     let mut out = vec![
         (
-            format!(
-                "The feedback was saved elsewhere ({}) while you edited it.",
-                c.theirs.saved_at.format("%Y-%m-%d %H:%M UTC")
-            ),
+            "The feedback was saved elsewhere while you edited it.".to_string(),
             false,
         ),
         (
             "Nothing was saved; your text is still in the editor.".to_string(),
             false,
         ),
-        (format!("Theirs begins: {}", printable(first)), false),
+        (
+            format!(
+                "Theirs ({}) begins: {}",
+                c.theirs.saved_at.format("%Y-%m-%d %H:%M UTC"),
+                printable(first)
+            ),
+            false,
+        ),
         (String::new(), false),
     ];
     for (k, what) in crate::tui::app::CONFLICT_KEYS {

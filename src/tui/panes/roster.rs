@@ -213,7 +213,7 @@ fn reviewing_legend(app: &App, rows: &[RosterRow], w: usize) -> Vec<Line<'static
         .and_then(|id| app.reviewing.get(id))
     {
         Some(names) => format!("{REVIEWING_MARK} {} reviewing this now", coach_names(names)),
-        None => format!("{REVIEWING_MARK} another coach is reviewing it now"),
+        None => format!("{REVIEWING_MARK} another coach reviewing now"),
     };
     vec![Line::styled(shorten_words(&text, w), app.theme.warn)]
 }

@@ -415,3 +415,32 @@ fn the_conflict_prompt_and_its_keys_fit_at_both_sizes_and_are_in_the_help() {
         );
     }
 }
+
+#[test]
+fn opening_a_session_a_colleague_has_open_says_so() {
+    let dir = tempfile::tempdir().unwrap();
+    let path = staff_roster(dir.path());
+    let mut ana = app_as(dir.path(), &path, "Ana");
+    let mut ben = app_as(dir.path(), &path, "Ben");
+    open_intervals(&mut ana);
+    ben.poll_journal();
+    open_intervals(&mut ben);
+    assert_eq!(message(&ben), "Ana is reviewing this session now too");
+    // And Ana sees Ben on hers.
+    assert!(ana.poll_journal());
+    assert_eq!(ana.reviewing.get(INTERVALS), Some(&vec!["Ben".to_string()]));
+}
+
+#[test]
+fn the_day_export_waits_for_a_conflict_to_be_settled() {
+    let dir = tempfile::tempdir().unwrap();
+    let (mut app, _other, theirs) = conflict_setup(dir.path());
+    key(&mut app, KeyCode::Esc);
+    let day_key = app.keymap.first(splitdesk::tui::action::Action::ExportDay);
+    let c = day_key.chars().next().unwrap();
+    assert_eq!(day_key.chars().count(), 1, "{day_key}");
+    let fx = ch(&mut app, c);
+    assert!(fx.is_empty(), "{fx:?}");
+    assert!(matches!(app.modal, Some(Modal::Conflict(_))));
+    assert_eq!(app.journal.feedback(INTERVALS).unwrap().unwrap().id, theirs);
+}

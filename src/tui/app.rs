@@ -1755,6 +1755,16 @@ impl App {
         self.message = None;
         self.say_unreadable();
         self.keep_reviewing(now());
+        if let Some(names) = self.reviewing.get(session_id) {
+            if self.message.is_none() {
+                let names: Vec<String> =
+                    names.iter().map(|n| crate::roster::printable(n)).collect();
+                self.say(
+                    Tone::Info,
+                    format!("{} is reviewing this session now too", names.join(", ")),
+                );
+            }
+        }
         // Read ahead when `]` led here (or to the one before): drawn from memory now, when
         // the file is as it was read.
         let ready = match self.prefetch.take() {
@@ -2873,6 +2883,10 @@ impl App {
         // What is typed in the editor is saved first: it is the coach's text for its session.
         if self.unsaved() {
             self.save_feedback();
+            if matches!(self.modal, Some(Modal::Conflict(_))) {
+                // Saved elsewhere meanwhile: settled first, then the day goes out.
+                return Vec::new();
+            }
         }
         let Some(id) = self
             .open

@@ -444,3 +444,18 @@ fn the_day_export_waits_for_a_conflict_to_be_settled() {
     assert!(matches!(app.modal, Some(Modal::Conflict(_))));
     assert_eq!(app.journal.feedback(INTERVALS).unwrap().unwrap().id, theirs);
 }
+
+#[test]
+fn roster_with_a_colleague_reviewing_snapshots() {
+    let dir = tempfile::tempdir().unwrap();
+    let path = staff_roster(dir.path());
+    let mut ana = app_as(dir.path(), &path, "Ana");
+    let mut ben = app_as(dir.path(), &path, "Ben");
+    open_intervals(&mut ana);
+    ben.poll_journal();
+    cursor_to_intervals(&mut ben);
+    for (w, h) in [(160, 48), (80, 24)] {
+        let text = screen(&mut ben, w, h);
+        insta::assert_snapshot!(format!("staff_reviewing_{w}x{h}"), text);
+    }
+}

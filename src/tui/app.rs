@@ -16,8 +16,8 @@ use crossterm::event::{Event, KeyCode, KeyEvent, KeyEventKind, KeyModifiers};
 use crate::analysis::history::SessionSummary;
 use crate::analysis::review::{Review, ANALYSIS_VERSION};
 use crate::journal::{
-    read_note, FeedbackEventKind, FileStat, Journal, JournalError, PurposeVerdict, QueueEntry,
-    ReviewStage, ReviewState, Revision, Ruler,
+    read_note, FeedbackEventKind, FeedbackVersion, FileStat, Journal, JournalError, PurposeVerdict,
+    QueueEntry, ReviewStage, ReviewState, Revision, Ruler,
 };
 use crate::model::units::format_distance;
 use crate::roster::{Athlete, Roster};
@@ -100,7 +100,47 @@ pub enum Modal {
         /// Text.
         text: String,
     },
+    /// The feedback was saved elsewhere while it was edited here: keep mine, take theirs or
+    /// show both (see [`CONFLICT_KEYS`]); nothing was saved.
+    Conflict(FeedbackConflict),
 }
+
+/// A save of the feedback refused because another workstation saved a newer version
+/// meanwhile (the journal's version check): what the coach is asked to settle.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct FeedbackConflict {
+    /// The session.
+    pub session_id: String,
+    /// The version saved elsewhere.
+    pub theirs: FeedbackVersion,
+    /// The feedback was on its way out (copy or file) when the conflict came: after "keep
+    /// mine" it goes on its way.
+    pub then: Option<FeedbackEventKind>,
+}
+
+/// Title of the feedback conflict prompt.
+pub const CONFLICT_TITLE: &str = "Feedback changed elsewhere";
+
+/// The feedback conflict prompt's keys and what they do, in the order shown.
+pub const CONFLICT_KEYS: [(&str, &str); 4] = [
+    ("k", "keep mine (save my text over theirs)"),
+    ("t", "take theirs (my text is dropped)"),
+    ("b", "show both (in the editor, to merge by hand)"),
+    ("Esc", "back to editing (nothing saved)"),
+];
+
+/// The marker lines "show both" puts around the two texts in the editor.
+pub const BOTH_MINE: &str = "=== My text (not saved) ===";
+/// Heading of the other text (followed by when it was saved).
+pub const BOTH_THEIRS: &str = "=== Text saved elsewhere";
+/// The last marker line.
+pub const BOTH_END: &str =
+    "=== End of both: keep what you want, delete the marker lines, then save ===";
+
+/// How often the "reviewing now" mark of the open session is renewed, and other coaches'
+/// marks re-read when nothing else changed (their marks expire after
+/// [`crate::journal::REVIEWING_FOR`]).
+pub const REVIEWING_RENEW: chrono::Duration = chrono::Duration::seconds(60);
 
 /// An action that leaves the open session, held while the coach answers whether to keep an
 /// unsaved feedback edit (see [`App::pending_leave`]).
@@ -290,6 +330,9 @@ pub struct OpenSession {
     pub note: Option<Option<String>>,
     /// The feedback text (after the reveal).
     pub feedback: Option<TextEditor>,
+    /// The journal's feedback version the editor's text started from (`None`: no saved
+    /// version); a save names it, so a newer save elsewhere is a conflict, not overwritten.
+    pub feedback_base: Option<i64>,
     /// The load-spike caution when this session's day took the athlete's acute/chronic
     /// ratio to the caution band (from the athlete's cached reviews; shown with the
     /// findings, kept out of the review and so out of the feedback draft).
@@ -404,6 +447,13 @@ pub struct App {
     /// The session after the open one in the queue, read ahead (at most one is kept):
     /// `(id asked for, the analysed session once it came back)`.
     prefetch: Option<(String, Option<Box<Analysed>>)>,
+    /// Sessions other coaches are reviewing now: session id to their names (as stored;
+    /// drawn through `printable`).
+    pub reviewing: BTreeMap<String, Vec<String>>,
+    /// The session this workstation last marked as reviewed here, and when.
+    marked: Option<(String, DateTime<Utc>)>,
+    /// When the other coaches' marks were last read.
+    reviewing_read: Option<DateTime<Utc>>,
 }
 
 /// The day's messages between the key press and the clipboard.
@@ -477,6 +527,9 @@ impl App {
             pending_leave: None,
             seen_count: 0,
             prefetch: None,
+            reviewing: BTreeMap::new(),
+            marked: None,
+            reviewing_read: None,
         };
         app.problems = app
             .roster
@@ -486,7 +539,66 @@ impl App {
             .collect();
         app.refresh_lists();
         app.journal_version = app.journal.data_version().ok();
+        app.read_reviewing(now());
         app
+    }
+
+    // ----- "reviewing now" marks -----
+
+    /// Re-read which sessions other coaches are reviewing now; `true` when it changed.
+    fn read_reviewing(&mut self, at: DateTime<Utc>) -> bool {
+        self.reviewing_read = Some(at);
+        // Advisory: a journal that cannot say shows no marks.
+        let now_reviewing = self.journal.reviewing_by_others(at).unwrap_or_default();
+        let changed = now_reviewing != self.reviewing;
+        self.reviewing = now_reviewing;
+        changed
+    }
+
+    /// Mark the open session as reviewed here (when it is not marked yet, or the mark is
+    /// due for renewal), and re-read the other coaches' marks when due. Never fatal: a
+    /// mark that cannot be written is said on the status line (when it is free) and tried
+    /// again at the next renewal. `true` when the other coaches' marks changed.
+    pub fn keep_reviewing(&mut self, at: DateTime<Utc>) -> bool {
+        if let Some(id) = self.open.as_ref().map(|o| o.session_id.clone()) {
+            let due = match &self.marked {
+                Some((marked, when)) => *marked != id || at - *when >= REVIEWING_RENEW,
+                None => true,
+            };
+            if due {
+                self.marked = Some((id.clone(), at));
+                if let Err(e) = self.journal.mark_reviewing(&id, at) {
+                    if self.message.is_none() {
+                        self.say(
+                            Tone::Info,
+                            format!(
+                                "other coaches cannot see that you have this session open ({})",
+                                short_error(&e)
+                            ),
+                        );
+                    }
+                }
+            }
+        }
+        let read_due = self
+            .reviewing_read
+            .is_none_or(|when| at - when >= REVIEWING_RENEW);
+        read_due && self.read_reviewing(at)
+    }
+
+    /// The workstation is closing: drop this coach's "reviewing now" mark (it would expire
+    /// by itself; a failure changes nothing).
+    pub fn stop_reviewing(&mut self) {
+        if self.marked.take().is_some() {
+            let _ = self.journal.clear_reviewing();
+        }
+    }
+
+    /// The coach this workstation reads and writes as, printable (`None` for the single
+    /// coach of a journal without a staff).
+    pub fn coach_name(&self) -> Option<String> {
+        let c = self.journal.coach();
+        (!c.is_empty()).then(|| crate::roster::printable(c))
     }
 
     /// Whether another process (a `grade` command, a second workstation) or a worker wrote
@@ -494,12 +606,21 @@ impl App {
     /// are re-read. The event loop calls this when it is idle. `true` when something was
     /// re-read (the screen needs a redraw).
     pub fn poll_journal(&mut self) -> bool {
+        self.poll_journal_at(now())
+    }
+
+    /// [`App::poll_journal`] at a given time: also renews the open session's "reviewing
+    /// now" mark and re-reads the other coaches' marks when due (see
+    /// [`App::keep_reviewing`]).
+    pub fn poll_journal_at(&mut self, at: DateTime<Utc>) -> bool {
+        let marks = self.keep_reviewing(at);
         let Ok(v) = self.journal.data_version() else {
-            return false;
+            return marks;
         };
         if self.journal_version == Some(v) {
-            return false;
+            return marks;
         }
+        self.read_reviewing(at);
         self.journal_version = Some(v);
         self.refresh_lists();
         self.reload_grades();
@@ -529,14 +650,19 @@ impl App {
         }
         let id = o.session_id.clone();
         let current = ed.text();
-        let saved = self.journal.feedback(&id).ok().flatten().map(|f| f.body);
+        let note = o.note.clone().flatten();
+        let Ok(saved) = self.journal.feedback(&id) else {
+            return;
+        };
+        let base = saved.as_ref().map(|f| f.id);
+        if let Some(o) = self.open.as_mut() {
+            o.feedback_base = base;
+        }
+        let saved = saved.map(|f| f.body);
         let was_saved = saved.is_some();
         let text = match saved {
             Some(body) => body,
-            None => {
-                let note = o.note.clone().flatten();
-                self.draft_text(note.as_deref())
-            }
+            None => self.draft_text(note.as_deref()),
         };
         let ed = TextEditor::new(&text);
         if ed.text() != current {
@@ -1170,6 +1296,7 @@ impl App {
             return self.on_leave_key(key);
         }
         match modal {
+            Modal::Conflict(c) => return self.on_conflict_key(c, key),
             Modal::ConfirmQuit => match key.code {
                 KeyCode::Char('y') | KeyCode::Char('Y') => return vec![Effect::Quit],
                 KeyCode::Char('n') | KeyCode::Char('N') | KeyCode::Esc => self.modal = None,
@@ -1198,6 +1325,23 @@ impl App {
     pub fn save_before_exit(&mut self) {
         if self.unsaved() {
             self.save_feedback();
+        }
+        // A version saved elsewhere meanwhile: nobody is here to choose, so both texts are
+        // saved together (marked), over theirs; neither is lost or silently replaced.
+        if let Some(Modal::Conflict(c)) = self.modal.clone() {
+            let mine = self.feedback_text().unwrap_or_default();
+            if let Some(o) = self.open.as_mut().filter(|o| o.session_id == c.session_id) {
+                o.feedback = Some(TextEditor::new(&both_texts(&mine, &c.theirs)));
+                o.feedback_base = Some(c.theirs.id);
+                self.modal = None;
+                let text = self.feedback_text().unwrap_or_default();
+                if let Ok(new) =
+                    self.journal
+                        .save_feedback_over(&c.session_id, &text, Some(c.theirs.id), now())
+                {
+                    self.saved_as(new);
+                }
+            }
         }
     }
 
@@ -1599,6 +1743,7 @@ impl App {
             verdict: Default::default(),
             note: None,
             feedback: None,
+            feedback_base: None,
             load_spike: None,
             context: Default::default(),
         });
@@ -1609,6 +1754,17 @@ impl App {
         self.focus = Focus::Verdict;
         self.message = None;
         self.say_unreadable();
+        self.keep_reviewing(now());
+        if let Some(names) = self.reviewing.get(session_id) {
+            if self.message.is_none() {
+                let names: Vec<String> =
+                    names.iter().map(|n| crate::roster::printable(n)).collect();
+                self.say(
+                    Tone::Info,
+                    format!("{} is reviewing this session now too", names.join(", ")),
+                );
+            }
+        }
         // Read ahead when `]` led here (or to the one before): drawn from memory now, when
         // the file is as it was read.
         let ready = match self.prefetch.take() {
@@ -1785,7 +1941,9 @@ impl App {
             Ok(permit) => read_note(&permit, note_file.as_deref(), embedded.as_deref()),
             Err(_) => return,
         };
-        let saved = self.journal.feedback(&id).ok().flatten().map(|f| f.body);
+        let saved = self.journal.feedback(&id).ok().flatten();
+        let base = saved.as_ref().map(|f| f.id);
+        let saved = saved.map(|f| f.body);
         let was_saved = saved.is_some();
         let draft = saved.unwrap_or_else(|| self.draft_text(note.as_deref()));
         if let Some(o) = self.open.as_mut() {
@@ -1794,6 +1952,7 @@ impl App {
                 let mut ed = TextEditor::new(&draft);
                 ed.saved = was_saved;
                 o.feedback = Some(ed);
+                o.feedback_base = base;
             }
         }
     }
@@ -2340,8 +2499,10 @@ impl App {
         if self.open.as_ref().is_some_and(|o| o.feedback.is_none()) {
             let note = self.open.as_ref().and_then(|o| o.note.clone()).flatten();
             let draft = self.draft_text(note.as_deref());
+            let base = self.latest_feedback_id();
             if let Some(o) = self.open.as_mut() {
                 o.feedback = Some(TextEditor::new(&draft));
+                o.feedback_base = base;
             }
         }
         true
@@ -2362,15 +2523,182 @@ impl App {
         }) else {
             return;
         };
-        match self.journal.save_feedback(&id, &text, now()) {
-            Ok(()) => {
-                if let Some(ed) = self.open.as_mut().and_then(|o| o.feedback.as_mut()) {
-                    ed.dirty = false;
-                    ed.saved = true;
-                }
+        let base = self.open.as_ref().and_then(|o| o.feedback_base);
+        match self.journal.save_feedback_over(&id, &text, base, now()) {
+            Ok(new) => {
+                self.saved_as(new);
                 self.say(Tone::Done, "feedback saved in the journal");
             }
+            Err(JournalError::FeedbackConflict { theirs, .. }) => {
+                self.ask_conflict(id, *theirs, None);
+            }
             Err(e) => self.say(Tone::Warn, short_error(&e)),
+        }
+    }
+
+    /// The editor's text is the journal's version `id` now.
+    fn saved_as(&mut self, id: i64) {
+        if let Some(o) = self.open.as_mut() {
+            o.feedback_base = Some(id);
+            if let Some(ed) = o.feedback.as_mut() {
+                ed.dirty = false;
+                ed.saved = true;
+            }
+        }
+    }
+
+    /// The id of the latest saved feedback version of the open session (`None`: none, or
+    /// the journal cannot say).
+    fn latest_feedback_id(&self) -> Option<i64> {
+        let id = &self.open.as_ref()?.session_id;
+        self.journal.feedback(id).ok().flatten().map(|f| f.id)
+    }
+
+    /// Whether a version newer than the one the editor started from was saved elsewhere.
+    fn feedback_base_stale(&self) -> bool {
+        let Some(o) = self.open.as_ref() else {
+            return false;
+        };
+        matches!(self.journal.feedback(&o.session_id), Ok(Some(f)) if Some(f.id) != o.feedback_base)
+    }
+
+    // ----- a feedback edit that met a newer version saved elsewhere -----
+
+    /// Ask the coach to settle a conflict: nothing was saved, the editor keeps the text.
+    fn ask_conflict(
+        &mut self,
+        session_id: String,
+        theirs: FeedbackVersion,
+        then: Option<FeedbackEventKind>,
+    ) {
+        if let Some(ed) = self.open.as_mut().and_then(|o| o.feedback.as_mut()) {
+            // Whatever the editor holds is not in the journal.
+            ed.dirty = true;
+        }
+        self.pending_leave = None;
+        self.modal = Some(Modal::Conflict(FeedbackConflict {
+            session_id,
+            theirs,
+            then,
+        }));
+        self.say(
+            Tone::Warn,
+            "nothing saved: the feedback was changed elsewhere; k keeps mine, t takes theirs, b shows both",
+        );
+    }
+
+    /// A key in the conflict prompt: `k` keep mine, `t` take theirs, `b` show both, Esc
+    /// back to editing; other keys wait.
+    fn on_conflict_key(&mut self, c: &FeedbackConflict, key: Key) -> Vec<Effect> {
+        let open_here = self
+            .open
+            .as_ref()
+            .is_some_and(|o| o.session_id == c.session_id && o.feedback.is_some());
+        if !open_here {
+            self.modal = None;
+            return Vec::new();
+        }
+        match key.code {
+            KeyCode::Char('k') | KeyCode::Char('K') => self.keep_mine(c),
+            KeyCode::Char('t') | KeyCode::Char('T') => {
+                self.modal = None;
+                if let Some(o) = self.open.as_mut() {
+                    let mut ed = TextEditor::new(&c.theirs.body);
+                    ed.saved = true;
+                    o.feedback = Some(ed);
+                    o.feedback_base = Some(c.theirs.id);
+                }
+                let sent = if c.then.is_some() {
+                    "; nothing was sent"
+                } else {
+                    ""
+                };
+                self.say(
+                    Tone::Done,
+                    format!("feedback: took the version saved elsewhere; yours was dropped{sent}"),
+                );
+                Vec::new()
+            }
+            KeyCode::Char('b') | KeyCode::Char('B') => {
+                self.modal = None;
+                let save = self.keymap.first(Action::SaveFeedback);
+                if let Some(o) = self.open.as_mut() {
+                    let mine = o
+                        .feedback
+                        .as_ref()
+                        .map(TextEditor::text)
+                        .unwrap_or_default();
+                    let mut ed = TextEditor::new(&both_texts(&mine, &c.theirs));
+                    ed.dirty = true;
+                    ed.editing = true;
+                    o.feedback = Some(ed);
+                    o.feedback_base = Some(c.theirs.id);
+                    o.verdict.follow();
+                }
+                self.focus = Focus::Verdict;
+                self.say(
+                    Tone::Info,
+                    format!("both texts are in the editor: merge them, delete the === lines, {save} saves"),
+                );
+                Vec::new()
+            }
+            KeyCode::Esc => {
+                self.modal = None;
+                self.back_to_editing();
+                let save = self.keymap.first(Action::SaveFeedback);
+                self.say(
+                    Tone::Info,
+                    format!("nothing saved: your text is still here; {save} asks again"),
+                );
+                Vec::new()
+            }
+            _ => Vec::new(),
+        }
+    }
+
+    fn back_to_editing(&mut self) {
+        if let Some(o) = self.open.as_mut() {
+            if let Some(ed) = o.feedback.as_mut() {
+                ed.editing = true;
+            }
+            o.verdict.follow();
+        }
+        self.focus = Focus::Verdict;
+    }
+
+    /// Keep mine: save the editor's text over the version saved elsewhere (which stays in
+    /// the journal's history), then send it on when it was on its way out.
+    fn keep_mine(&mut self, c: &FeedbackConflict) -> Vec<Effect> {
+        self.modal = None;
+        let Some(text) = self.feedback_text() else {
+            return Vec::new();
+        };
+        match self
+            .journal
+            .save_feedback_over(&c.session_id, &text, Some(c.theirs.id), now())
+        {
+            Ok(new) => {
+                self.saved_as(new);
+                self.say(
+                    Tone::Done,
+                    "feedback: yours saved over the version saved elsewhere (kept in the history)",
+                );
+                match c.then {
+                    Some(FeedbackEventKind::Copied) => self.copy_feedback(),
+                    Some(FeedbackEventKind::Exported) => self.export_feedback(),
+                    _ => Vec::new(),
+                }
+            }
+            Err(JournalError::FeedbackConflict { theirs, .. }) => {
+                // Yet another save came meanwhile: ask again about that one.
+                self.ask_conflict(c.session_id.clone(), *theirs, c.then);
+                Vec::new()
+            }
+            Err(e) => {
+                self.back_to_editing();
+                self.say(Tone::Warn, short_error(&e));
+                Vec::new()
+            }
         }
     }
 
@@ -2379,26 +2707,32 @@ impl App {
             return false;
         };
         let never_saved = matches!(self.journal.feedback(&id), Ok(None));
-        // The text is saved (when it needs to be) and the sending recorded together.
-        let body = if self.unsaved() || never_saved {
+        // The text is saved (when it needs to be) and the sending recorded together; a
+        // version saved elsewhere since the editor's makes it a conflict, not a send of
+        // a text the journal no longer holds.
+        let body = if self.unsaved() || never_saved || self.feedback_base_stale() {
             self.feedback_text()
         } else {
             None
         };
+        let base = self.open.as_ref().and_then(|o| o.feedback_base);
         match self
             .journal
-            .send_feedback(&id, body.as_deref(), kind, now())
+            .send_feedback_over(&id, body.as_deref(), base, kind, now())
         {
             Ok(()) => {
                 if body.is_some() {
-                    if let Some(ed) = self.open.as_mut().and_then(|o| o.feedback.as_mut()) {
-                        ed.dirty = false;
-                        ed.saved = true;
+                    if let Some(new) = self.latest_feedback_id() {
+                        self.saved_as(new);
                     }
                 }
                 self.reload_grades();
                 self.apply_session(&id, None);
                 true
+            }
+            Err(JournalError::FeedbackConflict { theirs, .. }) => {
+                self.ask_conflict(id, *theirs, Some(kind));
+                false
             }
             Err(e) => {
                 self.say(Tone::Warn, short_error(&e));
@@ -2435,6 +2769,13 @@ impl App {
         ) else {
             return Vec::new();
         };
+        // A version saved elsewhere since: settle that before a file is written.
+        if self.feedback_base_stale() {
+            if let Ok(Some(theirs)) = self.journal.feedback(&id) {
+                self.ask_conflict(id, theirs, Some(FeedbackEventKind::Exported));
+                return Vec::new();
+            }
+        }
         vec![Effect::WriteFile {
             path: self.feedback_path(&id),
             text,
@@ -2542,6 +2883,10 @@ impl App {
         // What is typed in the editor is saved first: it is the coach's text for its session.
         if self.unsaved() {
             self.save_feedback();
+            if matches!(self.modal, Some(Modal::Conflict(_))) {
+                // Saved elsewhere meanwhile: settled first, then the day goes out.
+                return Vec::new();
+            }
         }
         let Some(id) = self
             .open
@@ -2772,6 +3117,17 @@ impl App {
 }
 
 /// `1 message`, `2 messages`.
+/// Both texts in one, for the coach to merge by hand: mine, then theirs, each under a
+/// plain marker line, and a last marker line saying what to do.
+pub fn both_texts(mine: &str, theirs: &FeedbackVersion) -> String {
+    format!(
+        "{BOTH_MINE}\n{}\n{BOTH_THEIRS} ({}) ===\n{}\n{BOTH_END}\n",
+        mine.trim_end_matches('\n'),
+        theirs.saved_at.format("%Y-%m-%d %H:%M UTC"),
+        theirs.body.trim_end_matches('\n'),
+    )
+}
+
 fn count(n: usize, one: &str, many: &str) -> String {
     format!("{n} {}", if n == 1 { one } else { many })
 }

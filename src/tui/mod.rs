@@ -306,6 +306,22 @@ pub fn event_loop<B: Backend, H: Host>(
 where
     B::Error: Send + Sync + 'static,
 {
+    let r = run_loop(terminal, app, worker, host, stop);
+    // However the loop ended: other coaches no longer see this session as reviewed here.
+    app.stop_reviewing();
+    r
+}
+
+fn run_loop<B: Backend, H: Host>(
+    terminal: &mut Terminal<B>,
+    app: &mut App,
+    worker: &Worker,
+    host: &mut H,
+    stop: &AtomicBool,
+) -> anyhow::Result<()>
+where
+    B::Error: Send + Sync + 'static,
+{
     let size = terminal.size()?;
     app.size = (size.width, size.height);
     terminal.draw(|f| draw_frame(f, app))?;

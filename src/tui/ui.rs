@@ -362,8 +362,20 @@ fn draw_welcome(app: &App, area: Rect, buf: &mut Buffer) {
         .render(inner, buf);
 }
 
-/// The right end of the status line: progress or the queue.
+/// The right end of the status line: the coach (on a journal with a staff), then progress
+/// or the queue.
 fn status_right(app: &App) -> String {
+    let rest = progress_right(app);
+    match app.coach_name() {
+        Some(coach) => format!(" coach {} ·{rest}", panes::fit(&coach, COACH_SHOWN)),
+        None => rest,
+    }
+}
+
+/// At most this many characters of the coach's name on the status line.
+pub const COACH_SHOWN: usize = 20;
+
+fn progress_right(app: &App) -> String {
     let p = app.progress;
     if !app.scan_started() {
         // The very first frame, drawn before the scan starts: no count to show yet.
@@ -442,6 +454,14 @@ fn draw_status(app: &App, area: Rect, buf: &mut Buffer) {
 pub fn hints(app: &App) -> Vec<(String, &'static str)> {
     let k = &app.keymap;
     let h = |a: Action, what: &'static str| (k.first(a), what);
+    if matches!(app.modal, Some(Modal::Conflict(_))) {
+        return vec![
+            ("k".into(), "keep mine"),
+            ("t".into(), "take theirs"),
+            ("b".into(), "show both"),
+            ("Esc".into(), "back"),
+        ];
+    }
     if app.modal.is_some() {
         return vec![h(Action::Cancel, "close")];
     }
@@ -516,7 +536,12 @@ pub fn footer_hints(app: &App, width: usize) -> Vec<(String, &'static str)> {
         .map(|(k, w)| (if app.theme.ascii { ascii_key(&k) } else { k }, w))
         .collect();
     let len = |(k, w): &(String, &str)| k.chars().count() + w.chars().count() + 3;
-    let must = |w: &str| matches!(w, "help" | "quit" | "close");
+    let must = |w: &str| {
+        matches!(
+            w,
+            "help" | "quit" | "close" | "keep mine" | "take theirs" | "show both" | "back"
+        )
+    };
     let mut keep: Vec<bool> = all.iter().map(|h| must(h.1)).collect();
     let mut used = 1 + all.iter().filter(|h| must(h.1)).map(len).sum::<usize>();
     for (k, h) in keep.iter_mut().zip(&all) {
@@ -601,6 +626,7 @@ fn draw_modal(app: &App, modal: &Modal, area: Rect, buf: &mut Buffer) {
             ])
             .render(inner, buf);
         }
+        Modal::Conflict(c) => draw_conflict(app, c, area, buf),
         Modal::Message { title, text } => {
             let r = centered(area, 60, 8);
             Clear.render(r, buf);
@@ -613,6 +639,56 @@ fn draw_modal(app: &App, modal: &Modal, area: Rect, buf: &mut Buffer) {
                 .render(inner, buf);
         }
     }
+}
+
+/// The lines of the feedback conflict prompt: what happened, the first line of their
+/// text, and the keys.
+pub fn conflict_lines(c: &crate::tui::app::FeedbackConflict) -> Vec<(String, bool)> {
+    let first = c
+        .theirs
+        .body
+        .lines()
+        .find(|l| !l.trim().is_empty())
+        .unwrap_or("(empty)");
+    let mut out = vec![
+        (
+            "The feedback was saved elsewhere while you edited it.".to_string(),
+            false,
+        ),
+        (
+            "Nothing was saved; your text is still in the editor.".to_string(),
+            false,
+        ),
+        (
+            format!(
+                "Theirs ({}) begins: {}",
+                c.theirs.saved_at.format("%Y-%m-%d %H:%M UTC"),
+                printable(first)
+            ),
+            false,
+        ),
+        (String::new(), false),
+    ];
+    for (k, what) in crate::tui::app::CONFLICT_KEYS {
+        out.push((format!("{k:>3}  {what}"), true));
+    }
+    out
+}
+
+fn draw_conflict(app: &App, c: &crate::tui::app::FeedbackConflict, area: Rect, buf: &mut Buffer) {
+    let t = &app.theme;
+    let lines = conflict_lines(c);
+    let r = centered(area, 66, lines.len() as u16 + 2);
+    Clear.render(r, buf);
+    let block = pane_block(app, format!(" {} ", crate::tui::app::CONFLICT_TITLE), true);
+    let inner = block.inner(r);
+    block.render(r, buf);
+    let w = inner.width as usize;
+    let lines: Vec<Line> = lines
+        .into_iter()
+        .map(|(l, key)| Line::styled(shorten_words(&l, w), if key { t.heading } else { t.text }))
+        .collect();
+    Paragraph::new(lines).render(inner, buf);
 }
 
 fn draw_help(app: &App, area: Rect, buf: &mut Buffer) {
@@ -628,7 +704,17 @@ fn draw_help(app: &App, area: Rect, buf: &mut Buffer) {
     let h = (per_col as u16 + 3).min(area.height);
     let r = centered(area, w, h);
     Clear.render(r, buf);
-    let block = pane_block(app, " Keys (config [keys] overrides them) ", true);
+    // The keys of the feedback conflict prompt are fixed: said at the foot of the help.
+    let conflict: Vec<String> = crate::tui::app::CONFLICT_KEYS
+        .iter()
+        .take(3)
+        .map(|(k, what)| format!("{k} {}", what.split(" (").next().unwrap_or(what)))
+        .collect();
+    let block =
+        pane_block(app, " Keys (config [keys] overrides them) ", true).title_bottom(Line::styled(
+            format!(" feedback changed elsewhere: {} ", conflict.join(" · ")),
+            t.dim,
+        ));
     let inner = block.inner(r);
     block.render(r, buf);
     let cols: Vec<Rect> = if two {

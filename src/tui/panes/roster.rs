@@ -47,7 +47,8 @@ pub fn render(app: &App, area: Rect, buf: &mut Buffer) {
         ));
     }
     // The profile and plan problems of the athlete under the cursor, at the foot of the pane.
-    let footer = problem_lines(app, w, inner.height as usize);
+    let mut footer = reviewing_legend(app, &rows, w);
+    footer.extend(problem_lines(app, w, inner.height as usize));
     let visible = (inner.height as usize)
         .saturating_sub(header_rows + footer.len())
         .max(1);
@@ -129,6 +130,29 @@ pub fn render(app: &App, area: Rect, buf: &mut Buffer) {
                 };
                 let title_w = w.saturating_sub(2 + date.chars().count() + 1 + stage_w + 1);
                 let title = row_title(app, &s.session_id, title_w);
+                let others = app.reviewing.get(&s.session_id);
+                let other_mark = if others.is_some() {
+                    REVIEWING_MARK
+                } else {
+                    " "
+                };
+                // The colleague's name after the title when both fit whole ("reviewing"
+                // too when there is room; the legend at the foot says it anyway).
+                let tag = others
+                    .and_then(|names| {
+                        let names = coach_names(names);
+                        [format!(" · {names} reviewing"), format!(" · {names}")]
+                            .into_iter()
+                            .find(|tag| title.chars().count() + tag.chars().count() <= title_w)
+                    })
+                    .unwrap_or_default();
+                let title = if tag.is_empty() {
+                    pad(&title, title_w)
+                } else {
+                    title
+                };
+                let gap =
+                    " ".repeat(title_w.saturating_sub(title.chars().count() + tag.chars().count()));
                 let base = if selected { t.selected } else { t.text };
                 let stage_style = if selected {
                     t.selected
@@ -140,9 +164,12 @@ pub fn render(app: &App, area: Rect, buf: &mut Buffer) {
                     }
                 };
                 Line::from(vec![
-                    Span::styled(format!(" {open_mark}"), base),
+                    Span::styled(other_mark, if selected { base } else { t.warn }),
+                    Span::styled(open_mark, base),
                     Span::styled(format!("{date} "), if selected { base } else { t.dim }),
-                    Span::styled(pad(&title, title_w), base),
+                    Span::styled(title, base),
+                    Span::styled(tag, if selected { base } else { t.warn }),
+                    Span::styled(gap, base),
                     Span::styled(format!(" {:>stage_w$}", fit(&stage, stage_w)), stage_style),
                 ])
             }
@@ -155,6 +182,40 @@ pub fn render(app: &App, area: Rect, buf: &mut Buffer) {
         let area = Rect::new(inner.x, inner.y + inner.height - h, inner.width, h);
         Paragraph::new(footer).render(area, buf);
     }
+}
+
+/// The mark before a session another coach is reviewing now (see [`reviewing_legend`]).
+pub const REVIEWING_MARK: &str = "◆";
+
+/// Coach names for the screen: printable, joined.
+fn coach_names(names: &[String]) -> String {
+    names
+        .iter()
+        .map(|n| printable(n))
+        .collect::<Vec<_>>()
+        .join(", ")
+}
+
+/// The legend of [`REVIEWING_MARK`] at the foot of the pane, when a listed session has it:
+/// who is reviewing the session under the cursor, or what the mark means.
+fn reviewing_legend(app: &App, rows: &[RosterRow], w: usize) -> Vec<Line<'static>> {
+    let marked = rows.iter().any(|r| match r {
+        RosterRow::Session(s) => app.reviewing.contains_key(&s.session_id),
+        RosterRow::Athlete(_) => false,
+    });
+    if !marked {
+        return Vec::new();
+    }
+    let text = match app
+        .cursor
+        .session
+        .as_ref()
+        .and_then(|id| app.reviewing.get(id))
+    {
+        Some(names) => format!("{REVIEWING_MARK} {} reviewing this now", coach_names(names)),
+        None => format!("{REVIEWING_MARK} another coach reviewing now"),
+    };
+    vec![Line::styled(shorten_words(&text, w), app.theme.warn)]
 }
 
 /// A session row's stage word.

@@ -26,7 +26,6 @@ use splitdesk::workspace::Workspace;
 
 #[path = "bench_roster/mod.rs"]
 mod bench_roster;
-#[allow(dead_code)]
 #[path = "../tests/pg_support/mod.rs"]
 mod pg_support;
 

@@ -677,15 +677,18 @@ fn a_feedback_edit_over_a_changed_version_is_a_conflict() {
         // Taking theirs and saving over it works.
         let latest = two.feedback(REPS).unwrap().unwrap();
         assert_eq!(latest.id, mine);
-        two.send_feedback_over(
-            REPS,
-            Some("Good session; rest tomorrow. Hills Friday."),
-            Some(latest.id),
-            FeedbackEventKind::Exported,
-            t(8),
-        )
-        .unwrap();
+        let sent = two
+            .send_feedback_over(
+                REPS,
+                Some("Good session; rest tomorrow. Hills Friday."),
+                Some(latest.id),
+                FeedbackEventKind::Exported,
+                t(8),
+            )
+            .unwrap();
         assert_eq!(one.feedback_history(REPS).unwrap().len(), 3);
+        // The id returned is the version now in force.
+        assert_eq!(sent, Some(one.feedback(REPS).unwrap().unwrap().id));
         assert_eq!(one.feedback_events(REPS).unwrap().len(), 1);
         assert_eq!(
             one.review_state(REPS).unwrap().stage,

@@ -1687,7 +1687,8 @@ impl Journal {
     }
 
     /// [`Journal::send_feedback`] with the version check of [`Journal::save_feedback_over`]
-    /// for the text saved with it (when `body` is given).
+    /// for the text saved with it (when `body` is given). Returns the id of the version
+    /// saved, if one was.
     pub fn send_feedback_over(
         &mut self,
         session_id: &str,
@@ -1695,24 +1696,29 @@ impl Journal {
         based_on: Option<i64>,
         kind: FeedbackEventKind,
         now: DateTime<Utc>,
-    ) -> Result<()> {
+    ) -> Result<Option<i64>> {
         let coach = self.coach.clone();
         self.write(|tx, path| {
             let rid = revealed_review(tx, path, session_id, &coach)?;
-            if let Some(body) = body {
-                check_feedback_base(tx, path, session_id, rid, based_on)?;
-                tx.exec(
-                    path,
-                    "INSERT INTO feedback_version (review_id, body, saved_at) VALUES (?1, ?2, ?3)",
-                    &[&rid, &body, &ts(now)],
-                )?;
-            }
+            let saved = match body {
+                Some(body) => {
+                    check_feedback_base(tx, path, session_id, rid, based_on)?;
+                    Some(tx.query_one(
+                        path,
+                        "INSERT INTO feedback_version (review_id, body, saved_at)
+                         VALUES (?1, ?2, ?3) RETURNING id",
+                        &[&rid, &body, &ts(now)],
+                        |r| r.get::<i64>(0),
+                    )?)
+                }
+                None => None,
+            };
             tx.exec(
                 path,
                 "INSERT INTO feedback_event (review_id, kind, at) VALUES (?1, ?2, ?3)",
                 &[&rid, &kind.as_str(), &ts(now)],
             )?;
-            Ok(())
+            Ok(saved)
         })
     }
 

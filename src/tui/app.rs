@@ -2720,11 +2720,9 @@ impl App {
             .journal
             .send_feedback_over(&id, body.as_deref(), base, kind, now())
         {
-            Ok(()) => {
-                if body.is_some() {
-                    if let Some(new) = self.latest_feedback_id() {
-                        self.saved_as(new);
-                    }
+            Ok(saved) => {
+                if let Some(new) = saved {
+                    self.saved_as(new);
                 }
                 self.reload_grades();
                 self.apply_session(&id, None);

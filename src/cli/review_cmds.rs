@@ -1293,6 +1293,13 @@ pub fn bias_check(ws: &mut Workspace, athlete: Option<&str>, json: bool) -> anyh
     if json {
         crate::cli::out::json(&report)?;
     } else {
+        // On a staff journal the check is of this coach's own grades.
+        if !ws.journal.coach().is_empty() {
+            println!(
+                "{}'s grades (each coach's bias check is their own):",
+                crate::roster::printable(ws.journal.coach())
+            );
+        }
         println!("overall: {}", report.overall.text);
         for (a, s) in &report.athletes {
             println!("  {a}: {}", s.text);

@@ -504,7 +504,7 @@ fn run_with_journal(
             return match jc {
                 JournalCommand::Backup { file } => rc::journal_backup(&ws, file),
                 JournalCommand::Check { json } => rc::journal_check(&ws, *json),
-                JournalCommand::Copy { .. } => Ok(2),
+                JournalCommand::Copy { from, to, json } => staff_cmd::copy(from, to, *json),
             };
         }
         Command::Staff(sc) => {

@@ -47,6 +47,7 @@ mod error;
 mod location;
 mod note;
 mod pg;
+mod pg_tls;
 mod pgpass;
 pub mod schema;
 mod staff;

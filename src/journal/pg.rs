@@ -98,7 +98,8 @@ impl PgConn {
             path: shown.to_path_buf(),
             detail,
         };
-        let mut config = postgres::Config::from_str(url.trim())
+        let ask = super::pg_tls::split(url.trim()).map_err(&connect_err)?;
+        let mut config = postgres::Config::from_str(&ask.url)
             .map_err(|e| connect_err(format!("not a valid PostgreSQL address: {e}")))?;
         if config.get_user().is_none() {
             if let Some(user) = std::env::var("PGUSER")
@@ -141,7 +142,7 @@ impl PgConn {
         }
         config.application_name("splitdesk");
         let client = config
-            .connect(tls().map_err(&connect_err)?)
+            .connect(super::pg_tls::connector(&ask).map_err(&connect_err)?)
             .map_err(|e| connect_err(connect_detail(&e)))?;
         let mut conn = PgConn {
             client,
@@ -364,23 +365,6 @@ impl PgConn {
 /// Prepared statements may name columns a schema step changes: start afresh.
 fn drop_cache_on_schema_change(cache: &mut StatementCache) {
     cache.clear();
-}
-
-/// TLS as the server and the address ask (`sslmode`), verified against the system's
-/// certificate store.
-fn tls() -> std::result::Result<tokio_postgres_rustls::MakeRustlsConnect, String> {
-    let mut roots = rustls::RootCertStore::empty();
-    for cert in rustls_native_certs::load_native_certs().certs {
-        // A certificate the TLS library cannot use is left out, as a browser would.
-        let _ = roots.add(cert);
-    }
-    let provider = std::sync::Arc::new(rustls::crypto::ring::default_provider());
-    let config = rustls::ClientConfig::builder_with_provider(provider)
-        .with_safe_default_protocol_versions()
-        .map_err(|e| format!("TLS: {e}"))?
-        .with_root_certificates(roots)
-        .with_no_client_auth();
-    Ok(tokio_postgres_rustls::MakeRustlsConnect::new(config))
 }
 
 /// The connection error in one line, with its cause.

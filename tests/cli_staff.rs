@@ -182,6 +182,14 @@ fn a_reviews(club: &Club) {
     );
     let out = club.ok(Some("A"), &["notes", NOW]);
     assert!(out.contains(NOTE_NOW), "{out}");
+    // A revises one score after reading the note: kept beside the blind grade.
+    let out = club.ok(Some("A"), &["grade", NOW, "--score", "2=2"]);
+    assert!(
+        out.contains(&format!(
+            "{NOW}: revealed; scores 1=5 2=1→2 3=5; verdict missed"
+        )),
+        "{out}"
+    );
     club.ok(
         Some("A"),
         &grade_args(THEN, &["1=4", "2=1", "3=5"], Some("missed")),
@@ -218,6 +226,7 @@ fn assert_no_secret(what: &str, out: &str, err: &str) {
 fn b_sees_nothing(club: &Club) {
     let b = Some("B");
     let backup = club.dir.path().join("backup-by-b.sqlite");
+    let chart = club.dir.path().join("chart-by-b.svg");
     let commands: Vec<(Vec<&str>, Option<i32>)> = vec![
         (vec!["queue"], Some(0)),
         (vec!["queue", "--json"], Some(0)),
@@ -267,6 +276,10 @@ fn b_sees_nothing(club: &Club) {
         (vec!["seen", NOW], Some(0)),
         (vec!["seen", NOW, "--undo", "--json"], Some(0)),
         (vec!["journal", "backup", backup.to_str().unwrap()], Some(0)),
+        (
+            vec!["export", "chart", NOW, "--out", chart.to_str().unwrap()],
+            Some(0),
+        ),
     ];
     for (args, code) in &commands {
         let (got, out, err) = club.run(b, args);
@@ -275,6 +288,9 @@ fn b_sees_nothing(club: &Club) {
             assert_eq!(got, *code, "B: {args:?}\n{out}\n{err}");
         }
     }
+
+    let svg = std::fs::read_to_string(&chart).unwrap();
+    assert_no_secret("B: the chart's SVG", &svg, "");
 
     // What those commands say, looked at closely.
     let q = club.json(b, &["queue", "--json"]);
@@ -421,6 +437,25 @@ fn coach_b_sees_nothing_of_coach_a_before_grading_and_then_the_note_and_a_s_grad
                 "verdict": "missed",
                 "revealed": true
             }])
+        );
+        // B's bias check counts B's one review, without revisions (A's is A's).
+        let v = club.json(b, &["bias-check", "--json"]);
+        assert_eq!(
+            (
+                v["overall"]["reviews"].clone(),
+                v["overall"]["changed"].clone()
+            ),
+            (1.into(), 0.into()),
+            "{v}"
+        );
+        let v = club.json(Some("A"), &["bias-check", "--json"]);
+        assert_eq!(
+            (
+                v["overall"]["reviews"].clone(),
+                v["overall"]["changed"].clone()
+            ),
+            (2.into(), 1.into()),
+            "{v}"
         );
         // A sees B's blind grades now (A's own grading was complete long ago).
         let out = club.ok(Some("A"), &["notes", NOW]);

@@ -988,6 +988,113 @@ fn a_wrong_password_in_the_address_is_never_printed() {
     );
 }
 
+/// The test server's password, as its password file holds it (the line for its host).
+fn server_password() -> Option<String> {
+    let file = std::env::var("PGPASSFILE").ok()?;
+    let text = std::fs::read_to_string(file).ok()?;
+    text.lines()
+        .map(pg_support::split_fields)
+        .find(|f| f.len() >= 5)
+        .and_then(|f| f.into_iter().nth(4))
+        .filter(|p| p.len() >= 8)
+}
+
+#[test]
+fn a_right_password_in_the_address_is_never_printed_either() {
+    let Some(url) = pg_support::fresh_database("cli_password_ok") else {
+        return;
+    };
+    let result = std::panic::catch_unwind(std::panic::AssertUnwindSafe(|| {
+        let Some(password) = server_password() else {
+            panic!("the test server's password file (PGPASSFILE) has no password line");
+        };
+        // The test URL has no password: put it in (postgres://user@host → user:pw@host).
+        let with = url.replacen("@", &format!(":{password}@"), 1);
+        assert!(with.contains(&password) && with.starts_with("postgres://"));
+        let dir = tempfile::tempdir().unwrap();
+        let roster = dir.path().join("roster");
+        write_roster(&roster);
+        let backup = dir.path().join("b.sqlite").display().to_string();
+        let copy = dir.path().join("c.sqlite").display().to_string();
+        let copy2 = dir.path().join("d.sqlite").display().to_string();
+        // No other source of the password: what works, works with the address's.
+        let env = [("PGPASSFILE", "/nonexistent"), ("PGPASSWORD", "")];
+        let j = with.as_str();
+        let runs: Vec<Vec<&str>> = vec![
+            vec!["--journal", j, "queue"],
+            vec!["--journal", j, "staff", "add", "A"],
+            vec!["--journal", j, "staff", "list"],
+            vec!["--journal", j, "staff", "list", "--json"],
+            vec!["--journal", j, "--as", "A", "grade", NOW, "--score", "1=3"],
+            vec!["--journal", j, "--as", "A", "queue", "--json"],
+            vec!["--journal", j, "journal", "check"],
+            vec!["--journal", j, "journal", "check", "--json"],
+            vec!["--journal", j, "journal", "backup", &backup],
+            vec!["--journal", j, "agreement"],
+            vec!["journal", "copy", j, &copy],
+            vec!["journal", "copy", j, &copy2, "--json"],
+            vec!["journal", "copy", &copy, j],
+        ];
+        for args in &runs {
+            let (code, out, err) = sd(&roster, &env, args);
+            // Today the address's password is used (and each command works); a refusal of
+            // passwords in addresses would do too, said without it.
+            assert!(
+                code == 0 || err.contains("postgres://splitdesk@"),
+                "{code}: {}",
+                err.replace(&password, "<PASSWORD>")
+            );
+            assert!(
+                !out.contains(&password) && !err.contains(&password),
+                "{:?} printed the password",
+                args.iter()
+                    .map(|a| a.replace(&password, "<PASSWORD>"))
+                    .collect::<Vec<_>>()
+            );
+        }
+    }));
+    pg_support::drop_database(&url);
+    if let Err(p) = result {
+        std::panic::resume_unwind(p);
+    }
+}
+
+/// A libpq key=value connection string (which PostgreSQL's own tools accept) is not a
+/// `postgres://` address: it must not become a SQLite file named after it, and its password
+/// must not be printed as that file's name.
+#[test]
+#[ignore = "bug: --journal 'host=... password=... dbname=...' is taken as a SQLite file path: \
+            a file named with the password is made in the current folder and every message \
+            naming the journal prints the password"]
+fn a_key_value_connection_string_is_not_taken_for_a_file_name() {
+    let dir = tempfile::tempdir().unwrap();
+    let roster = dir.path().join("roster");
+    write_roster(&roster);
+    let conn = format!("host=127.0.0.1 port=1 user=splitdesk password={PASSWORD} dbname=x");
+    let mut c = Command::new(binary());
+    let out = c
+        .current_dir(dir.path())
+        .env("SPLITDESK_CONFIG", "/nonexistent/config.toml")
+        .env_remove("SPLITDESK_JOURNAL")
+        .arg("--roster")
+        .arg(&roster)
+        .args(["--journal", &conn, "journal", "check"])
+        .output()
+        .unwrap();
+    let text = format!(
+        "{}{}",
+        String::from_utf8_lossy(&out.stdout),
+        String::from_utf8_lossy(&out.stderr)
+    );
+    assert!(!text.contains(PASSWORD), "{text}");
+    let made: Vec<String> = std::fs::read_dir(dir.path())
+        .unwrap()
+        .map(|e| e.unwrap().file_name().to_string_lossy().into_owned())
+        .filter(|n| n.contains(PASSWORD))
+        .collect();
+    assert!(made.is_empty(), "{made:?}");
+}
+
 /// The blind scores `grade NOW --json` shows for whoever the program acts as.
 fn acting_scores(roster: &Path, env: &[(&str, &str)], args: &[&str]) -> Value {
     let mut full: Vec<&str> = args.to_vec();

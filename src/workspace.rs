@@ -370,10 +370,11 @@ impl Workspace {
             Some(id) => Roster::open_athlete(roster_dir, id)?,
             None => Roster::open(roster_dir)?,
         };
-        // A journal on a PostgreSQL server (shared by a staff): no file, no roster check.
+        // A journal on a PostgreSQL server (shared by a staff): no file, no roster check. A
+        // key=value connection string is refused, never taken for a file name.
         if let Some(url) = journal
             .and_then(Path::to_str)
-            .filter(|s| journal::is_server_address(s))
+            .filter(|s| journal::is_server_address(s) || journal::looks_like_conninfo(s))
         {
             return Ok(Workspace {
                 roster,

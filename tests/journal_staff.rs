@@ -232,7 +232,7 @@ fn who_may_write() {
             err.to_string(),
             format!(
                 "{}: this journal is shared by a staff of 2 coaches; say which one you are \
-                 with `name` under [coach] in the config file, or --as NAME",
+                 with `name` under [coach] in the config file, $SPLITDESK_COACH, or --as NAME",
                 j.path().display()
             )
         );
@@ -266,7 +266,7 @@ fn who_may_write() {
         assert_eq!(
             err.to_string(),
             format!(
-                "{}: coach \"Beth\" is not on this journal's staff (1 coaches); see `splitdesk \
+                "{}: coach \"Beth\" is not on this journal's staff (1 coach); see `splitdesk \
                  staff list`, or add them with `splitdesk staff add`",
                 j.path().display()
             )

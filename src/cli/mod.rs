@@ -496,8 +496,9 @@ fn run_with_journal(
         return staff_cmd::copy(from, to, *json);
     }
     // Checking and backing up the journal take it as it is: no sync first, so they work
-    // whatever the roster or the analysis cache hold. The staff list and the agreement
-    // between coaches are about the staff, not one coach: no coach needed.
+    // whatever the roster or the analysis cache hold. The staff list is about the staff,
+    // not one coach: no coach needed. The agreement between coaches shows blind scores, so
+    // it is asked for as a coach, and shows only what that coach may see.
     match &cmd {
         Command::Journal(jc) => {
             let ws = rc::open_noting_read_only(roster, journal)?;
@@ -521,7 +522,8 @@ fn run_with_journal(
             return staff_cmd::staff(&mut ws, action);
         }
         Command::Agreement { coaches, json } => {
-            let ws = rc::open_noting_read_only(roster, journal)?;
+            let mut ws = rc::open_noting_read_only(roster, journal)?;
+            ws.act_as(coach)?;
             return staff_cmd::agreement(&ws, coaches, *json);
         }
         _ => {}

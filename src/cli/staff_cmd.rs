@@ -123,15 +123,38 @@ pub fn staff(ws: &mut Workspace, action: StaffAction<'_>) -> anyhow::Result<i32>
     Ok(0)
 }
 
-/// `splitdesk agreement`: every named coach's blind scores, compared pair by pair.
+/// `splitdesk agreement`: the named coaches' blind scores, compared pair by pair, of the
+/// sessions whose blind grading the coach asking has completed (the blind rule: no
+/// colleague's score of a session one has still to grade).
 pub fn agreement(ws: &Workspace, only: &[String], json: bool) -> anyhow::Result<i32> {
-    let grades = ws.journal.coach_grades()?;
-    crate::cli::agreement_cmd::run(&grades, only, json)
+    let (grades, held_back) = ws.journal.coach_grades_seen()?;
+    let agreement = crate::analysis::agreement::staff_agreement(&grades, only)?;
+    if json {
+        let mut out = crate::cli::agreement_cmd::render_json(&agreement);
+        if let Some(map) = out.as_object_mut() {
+            map.insert("held_back_sessions".into(), serde_json::json!(held_back));
+        }
+        crate::cli::out::json(&out)?;
+    } else {
+        print!("{}", crate::cli::agreement_cmd::render_text(&agreement));
+        if held_back > 0 {
+            println!();
+            println!(
+                "Left out: {} graded by other coaches that you have not finished grading \
+                 blind yourself (their scores stay hidden until you have).",
+                crate::cli::out::count(held_back, "session", "sessions")
+            );
+        }
+    }
+    Ok(0)
 }
 
 /// Open a journal named on the command line: a `postgres://` address or a SQLite file.
 fn open_location(location: &Path, for_reading: bool) -> anyhow::Result<Journal> {
-    if let Some(url) = location.to_str().filter(|s| journal::is_server_address(s)) {
+    if let Some(url) = location
+        .to_str()
+        .filter(|s| journal::is_server_address(s) || journal::looks_like_conninfo(s))
+    {
         return Ok(Journal::open_url(url)?);
     }
     if for_reading {
@@ -147,7 +170,9 @@ fn open_location(location: &Path, for_reading: bool) -> anyhow::Result<Journal> 
 /// `splitdesk journal copy FROM TO`: every row into a new, empty journal, then verified.
 pub fn copy(from: &Path, to: &Path, json: bool) -> anyhow::Result<i32> {
     let source = open_location(from, true)?;
-    let to_is_file = to.to_str().is_none_or(|s| !journal::is_server_address(s));
+    let to_is_file = to
+        .to_str()
+        .is_none_or(|s| !journal::is_server_address(s) && !journal::looks_like_conninfo(s));
     if to_is_file && std::fs::symlink_metadata(to).is_ok() {
         anyhow::bail!(
             "{}: the destination exists; copy into a new file (nothing was written)",

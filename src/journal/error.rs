@@ -206,15 +206,17 @@ pub enum JournalError {
 
     /// A journal with a staff needs to know which coach is writing.
     #[error(
-        "{path}: this journal is shared by a staff of {staff} coaches; say which one you are \
-         with `name` under [coach] in the config file, or --as NAME"
+        "{path}: this journal is shared by a staff of {}; say which one you are with \
+         `name` under [coach] in the config file, $SPLITDESK_COACH, or --as NAME",
+        coaches(*staff)
     )]
     NoCoach { path: PathBuf, staff: u64 },
 
     /// The coach named is not an active coach of the journal's staff.
     #[error(
-        "{path}: coach \"{coach}\" is not on this journal's staff ({staff} coaches); \
-         see `splitdesk staff list`, or add them with `splitdesk staff add`"
+        "{path}: coach \"{coach}\" is not on this journal's staff ({}); \
+         see `splitdesk staff list`, or add them with `splitdesk staff add`",
+        coaches(*staff)
     )]
     UnknownCoach {
         path: PathBuf,
@@ -351,6 +353,15 @@ impl JournalError {
                 detail: one_line(db.message()),
             }
         }
+    }
+}
+
+/// "no coaches", "1 coach", "N coaches".
+fn coaches(n: u64) -> String {
+    match n {
+        0 => "no coaches".into(),
+        1 => "1 coach".into(),
+        n => format!("{n} coaches"),
     }
 }
 

@@ -64,7 +64,7 @@ use rusqlite::{Connection, OpenFlags, TransactionBehavior};
 
 pub use db::Engine;
 use db::{Lite, Sql};
-pub use pg::{is_url as is_server_address, redact as redact_address};
+pub use pg::{is_url as is_server_address, looks_like_conninfo, redact as redact_address};
 
 pub use error::{JournalError, Missing};
 pub use location::{check_outside_roster, default_path, default_path_in, DATA_DIR_ENV};
@@ -80,6 +80,12 @@ pub use types::{
 };
 
 use schema::{current_version, APPLICATION_ID, BRIEF_FROM_SUMMARY, MIGRATIONS};
+
+/// Why a key=value connection string is refused (it is never echoed: it may hold a
+/// password).
+pub const CONNINFO_REFUSED: &str =
+    "give a journal on a server as a postgres://USER@HOST:PORT/DATABASE address \
+     (the password from PGPASSWORD or the password file, never in the address)";
 
 /// How long a write waits for another connection's lock before giving up with `Busy`.
 pub const BUSY_TIMEOUT: Duration = Duration::from_secs(5);
@@ -570,6 +576,12 @@ impl Journal {
     /// address without it. A database holding other tables is refused untouched.
     pub fn open_url(url: &str) -> Result<Journal> {
         let path = pg::shown_path(url);
+        if !pg::is_url(url) {
+            return Err(JournalError::Connect {
+                path: PathBuf::from("(a PostgreSQL connection string)"),
+                detail: CONNINFO_REFUSED.into(),
+            });
+        }
         let conn = pg::PgConn::connect(url, &path)?;
         let mut journal = Journal {
             db: Store::Pg(Box::new(std::sync::Mutex::new(conn))),

@@ -57,6 +57,25 @@ pub fn is_url(s: &str) -> bool {
     lower.starts_with("postgres://") || lower.starts_with("postgresql://")
 }
 
+/// Whether `s` looks like a libpq key=value connection string (`host=… dbname=…`), which
+/// splitdesk does not take: a journal on a server is given as a `postgres://` address.
+pub fn looks_like_conninfo(s: &str) -> bool {
+    const KEYS: &[&str] = &[
+        "host=",
+        "hostaddr=",
+        "port=",
+        "dbname=",
+        "user=",
+        "password=",
+        "passfile=",
+        "sslmode=",
+        "service=",
+    ];
+    let s = s.trim_start();
+    KEYS.iter()
+        .any(|k| s.starts_with(k) || s.contains(&format!(" {k}")))
+}
+
 /// The address without its password (in the user part or as a `password=` parameter), for
 /// messages and logs.
 pub fn redact(url: &str) -> String {
@@ -101,6 +120,14 @@ impl PgConn {
         let ask = super::pg_tls::split(url.trim()).map_err(&connect_err)?;
         let mut config = postgres::Config::from_str(&ask.url)
             .map_err(|e| connect_err(format!("not a valid PostgreSQL address: {e}")))?;
+        if config.get_password().is_some() {
+            return Err(connect_err(
+                "the address holds a password; take it out and put it in PGPASSWORD or the \
+                 password file (~/.pgpass, or the file PGPASSFILE names), so that it never \
+                 shows on a command line or in a config file"
+                    .into(),
+            ));
+        }
         if config.get_user().is_none() {
             if let Some(user) = std::env::var("PGUSER")
                 .ok()

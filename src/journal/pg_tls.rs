@@ -134,12 +134,14 @@ pub fn connector(ask: &TlsAsk) -> Result<tokio_postgres_rustls::MakeRustlsConnec
                         .map_err(|e| format!("sslrootcert {}: {e}", path.display()))?;
                 }
             }
-            let webpki =
-                WebPkiServerVerifier::builder_with_provider(Arc::new(roots), provider.clone())
-                    .build()
-                    .map_err(|e| {
-                        format!("no trusted certificate to verify the server with ({e}); set sslrootcert")
-                    })?;
+            let webpki = WebPkiServerVerifier::builder_with_provider(
+                Arc::new(roots),
+                provider.clone(),
+            )
+            .build()
+            .map_err(|e| {
+                format!("no trusted certificate to verify the server with ({e}); set sslrootcert")
+            })?;
             if ask.mode == SslMode::VerifyFull {
                 webpki
             } else {
@@ -260,11 +262,16 @@ mod tests {
 
     #[test]
     fn the_tls_parameters_are_read_libpq_s_way() {
-        let ask = split("postgres://c@h/j?sslmode=verify-full&sslrootcert=%2Fetc%2Fca.pem&connect_timeout=5")
-            .unwrap();
+        let ask = split(
+            "postgres://c@h/j?sslmode=verify-full&sslrootcert=%2Fetc%2Fca.pem&connect_timeout=5",
+        )
+        .unwrap();
         assert_eq!(ask.mode, SslMode::VerifyFull);
         assert_eq!(ask.root_cert, Some(PathBuf::from("/etc/ca.pem")));
-        assert_eq!(ask.url, "postgres://c@h/j?connect_timeout=5&sslmode=require");
+        assert_eq!(
+            ask.url,
+            "postgres://c@h/j?connect_timeout=5&sslmode=require"
+        );
         let ask = split("postgres://c@h/j").unwrap();
         assert_eq!(ask.mode, SslMode::Prefer);
         assert_eq!(ask.url, "postgres://c@h/j?sslmode=prefer");

@@ -358,6 +358,28 @@ impl Journal {
         })
     }
 
+    /// [`Journal::coach_grades`] as this coach may see them: only the sessions whose blind
+    /// grading this coach has completed (a colleague's scores of any other session stay
+    /// hidden, as in [`Journal::colleague_grades`]), with the number of sessions left out.
+    pub fn coach_grades_seen(&self) -> Result<(Vec<CoachGrade>, usize)> {
+        let all = self.coach_grades()?;
+        let mut complete: BTreeMap<String, bool> = BTreeMap::new();
+        for g in &all {
+            if !complete.contains_key(&g.session_id) {
+                let st = self.review_state(&g.session_id)?;
+                let done = st.revealed_at.is_some()
+                    || (st.work_intervals.is_some() && st.missing.is_empty());
+                complete.insert(g.session_id.clone(), done);
+            }
+        }
+        let held_back = complete.values().filter(|done| !**done).count();
+        let seen = all
+            .into_iter()
+            .filter(|g| complete.get(&g.session_id) == Some(&true))
+            .collect();
+        Ok((seen, held_back))
+    }
+
     /// The other coaches' blind grades of a session, once this coach's own blind grading of
     /// it is complete; refused with [`JournalError::ColleaguesHidden`] before that, so a
     /// coach never grades with a colleague's scores in view.

@@ -1342,6 +1342,17 @@ pub fn journal_check(ws: &Workspace, json: bool) -> anyhow::Result<i32> {
         }))?;
     } else {
         use crate::cli::out::count;
+        if let Some(tls) = ws.journal.server_tls()? {
+            println!(
+                "{}: a journal on a PostgreSQL server, connection {}",
+                ws.journal.path().display(),
+                if tls {
+                    "encrypted (TLS)"
+                } else {
+                    "not encrypted (sslmode=require insists on TLS)"
+                }
+            );
+        }
         println!(
             "{}: {} (schema {}; {}, {}, {}, {}, {}, {})",
             ws.journal.path().display(),

@@ -740,6 +740,15 @@ impl Journal {
         }
     }
 
+    /// For a journal on a server, whether the connection to it is encrypted (TLS); `None`
+    /// for a SQLite file.
+    pub fn server_tls(&self) -> Result<Option<bool>> {
+        match &self.db {
+            Store::Lite(_) => Ok(None),
+            Store::Pg(m) => pg::lock(m).tls_in_use(&self.path).map(Some),
+        }
+    }
+
     /// Which engine holds the journal.
     pub fn engine(&self) -> Engine {
         match &self.db {

@@ -306,6 +306,18 @@ impl PgConn {
         }
     }
 
+    /// Whether this connection to the server is encrypted (TLS).
+    pub(crate) fn tls_in_use(&mut self, path: &Path) -> Result<bool> {
+        self.client
+            .query_one(
+                "SELECT coalesce((SELECT ssl FROM pg_stat_ssl WHERE pid = pg_backend_pid()),
+                    false)",
+                &[],
+            )
+            .and_then(|r| r.try_get(0))
+            .map_err(|e| JournalError::pg(path, e))
+    }
+
     /// The journal's schema version.
     pub(crate) fn schema_version(&mut self, path: &Path) -> Result<u32> {
         let v: i64 = self

@@ -133,8 +133,9 @@ fn two_workstations_on_one_server_journal_keep_each_coach_blind() {
         "{text}"
     );
 
-    // The head coach's calibration: both coaches' blind scores of the eight repeats.
-    let agreement = cli(&roster, &url, None, &["agreement", "--json"]);
+    // The head coach's calibration, asked as Ana (who has graded the session too): both
+    // coaches' blind scores of the eight repeats.
+    let agreement = cli(&roster, &url, Some("Ana"), &["agreement", "--json"]);
     assert!(agreement.status.success(), "{agreement:?}");
     let json: serde_json::Value = serde_json::from_slice(&agreement.stdout).unwrap();
     assert_eq!(json["pairs"][0]["items"], 8, "{json}");

@@ -8,12 +8,10 @@
 
 mod engines;
 
-use std::path::PathBuf;
-
 use chrono::{DateTime, Duration, TimeZone, Utc};
 use rusqlite::Connection;
 use splitdesk::journal::{
-    schema, Journal, JournalError, PurposeVerdict, ReviewStage, SessionRecord, SummaryCache,
+    schema, Journal, JournalError, PurposeVerdict, ReviewStage, SessionRecord,
 };
 
 fn t(minutes: i64) -> DateTime<Utc> {
@@ -21,20 +19,7 @@ fn t(minutes: i64) -> DateTime<Utc> {
 }
 
 fn record(id: &str, start_min: i64, work: u32) -> SessionRecord {
-    let (athlete, stem) = id.split_once('/').unwrap();
-    SessionRecord {
-        session_id: id.to_string(),
-        athlete_id: athlete.to_string(),
-        file_path: PathBuf::from(format!("/roster/{athlete}/activities/{stem}.fit")),
-        content_hash: format!("hash-of-{id}"),
-        start: t(start_min),
-        summary: Some(SummaryCache {
-            json: "{}".into(),
-            analysis_version: 1,
-            work_intervals: work,
-            card: None,
-        }),
-    }
+    engines::analysed_record(id, t(start_min), work)
 }
 
 const EASY: &str = "ines/easy";

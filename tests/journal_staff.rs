@@ -6,13 +6,12 @@
 mod engines;
 
 use std::collections::BTreeMap;
-use std::path::PathBuf;
 
 use chrono::{DateTime, Duration, TimeZone, Utc};
 use splitdesk::journal::{
     check_coach_name, ColleagueGrades, FeedbackEventKind, Journal, JournalError, Missing,
-    PurposeVerdict, ReviewStage, RevisionChange, SessionRecord, StaffAdded, SummaryCache,
-    MAX_COACH_NAME, REVIEWING_FOR,
+    PurposeVerdict, ReviewStage, RevisionChange, SessionRecord, StaffAdded, MAX_COACH_NAME,
+    REVIEWING_FOR,
 };
 
 fn t(minutes: i64) -> DateTime<Utc> {
@@ -20,20 +19,7 @@ fn t(minutes: i64) -> DateTime<Utc> {
 }
 
 fn record(id: &str, start_min: i64, work: u32) -> SessionRecord {
-    let (athlete, stem) = id.split_once('/').unwrap();
-    SessionRecord {
-        session_id: id.to_string(),
-        athlete_id: athlete.to_string(),
-        file_path: PathBuf::from(format!("/roster/{athlete}/activities/{stem}.fit")),
-        content_hash: format!("hash-of-{id}"),
-        start: t(start_min),
-        summary: Some(SummaryCache {
-            json: "{}".into(),
-            analysis_version: 1,
-            work_intervals: work,
-            card: None,
-        }),
-    }
+    engines::analysed_record(id, t(start_min), work)
 }
 
 const REPS: &str = "ines/reps";

@@ -18,7 +18,7 @@ use std::cell::{Cell, RefCell};
 use std::panic::{catch_unwind, resume_unwind, AssertUnwindSafe};
 use std::path::{Path, PathBuf};
 
-use splitdesk::journal::{Engine, Journal};
+use splitdesk::journal::{Engine, Journal, SessionRecord, SummaryCache};
 
 thread_local! {
     static CURRENT: Cell<Engine> = const { Cell::new(Engine::Sqlite) };
@@ -144,5 +144,24 @@ impl Place {
             Place::File(..) => None,
             Place::Server(url) => Some(url),
         }
+    }
+}
+
+/// An analysed session `<athlete>/<stem>` starting at `start`, with `work` work intervals,
+/// its content hash derived from the id, its summary an empty JSON object (version 1).
+pub fn analysed_record(id: &str, start: chrono::DateTime<chrono::Utc>, work: u32) -> SessionRecord {
+    let (athlete, stem) = id.split_once('/').unwrap_or(("athlete", id));
+    SessionRecord {
+        session_id: id.to_string(),
+        athlete_id: athlete.to_string(),
+        file_path: PathBuf::from(format!("/roster/{athlete}/activities/{stem}.fit")),
+        content_hash: format!("hash-of-{id}"),
+        start,
+        summary: Some(SummaryCache {
+            json: "{}".into(),
+            analysis_version: 1,
+            work_intervals: work,
+            card: None,
+        }),
     }
 }

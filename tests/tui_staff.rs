@@ -459,3 +459,38 @@ fn roster_with_a_colleague_reviewing_snapshots() {
         insta::assert_snapshot!(format!("staff_reviewing_{w}x{h}"), text);
     }
 }
+
+// ----- the queue -----
+
+/// A coach of a staff works through their own athletes' sessions first (then the others',
+/// each oldest first), in the workstation as in `splitdesk queue`.
+#[test]
+fn the_workstation_queue_puts_the_coach_s_own_athletes_first() {
+    let dir = tempfile::tempdir().unwrap();
+    let path = staff_roster(dir.path());
+    let ana = app_as(dir.path(), &path, "Ana");
+    let athletes =
+        |app: &App| -> Vec<String> { app.queue.iter().map(|e| e.athlete.clone()).collect() };
+    let before = athletes(&ana);
+    assert!(before.len() >= 2, "{before:?}");
+    // An athlete whose sessions are not first in the plain (oldest first) queue.
+    let last = before
+        .iter()
+        .find(|a| Some(*a) != before.first())
+        .expect("two athletes in the queue")
+        .clone();
+    let mut j = handle(&path, "Ana");
+    j.assign(&last, Some("Ben"), Utc::now()).unwrap();
+    let ben = app_as(dir.path(), &path, "Ben");
+    let got = athletes(&ben);
+    let own = got.iter().take_while(|a| **a == last).count();
+    assert_eq!(
+        own,
+        before.iter().filter(|a| **a == last).count(),
+        "{got:?}"
+    );
+    assert_eq!(got.len(), before.len(), "the same sessions: {got:?}");
+    // Ana, who has no athletes assigned, keeps the plain order.
+    let ana = app_as(dir.path(), &path, "Ana");
+    assert_eq!(athletes(&ana), before);
+}

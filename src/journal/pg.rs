@@ -38,6 +38,9 @@ pub(crate) struct PgConn {
     backend_pid: i32,
     /// Changes from other connections seen so far.
     others: i64,
+    /// The address connected to (it never holds a password), to connect again after the
+    /// server closed the connection (a restart, a network cut).
+    url: String,
 }
 
 /// Lock a shared connection (a poisoned lock is taken over: the connection itself is
@@ -177,6 +180,7 @@ impl PgConn {
             busy_timeout: BUSY_TIMEOUT,
             backend_pid: 0,
             others: 0,
+            url: url.to_string(),
         };
         let pid = conn
             .client
@@ -252,6 +256,21 @@ impl PgConn {
         Ok(())
     }
 
+    /// Connect again when the server has closed the connection (restarted, or the network
+    /// was cut): the next action after such a failure works again without restarting
+    /// splitdesk. A change missed meanwhile counts as one change from elsewhere, so the
+    /// workstation reads its lists again.
+    fn reopen_if_closed(&mut self, path: &Path) -> Result<()> {
+        if !self.client.is_closed() {
+            return Ok(());
+        }
+        let mut fresh = PgConn::connect(&self.url, path)?;
+        fresh.busy_timeout = self.busy_timeout;
+        fresh.others = self.others + 1;
+        *self = fresh;
+        Ok(())
+    }
+
     /// Apply the schema steps this journal lacks, each in its own transaction with the
     /// version bump, under the write lock (two workstations upgrading at once take turns).
     pub(crate) fn migrate(&mut self, path: &Path) -> Result<()> {
@@ -308,6 +327,7 @@ impl PgConn {
 
     /// Whether this connection to the server is encrypted (TLS).
     pub(crate) fn tls_in_use(&mut self, path: &Path) -> Result<bool> {
+        self.reopen_if_closed(path)?;
         self.client
             .query_one(
                 "SELECT coalesce((SELECT ssl FROM pg_stat_ssl WHERE pid = pg_backend_pid()),
@@ -320,6 +340,7 @@ impl PgConn {
 
     /// The journal's schema version.
     pub(crate) fn schema_version(&mut self, path: &Path) -> Result<u32> {
+        self.reopen_if_closed(path)?;
         let v: i64 = self
             .client
             .query_one("SELECT schema_version FROM splitdesk_journal", &[])
@@ -334,6 +355,7 @@ impl PgConn {
         path: &Path,
         f: impl FnOnce(&mut dyn Sql, &Path) -> Result<T>,
     ) -> Result<T> {
+        self.reopen_if_closed(path)?;
         let pg = |e| JournalError::pg(path, e);
         let mut tx = self
             .client
@@ -360,6 +382,7 @@ impl PgConn {
         path: &Path,
         f: impl FnOnce(&mut dyn Sql, &Path) -> Result<T>,
     ) -> Result<T> {
+        self.reopen_if_closed(path)?;
         let pg = |e| JournalError::pg(path, e);
         let mut tx = self.client.transaction().map_err(pg)?;
         let ms = self.busy_timeout.as_millis().clamp(1, i32::MAX as u128);
@@ -382,6 +405,7 @@ impl PgConn {
 
     /// How many changes other connections have announced so far (see [`CHANNEL`]).
     pub(crate) fn data_version(&mut self, path: &Path) -> Result<i64> {
+        self.reopen_if_closed(path)?;
         use postgres::fallible_iterator::FallibleIterator;
         // The client reads the socket only while it runs a statement: one empty round trip
         // brings in the notifications the server has sent meanwhile.

@@ -774,8 +774,10 @@ impl App {
         let all = match self.journal.sessions(None) {
             Ok(v) => v,
             Err(e) => {
+                // The lists stay as last read (a journal server gone for a moment must not
+                // empty the queue); the next change or key tries again.
                 self.say(Tone::Warn, e.to_string());
-                Vec::new()
+                return;
             }
         };
         // The queue, the counts and the seen sessions from the one read (the journal's
@@ -786,6 +788,15 @@ impl App {
             .filter(|e| e.stage.is_unreviewed())
             .cloned()
             .collect();
+        // A coach of a staff works through their own athletes first, then the others'
+        // (as `Journal::unreviewed` lists them), each oldest first.
+        if !self.journal.coach().is_empty() {
+            if let Ok(assigned) = self.journal.assignments() {
+                let me = self.journal.coach().to_string();
+                self.queue
+                    .sort_by_key(|e| assigned.get(&e.athlete) != Some(&me));
+            }
+        }
         self.counts = BTreeMap::new();
         for e in &self.queue {
             *self.counts.entry(e.athlete.clone()).or_insert(0) += 1;

@@ -374,7 +374,7 @@ impl Workspace {
         // key=value connection string is refused, never taken for a file name.
         if let Some(url) = journal
             .and_then(Path::to_str)
-            .filter(|s| journal::is_server_address(s) || journal::looks_like_conninfo(s))
+            .filter(|s| journal::names_a_server(s))
         {
             return Ok(Workspace {
                 roster,

@@ -5,20 +5,12 @@
 //! venv). Without `SPLITDESK_PYTHON`, or without scikit-learn there, the check is skipped with
 //! a message.
 
-use std::io::Write;
-use std::process::{Command, Stdio};
+mod kappa_support;
 
 use splitdesk::analysis::agreement::{weighted_kappa, Weights};
 
 #[test]
 fn weighted_kappa_agrees_with_scikit_learn() {
-    let Some(python) = std::env::var("SPLITDESK_PYTHON")
-        .ok()
-        .filter(|p| !p.is_empty())
-    else {
-        println!("skipped: set SPLITDESK_PYTHON to a Python with scikit-learn installed");
-        return;
-    };
     let mut seed = 2026u64;
     let mut next = |m: u64| {
         seed = seed
@@ -55,31 +47,9 @@ fn weighted_kappa_agrees_with_scikit_learn() {
         }));
         ours.push(weighted_kappa(&pairs, 5, weights).unwrap().kappa);
     }
-    let script = concat!(env!("CARGO_MANIFEST_DIR"), "/tests/kappa_check.py");
-    let mut child = Command::new(&python)
-        .arg(script)
-        .stdin(Stdio::piped())
-        .stdout(Stdio::piped())
-        .stderr(Stdio::piped())
-        .spawn()
-        .unwrap();
-    child
-        .stdin
-        .take()
-        .unwrap()
-        .write_all(serde_json::Value::Array(cases).to_string().as_bytes())
-        .unwrap();
-    let out = child.wait_with_output().unwrap();
-    if out.status.code() == Some(3) {
-        println!("skipped: scikit-learn is not installed for {python}");
+    let Some(theirs) = kappa_support::sklearn_kappas(cases) else {
         return;
-    }
-    assert!(
-        out.status.success(),
-        "kappa_check.py failed: {}",
-        String::from_utf8_lossy(&out.stderr)
-    );
-    let theirs: Vec<Option<f64>> = serde_json::from_slice(&out.stdout).unwrap();
+    };
     assert_eq!(theirs.len(), ours.len());
     let mut compared = 0;
     for (i, (a, b)) in ours.iter().zip(&theirs).enumerate() {

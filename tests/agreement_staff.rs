@@ -2,6 +2,8 @@
 //! the mean of the pairwise kappas, the `--coach` filter, and the text and JSON a head coach
 //! reads.
 
+mod kappa_support;
+
 use std::collections::{BTreeMap, BTreeSet};
 
 use chrono::{DateTime, TimeZone, Utc};
@@ -631,16 +633,6 @@ fn text_holds_no_control_characters_from_names() {
 /// scikit-learn there).
 #[test]
 fn pairwise_kappas_agree_with_scikit_learn() {
-    use std::io::Write;
-    use std::process::{Command, Stdio};
-
-    let Some(python) = std::env::var("SPLITDESK_PYTHON")
-        .ok()
-        .filter(|p| !p.is_empty())
-    else {
-        println!("skipped: set SPLITDESK_PYTHON to a Python with scikit-learn installed");
-        return;
-    };
     let mut cases = Vec::new();
     let mut ours = Vec::new();
     for seed in 10..30 {
@@ -667,31 +659,9 @@ fn pairwise_kappas_agree_with_scikit_learn() {
             ours.push(p.kappa.kappa);
         }
     }
-    let script = concat!(env!("CARGO_MANIFEST_DIR"), "/tests/kappa_check.py");
-    let mut child = Command::new(&python)
-        .arg(script)
-        .stdin(Stdio::piped())
-        .stdout(Stdio::piped())
-        .stderr(Stdio::piped())
-        .spawn()
-        .unwrap();
-    child
-        .stdin
-        .take()
-        .unwrap()
-        .write_all(serde_json::Value::Array(cases).to_string().as_bytes())
-        .unwrap();
-    let out = child.wait_with_output().unwrap();
-    if out.status.code() == Some(3) {
-        println!("skipped: scikit-learn is not installed for {python}");
+    let Some(theirs) = kappa_support::sklearn_kappas(cases) else {
         return;
-    }
-    assert!(
-        out.status.success(),
-        "kappa_check.py failed: {}",
-        String::from_utf8_lossy(&out.stderr)
-    );
-    let theirs: Vec<Option<f64>> = serde_json::from_slice(&out.stdout).unwrap();
+    };
     assert_eq!(theirs.len(), ours.len());
     for (i, (a, b)) in ours.iter().zip(&theirs).enumerate() {
         let (Some(a), Some(b)) = (a, b) else {

@@ -151,10 +151,7 @@ pub fn agreement(ws: &Workspace, only: &[String], json: bool) -> anyhow::Result<
 
 /// Open a journal named on the command line: a `postgres://` address or a SQLite file.
 fn open_location(location: &Path, for_reading: bool) -> anyhow::Result<Journal> {
-    if let Some(url) = location
-        .to_str()
-        .filter(|s| journal::is_server_address(s) || journal::looks_like_conninfo(s))
-    {
+    if let Some(url) = location.to_str().filter(|s| journal::names_a_server(s)) {
         return Ok(Journal::open_url(url)?);
     }
     if for_reading {
@@ -170,9 +167,7 @@ fn open_location(location: &Path, for_reading: bool) -> anyhow::Result<Journal> 
 /// `splitdesk journal copy FROM TO`: every row into a new, empty journal, then verified.
 pub fn copy(from: &Path, to: &Path, json: bool) -> anyhow::Result<i32> {
     let source = open_location(from, true)?;
-    let to_is_file = to
-        .to_str()
-        .is_none_or(|s| !journal::is_server_address(s) && !journal::looks_like_conninfo(s));
+    let to_is_file = to.to_str().is_none_or(|s| !journal::names_a_server(s));
     if to_is_file && std::fs::symlink_metadata(to).is_ok() {
         anyhow::bail!(
             "{}: the destination exists; copy into a new file (nothing was written)",

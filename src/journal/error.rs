@@ -366,7 +366,7 @@ fn coaches(n: u64) -> String {
 }
 
 /// A server message on one line, without control characters.
-fn one_line(s: &str) -> String {
+pub(crate) fn one_line(s: &str) -> String {
     s.split_whitespace().collect::<Vec<_>>().join(" ")
 }
 

@@ -64,7 +64,7 @@ use rusqlite::{Connection, OpenFlags, TransactionBehavior};
 
 pub use db::Engine;
 use db::{Lite, Sql};
-pub use pg::{is_url as is_server_address, looks_like_conninfo, redact as redact_address};
+pub use pg::{names_a_server, redact as redact_address};
 
 pub use error::{JournalError, Missing};
 pub use location::{check_outside_roster, default_path, default_path_in, DATA_DIR_ENV};
@@ -1906,13 +1906,7 @@ impl Journal {
     pub fn unreviewed(&self, athlete: Option<&str>) -> Result<Vec<QueueEntry>> {
         let mut all = self.overview(athlete)?;
         all.retain(|e| e.stage.is_unreviewed());
-        // A coach of a staff sees their own athletes' sessions first, then the others'
-        // (covering for a colleague), each oldest first.
-        if !self.coach.is_empty() {
-            let assigned = self.assignments()?;
-            let own = |e: &QueueEntry| assigned.get(&e.athlete) == Some(&self.coach);
-            all.sort_by_key(|e| !own(e));
-        }
+        self.own_athletes_first(&mut all)?;
         Ok(all)
     }
 

@@ -60,6 +60,12 @@ pub fn is_url(s: &str) -> bool {
     lower.starts_with("postgres://") || lower.starts_with("postgresql://")
 }
 
+/// Whether `s` names a journal on a server rather than a file: a `postgres://` address, or
+/// a key=value connection string (which is then refused, see [`looks_like_conninfo`]).
+pub fn names_a_server(s: &str) -> bool {
+    is_url(s) || looks_like_conninfo(s)
+}
+
 /// Whether `s` looks like a libpq key=value connection string (`host=… dbname=…`), which
 /// splitdesk does not take: a journal on a server is given as a `postgres://` address.
 pub fn looks_like_conninfo(s: &str) -> bool {
@@ -442,7 +448,7 @@ fn connect_detail(e: &postgres::Error) -> String {
         }
         source = s.source();
     }
-    text.split_whitespace().collect::<Vec<_>>().join(" ")
+    super::error::one_line(&text)
 }
 
 /// The shown form of a PostgreSQL journal address, as a path (journal errors carry one).

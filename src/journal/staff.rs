@@ -315,6 +315,17 @@ impl Journal {
         })
     }
 
+    /// Put this coach's own athletes' sessions first, then the others' (covering for a
+    /// colleague), keeping the order within each; unchanged for a journal without a staff.
+    pub fn own_athletes_first(&self, queue: &mut [super::QueueEntry]) -> Result<()> {
+        if self.coach.is_empty() {
+            return Ok(());
+        }
+        let assigned = self.assignments()?;
+        queue.sort_by_key(|e| assigned.get(&e.athlete) != Some(&self.coach));
+        Ok(())
+    }
+
     /// Each assigned athlete's coach, by athlete id.
     pub fn assignments(&self) -> Result<BTreeMap<String, String>> {
         self.read(|conn, path| {

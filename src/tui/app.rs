@@ -788,15 +788,9 @@ impl App {
             .filter(|e| e.stage.is_unreviewed())
             .cloned()
             .collect();
-        // A coach of a staff works through their own athletes first, then the others'
-        // (as `Journal::unreviewed` lists them), each oldest first.
-        if !self.journal.coach().is_empty() {
-            if let Ok(assigned) = self.journal.assignments() {
-                let me = self.journal.coach().to_string();
-                self.queue
-                    .sort_by_key(|e| assigned.get(&e.athlete) != Some(&me));
-            }
-        }
+        // A coach of a staff works through their own athletes first, as
+        // `Journal::unreviewed` lists them (kept oldest first when that cannot be read).
+        let _ = self.journal.own_athletes_first(&mut self.queue);
         self.counts = BTreeMap::new();
         for e in &self.queue {
             *self.counts.entry(e.athlete.clone()).or_insert(0) += 1;
